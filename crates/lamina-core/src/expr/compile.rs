@@ -1,0 +1,1 @@
+//! Parsing meval token streams into the instruction list.

@@ -1,0 +1,22 @@
+//! Typed expressions: parsing with `meval`, compiling a whole system of expressions into one
+//! evaluation program with shared subexpressions, and forward-mode derivatives from it.
+
+mod compile;
+mod error;
+mod functions;
+mod program;
+mod tangent;
+
+pub use error::{CompileError, ExprError, ExprErrorKind};
+pub use functions::{CONSTANTS, FUNCTIONS, is_reserved};
+pub use program::{Program, Scratch};
+
+/// The names an expression may use besides functions and constants: states (in order),
+/// parameters (in order), and always the time `t`.
+#[derive(Clone, Debug, Default, PartialEq, Eq)]
+pub struct Names {
+    /// State names in order.
+    pub states: Vec<String>,
+    /// Parameter names in order.
+    pub parameters: Vec<String>,
+}

@@ -1,0 +1,1 @@
+//! Forward-mode derivatives (tangent propagation) through the instruction list.

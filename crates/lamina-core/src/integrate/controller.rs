@@ -1,0 +1,1 @@
+//! Step-size control: the PI controller.

@@ -1,0 +1,64 @@
+//! Continuous (dense) output of one accepted step.
+
+/// The dense output of one accepted step from `t0` to `t0 + h`.
+///
+/// Both methods' interpolants share one nested form: with `s = (t - t0) / h` and
+/// `r = 1 - s`, `y(t) = c0 + s (c1 + r (c2 + s (c3 + r (c4 + ...))))`, alternating `s` and `r`.
+/// Dormand–Prince 5(4) has 5 coefficient vectors, DOP853 has 8. `c0` is the state at `t0` and
+/// `c0 + c1` the state at `t0 + h`.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct DenseSegment {
+    /// Start time of the step.
+    pub t0: f64,
+    /// Step length (positive).
+    pub h: f64,
+    /// Number of states.
+    pub dim: usize,
+    /// `n_terms * dim` coefficients, term-major: term `j`, state `i` at `j * dim + i`.
+    pub coeffs: Vec<f64>,
+}
+
+impl DenseSegment {
+    /// Number of coefficient vectors (5 or 8).
+    pub fn n_terms(&self) -> usize {
+        if self.dim == 0 { 0 } else { self.coeffs.len() / self.dim }
+    }
+
+    /// End time of the step.
+    pub fn t1(&self) -> f64 {
+        self.t0 + self.h
+    }
+
+    /// Interpolated state at time `t` (meant for `t0 <= t <= t0 + h`) into `out`.
+    pub fn eval(&self, t: f64, out: &mut [f64]) {
+        eval_terms(&self.coeffs, self.dim, (t - self.t0) / self.h, out);
+    }
+
+    /// State at the start of the step.
+    pub fn start_state(&self) -> &[f64] {
+        &self.coeffs[..self.dim]
+    }
+
+    /// State at the end of the step into `out`.
+    pub fn end_state(&self, out: &mut [f64]) {
+        for (i, o) in out.iter_mut().enumerate().take(self.dim) {
+            *o = self.coeffs[i] + self.coeffs[self.dim + i];
+        }
+    }
+}
+
+/// Evaluates the nested interpolant of `coeffs` (term-major, `dim` per term) at the fraction
+/// `s` of the step into `out`. Shared by [`DenseSegment`] and the stored run.
+pub fn eval_terms(coeffs: &[f64], dim: usize, s: f64, out: &mut [f64]) {
+    let n_terms = coeffs.len() / dim.max(1);
+    let r = 1.0 - s;
+    for i in 0..dim {
+        let mut acc = coeffs[(n_terms - 1) * dim + i];
+        for j in (1..n_terms - 1).rev() {
+            let w = if j % 2 == 1 { r } else { s };
+            acc = coeffs[j * dim + i] + w * acc;
+        }
+        // term 0 is multiplied by nothing; term 1 onward sits behind a factor s
+        out[i] = coeffs[i] + s * acc;
+    }
+}

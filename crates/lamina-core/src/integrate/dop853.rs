@@ -1,0 +1,1 @@
+//! Dormand–Prince 8(5,3), Hairer's DOP853.

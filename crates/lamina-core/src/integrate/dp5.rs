@@ -1,0 +1,1 @@
+//! Dormand–Prince 5(4).

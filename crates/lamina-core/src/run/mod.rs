@@ -1,0 +1,14 @@
+//! Runs: integrate a model over its time window and report cut points and strobe samples
+//! to a [`Sink`], keeping the accepted steps so a moved cut can be re-sliced later.
+
+mod cut;
+mod driver;
+mod spec;
+mod stored;
+mod strobe;
+
+pub use cut::{Cut, CutPoint, Direction, Surface};
+pub use driver::{Run, RunOutcome, Sink, StopReason, run};
+pub use spec::{CutSpec, RunSpec, StrobeSpec, SurfaceSpec, SpecError};
+pub use stored::StoredRun;
+pub use strobe::{Strobe, StrobeSample};

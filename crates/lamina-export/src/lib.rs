@@ -1,0 +1,1 @@
+//! Lamina exports: CSV point sets, written atomically.

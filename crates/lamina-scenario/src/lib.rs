@@ -1,0 +1,1 @@
+//! Lamina scenario files, format 1 (RON).
