@@ -2,6 +2,7 @@
 //! evaluation program with shared subexpressions, and forward-mode derivatives from it.
 
 mod compile;
+mod instr;
 mod error;
 mod functions;
 mod program;

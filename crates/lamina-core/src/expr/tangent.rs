@@ -1,1 +1,144 @@
-//! Forward-mode derivatives (tangent propagation) through the instruction list.
+//! Forward-mode derivatives: tangents pushed through the instruction list alongside the
+//! values, several directions at once.
+
+use super::instr::Instr;
+use super::program::{Program, Scratch};
+
+/// Which inputs carry a unit tangent.
+#[derive(Clone, Copy)]
+enum Seed {
+    /// Direction `j` is state `j` (all states at once).
+    States,
+    /// One direction: parameter `idx`.
+    Parameter(usize),
+    /// One direction: the time.
+    Time,
+}
+
+impl Program {
+    /// Values and tangents for `n_dir` directions; tangent of slot `s`, direction `d` at
+    /// `s * n_dir + d`.
+    fn propagate(&self, scratch: &mut Scratch, t: f64, x: &[f64], p: &[f64], seed: Seed) -> usize {
+        self.run(scratch, t, x, p);
+        let n_dir = match seed {
+            Seed::States => self.n_states(),
+            Seed::Parameter(_) | Seed::Time => 1,
+        };
+        let Scratch { values, tangents } = scratch;
+        tangents.clear();
+        tangents.resize(self.instrs.len() * n_dir, 0.0);
+        for (idx, instr) in self.instrs.iter().enumerate() {
+            let (out, before) = {
+                let (before, rest) = tangents.split_at_mut(idx * n_dir);
+                (&mut rest[..n_dir], before)
+            };
+            let tan = |slot: u32| &before[slot as usize * n_dir..(slot as usize + 1) * n_dir];
+            let val = |slot: u32| values[slot as usize];
+            match *instr {
+                Instr::Const(_) => {}
+                Instr::State(i) => {
+                    if let Seed::States = seed {
+                        out[i as usize] = 1.0;
+                    }
+                }
+                Instr::Param(i) => {
+                    if let Seed::Parameter(k) = seed
+                        && k == i as usize
+                    {
+                        out[0] = 1.0;
+                    }
+                }
+                Instr::Time => {
+                    if let Seed::Time = seed {
+                        out[0] = 1.0;
+                    }
+                }
+                Instr::Neg(a) => combine1(out, tan(a), -1.0),
+                Instr::Add(a, b) => combine2(out, tan(a), 1.0, tan(b), 1.0),
+                Instr::Sub(a, b) => combine2(out, tan(a), 1.0, tan(b), -1.0),
+                Instr::Mul(a, b) => combine2(out, tan(a), val(b), tan(b), val(a)),
+                Instr::Div(a, b) => {
+                    let inv = 1.0 / val(b);
+                    combine2(out, tan(a), inv, tan(b), -values[idx] * inv)
+                }
+                Instr::Rem(a, b) => {
+                    combine2(out, tan(a), 1.0, tan(b), -(val(a) / val(b)).trunc())
+                }
+                Instr::Pow(a, b) => {
+                    let (base, exponent) = (val(a), val(b));
+                    let da = exponent * base.powf(exponent - 1.0);
+                    let tb = tan(b);
+                    // the log term only where the exponent varies, so a^c stays defined for a <= 0
+                    let db = if tb.iter().all(|&v| v == 0.0) { 0.0 } else { values[idx] * base.ln() };
+                    combine2(out, tan(a), da, tb, db)
+                }
+                Instr::PowI(a, n) => {
+                    let d = if n == 0 { 0.0 } else { f64::from(n) * val(a).powi(n - 1) };
+                    combine1(out, tan(a), d)
+                }
+                Instr::F1(f, a) => combine1(out, tan(a), f.derivative(val(a), values[idx])),
+                Instr::F2(f, a, b) => {
+                    let (da, db) = f.derivatives(val(a), val(b));
+                    combine2(out, tan(a), da, tan(b), db)
+                }
+            }
+        }
+        n_dir
+    }
+
+    /// Jacobian of the outputs with respect to the states at `(t, x)`, row-major:
+    /// `out[i * n + j] = d output_i / d x_j`.
+    pub fn jacobian(&self, scratch: &mut Scratch, t: f64, x: &[f64], p: &[f64], out: &mut [f64]) {
+        let n = self.propagate(scratch, t, x, p, Seed::States);
+        for (row, &slot) in self.outputs.iter().enumerate() {
+            let s = slot as usize;
+            out[row * n..(row + 1) * n].copy_from_slice(&scratch.tangents[s * n..(s + 1) * n]);
+        }
+    }
+
+    /// Derivative of every output with respect to parameter `param_idx`.
+    pub fn parameter_derivative(
+        &self,
+        scratch: &mut Scratch,
+        t: f64,
+        x: &[f64],
+        p: &[f64],
+        param_idx: usize,
+        out: &mut [f64],
+    ) {
+        self.propagate(scratch, t, x, p, Seed::Parameter(param_idx));
+        for (o, &slot) in out.iter_mut().zip(&self.outputs) {
+            *o = scratch.tangents[slot as usize];
+        }
+    }
+
+    /// Derivative of every output with respect to the time `t`.
+    pub fn time_derivative(&self, scratch: &mut Scratch, t: f64, x: &[f64], p: &[f64], out: &mut [f64]) {
+        self.propagate(scratch, t, x, p, Seed::Time);
+        for (o, &slot) in out.iter_mut().zip(&self.outputs) {
+            *o = scratch.tangents[slot as usize];
+        }
+    }
+}
+
+#[inline]
+fn combine1(out: &mut [f64], ta: &[f64], ca: f64) {
+    for (o, &a) in out.iter_mut().zip(ta) {
+        *o = if a != 0.0 { ca * a } else { 0.0 };
+    }
+}
+
+#[inline]
+fn combine2(out: &mut [f64], ta: &[f64], ca: f64, tb: &[f64], cb: f64) {
+    for ((o, &a), &b) in out.iter_mut().zip(ta).zip(tb) {
+        // skip zero tangents so that an infinite or NaN coefficient does not poison them
+        let mut v = 0.0;
+        if a != 0.0 {
+            v += ca * a;
+        }
+        if b != 0.0 {
+            v += cb * b;
+        }
+        *o = v;
+    }
+}
