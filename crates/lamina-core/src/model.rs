@@ -106,13 +106,20 @@ impl Model {
     /// Jacobian of the rates with respect to the states at `(t, x)`, row-major `n x n`
     /// (`out[i * n + j] = d rate_i / d x_j`).
     pub fn jacobian(&mut self, t: f64, x: &[f64], out: &mut [f64]) {
-        self.program.jacobian(&mut self.scratch, t, x, &self.parameters, out);
+        self.program
+            .jacobian(&mut self.scratch, t, x, &self.parameters, out);
     }
 
     /// Derivative of every rate with respect to parameter `param_idx` at `(t, x)`.
     pub fn parameter_derivative(&mut self, t: f64, x: &[f64], param_idx: usize, out: &mut [f64]) {
-        self.program
-            .parameter_derivative(&mut self.scratch, t, x, &self.parameters, param_idx, out);
+        self.program.parameter_derivative(
+            &mut self.scratch,
+            t,
+            x,
+            &self.parameters,
+            param_idx,
+            out,
+        );
     }
 
     /// Whether any rate uses the time `t` (a forced, non-autonomous model).
@@ -126,6 +133,7 @@ impl Rates for Model {
         self.start.len()
     }
     fn rates(&mut self, t: f64, x: &[f64], dx: &mut [f64]) {
-        self.program.eval(&mut self.scratch, t, x, &self.parameters, dx);
+        self.program
+            .eval(&mut self.scratch, t, x, &self.parameters, dx);
     }
 }

@@ -26,7 +26,8 @@ fn value(text: &str) -> f64 {
 fn check(text: &str, expected: f64) {
     let got = value(text);
     assert!(
-        (got - expected).abs() <= 1e-14 * expected.abs().max(1.0) || (got.is_nan() && expected.is_nan()),
+        (got - expected).abs() <= 1e-14 * expected.abs().max(1.0)
+            || (got.is_nan() && expected.is_nan()),
         "{text}: got {got}, expected {expected}"
     );
 }
@@ -35,13 +36,28 @@ fn check(text: &str, expected: f64) {
 fn values_match_plain_rust() {
     let (x, v, a, w, t) = (0.3f64, -1.7f64, 0.5f64, 1.25f64, 2.0f64);
     // [analytic] each typed expression against the same formula written in Rust
-    check("-2*a*v - x - w*x^3 + a*cos(w*t)", -2.0 * a * v - x - w * x.powi(3) + a * (w * t).cos());
+    check(
+        "-2*a*v - x - w*x^3 + a*cos(w*t)",
+        -2.0 * a * v - x - w * x.powi(3) + a * (w * t).cos(),
+    );
     check("sin(x)+cos(v)+tan(x)", x.sin() + v.cos() + x.tan());
-    check("asin(x)+acos(x)+atan(v)+atan2(v, x)", x.asin() + x.acos() + v.atan() + v.atan2(x));
+    check(
+        "asin(x)+acos(x)+atan(v)+atan2(v, x)",
+        x.asin() + x.acos() + v.atan() + v.atan2(x),
+    );
     check("sinh(v)*cosh(x)/tanh(w)", v.sinh() * x.cosh() / w.tanh());
-    check("exp(x) + ln(w) + log10(a) + sqrt(w)", x.exp() + w.ln() + a.log10() + w.sqrt());
-    check("abs(v) + min(x, v) + max(x, v)", v.abs() + x.min(v) + x.max(v));
-    check("floor(v) + ceil(v) + sign(v) + sign(0) + sign(x)", v.floor() + v.ceil() - 1.0 + 0.0 + 1.0);
+    check(
+        "exp(x) + ln(w) + log10(a) + sqrt(w)",
+        x.exp() + w.ln() + a.log10() + w.sqrt(),
+    );
+    check(
+        "abs(v) + min(x, v) + max(x, v)",
+        v.abs() + x.min(v) + x.max(v),
+    );
+    check(
+        "floor(v) + ceil(v) + sign(v) + sign(0) + sign(x)",
+        v.floor() + v.ceil() - 1.0 + 0.0 + 1.0,
+    );
     check("pi*e + t", std::f64::consts::PI * std::f64::consts::E + t);
     check("x^w", x.powf(w));
     check("7 % 3", 1.0);
@@ -91,15 +107,24 @@ fn a_system_shares_across_rates() {
     let program = Program::compile(&n, &sources).expect("Lorenz compiles");
     let mut scratch = program.scratch();
     let mut out = [0.0; 3];
-    program.eval(&mut scratch, 0.0, &[1.0, 2.0, 3.0], &[10.0, 28.0, 8.0 / 3.0], &mut out);
+    program.eval(
+        &mut scratch,
+        0.0,
+        &[1.0, 2.0, 3.0],
+        &[10.0, 28.0, 8.0 / 3.0],
+        &mut out,
+    );
     // [analytic] Lorenz right-hand side at (1, 2, 3)
     assert_eq!(out, [10.0, 1.0 * (28.0 - 3.0) - 2.0, 2.0 - 8.0]);
     assert!(!program.uses_time());
 }
 
 fn error_of(text: &str) -> lamina_core::expr::ExprError {
-    let err = Program::compile(&names(&["x", "v"], &["a"]), &[("rate of state 'v'".into(), text)])
-        .expect_err("should not compile");
+    let err = Program::compile(
+        &names(&["x", "v"], &["a"]),
+        &[("rate of state 'v'".into(), text)],
+    )
+    .expect_err("should not compile");
     err.errors[0].clone()
 }
 
@@ -129,7 +154,11 @@ fn function_problems_are_located() {
     assert_eq!(err.position, 4);
     assert_eq!(
         err.kind,
-        ExprErrorKind::WrongArgumentCount { name: "atan2".into(), expected: 2, found: 1 }
+        ExprErrorKind::WrongArgumentCount {
+            name: "atan2".into(),
+            expected: 2,
+            found: 1
+        }
     );
     let err = error_of("sin + x");
     assert!(matches!(err.kind, ExprErrorKind::Syntax(ref m) if m.contains("sin(")));
@@ -163,7 +192,23 @@ fn every_bad_rate_is_reported_at_once() {
 
 #[test]
 fn odd_inputs_never_panic() {
-    for text in ["", ")", "(", ",", "1,2", "max(1,2,3)", "2e", "2e+", ".5", "x..", "((((", "x^^2", "--x", "+", "1e999"] {
+    for text in [
+        "",
+        ")",
+        "(",
+        ",",
+        "1,2",
+        "max(1,2,3)",
+        "2e",
+        "2e+",
+        ".5",
+        "x..",
+        "((((",
+        "x^^2",
+        "--x",
+        "+",
+        "1e999",
+    ] {
         let _ = Program::compile(&names(&["x"], &[]), &[("f".into(), text)]);
     }
 }
@@ -253,7 +298,13 @@ fn piecewise_derivatives_take_the_active_branch() {
     let n = names(&["x", "y"], &[]);
     let program = Program::compile(
         &n,
-        &[("f".into(), "abs(x) + max(x, y) + 3*step(x) + sign(y)*0 + floor(x)"), ("g".into(), "min(x, y)")],
+        &[
+            (
+                "f".into(),
+                "abs(x) + max(x, y) + 3*step(x) + sign(y)*0 + floor(x)",
+            ),
+            ("g".into(), "min(x, y)"),
+        ],
     )
     .expect("compiles");
     let mut scratch = program.scratch();

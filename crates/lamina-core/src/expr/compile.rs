@@ -9,10 +9,10 @@ use std::collections::HashMap;
 
 use meval::tokenizer::{Operation, Token};
 
+use super::Names;
 use super::error::{ExprError, ExprErrorKind};
 use super::functions::arity;
 use super::instr::{Func1, Func2, Instr};
-use super::Names;
 
 /// Builds the instruction list, sharing equal subexpressions.
 #[derive(Default)]
@@ -146,12 +146,13 @@ pub(super) fn compile_expression(
     if text.trim().is_empty() {
         return Err(vec![error(0, ExprErrorKind::Empty)]);
     }
-    if let Some((position, c)) = text
-        .chars()
-        .enumerate()
-        .find(|(_, c)| !(c.is_ascii_alphanumeric() || c.is_whitespace() || ALLOWED_SYMBOLS.contains(*c)))
-    {
-        return Err(vec![error(position, ExprErrorKind::Syntax(format!("the character '{c}' is not allowed")))]);
+    if let Some((position, c)) = text.chars().enumerate().find(|(_, c)| {
+        !(c.is_ascii_alphanumeric() || c.is_whitespace() || ALLOWED_SYMBOLS.contains(*c))
+    }) {
+        return Err(vec![error(
+            position,
+            ExprErrorKind::Syntax(format!("the character '{c}' is not allowed")),
+        )]);
     }
     let end = text.chars().count();
     // meval's tokenizer panics on a few inputs it does not expect; never let that escape.
@@ -160,14 +161,25 @@ pub(super) fn compile_expression(
         Ok(Err(err)) => {
             let (position, message) = match err {
                 meval::ParseError::UnexpectedToken(p) => (p, unexpected_message(text, p)),
-                meval::ParseError::MissingRParen(n) => {
-                    (end, format!("missing {n} closing parenthes{}", if n == 1 { "is" } else { "es" }))
+                meval::ParseError::MissingRParen(n) => (
+                    end,
+                    format!(
+                        "missing {n} closing parenthes{}",
+                        if n == 1 { "is" } else { "es" }
+                    ),
+                ),
+                meval::ParseError::MissingArgument => {
+                    (end, "the expression ends too early".to_string())
                 }
-                meval::ParseError::MissingArgument => (end, "the expression ends too early".to_string()),
             };
             return Err(vec![error(position, ExprErrorKind::Syntax(message))]);
         }
-        Err(_) => return Err(vec![error(0, ExprErrorKind::Syntax("cannot parse this expression".into()))]),
+        Err(_) => {
+            return Err(vec![error(
+                0,
+                ExprErrorKind::Syntax("cannot parse this expression".into()),
+            )]);
+        }
     };
     let spans = token_starts(text);
     let position_of = |idx: usize| spans.get(idx).map_or(0, |s| s.start);
@@ -180,12 +192,18 @@ pub(super) fn compile_expression(
                 let kind = if arity(name).is_some() {
                     ExprErrorKind::Syntax(format!("'{name}' is a function: write {name}(...)"))
                 } else {
-                    ExprErrorKind::UnknownName { name: name.clone(), known: known.clone() }
+                    ExprErrorKind::UnknownName {
+                        name: name.clone(),
+                        known: known.clone(),
+                    }
                 };
                 errors.push(error(position_of(idx), kind));
             }
             Token::Func(name, _) if arity(name).is_none() => {
-                errors.push(error(position_of(idx), ExprErrorKind::UnknownFunction { name: name.clone() }));
+                errors.push(error(
+                    position_of(idx),
+                    ExprErrorKind::UnknownFunction { name: name.clone() },
+                ));
             }
             _ => {}
         }
@@ -196,10 +214,22 @@ pub(super) fn compile_expression(
     let rpn = meval::shunting_yard::to_rpn(&tokens).map_err(|err| {
         use meval::RPNError as E;
         let (position, message) = match err {
-            E::MismatchedLParen(i) => (position_of(i), "this parenthesis is never closed".to_string()),
-            E::MismatchedRParen(i) => (position_of(i), "this parenthesis closes nothing".to_string()),
-            E::UnexpectedComma(i) => (position_of(i), "a comma outside a function's arguments".to_string()),
-            E::NotEnoughOperands(_) => (0, "an operator or function is missing an operand".to_string()),
+            E::MismatchedLParen(i) => (
+                position_of(i),
+                "this parenthesis is never closed".to_string(),
+            ),
+            E::MismatchedRParen(i) => (
+                position_of(i),
+                "this parenthesis closes nothing".to_string(),
+            ),
+            E::UnexpectedComma(i) => (
+                position_of(i),
+                "a comma outside a function's arguments".to_string(),
+            ),
+            E::NotEnoughOperands(_) => (
+                0,
+                "an operator or function is missing an operand".to_string(),
+            ),
             E::TooManyOperands => (0, "operands without an operator between them".to_string()),
         };
         vec![error(position, ExprErrorKind::Syntax(message))]
@@ -220,7 +250,15 @@ pub(super) fn compile_expression(
             Token::Number(v) => builder.push(Instr::Const(*v)),
             Token::Var(name) => match lookup(names, name) {
                 Some(instr) => builder.push(instr),
-                None => return Err(vec![error(0, ExprErrorKind::UnknownName { name: name.clone(), known })]),
+                None => {
+                    return Err(vec![error(
+                        0,
+                        ExprErrorKind::UnknownName {
+                            name: name.clone(),
+                            known,
+                        },
+                    )]);
+                }
             },
             Token::Unary(op) => {
                 let a = pop(&mut stack, &error)?;
@@ -242,7 +280,11 @@ pub(super) fn compile_expression(
                 if found != expected {
                     return Err(vec![error(
                         position,
-                        ExprErrorKind::WrongArgumentCount { name: name.clone(), expected, found },
+                        ExprErrorKind::WrongArgumentCount {
+                            name: name.clone(),
+                            expected,
+                            found,
+                        },
                     )]);
                 }
                 let mut args = [0u32; 2];
@@ -252,21 +294,33 @@ pub(super) fn compile_expression(
                 function(builder, name, args)
             }
             Token::LParen | Token::RParen | Token::Comma => {
-                return Err(vec![error(0, ExprErrorKind::Syntax("unbalanced parentheses".into()))]);
+                return Err(vec![error(
+                    0,
+                    ExprErrorKind::Syntax("unbalanced parentheses".into()),
+                )]);
             }
         };
         stack.push(slot);
     }
     match stack.as_slice() {
         [slot] => Ok(*slot),
-        _ => Err(vec![error(0, ExprErrorKind::Syntax("operands without an operator between them".into()))]),
+        _ => Err(vec![error(
+            0,
+            ExprErrorKind::Syntax("operands without an operator between them".into()),
+        )]),
     }
 }
 
-fn pop(stack: &mut Vec<u32>, error: &dyn Fn(usize, ExprErrorKind) -> ExprError) -> Result<u32, Vec<ExprError>> {
-    stack
-        .pop()
-        .ok_or_else(|| vec![error(0, ExprErrorKind::Syntax("an operator is missing an operand".into()))])
+fn pop(
+    stack: &mut Vec<u32>,
+    error: &dyn Fn(usize, ExprErrorKind) -> ExprError,
+) -> Result<u32, Vec<ExprError>> {
+    stack.pop().ok_or_else(|| {
+        vec![error(
+            0,
+            ExprErrorKind::Syntax("an operator is missing an operand".into()),
+        )]
+    })
 }
 
 fn unexpected_message(text: &str, position: usize) -> String {
@@ -278,7 +332,12 @@ fn unexpected_message(text: &str, position: usize) -> String {
 
 /// Every name an expression may use, for the "known names" list of an error.
 fn known_names(names: &Names) -> Vec<String> {
-    let mut known: Vec<String> = names.states.iter().chain(&names.parameters).cloned().collect();
+    let mut known: Vec<String> = names
+        .states
+        .iter()
+        .chain(&names.parameters)
+        .cloned()
+        .collect();
     known.extend(super::CONSTANTS.iter().map(|c| c.to_string()));
     known
 }
@@ -307,7 +366,9 @@ fn binary(builder: &mut Builder, op: Operation, a: u32, b: u32) -> u32 {
         Operation::Div => builder.push(Instr::Div(a, b)),
         Operation::Rem => builder.push(Instr::Rem(a, b)),
         Operation::Pow => match builder.instrs[b as usize] {
-            Instr::Const(v) if v == v.trunc() && v.abs() <= 64.0 => builder.push(Instr::PowI(a, v as i32)),
+            Instr::Const(v) if v == v.trunc() && v.abs() <= 64.0 => {
+                builder.push(Instr::PowI(a, v as i32))
+            }
             _ => builder.push(Instr::Pow(a, b)),
         },
     }

@@ -58,19 +58,33 @@ impl fmt::Display for ExprErrorKind {
             Self::Empty => write!(f, "the expression is empty"),
             Self::Syntax(msg) => write!(f, "{msg}"),
             Self::UnknownName { name, known } => {
-                write!(f, "unknown name '{name}'; known names: {}", known.join(", "))
+                write!(
+                    f,
+                    "unknown name '{name}'; known names: {}",
+                    known.join(", ")
+                )
             }
             Self::UnknownFunction { name } => write!(
                 f,
                 "unknown function '{name}'; functions: {}",
-                super::FUNCTIONS.iter().map(|(n, _)| *n).collect::<Vec<_>>().join(", ")
+                super::FUNCTIONS
+                    .iter()
+                    .map(|(n, _)| *n)
+                    .collect::<Vec<_>>()
+                    .join(", ")
             ),
-            Self::WrongArgumentCount { name, expected, found } => write!(
+            Self::WrongArgumentCount {
+                name,
+                expected,
+                found,
+            } => write!(
                 f,
                 "function '{name}' takes {expected} argument{}, {found} given",
                 if *expected == 1 { "" } else { "s" }
             ),
-            Self::NotAllowedHere { name, reason } => write!(f, "'{name}' is not allowed here: {reason}"),
+            Self::NotAllowedHere { name, reason } => {
+                write!(f, "'{name}' is not allowed here: {reason}")
+            }
         }
     }
 }
@@ -78,7 +92,13 @@ impl fmt::Display for ExprErrorKind {
 impl fmt::Display for ExprError {
     /// `label: message` then the expression and a caret under the position.
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        writeln!(f, "{}, at character {}: {}", self.label, self.position + 1, self.kind)?;
+        writeln!(
+            f,
+            "{}, at character {}: {}",
+            self.label,
+            self.position + 1,
+            self.kind
+        )?;
         writeln!(f, "    {}", self.expression)?;
         write!(f, "    {}^", " ".repeat(self.position))
     }

@@ -65,7 +65,13 @@ pub fn sign(u: f64) -> f64 {
 /// `step(u)`: 0 for u < 0, 1 otherwise.
 #[inline]
 pub fn step(u: f64) -> f64 {
-    if u < 0.0 { 0.0 } else if u.is_nan() { u } else { 1.0 }
+    if u < 0.0 {
+        0.0
+    } else if u.is_nan() {
+        u
+    } else {
+        1.0
+    }
 }
 
 impl Func1 {
@@ -124,10 +130,18 @@ impl Func2 {
         match self {
             Self::Atan2 => a.atan2(b),
             Self::Min => {
-                if a <= b || b.is_nan() { a } else { b }
+                if a <= b || b.is_nan() {
+                    a
+                } else {
+                    b
+                }
             }
             Self::Max => {
-                if a >= b || b.is_nan() { a } else { b }
+                if a >= b || b.is_nan() {
+                    a
+                } else {
+                    b
+                }
             }
         }
     }
@@ -141,10 +155,18 @@ impl Func2 {
                 (b / r2, -a / r2)
             }
             Self::Min => {
-                if a <= b { (1.0, 0.0) } else { (0.0, 1.0) }
+                if a <= b {
+                    (1.0, 0.0)
+                } else {
+                    (0.0, 1.0)
+                }
             }
             Self::Max => {
-                if a >= b { (1.0, 0.0) } else { (0.0, 1.0) }
+                if a >= b {
+                    (1.0, 0.0)
+                } else {
+                    (0.0, 1.0)
+                }
             }
         }
     }
@@ -159,7 +181,10 @@ pub fn powi(a: f64, n: i32) -> f64 {
 impl Instr {
     /// Whether the instruction reads an input rather than computing.
     pub fn is_leaf(&self) -> bool {
-        matches!(self, Self::Const(_) | Self::State(_) | Self::Param(_) | Self::Time)
+        matches!(
+            self,
+            Self::Const(_) | Self::State(_) | Self::Param(_) | Self::Time
+        )
     }
 
     /// Argument slots.

@@ -2,9 +2,9 @@
 //! evaluation program with shared subexpressions, and forward-mode derivatives from it.
 
 mod compile;
-mod instr;
 mod error;
 mod functions;
+mod instr;
 mod program;
 mod tangent;
 

@@ -146,7 +146,9 @@ impl Program {
     /// Evaluates the single output of a one-expression program.
     pub fn eval_one(&self, scratch: &mut Scratch, t: f64, x: &[f64], p: &[f64]) -> f64 {
         self.run(scratch, t, x, p);
-        self.outputs.first().map_or(f64::NAN, |&slot| scratch.values[slot as usize])
+        self.outputs
+            .first()
+            .map_or(f64::NAN, |&slot| scratch.values[slot as usize])
     }
 
     /// Whether any output depends on `t`.

@@ -61,19 +61,25 @@ impl Program {
                     let inv = 1.0 / val(b);
                     combine2(out, tan(a), inv, tan(b), -values[idx] * inv)
                 }
-                Instr::Rem(a, b) => {
-                    combine2(out, tan(a), 1.0, tan(b), -(val(a) / val(b)).trunc())
-                }
+                Instr::Rem(a, b) => combine2(out, tan(a), 1.0, tan(b), -(val(a) / val(b)).trunc()),
                 Instr::Pow(a, b) => {
                     let (base, exponent) = (val(a), val(b));
                     let da = exponent * base.powf(exponent - 1.0);
                     let tb = tan(b);
                     // the log term only where the exponent varies, so a^c stays defined for a <= 0
-                    let db = if tb.iter().all(|&v| v == 0.0) { 0.0 } else { values[idx] * base.ln() };
+                    let db = if tb.iter().all(|&v| v == 0.0) {
+                        0.0
+                    } else {
+                        values[idx] * base.ln()
+                    };
                     combine2(out, tan(a), da, tb, db)
                 }
                 Instr::PowI(a, n) => {
-                    let d = if n == 0 { 0.0 } else { f64::from(n) * val(a).powi(n - 1) };
+                    let d = if n == 0 {
+                        0.0
+                    } else {
+                        f64::from(n) * val(a).powi(n - 1)
+                    };
                     combine1(out, tan(a), d)
                 }
                 Instr::F1(f, a) => combine1(out, tan(a), f.derivative(val(a), values[idx])),
@@ -113,7 +119,14 @@ impl Program {
     }
 
     /// Derivative of every output with respect to the time `t`.
-    pub fn time_derivative(&self, scratch: &mut Scratch, t: f64, x: &[f64], p: &[f64], out: &mut [f64]) {
+    pub fn time_derivative(
+        &self,
+        scratch: &mut Scratch,
+        t: f64,
+        x: &[f64],
+        p: &[f64],
+        out: &mut [f64],
+    ) {
         self.propagate(scratch, t, x, p, Seed::Time);
         for (o, &slot) in out.iter_mut().zip(&self.outputs) {
             *o = scratch.tangents[slot as usize];

@@ -1,1 +1,153 @@
-//! Step-size control: the PI controller.
+//! Step-size control: the PI controller and the automatic initial step.
+//!
+//! The controller is the stabilised ("PI", Gustafsson) rule of Hairer, Nørsett & Wanner,
+//! Solving ODEs I, sec. IV.2, in the form of their DOPRI5 / DOP853 codes:
+//! `h_new = h * safety / (err^alpha / err_prev^beta)` with `alpha = 1/q - beta * k`,
+//! limited to `min_factor <= h_new / h <= max_factor`.
+
+use super::{Method, Rates};
+
+/// Safety factor applied to every proposed step.
+const SAFETY: f64 = 0.9;
+/// Floor for the previous error in the PI term (Hairer's `FACOLD` lower bound).
+const PREVIOUS_ERROR_FLOOR: f64 = 1e-4;
+
+/// The PI step-size controller of one integrator.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(crate) struct PiController {
+    /// Exponent of the current error (`1/q - beta * k`).
+    alpha: f64,
+    /// Exponent of the previous accepted error (0 gives the plain rule).
+    beta: f64,
+    /// Smallest allowed `h_new / h`.
+    min_factor: f64,
+    /// Largest allowed `h_new / h`.
+    max_factor: f64,
+    /// Natural log of the error of the last accepted step (at least [`PREVIOUS_ERROR_FLOOR`]).
+    ln_previous_error: f64,
+    /// Whether the last attempt was rejected (then the next accepted step may not grow `h`).
+    after_rejection: bool,
+}
+
+impl PiController {
+    /// The controller settings used for `method`.
+    ///
+    /// Dormand–Prince 5(4): order exponent 1/5, beta 0.04, factors 0.2..10 (DOPRI5's
+    /// defaults). DOP853: order exponent 1/8, factors 0.333..6 (DOP853's defaults) and a
+    /// small beta.
+    pub(crate) fn for_method(method: Method) -> Self {
+        let (alpha0, beta, beta_weight, min_factor, max_factor) = match method {
+            Method::Dp5 => (0.2, 0.04, 0.75, 0.2, 10.0),
+            Method::Dp853 => (1.0 / 8.0, DP853_BETA, 0.2, 0.333, 6.0),
+        };
+        Self {
+            alpha: alpha0 - beta * beta_weight,
+            beta,
+            min_factor,
+            max_factor,
+            ln_previous_error: PREVIOUS_ERROR_FLOOR.ln(),
+            after_rejection: false,
+        }
+    }
+
+    /// Forgets the step history (after a reset of the state).
+    pub(crate) fn reset(&mut self) {
+        self.ln_previous_error = PREVIOUS_ERROR_FLOOR.ln();
+        self.after_rejection = false;
+    }
+
+    /// Next step size after a step of size `h` was accepted with scaled error `err <= 1`.
+    #[inline]
+    pub(crate) fn accepted(&mut self, h: f64, err: f64) -> f64 {
+        // err^alpha / err_prev^beta with one log and one exponential (err = 0 gives 0)
+        let ln_err = err.ln();
+        let fac = (self.alpha * ln_err - self.beta * self.ln_previous_error).exp();
+        // h_new = h / fac with fac limited to 1/max_factor ..= 1/min_factor
+        let fac = (fac / SAFETY)
+            .max(1.0 / self.max_factor)
+            .min(1.0 / self.min_factor);
+        let mut h_new = h / fac;
+        self.ln_previous_error = ln_err.max(PREVIOUS_ERROR_FLOOR.ln());
+        if self.after_rejection {
+            h_new = h_new.min(h);
+        }
+        self.after_rejection = false;
+        h_new
+    }
+
+    /// Next step size after a step of size `h` was rejected with scaled error `err > 1`.
+    #[inline]
+    pub(crate) fn rejected(&mut self, h: f64, err: f64) -> f64 {
+        self.after_rejection = true;
+        let fac = (err.powf(self.alpha) / SAFETY).min(1.0 / self.min_factor);
+        h / fac
+    }
+
+    /// Notes an attempt that failed for another reason (non-finite values); the caller
+    /// chooses the smaller step itself.
+    pub(crate) fn failed(&mut self) {
+        self.after_rejection = true;
+    }
+}
+
+/// Beta of the DOP853 controller. Hairer's code uses 0. Measured on Lorenz (10, 28, 8/3) at
+/// rtol = atol = 1e-9 over 5000 time units: beta 0 rejects 19 % of the accepted steps with 428
+/// evaluations per crossing of z = 27; beta 0.05 rejects 3 % with 413.
+const DP853_BETA: f64 = 0.05;
+
+/// Hairer's automatic choice of the first step (function `HINIT` of DOPRI5 / DOP853).
+///
+/// `f0` is `f(t, x)`; `y1` and `f1` are scratch of the state's length. One evaluation of
+/// `rates` is made. `order` is the order of the method, `h_max` the largest allowed step.
+/// The result is positive (finite unless `h_max` is infinite and the data are degenerate).
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn initial_step<R: Rates + ?Sized>(
+    rates: &mut R,
+    t: f64,
+    x: &[f64],
+    f0: &[f64],
+    y1: &mut [f64],
+    f1: &mut [f64],
+    order: i32,
+    h_max: f64,
+    rtol: f64,
+    atol: f64,
+) -> f64 {
+    let n = x.len();
+    let (x, f0, y1, f1) = (&x[..n], &f0[..n], &mut y1[..n], &mut f1[..n]);
+    // a first guess for explicit Euler: h = 0.01 * norm(x) / norm(f0)
+    let mut norm_f_sq = 0.0;
+    let mut norm_x_sq = 0.0;
+    for i in 0..n {
+        let sk = atol + rtol * x[i].abs();
+        norm_f_sq += (f0[i] / sk).powi(2);
+        norm_x_sq += (x[i] / sk).powi(2);
+    }
+    let mut h = if norm_f_sq <= 1e-10 || norm_x_sq <= 1e-10 || !(norm_f_sq * norm_x_sq).is_finite()
+    {
+        1e-6
+    } else {
+        (norm_x_sq / norm_f_sq).sqrt() * 0.01
+    };
+    h = h.min(h_max);
+    // one explicit Euler step to estimate the second derivative
+    for i in 0..n {
+        y1[i] = x[i] + h * f0[i];
+    }
+    rates.rates(t + h, y1, f1);
+    let mut der2_sq = 0.0;
+    for i in 0..n {
+        let sk = atol + rtol * x[i].abs();
+        der2_sq += ((f1[i] - f0[i]) / sk).powi(2);
+    }
+    let der2 = der2_sq.sqrt() / h;
+    // h^order * max(norm(f0), norm(der2)) = 0.01; f64::max ignores a NaN operand
+    let der12 = der2.abs().max(norm_f_sq.sqrt());
+    let h1 = if der12.is_nan() || der12 <= 1e-15 {
+        (h * 1e-3).max(1e-6)
+    } else {
+        (0.01 / der12).powf(1.0 / f64::from(order))
+    };
+    let h = (100.0 * h).min(h1).min(h_max);
+    if h > 0.0 { h } else { 1e-6_f64.min(h_max) }
+}

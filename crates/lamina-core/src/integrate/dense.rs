@@ -21,7 +21,7 @@ pub struct DenseSegment {
 impl DenseSegment {
     /// Number of coefficient vectors (5 or 8).
     pub fn n_terms(&self) -> usize {
-        if self.dim == 0 { 0 } else { self.coeffs.len() / self.dim }
+        self.coeffs.len().checked_div(self.dim).unwrap_or(0)
     }
 
     /// End time of the step.
@@ -50,15 +50,23 @@ impl DenseSegment {
 /// Evaluates the nested interpolant of `coeffs` (term-major, `dim` per term) at the fraction
 /// `s` of the step into `out`. Shared by [`DenseSegment`] and the stored run.
 pub fn eval_terms(coeffs: &[f64], dim: usize, s: f64, out: &mut [f64]) {
-    let n_terms = coeffs.len() / dim.max(1);
+    eval_split(&coeffs[..dim], &coeffs[dim..], dim, s, out);
+}
+
+/// Evaluates the nested interpolant whose first term is `start` and whose remaining terms
+/// are `terms` (term-major, `dim` per term) at the fraction `s` of the step into `out`.
+/// Used by stored runs, which keep the start states apart from the other terms.
+#[inline]
+pub fn eval_split(start: &[f64], terms: &[f64], dim: usize, s: f64, out: &mut [f64]) {
+    let n_rest = terms.len() / dim.max(1);
     let r = 1.0 - s;
     for i in 0..dim {
-        let mut acc = coeffs[(n_terms - 1) * dim + i];
-        for j in (1..n_terms - 1).rev() {
-            let w = if j % 2 == 1 { r } else { s };
-            acc = coeffs[j * dim + i] + w * acc;
+        let mut acc = terms[(n_rest - 1) * dim + i];
+        // rest term j is full term j + 1: the factor after full term k is r for odd k
+        for j in (0..n_rest - 1).rev() {
+            let w = if (j + 1) % 2 == 1 { r } else { s };
+            acc = terms[j * dim + i] + w * acc;
         }
-        // term 0 is multiplied by nothing; term 1 onward sits behind a factor s
-        out[i] = coeffs[i] + s * acc;
+        out[i] = start[i] + s * acc;
     }
 }

@@ -2,12 +2,31 @@
 //! each call to [`Integrator::step`] takes one accepted step and leaves its dense output
 //! in [`Integrator::segment`].
 
+/// One stage state in a single pass over the states:
+/// `combine!(out = y + h * (a1, k1; a2, k2; ...))` writes `out[i] = y[i] + h * (a1 k1[i] + ...)`.
+/// All slices are cut to the length of `y` first so the loop runs without bounds checks.
+macro_rules! combine {
+    ($out:ident = $y:ident + $h:ident * ($a0:expr, $k0:ident $(; $a:expr, $k:ident)* $(;)?)) => {{
+        let n = $y.len();
+        let out: &mut [f64] = &mut $out[..n];
+        let y: &[f64] = &$y[..n];
+        let $k0: &[f64] = &$k0[..n];
+        $(let $k: &[f64] = &$k[..n];)*
+        for i in 0..n {
+            out[i] = y[i] + $h * ($a0 * $k0[i] $(+ $a * $k[i])*);
+        }
+    }};
+}
+
 mod controller;
-mod dense;
+pub mod dense;
 mod dop853;
+mod dop853_tableau;
 mod dp5;
+mod integrator;
 
 pub use dense::DenseSegment;
+pub use integrator::Integrator;
 
 use std::sync::atomic::{AtomicBool, Ordering};
 
@@ -39,6 +58,7 @@ impl<F: FnMut(f64, &[f64], &mut [f64])> Rates for FnRates<F> {
     fn dim(&self) -> usize {
         self.dim
     }
+    #[inline]
     fn rates(&mut self, t: f64, x: &[f64], dx: &mut [f64]) {
         (self.f)(t, x, dx)
     }
@@ -68,7 +88,12 @@ pub struct StepControl {
 
 impl Default for StepControl {
     fn default() -> Self {
-        Self { rtol: 1e-9, atol: 1e-12, max_step: None, initial_step: None }
+        Self {
+            rtol: 1e-9,
+            atol: 1e-12,
+            max_step: None,
+            initial_step: None,
+        }
     }
 }
 
@@ -119,9 +144,4 @@ impl Interrupt {
     pub fn is_raised(&self) -> bool {
         self.0.load(Ordering::Relaxed)
     }
-}
-
-/// An adaptive integrator of either method, stepping one accepted step at a time.
-pub struct Integrator {
-    // filled in by the implementation
 }

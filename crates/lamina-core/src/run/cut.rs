@@ -1,7 +1,10 @@
 //! The cut (Poincaré section): a plane or a level surface, a crossing direction, and the
 //! location of crossings on a step's dense output.
 
-use super::{CutSpec, SpecError};
+use super::root::brent;
+use super::{CutSpec, SpecError, SurfaceSpec};
+use crate::expr::{Program, Scratch};
+use crate::integrate::dense::eval_split;
 use crate::model::Model;
 
 /// Which crossings of the surface count.
@@ -15,15 +18,37 @@ pub enum Direction {
     Both,
 }
 
-/// A compiled cut surface.
+impl Direction {
+    /// Whether a step from `g0` to `g1` crosses in this direction. A step that starts exactly
+    /// on the surface does not cross (the crossing belonged to the step before, or to nothing).
+    #[inline]
+    pub fn crosses(self, g0: f64, g1: f64) -> bool {
+        let rising = g0 < 0.0 && g1 >= 0.0;
+        let falling = g0 > 0.0 && g1 <= 0.0;
+        match self {
+            Self::Rising => rising,
+            Self::Falling => falling,
+            Self::Both => rising || falling,
+        }
+    }
+}
+
+/// A compiled cut surface `g(x, t) = 0`.
 #[derive(Clone, Debug)]
 pub enum Surface {
-    /// `normal . x = offset`, one weight per state.
+    /// `g = normal . x - offset`, one weight per state.
     Plane {
         /// One weight per state, in state order.
         normal: Vec<f64>,
         /// Right-hand side.
         offset: f64,
+    },
+    /// `g` given by an expression in states, parameters and `t`.
+    Level {
+        /// The compiled expression.
+        program: Program,
+        /// The expression as typed.
+        expression: String,
     },
 }
 
@@ -34,13 +59,102 @@ pub struct Cut {
     pub surface: Surface,
     /// Which crossings count.
     pub direction: Direction,
+    scratch: Scratch,
 }
 
 impl Cut {
+    /// A plane cut `normal . x = offset`.
+    pub fn plane(normal: Vec<f64>, offset: f64, direction: Direction) -> Self {
+        Self {
+            surface: Surface::Plane { normal, offset },
+            direction,
+            scratch: Scratch::default(),
+        }
+    }
+
     /// Compiles `spec` against the model's names.
     pub fn compile(spec: &CutSpec, model: &Model) -> Result<Self, SpecError> {
-        let _ = (spec, model);
-        todo!()
+        let names = model.names();
+        match &spec.surface {
+            SurfaceSpec::Plane { normal, offset } => {
+                let mut weights = vec![0.0; names.states.len()];
+                for (name, weight) in normal {
+                    let Some(idx) = names.states.iter().position(|s| s == name) else {
+                        return Err(SpecError::UnknownNormalState {
+                            name: name.clone(),
+                            known: names.states.join(", "),
+                        });
+                    };
+                    weights[idx] += weight;
+                }
+                if weights.iter().all(|&w| w == 0.0) {
+                    return Err(SpecError::ZeroNormal);
+                }
+                Ok(Self::plane(weights, *offset, spec.direction))
+            }
+            SurfaceSpec::Level(expression) => {
+                let program =
+                    Program::compile(names, &[("cut surface".to_string(), expression.as_str())])?;
+                let scratch = program.scratch();
+                Ok(Self {
+                    surface: Surface::Level {
+                        program,
+                        expression: expression.clone(),
+                    },
+                    direction: spec.direction,
+                    scratch,
+                })
+            }
+        }
+    }
+
+    /// `g(x, t)`: zero on the surface, its sign tells the side.
+    #[inline]
+    pub fn value(&mut self, t: f64, x: &[f64], parameters: &[f64]) -> f64 {
+        match &self.surface {
+            Surface::Plane { normal, offset } => {
+                normal.iter().zip(x).map(|(n, x)| n * x).sum::<f64>() - offset
+            }
+            Surface::Level { program, .. } => program.eval_one(&mut self.scratch, t, x, parameters),
+        }
+    }
+
+    /// Moves a plane along its normal to `offset`; a level surface is unchanged.
+    pub fn set_offset(&mut self, new_offset: f64) {
+        if let Surface::Plane { offset, .. } = &mut self.surface {
+            *offset = new_offset;
+        }
+    }
+
+    /// Locates the crossing inside one step given by its start state and the remaining
+    /// dense-output terms, with `g0` and `g1` the surface values at its ends. Returns the
+    /// crossing time and writes the state there into `state`. The root is found by Brent's
+    /// method on the interpolant, to round-off in the step fraction.
+    #[allow(clippy::too_many_arguments)]
+    pub fn locate(
+        &mut self,
+        start: &[f64],
+        terms: &[f64],
+        t0: f64,
+        h: f64,
+        g0: f64,
+        g1: f64,
+        parameters: &[f64],
+        state: &mut [f64],
+    ) -> f64 {
+        let dim = start.len();
+        let s = brent(
+            |s| {
+                eval_split(start, terms, dim, s, state);
+                self.value(t0 + s * h, state, parameters)
+            },
+            0.0,
+            1.0,
+            g0,
+            g1,
+        );
+        eval_split(start, terms, dim, s, state);
+        t0 + s * h
     }
 }
 

@@ -1,9 +1,11 @@
-//! The run driver: steps the integrator over the time window and reports to a sink.
+//! The run driver: steps the integrator over the time window, records cut points and strobe
+//! samples inside the window, stores the steps, and stops with a reason.
 
 use std::ops::ControlFlow;
 
-use super::{CutPoint, StrobeSample};
-use crate::integrate::Stats;
+use super::{Cut, CutPoint, RunSpec, StoredRun, Strobe, StrobeSample};
+use crate::integrate::{Integrator, Interrupt, Rates, Stats, StepError};
+use crate::model::Model;
 
 /// Receives what a run finds. Returning `ControlFlow::Break` stops the run at once.
 pub trait Sink {
@@ -23,6 +25,26 @@ pub trait Sink {
     }
 }
 
+/// A sink that keeps everything in memory.
+#[derive(Clone, Debug, Default)]
+pub struct Collect {
+    /// Cut points in time order.
+    pub cut_points: Vec<CutPoint>,
+    /// Strobe samples in time order.
+    pub strobe_samples: Vec<StrobeSample>,
+}
+
+impl Sink for Collect {
+    fn cut_point(&mut self, point: &CutPoint) -> ControlFlow<()> {
+        self.cut_points.push(point.clone());
+        ControlFlow::Continue(())
+    }
+    fn strobe_sample(&mut self, sample: &StrobeSample) -> ControlFlow<()> {
+        self.strobe_samples.push(sample.clone());
+        ControlFlow::Continue(())
+    }
+}
+
 /// Why a run ended.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum StopReason {
@@ -35,7 +57,7 @@ pub enum StopReason {
     },
     /// A state's magnitude exceeded the bound.
     Escaped {
-        /// Time of the escape.
+        /// Time at the end of the step where it happened.
         t: f64,
     },
     /// A value became NaN or infinite.
@@ -60,6 +82,33 @@ pub enum StopReason {
     },
 }
 
+impl StopReason {
+    /// Whether the run ended because of numerical trouble (escape, non-finite, step collapse).
+    pub fn is_trouble(&self) -> bool {
+        matches!(
+            self,
+            Self::Escaped { .. } | Self::NotFinite { .. } | Self::StepTooSmall { .. }
+        )
+    }
+}
+
+impl std::fmt::Display for StopReason {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            Self::Finished => write!(f, "finished"),
+            Self::Cancelled { t } => write!(f, "cancelled at t = {t}"),
+            Self::Escaped { t } => write!(f, "a state left the bound at t = {t}"),
+            Self::NotFinite { t } => write!(f, "a value became NaN or infinite at t = {t}"),
+            Self::StepTooSmall { t } => write!(
+                f,
+                "the step size collapsed at t = {t} (stiff or discontinuous model?)"
+            ),
+            Self::PointLimit { t } => write!(f, "point limit reached at t = {t}"),
+            Self::SinkStopped { t } => write!(f, "stopped after the requested points at t = {t}"),
+        }
+    }
+}
+
 /// What a run did.
 #[derive(Clone, Debug, PartialEq)]
 pub struct RunOutcome {
@@ -77,8 +126,279 @@ pub struct RunOutcome {
     pub n_strobe_samples: usize,
 }
 
-/// A run in progress or done (filled in with the driver).
-pub struct Run {}
+/// A run: the model, its window, cut and strobe, the integrator state and the stored steps.
+/// Call [`Run::execute`] to integrate to the end of the window; after it finishes,
+/// [`Run::extend`] moves the end further and `execute` continues from where it stopped.
+pub struct Run {
+    model: Model,
+    spec: RunSpec,
+    cut: Option<Cut>,
+    strobe: Option<Strobe>,
+    integrator: Integrator,
+    stored: StoredRun,
+    store: bool,
+    started: bool,
+    t_end: f64,
+    g_prev: f64,
+    last_crossing: Option<f64>,
+    next_strobe: i64,
+    n_cut: usize,
+    n_strobe: usize,
+    cut_point: CutPoint,
+    end_state: Vec<f64>,
+}
 
-/// Placeholder for the run entry point (filled in with the driver).
-pub fn run() {}
+/// How often progress is reported, in accepted steps.
+const PROGRESS_EVERY_STEPS: u64 = 256;
+
+impl Run {
+    /// Prepares a run of `model` over `spec`'s window. With `store`, accepted steps inside the
+    /// recorded window are kept for re-slicing.
+    pub fn new(
+        model: Model,
+        spec: RunSpec,
+        cut: Option<Cut>,
+        strobe: Option<Strobe>,
+        store: bool,
+    ) -> Self {
+        let dim = model.start().len();
+        let integrator = Integrator::new(spec.method, spec.control, dim);
+        let stored = StoredRun::new(dim, (spec.t_record(), spec.t_end()), spec.store_bytes);
+        let next_strobe = strobe.map_or(0, |s| s.first_index_from(spec.t_record()));
+        Self {
+            t_end: spec.t_end(),
+            model,
+            spec,
+            cut,
+            strobe,
+            integrator,
+            stored,
+            store,
+            started: false,
+            g_prev: 0.0,
+            last_crossing: None,
+            next_strobe,
+            n_cut: 0,
+            n_strobe: 0,
+            cut_point: CutPoint {
+                t: 0.0,
+                return_time: None,
+                state: vec![0.0; dim],
+            },
+            end_state: vec![0.0; dim],
+        }
+    }
+
+    /// The model being integrated.
+    pub fn model(&self) -> &Model {
+        &self.model
+    }
+
+    /// The run settings.
+    pub fn spec(&self) -> &RunSpec {
+        &self.spec
+    }
+
+    /// The stored steps (empty unless the run was made with `store`).
+    pub fn stored(&self) -> &StoredRun {
+        &self.stored
+    }
+
+    /// The cut, if any.
+    pub fn cut(&self) -> Option<&Cut> {
+        self.cut.as_ref()
+    }
+
+    /// The strobe, if any.
+    pub fn strobe(&self) -> Option<&Strobe> {
+        self.strobe.as_ref()
+    }
+
+    /// Current end of the window.
+    pub fn t_end(&self) -> f64 {
+        self.t_end
+    }
+
+    /// Time reached so far.
+    pub fn t(&self) -> f64 {
+        if self.started {
+            self.integrator.t()
+        } else {
+            self.spec.t_start
+        }
+    }
+
+    /// Integrator work so far.
+    pub fn stats(&self) -> Stats {
+        self.integrator.stats()
+    }
+
+    /// Moves the end of the window `extra_span` further, so the next `execute` continues.
+    pub fn extend(&mut self, extra_span: f64) {
+        self.t_end += extra_span.max(0.0);
+        self.stored.extend_window(self.t_end);
+    }
+
+    /// Integrates from where the run stands to the end of the window, reporting to `sink`.
+    pub fn execute(&mut self, sink: &mut dyn Sink, interrupt: &Interrupt) -> RunOutcome {
+        let reason = self.advance(sink, interrupt);
+        RunOutcome {
+            reason,
+            stats: self.integrator.stats(),
+            t_reached: self.t(),
+            final_state: if self.started {
+                self.integrator.x().to_vec()
+            } else {
+                self.model.start().to_vec()
+            },
+            n_cut_points: self.n_cut,
+            n_strobe_samples: self.n_strobe,
+        }
+    }
+
+    fn advance(&mut self, sink: &mut dyn Sink, interrupt: &Interrupt) -> StopReason {
+        let t_start = self.spec.t_start;
+        if !self.started {
+            let start = self.model.start().to_vec();
+            if let Some(reason) = self.check_state(t_start, &start) {
+                return reason;
+            }
+            self.integrator.reset(&mut self.model, t_start, &start);
+            if let Some(cut) = &mut self.cut {
+                self.g_prev = cut.value(t_start, &start, self.model.parameters());
+            }
+            self.started = true;
+        }
+        let total = (self.t_end - t_start).max(f64::MIN_POSITIVE);
+        loop {
+            let t = self.integrator.t();
+            if t >= self.t_end {
+                sink.progress(t, 1.0);
+                return StopReason::Finished;
+            }
+            if interrupt.is_raised() {
+                return StopReason::Cancelled { t };
+            }
+            if let Err(err) = self.integrator.step(&mut self.model, self.t_end) {
+                return match err {
+                    StepError::NotFinite { t } => StopReason::NotFinite { t },
+                    StepError::StepTooSmall { t, .. } => StopReason::StepTooSmall { t },
+                };
+            }
+            let t1 = self.integrator.t();
+            self.end_state.copy_from_slice(self.integrator.x());
+            let segment = self.integrator.segment();
+            if self.store && t1 > self.spec.t_record() {
+                self.stored.push(segment, &self.end_state);
+            }
+            if let Some(reason) = self.record(sink, t1) {
+                return reason;
+            }
+            if let Some(reason) = self.check_state(t1, &self.end_state) {
+                return reason;
+            }
+            if self
+                .integrator
+                .stats()
+                .n_accepted
+                .is_multiple_of(PROGRESS_EVERY_STEPS)
+            {
+                sink.progress(t1, ((t1 - t_start) / total).clamp(0.0, 1.0));
+            }
+        }
+    }
+
+    /// Escape and non-finite checks of a state.
+    fn check_state(&self, t: f64, x: &[f64]) -> Option<StopReason> {
+        if x.iter().any(|v| !v.is_finite()) {
+            return Some(StopReason::NotFinite { t });
+        }
+        if x.iter().any(|v| v.abs() > self.spec.bound) {
+            return Some(StopReason::Escaped { t });
+        }
+        None
+    }
+
+    /// Records the cut crossing and strobe samples of the step just taken.
+    fn record(&mut self, sink: &mut dyn Sink, t1: f64) -> Option<StopReason> {
+        let segment = self.integrator.segment();
+        let (t0, h, dim) = (segment.t0, segment.h, segment.dim);
+        let t_record = self.spec.t_record();
+        let parameters = self.model.parameters();
+        if let Some(cut) = &mut self.cut {
+            let g1 = cut.value(t1, &self.end_state, parameters);
+            if cut.direction.crosses(self.g_prev, g1) {
+                let (start, terms) = segment.coeffs.split_at(dim);
+                let t = cut.locate(
+                    start,
+                    terms,
+                    t0,
+                    h,
+                    self.g_prev,
+                    g1,
+                    parameters,
+                    &mut self.cut_point.state,
+                );
+                if t >= t_record && t <= self.t_end {
+                    self.cut_point.t = t;
+                    self.cut_point.return_time = self.last_crossing.map(|last| t - last);
+                    self.last_crossing = Some(t);
+                    self.n_cut += 1;
+                    if sink.cut_point(&self.cut_point).is_break() {
+                        return Some(StopReason::SinkStopped { t });
+                    }
+                    if self.n_cut >= self.spec.max_points {
+                        return Some(StopReason::PointLimit { t });
+                    }
+                }
+            }
+            self.g_prev = g1;
+        }
+        if let Some(strobe) = &self.strobe {
+            let last_step = t1 >= self.t_end;
+            loop {
+                let t = strobe.time_of(self.next_strobe);
+                let inside = t < t1 || (last_step && t <= self.t_end);
+                if !inside {
+                    break;
+                }
+                let mut sample = StrobeSample {
+                    index: self.next_strobe,
+                    t,
+                    state: vec![0.0; dim],
+                };
+                segment.eval(t, &mut sample.state);
+                self.next_strobe += 1;
+                self.n_strobe += 1;
+                if sink.strobe_sample(&sample).is_break() {
+                    return Some(StopReason::SinkStopped { t });
+                }
+                if self.n_strobe >= self.spec.max_points {
+                    return Some(StopReason::PointLimit { t });
+                }
+            }
+        }
+        None
+    }
+}
+
+/// Runs `model` once over `spec`'s window without storing steps; convenience for batch use.
+pub fn run_once(
+    model: Model,
+    spec: RunSpec,
+    cut: Option<Cut>,
+    strobe: Option<Strobe>,
+    sink: &mut dyn Sink,
+    interrupt: &Interrupt,
+) -> RunOutcome {
+    Run::new(model, spec, cut, strobe, false).execute(sink, interrupt)
+}
+
+impl Rates for Run {
+    fn dim(&self) -> usize {
+        self.model.dim()
+    }
+    fn rates(&mut self, t: f64, x: &[f64], dx: &mut [f64]) {
+        self.model.rates(t, x, dx);
+    }
+}

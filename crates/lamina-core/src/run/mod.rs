@@ -3,12 +3,13 @@
 
 mod cut;
 mod driver;
+mod root;
 mod spec;
 mod stored;
 mod strobe;
 
 pub use cut::{Cut, CutPoint, Direction, Surface};
-pub use driver::{Run, RunOutcome, Sink, StopReason, run};
-pub use spec::{CutSpec, RunSpec, StrobeSpec, SurfaceSpec, SpecError};
+pub use driver::{Collect, Run, RunOutcome, Sink, StopReason, run_once};
+pub use spec::{CutSpec, RunSpec, SpecError, StrobeSpec, SurfaceSpec};
 pub use stored::StoredRun;
 pub use strobe::{Strobe, StrobeSample};

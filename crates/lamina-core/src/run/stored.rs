@@ -1,6 +1,227 @@
 //! The stored run: accepted steps with their dense output, for re-slicing without
 //! integrating again.
 
+use std::ops::ControlFlow;
+
+use super::{Cut, CutPoint, Strobe, StrobeSample};
+use crate::integrate::DenseSegment;
+use crate::integrate::dense::eval_split;
+
 /// Accepted steps of a run with their dense-output coefficients.
+///
+/// Start states are kept contiguously apart from the other interpolation terms, so that a
+/// moved cut is re-sliced by one pass over the start states (a dot product per step for a
+/// plane) and a root search only in the few steps where the sign changes.
 #[derive(Clone, Debug, Default)]
-pub struct StoredRun {}
+pub struct StoredRun {
+    dim: usize,
+    n_rest_terms: usize,
+    t0: Vec<f64>,
+    h: Vec<f64>,
+    starts: Vec<f64>,
+    terms: Vec<f64>,
+    end_state: Vec<f64>,
+    budget_steps: usize,
+    truncated_at: Option<f64>,
+    window: (f64, f64),
+}
+
+impl StoredRun {
+    /// An empty store for a run that records over `window = (t_record, t_end)`, keeping at
+    /// most `budget_bytes` of step data.
+    pub fn new(dim: usize, window: (f64, f64), budget_bytes: usize) -> Self {
+        Self {
+            dim,
+            window,
+            budget_steps: budget_bytes,
+            ..Self::default()
+        }
+    }
+
+    /// Appends one accepted step whose end state is `end` (the integrator's state, so that
+    /// re-slicing sees exactly the values the live run saw). Returns false once the memory
+    /// budget is used up (the step is then not stored).
+    pub fn push(&mut self, segment: &DenseSegment, end: &[f64]) -> bool {
+        if self.truncated_at.is_some() {
+            return false;
+        }
+        if self.t0.is_empty() {
+            self.n_rest_terms = segment.n_terms().saturating_sub(1);
+            let bytes_per_step = 8 * (2 + self.dim * (1 + self.n_rest_terms));
+            self.budget_steps /= bytes_per_step.max(1);
+        }
+        if self.t0.len() >= self.budget_steps {
+            self.truncated_at = Some(segment.t0);
+            return false;
+        }
+        self.t0.push(segment.t0);
+        self.h.push(segment.h);
+        self.starts.extend_from_slice(&segment.coeffs[..self.dim]);
+        self.terms.extend_from_slice(&segment.coeffs[self.dim..]);
+        self.end_state.clear();
+        self.end_state.extend_from_slice(end);
+        true
+    }
+
+    /// Number of stored steps.
+    pub fn n_steps(&self) -> usize {
+        self.t0.len()
+    }
+
+    /// Number of states.
+    pub fn dim(&self) -> usize {
+        self.dim
+    }
+
+    /// Bytes held by the step data.
+    pub fn bytes(&self) -> usize {
+        8 * (self.t0.len() * 2 + self.starts.len() + self.terms.len() + self.end_state.len())
+    }
+
+    /// The recorded window `(t_record, t_end)`.
+    pub fn window(&self) -> (f64, f64) {
+        self.window
+    }
+
+    /// Sets the end of the recorded window (a continued run records further).
+    pub fn extend_window(&mut self, t_end: f64) {
+        self.window.1 = t_end;
+    }
+
+    /// Time where storing stopped for lack of memory, if it did.
+    pub fn truncated_at(&self) -> Option<f64> {
+        self.truncated_at
+    }
+
+    /// Start state of step `idx`.
+    pub fn start_state(&self, idx: usize) -> &[f64] {
+        &self.starts[idx * self.dim..(idx + 1) * self.dim]
+    }
+
+    /// Start time of step `idx`.
+    pub fn step_start_time(&self, idx: usize) -> f64 {
+        self.t0[idx]
+    }
+
+    /// End state of step `idx` (the start of the next one, or the final state).
+    pub fn end_state(&self, idx: usize) -> &[f64] {
+        if idx + 1 < self.t0.len() {
+            self.start_state(idx + 1)
+        } else {
+            &self.end_state
+        }
+    }
+
+    /// Time and state at the end of the stored data.
+    pub fn last(&self) -> Option<(f64, &[f64])> {
+        let idx = self.t0.len().checked_sub(1)?;
+        Some((self.t0[idx] + self.h[idx], &self.end_state))
+    }
+
+    fn step_terms(&self, idx: usize) -> &[f64] {
+        let len = self.dim * self.n_rest_terms;
+        &self.terms[idx * len..(idx + 1) * len]
+    }
+
+    /// Interpolated state at time `t` (inside the stored steps) into `out`; false outside.
+    pub fn state_at(&self, t: f64, out: &mut [f64]) -> bool {
+        let idx = self.t0.partition_point(|&t0| t0 <= t);
+        let Some(idx) = idx.checked_sub(1) else {
+            return false;
+        };
+        if t > self.t0[idx] + self.h[idx] {
+            return false;
+        }
+        let s = (t - self.t0[idx]) / self.h[idx];
+        eval_split(
+            self.start_state(idx),
+            self.step_terms(idx),
+            self.dim,
+            s,
+            out,
+        );
+        true
+    }
+
+    /// Cuts the stored steps with `cut` inside the recorded window, reporting each crossing
+    /// to `each` in time order. `parameters` are the model's values (for level surfaces).
+    /// The result is exactly what a fresh run with this cut records.
+    pub fn reslice(
+        &self,
+        cut: &mut Cut,
+        parameters: &[f64],
+        mut each: impl FnMut(&CutPoint) -> ControlFlow<()>,
+    ) {
+        let dim = self.dim;
+        let (t_record, t_end) = self.window;
+        let mut point = CutPoint {
+            t: 0.0,
+            return_time: None,
+            state: vec![0.0; dim],
+        };
+        let mut last_t: Option<f64> = None;
+        let Some(mut g0) = self
+            .t0
+            .first()
+            .map(|&t| cut.value(t, self.start_state(0), parameters))
+        else {
+            return;
+        };
+        for idx in 0..self.t0.len() {
+            let (t0, h) = (self.t0[idx], self.h[idx]);
+            let g1 = cut.value(t0 + h, self.end_state(idx), parameters);
+            if cut.direction.crosses(g0, g1) {
+                let t = cut.locate(
+                    self.start_state(idx),
+                    self.step_terms(idx),
+                    t0,
+                    h,
+                    g0,
+                    g1,
+                    parameters,
+                    &mut point.state,
+                );
+                if t >= t_record && t <= t_end {
+                    point.t = t;
+                    point.return_time = last_t.map(|last| t - last);
+                    last_t = Some(t);
+                    if each(&point).is_break() {
+                        return;
+                    }
+                }
+            }
+            g0 = g1;
+        }
+    }
+
+    /// Re-slices into a vector.
+    pub fn reslice_points(&self, cut: &mut Cut, parameters: &[f64]) -> Vec<CutPoint> {
+        let mut points = Vec::new();
+        self.reslice(cut, parameters, |p| {
+            points.push(p.clone());
+            ControlFlow::Continue(())
+        });
+        points
+    }
+
+    /// Strobe samples of the stored steps inside the recorded window.
+    pub fn strobe_samples(&self, strobe: &Strobe) -> Vec<StrobeSample> {
+        let (t_record, t_end) = self.window;
+        let mut samples = Vec::new();
+        let mut k = strobe.first_index_from(t_record);
+        let mut state = vec![0.0; self.dim];
+        loop {
+            let t = strobe.time_of(k);
+            if t > t_end || !self.state_at(t, &mut state) {
+                break;
+            }
+            samples.push(StrobeSample {
+                index: k,
+                t,
+                state: state.clone(),
+            });
+            k += 1;
+        }
+        samples
+    }
+}

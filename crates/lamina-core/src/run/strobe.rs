@@ -1,6 +1,7 @@
 //! The strobe (time-T map): samples at `phase + k T` taken from the dense output.
 
 use super::{SpecError, StrobeSpec};
+use crate::expr::Program;
 use crate::model::Model;
 
 /// A compiled strobe.
@@ -15,8 +16,45 @@ pub struct Strobe {
 impl Strobe {
     /// Evaluates the period expression with the model's parameter values.
     pub fn compile(spec: &StrobeSpec, model: &Model) -> Result<Self, SpecError> {
-        let _ = (spec, model);
-        todo!()
+        let program = Program::compile(
+            model.names(),
+            &[("strobe period".to_string(), spec.period.as_str())],
+        )?;
+        if program.uses_states() || program.uses_time() {
+            return Err(SpecError::PeriodNotConstant {
+                expression: spec.period.clone(),
+            });
+        }
+        let start = model.start();
+        let period = program.eval_one(&mut program.scratch(), 0.0, start, model.parameters());
+        if !(period.is_finite() && period > 0.0) {
+            return Err(SpecError::BadPeriod {
+                expression: spec.period.clone(),
+                value: period,
+            });
+        }
+        Ok(Self {
+            period,
+            phase: spec.phase,
+        })
+    }
+
+    /// Time of sample `index`, computed afresh (never accumulated) so it does not drift.
+    #[inline]
+    pub fn time_of(&self, index: i64) -> f64 {
+        self.phase + index as f64 * self.period
+    }
+
+    /// The first sample index whose time is at or after `t`.
+    pub fn first_index_from(&self, t: f64) -> i64 {
+        let mut k = ((t - self.phase) / self.period).ceil() as i64;
+        while self.time_of(k - 1) >= t {
+            k -= 1;
+        }
+        while self.time_of(k) < t {
+            k += 1;
+        }
+        k
     }
 }
 

@@ -1,0 +1,102 @@
+//! Shared helpers for the core's integration tests: building models from typed text.
+
+#![allow(dead_code)]
+
+use lamina_core::Interrupt;
+use lamina_core::integrate::{Method, StepControl};
+use lamina_core::model::{Model, ModelSpec, ParameterSpec, StateSpec};
+use lamina_core::run::{
+    Collect, Cut, CutSpec, Direction, Run, RunOutcome, RunSpec, Strobe, StrobeSpec, SurfaceSpec,
+};
+
+/// A model from `(name, start, rate)` states and `(name, value)` parameters.
+pub fn model(states: &[(&str, f64, &str)], parameters: &[(&str, f64)]) -> Model {
+    let spec = ModelSpec {
+        states: states
+            .iter()
+            .map(|(name, start, rate)| StateSpec {
+                name: name.to_string(),
+                start: *start,
+                rate: rate.to_string(),
+            })
+            .collect(),
+        parameters: parameters
+            .iter()
+            .map(|(name, value)| ParameterSpec {
+                name: name.to_string(),
+                value: *value,
+            })
+            .collect(),
+    };
+    Model::compile(&spec).unwrap_or_else(|e| panic!("{e}"))
+}
+
+/// Run settings with one method, tolerance `tol` for both rtol and atol, and a window.
+pub fn spec(method: Method, tol: f64, settle: f64, span: f64) -> RunSpec {
+    RunSpec {
+        method,
+        control: StepControl {
+            rtol: tol,
+            atol: tol,
+            max_step: None,
+            initial_step: None,
+        },
+        settle,
+        span,
+        max_points: usize::MAX,
+        ..RunSpec::default()
+    }
+}
+
+/// A plane cut from `(state, weight)` pairs.
+pub fn plane(model: &Model, normal: &[(&str, f64)], offset: f64, direction: Direction) -> Cut {
+    let spec = CutSpec {
+        surface: SurfaceSpec::Plane {
+            normal: normal.iter().map(|(n, w)| (n.to_string(), *w)).collect(),
+            offset,
+        },
+        direction,
+    };
+    Cut::compile(&spec, model).unwrap_or_else(|e| panic!("{e}"))
+}
+
+/// A level-surface cut.
+pub fn level(model: &Model, expression: &str, direction: Direction) -> Cut {
+    let spec = CutSpec {
+        surface: SurfaceSpec::Level(expression.to_string()),
+        direction,
+    };
+    Cut::compile(&spec, model).unwrap_or_else(|e| panic!("{e}"))
+}
+
+/// A strobe with a period expression.
+pub fn strobe(model: &Model, period: &str, phase: f64) -> Strobe {
+    Strobe::compile(
+        &StrobeSpec {
+            period: period.to_string(),
+            phase,
+        },
+        model,
+    )
+    .unwrap_or_else(|e| panic!("{e}"))
+}
+
+/// Runs to the end and collects every point.
+pub fn collect(
+    model: Model,
+    spec: RunSpec,
+    cut: Option<Cut>,
+    strobe: Option<Strobe>,
+) -> (Collect, RunOutcome) {
+    let mut sink = Collect::default();
+    let outcome = Run::new(model, spec, cut, strobe, false).execute(&mut sink, &Interrupt::new());
+    (sink, outcome)
+}
+
+/// Relative difference.
+pub fn rel(a: f64, b: f64) -> f64 {
+    (a - b).abs() / b.abs().max(f64::MIN_POSITIVE)
+}
+
+/// Both explicit methods.
+pub const METHODS: [Method; 2] = [Method::Dp5, Method::Dp853];
