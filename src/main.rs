@@ -1,2 +1,53 @@
-//! The `lamina` binary: command-line definition and glue over the core.
-fn main() {}
+//! The `lamina` binary: the command-line definition and the glue between the scenario file,
+//! the numerical core, the exports and the explorer window.
+
+mod cli;
+
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use clap::{Parser, Subcommand};
+
+/// Lamina: Poincaré sections, strobe maps and periodic orbits of typed nonlinear models.
+#[derive(Parser, Debug)]
+#[command(name = "lamina", version, about, long_about = None)]
+struct Cli {
+    #[command(subcommand)]
+    command: Option<Command>,
+}
+
+#[derive(Subcommand, Debug)]
+enum Command {
+    /// Open the explorer window on a scenario.
+    Open {
+        /// Scenario file (.ron).
+        file: PathBuf,
+    },
+    /// Validate a scenario and print every problem with its location; exit 1 if any.
+    Check {
+        /// Scenario file (.ron).
+        file: PathBuf,
+    },
+    /// Compute cut points (Poincaré section) and write them as CSV.
+    Cut(cli::PointsArgs),
+    /// Compute strobe samples (time-T map) and write them as CSV.
+    Strobe(cli::PointsArgs),
+}
+
+fn main() -> ExitCode {
+    let args = Cli::parse();
+    let result = match args.command {
+        None => cli::open_explorer(None),
+        Some(Command::Open { file }) => cli::open_explorer(Some(file)),
+        Some(Command::Check { file }) => cli::check(&file),
+        Some(Command::Cut(args)) => cli::points(cli::PointKind::Cut, &args),
+        Some(Command::Strobe(args)) => cli::points(cli::PointKind::Strobe, &args),
+    };
+    match result {
+        Ok(code) => code,
+        Err(err) => {
+            eprintln!("error: {err:#}");
+            ExitCode::FAILURE
+        }
+    }
+}

@@ -1,1 +1,24 @@
-//! Lamina exports: CSV point sets, written atomically.
+//! Lamina's exports: CSV point sets with the columns of the product brief, written through
+//! an atomic file so a failed export never replaces a good file.
+
+mod atomic;
+mod csv_points;
+
+pub use atomic::{AtomicFile, write_atomically};
+pub use csv_points::{CutCsv, StrobeCsv, TrajectoryCsv, format_number};
+
+/// Errors of an export.
+#[derive(Debug, thiserror::Error)]
+pub enum ExportError {
+    /// Reading or writing a file failed.
+    #[error("{path}: {source}")]
+    Io {
+        /// The file concerned.
+        path: String,
+        /// The underlying error.
+        source: std::io::Error,
+    },
+    /// Writing CSV failed.
+    #[error("CSV output: {0}")]
+    Csv(#[from] csv::Error),
+}

@@ -23,6 +23,11 @@ pub trait Sink {
     fn progress(&mut self, t: f64, fraction: f64) {
         let _ = (t, fraction);
     }
+    /// The state at the end of an accepted step inside the recorded window (for drawing the
+    /// trajectory).
+    fn step(&mut self, t: f64, state: &[f64]) {
+        let _ = (t, state);
+    }
 }
 
 /// A sink that keeps everything in memory.
@@ -239,6 +244,35 @@ impl Run {
         self.stored.extend_window(self.t_end);
     }
 
+    /// Replaces the cut (for example after the user moved it). Points found so far are not
+    /// changed; re-slice the stored run for the new cut's points up to now. A continued run
+    /// records crossings of the new cut from where it stands.
+    pub fn set_cut(&mut self, cut: Option<Cut>) {
+        self.cut = cut;
+        self.last_crossing = None;
+        if let Some(cut) = &mut self.cut {
+            let (t, x) = if self.started {
+                (self.integrator.t(), self.integrator.x().to_vec())
+            } else {
+                (self.spec.t_start, self.model.start().to_vec())
+            };
+            self.g_prev = cut.value(t, &x, self.model.parameters());
+        }
+    }
+
+    /// Replaces the strobe; a continued run samples with it from where it stands.
+    pub fn set_strobe(&mut self, strobe: Option<Strobe>) {
+        self.strobe = strobe;
+        if let Some(s) = &self.strobe {
+            let from = if self.started { self.integrator.t().max(self.spec.t_record()) } else { self.spec.t_record() };
+            self.next_strobe = s.first_index_from(from);
+            // a sample exactly at the current time was already taken
+            if self.started && s.time_of(self.next_strobe) <= self.integrator.t() && self.integrator.t() > self.spec.t_record() {
+                self.next_strobe += 1;
+            }
+        }
+    }
+
     /// Integrates from where the run stands to the end of the window, reporting to `sink`.
     pub fn execute(&mut self, sink: &mut dyn Sink, interrupt: &Interrupt) -> RunOutcome {
         let reason = self.advance(sink, interrupt);
@@ -290,6 +324,9 @@ impl Run {
             let segment = self.integrator.segment();
             if self.store && t1 > self.spec.t_record() {
                 self.stored.push(segment, &self.end_state);
+            }
+            if t1 >= self.spec.t_record() {
+                sink.step(t1, &self.end_state);
             }
             if let Some(reason) = self.record(sink, t1) {
                 return reason;

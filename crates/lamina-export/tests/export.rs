@@ -1,0 +1,62 @@
+//! CSV layout, round-trip number formatting and atomic replacement.
+
+use std::io::Write;
+
+use lamina_core::run::{CutPoint, StrobeSample};
+use lamina_export::{AtomicFile, CutCsv, ExportError, StrobeCsv, format_number, write_atomically};
+
+#[test]
+fn numbers_round_trip_exactly() {
+    for v in [0.1, 1.0 / 3.0, 1e-300, -2.5e300, 6.663286859323130, f64::MIN_POSITIVE, -0.0, 123456789.0] {
+        let text = format_number(v);
+        let back: f64 = text.parse().expect("parses");
+        // [common practice] shortest round-trip formatting gives back the same bits
+        assert_eq!(back.to_bits(), v.to_bits(), "{v} -> {text}");
+    }
+}
+
+#[test]
+fn cut_csv_has_the_product_columns() {
+    let names = vec!["x".to_string(), "v".to_string()];
+    let mut csv = CutCsv::new(Vec::new(), &names).expect("header");
+    csv.write(&CutPoint { t: 1.5, return_time: None, state: vec![0.25, -1.0] }).expect("row");
+    csv.write(&CutPoint { t: 3.0, return_time: Some(1.5), state: vec![0.5, 2.0] }).expect("row");
+    let text = String::from_utf8(csv.finish().expect("flush")).expect("utf8");
+    assert_eq!(text, "k,t,return_time,x,v\n0,1.5,,0.25,-1.0\n1,3.0,1.5,0.5,2.0\n");
+}
+
+#[test]
+fn strobe_csv_has_the_product_columns() {
+    let names = vec!["x".to_string()];
+    let mut csv = StrobeCsv::new(Vec::new(), &names).expect("header");
+    csv.write(&StrobeSample { index: 7, t: 14.0, state: vec![0.1] }).expect("row");
+    let text = String::from_utf8(csv.finish().expect("flush")).expect("utf8");
+    assert_eq!(text, "k,t,x\n0,14.0,0.1\n");
+}
+
+#[test]
+fn atomic_file_replaces_only_on_commit() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let target = dir.path().join("out.csv");
+    std::fs::write(&target, "good\n").expect("seed");
+    {
+        let mut file = AtomicFile::create(&target).expect("create");
+        file.write_all(b"half").expect("write");
+        // dropped without commit: a failed run
+    }
+    assert_eq!(std::fs::read_to_string(&target).expect("read"), "good\n");
+    let result: Result<(), ExportError> = write_atomically(&target, |f| {
+        f.write_all(b"new\n").map_err(|e| ExportError::Io { path: "t".into(), source: e })
+    });
+    result.expect("commit");
+    assert_eq!(std::fs::read_to_string(&target).expect("read"), "new\n");
+    let leftovers = std::fs::read_dir(dir.path()).expect("list").count();
+    assert_eq!(leftovers, 1, "no temporary files left behind");
+}
+
+#[test]
+fn atomic_file_into_missing_directory_fails_cleanly() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let target = dir.path().join("missing").join("out.csv");
+    assert!(AtomicFile::create(&target).is_err());
+}

@@ -1,0 +1,340 @@
+//! The scenario document, format 1: serde types that mirror the file field for field.
+//!
+//! These are the only serializable copies of Lamina's settings; the core types they convert
+//! into (see [`crate::convert`]) know nothing of files.
+
+use std::fmt;
+
+use serde::de::{MapAccess, Visitor};
+use serde::ser::SerializeMap;
+use serde::{Deserialize, Deserializer, Serialize, Serializer};
+
+use crate::source::SourceMap;
+
+/// The scenario format this version of Lamina reads and writes.
+pub const FORMAT: u32 = 1;
+
+/// One scenario: the model, how to integrate it, how to cut and strobe it, what to sweep,
+/// and optionally how to look at it.
+///
+/// Equality compares the scenario's content only, not where its fields were in a file.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Scenario {
+    /// Format version of the file; [`FORMAT`] for files this version writes.
+    pub format: u32,
+    /// Short title.
+    pub title: String,
+    /// Free text; empty when left out.
+    #[serde(default, skip_serializing_if = "String::is_empty")]
+    pub notes: String,
+    /// State variables in order.
+    pub states: Vec<State>,
+    /// Parameters in order.
+    pub parameters: Vec<Parameter>,
+    /// Integration method and tolerances.
+    pub integrator: Integrator,
+    /// Time window.
+    pub time: Time,
+    /// The cut (Poincaré section), if any.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cut: Option<Cut>,
+    /// The strobe (time-T map), if any.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub strobe: Option<Strobe>,
+    /// The parameter sweep, if any.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub sweep: Option<Sweep>,
+    /// Run limits; [`Limits::default`] when left out.
+    #[serde(default)]
+    pub limits: Limits,
+    /// How the explorer shows the scenario, if saved from it.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub view: Option<View>,
+    /// Where each field was in the text this scenario was loaded from.
+    #[serde(skip)]
+    pub(crate) source: SourceMap,
+}
+
+/// One state variable.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct State {
+    /// Name used in expressions.
+    pub name: String,
+    /// Start value.
+    pub start: f64,
+    /// Rate expression `d name / dt`.
+    pub rate: String,
+}
+
+/// One named parameter with its slider range.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Parameter {
+    /// Name used in expressions.
+    pub name: String,
+    /// Current value.
+    pub value: f64,
+    /// Slider range `(low, high)`.
+    pub range: (f64, f64),
+}
+
+/// Integration method as chosen in the file.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub enum MethodChoice {
+    /// Let Lamina choose (currently Dormand–Prince 8(5,3)).
+    Auto,
+    /// Dormand–Prince 5(4).
+    Dp5,
+    /// Dormand–Prince 8(5,3).
+    Dp853,
+    /// An implicit method for stiff models (not available in this version).
+    Stiff,
+}
+
+/// Integration method and step control.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Integrator {
+    /// Method.
+    pub method: MethodChoice,
+    /// Relative tolerance.
+    pub rtol: f64,
+    /// Absolute tolerance.
+    pub atol: f64,
+    /// Largest step, if limited.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub max_step: Option<f64>,
+}
+
+/// The time window: start, transient not recorded, recorded length.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Time {
+    /// Start time.
+    pub start: f64,
+    /// Transient integrated but not recorded.
+    pub settle: f64,
+    /// Length of the recorded window.
+    pub span: f64,
+}
+
+/// Plane normal weights by state name, in the file's order.
+///
+/// Written as a RON map `{"v": 1.0}`; kept as pairs so that saving keeps the user's order
+/// and a name given twice can be reported instead of silently dropped.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Weights(pub Vec<(String, f64)>);
+
+impl Serialize for Weights {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut map = serializer.serialize_map(Some(self.0.len()))?;
+        for (name, weight) in &self.0 {
+            map.serialize_entry(name, weight)?;
+        }
+        map.end()
+    }
+}
+
+impl<'de> Deserialize<'de> for Weights {
+    fn deserialize<D: Deserializer<'de>>(deserializer: D) -> Result<Self, D::Error> {
+        struct WeightsVisitor;
+        impl<'de> Visitor<'de> for WeightsVisitor {
+            type Value = Weights;
+            fn expecting(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+                f.write_str("a map from state name to weight, like {\"v\": 1.0}")
+            }
+            fn visit_map<A: MapAccess<'de>>(self, mut access: A) -> Result<Weights, A::Error> {
+                let mut pairs = Vec::new();
+                while let Some((name, weight)) = access.next_entry::<String, f64>()? {
+                    pairs.push((name, weight));
+                }
+                Ok(Weights(pairs))
+            }
+        }
+        deserializer.deserialize_map(WeightsVisitor)
+    }
+}
+
+/// The cut surface.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub enum Surface {
+    /// The hyperplane `sum normal_i x_i = offset`.
+    Plane {
+        /// Weights by state name; states left out weigh 0.
+        normal: Weights,
+        /// Right-hand side.
+        offset: f64,
+    },
+    /// The level surface `g(x, t) = 0` of an expression.
+    Level(String),
+}
+
+/// Which crossings of the cut count.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub enum Direction {
+    /// From negative to positive.
+    Rising,
+    /// From positive to negative.
+    Falling,
+    /// Either way.
+    Both,
+}
+
+/// The cut (Poincaré section).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Cut {
+    /// Surface.
+    pub surface: Surface,
+    /// Which crossings count.
+    pub direction: Direction,
+    /// The two state names plotted for the cut points.
+    pub axes: (String, String),
+}
+
+/// The strobe (time-T map).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Strobe {
+    /// Period expression in parameters and constants, e.g. `2*pi/w`.
+    pub period: String,
+    /// Absolute time of sample 0.
+    pub phase: f64,
+    /// The two state names plotted for the samples.
+    pub axes: (String, String),
+}
+
+/// Which points a sweep keeps.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub enum SweepSource {
+    /// Cut points.
+    Cut,
+    /// Strobe samples.
+    Strobe,
+}
+
+/// A one-parameter sweep (orbit diagram).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Sweep {
+    /// The parameter varied.
+    pub parameter: String,
+    /// First value.
+    pub from: f64,
+    /// Last value.
+    pub to: f64,
+    /// Number of steps between `from` and `to` (`steps + 1` values).
+    pub steps: u32,
+    /// Transient per value, not recorded.
+    pub settle: f64,
+    /// Points kept per value (the last ones).
+    pub keep: u32,
+    /// Start each value from the previous value's end state (follow the branch).
+    pub follow: bool,
+    /// Cut points or strobe samples.
+    pub source: SweepSource,
+    /// The state plotted against the parameter.
+    pub coordinate: String,
+}
+
+/// Run limits.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct Limits {
+    /// A run stops after this many cut points or strobe samples.
+    pub max_points: u64,
+    /// A run stops when a state's magnitude exceeds this.
+    pub bound: f64,
+}
+
+impl Default for Limits {
+    /// 200 000 points, bound 1e6.
+    fn default() -> Self {
+        Self {
+            max_points: 200_000,
+            bound: 1e6,
+        }
+    }
+}
+
+/// How the explorer shows the scenario. Every part may be left out.
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct View {
+    /// The 3D camera.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub camera: Option<Camera>,
+    /// The three coordinates of the 3D view: state names, or `t` for time.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub axes: Option<(String, String, String)>,
+    /// Colours of the drawn items.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub colours: Option<Colours>,
+}
+
+/// Orbit camera of the 3D view.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Camera {
+    /// Turn about the vertical axis, degrees.
+    pub yaw_deg: f64,
+    /// Tilt above the horizontal, degrees (-90 to 90).
+    pub pitch_deg: f64,
+    /// Magnification, positive; 1 fits the trajectory.
+    pub zoom: f64,
+}
+
+/// Colours as `#rrggbb` or `#rrggbbaa`; a colour left out uses the explorer's default.
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Colours {
+    /// The trajectory line.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub trajectory: Option<String>,
+    /// The cut surface.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub surface: Option<String>,
+    /// Cut points.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cut_points: Option<String>,
+    /// Strobe samples.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub strobe_points: Option<String>,
+}
+
+impl Scenario {
+    /// A scenario of format [`FORMAT`] with the given model and time window and nothing else:
+    /// no notes, cut, strobe, sweep or view, default limits, method `Auto`, tolerances 1e-9 and
+    /// 1e-12.
+    pub fn new(title: &str, states: Vec<State>, parameters: Vec<Parameter>, time: Time) -> Self {
+        Self {
+            format: FORMAT,
+            title: title.to_owned(),
+            notes: String::new(),
+            states,
+            parameters,
+            integrator: Integrator {
+                method: MethodChoice::Auto,
+                rtol: 1e-9,
+                atol: 1e-12,
+                max_step: None,
+            },
+            time,
+            cut: None,
+            strobe: None,
+            sweep: None,
+            limits: Limits::default(),
+            view: None,
+            source: SourceMap::default(),
+        }
+    }
+
+    /// Forgets where the fields were in the loaded text (for example after editing, when the
+    /// old lines no longer match).
+    pub fn forget_source(&mut self) {
+        self.source = SourceMap::default();
+    }
+}

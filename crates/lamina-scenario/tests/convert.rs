@@ -1,0 +1,129 @@
+//! From a scenario to the core's specifications and indices.
+
+mod common;
+
+use common::{EXAMPLE, MINIMAL, edit, load};
+use lamina_core::integrate::Method;
+use lamina_core::run::{self, SurfaceSpec};
+use lamina_scenario::{MethodChoice, ViewAxis};
+
+#[test]
+fn the_model_spec_keeps_names_values_and_order() {
+    let spec = load(EXAMPLE).model_spec();
+    assert_eq!(spec.states.len(), 2);
+    assert_eq!(spec.states[0].name, "x");
+    assert_eq!(spec.states[0].start, 0.1);
+    assert_eq!(spec.states[1].rate, "-2*zeta*v - x - k3*x^3 + a*cos(w*t)");
+    let params: Vec<(&str, f64)> = spec
+        .parameters
+        .iter()
+        .map(|p| (p.name.as_str(), p.value))
+        .collect();
+    assert_eq!(
+        params,
+        [("zeta", 0.05), ("k3", 1.0), ("a", 0.3), ("w", 1.2)]
+    );
+}
+
+#[test]
+fn the_run_spec() {
+    let run = load(EXAMPLE).run_spec();
+    assert_eq!(run.method, Method::Dp853); // Auto
+    assert_eq!((run.control.rtol, run.control.atol), (1e-9, 1e-12));
+    assert_eq!(run.control.max_step, None);
+    assert_eq!((run.t_start, run.settle, run.span), (0.0, 200.0, 2000.0));
+    assert_eq!((run.max_points, run.bound), (200_000, 1e6));
+
+    let run = load(MINIMAL).run_spec();
+    assert_eq!(run.method, Method::Dp5);
+    assert_eq!((run.max_points, run.bound), (200_000, 1e6)); // limits left out
+    let text = edit(
+        EXAMPLE,
+        "method: Auto, rtol: 1e-9, atol: 1e-12",
+        "method: Dp853, rtol: 1e-9, atol: 1e-12, max_step: 0.5",
+    );
+    let run = load(&text).run_spec();
+    assert_eq!(
+        (run.method, run.control.max_step),
+        (Method::Dp853, Some(0.5))
+    );
+}
+
+#[test]
+fn method_choices() {
+    assert_eq!(MethodChoice::Auto.method(), Some(Method::Dp853));
+    assert_eq!(MethodChoice::Dp5.method(), Some(Method::Dp5));
+    assert_eq!(MethodChoice::Dp853.method(), Some(Method::Dp853));
+    assert_eq!(MethodChoice::Stiff.method(), None);
+}
+
+#[test]
+fn cut_and_strobe_specs() {
+    let scenario = load(EXAMPLE);
+    let cut = scenario.cut_spec().expect("cut");
+    assert_eq!(
+        cut.surface,
+        SurfaceSpec::Plane {
+            normal: vec![("v".to_owned(), 1.0)],
+            offset: 0.0
+        }
+    );
+    assert_eq!(cut.direction, run::Direction::Falling);
+    let strobe = scenario.strobe_spec().expect("strobe");
+    assert_eq!((strobe.period.as_str(), strobe.phase), ("2*pi/w", 0.0));
+
+    let text = edit(
+        EXAMPLE,
+        "Plane(normal: {\"v\": 1.0}, offset: 0.0)",
+        "Level(\"x - 0.5\")",
+    );
+    let text = edit(&text, "direction: Falling", "direction: Both");
+    let cut = load(&text).cut_spec().expect("cut");
+    assert_eq!(cut.surface, SurfaceSpec::Level("x - 0.5".to_owned()));
+    assert_eq!(cut.direction, run::Direction::Both);
+
+    let minimal = load(MINIMAL);
+    assert_eq!(minimal.cut_spec(), None);
+    assert_eq!(minimal.strobe_spec(), None);
+}
+
+#[test]
+fn indices_by_name() {
+    let scenario = load(EXAMPLE);
+    assert_eq!(scenario.state_index("v"), Some(1));
+    assert_eq!(scenario.state_index("w"), None);
+    assert_eq!(scenario.parameter_index("w"), Some(3));
+    assert_eq!(scenario.cut_axes(), Some([0, 1]));
+    assert_eq!(scenario.strobe_axes(), Some([0, 1]));
+    assert_eq!(scenario.sweep_parameter_index(), Some(2));
+    assert_eq!(scenario.sweep_coordinate_index(), Some(0));
+    assert_eq!(scenario.view_axes(), None);
+
+    let text = edit(
+        EXAMPLE,
+        "axes: (\"x\", \"v\"),\n",
+        "axes: (\"v\", \"q\"),\n",
+    );
+    assert_eq!(load(&text).cut_axes(), None);
+
+    let text = edit(
+        EXAMPLE,
+        "    limits: (max_points: 200000, bound: 1e6),\n",
+        "    view: Some((axes: Some((\"v\", \"t\", \"x\")))),\n",
+    );
+    assert_eq!(
+        load(&text).view_axes(),
+        Some([ViewAxis::State(1), ViewAxis::Time, ViewAxis::State(0)])
+    );
+}
+
+#[test]
+fn directions_convert_both_ways() {
+    for d in [
+        run::Direction::Rising,
+        run::Direction::Falling,
+        run::Direction::Both,
+    ] {
+        assert_eq!(run::Direction::from(lamina_scenario::Direction::from(d)), d);
+    }
+}

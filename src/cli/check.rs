@@ -1,0 +1,29 @@
+//! `lamina check`: every problem of a scenario with its location.
+
+use std::path::Path;
+use std::process::ExitCode;
+
+use anyhow::Result;
+
+/// Prints every problem of the scenario at `path` to stderr; exit code 1 if any is an error.
+pub fn check(path: &Path) -> Result<ExitCode> {
+    let scenario = match lamina_scenario::load_file(path) {
+        Ok(s) => s,
+        Err(err) => {
+            eprintln!("{}: {err}", path.display());
+            return Ok(ExitCode::FAILURE);
+        }
+    };
+    let problems = scenario.check();
+    for problem in &problems {
+        eprintln!("{}: {problem}", path.display());
+    }
+    let n_errors = problems.iter().filter(|p| p.is_error()).count();
+    if n_errors > 0 {
+        eprintln!("{}: {n_errors} error(s)", path.display());
+        Ok(ExitCode::FAILURE)
+    } else {
+        eprintln!("{}: ok", path.display());
+        Ok(ExitCode::SUCCESS)
+    }
+}

@@ -1,0 +1,11 @@
+//! Command implementations: each loads the scenario, hands it to the core and writes results.
+
+mod check;
+mod explorer;
+mod points;
+mod prepare;
+mod progress;
+
+pub use check::check;
+pub use explorer::open_explorer;
+pub use points::{PointKind, PointsArgs, points};

@@ -1,0 +1,176 @@
+//! `lamina cut` and `lamina strobe`: stream points as CSV to stdout or to a file.
+
+use std::io::Write;
+use std::ops::ControlFlow;
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use anyhow::{Context, Result, bail};
+use lamina_core::Interrupt;
+use lamina_core::run::{CutPoint, Run, Sink, StopReason, StrobeSample};
+use lamina_export::{AtomicFile, CutCsv, ExportError, StrobeCsv};
+
+use super::prepare::prepare;
+use super::progress::Progress;
+
+/// Arguments shared by `cut` and `strobe`.
+#[derive(clap::Args, Debug)]
+pub struct PointsArgs {
+    /// Scenario file (.ron).
+    file: PathBuf,
+    /// Stop after this many points.
+    #[arg(long, value_name = "N")]
+    count: Option<usize>,
+    /// Write CSV to this file (atomically) instead of stdout.
+    #[arg(long, value_name = "FILE.csv")]
+    out: Option<PathBuf>,
+}
+
+/// Which point set a command writes.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum PointKind {
+    /// Cut points.
+    Cut,
+    /// Strobe samples.
+    Strobe,
+}
+
+enum Writer<W: Write> {
+    Cut(CutCsv<W>),
+    Strobe(StrobeCsv<W>),
+}
+
+/// Streams rows into the CSV writer and stops after `count` points.
+struct CsvSink<W: Write> {
+    writer: Writer<W>,
+    count: Option<usize>,
+    written: usize,
+    error: Option<ExportError>,
+    progress: Progress,
+}
+
+impl<W: Write> CsvSink<W> {
+    fn after_row(&mut self, result: Result<(), ExportError>) -> ControlFlow<()> {
+        if let Err(err) = result {
+            self.error = Some(err);
+            return ControlFlow::Break(());
+        }
+        self.written += 1;
+        match self.count {
+            Some(n) if self.written >= n => ControlFlow::Break(()),
+            _ => ControlFlow::Continue(()),
+        }
+    }
+}
+
+impl<W: Write> Sink for CsvSink<W> {
+    fn cut_point(&mut self, point: &CutPoint) -> ControlFlow<()> {
+        match &mut self.writer {
+            Writer::Cut(w) => {
+                let result = w.write(point);
+                self.after_row(result)
+            }
+            Writer::Strobe(_) => ControlFlow::Continue(()),
+        }
+    }
+    fn strobe_sample(&mut self, sample: &StrobeSample) -> ControlFlow<()> {
+        match &mut self.writer {
+            Writer::Strobe(w) => {
+                let result = w.write(sample);
+                self.after_row(result)
+            }
+            Writer::Cut(_) => ControlFlow::Continue(()),
+        }
+    }
+    fn progress(&mut self, t: f64, fraction: f64) {
+        self.progress.update(t, fraction);
+    }
+}
+
+/// Runs the scenario and writes its cut points or strobe samples.
+pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
+    let prepared = prepare(&args.file)?;
+    let names = prepared.model.names().states.clone();
+    match kind {
+        PointKind::Cut if prepared.cut.is_none() => bail!("{} has no cut: add a `cut: Some((...))` block", args.file.display()),
+        PointKind::Strobe if prepared.strobe.is_none() => {
+            bail!("{} has no strobe: add a `strobe: Some((...))` block", args.file.display())
+        }
+        _ => {}
+    }
+    if args.count == Some(0) {
+        bail!("--count must be at least 1");
+    }
+    // Only the requested point set is computed.
+    let (cut, strobe) = match kind {
+        PointKind::Cut => (prepared.cut, None),
+        PointKind::Strobe => (None, prepared.strobe),
+    };
+    let mut run = Run::new(prepared.model, prepared.spec, cut, strobe, false);
+    let label = match kind {
+        PointKind::Cut => "cut",
+        PointKind::Strobe => "strobe",
+    };
+    let interrupt = Interrupt::new();
+    match &args.out {
+        Some(path) => {
+            let file = AtomicFile::create(path)?;
+            let (reason, written, file) = execute(kind, args.count, &names, file, &mut run, &interrupt, label)?;
+            // A run stopped by numerical trouble still keeps the valid points it found.
+            file.commit()?;
+            report(reason, written, label, Some(path))
+        }
+        None => {
+            let stdout = std::io::stdout().lock();
+            let (reason, written, mut out) = execute(kind, args.count, &names, stdout, &mut run, &interrupt, label)?;
+            out.flush().context("writing to stdout")?;
+            report(reason, written, label, None)
+        }
+    }
+}
+
+fn execute<W: Write>(
+    kind: PointKind,
+    count: Option<usize>,
+    names: &[String],
+    out: W,
+    run: &mut Run,
+    interrupt: &Interrupt,
+    label: &str,
+) -> Result<(StopReason, usize, W)> {
+    let writer = match kind {
+        PointKind::Cut => Writer::Cut(CutCsv::new(out, names)?),
+        PointKind::Strobe => Writer::Strobe(StrobeCsv::new(out, names)?),
+    };
+    let mut sink = CsvSink { writer, count, written: 0, error: None, progress: Progress::new(label) };
+    let outcome = run.execute(&mut sink, interrupt);
+    sink.progress.finish();
+    if let Some(err) = sink.error {
+        return Err(err.into());
+    }
+    let out = match sink.writer {
+        Writer::Cut(w) => w.finish()?,
+        Writer::Strobe(w) => w.finish()?,
+    };
+    Ok((outcome.reason, sink.written, out))
+}
+
+fn report(reason: StopReason, written: usize, label: &str, path: Option<&PathBuf>) -> Result<ExitCode> {
+    let target = path.map(|p| format!(" to {}", p.display())).unwrap_or_default();
+    match reason {
+        StopReason::Finished | StopReason::SinkStopped { .. } => {
+            if path.is_some() {
+                eprintln!("wrote {written} {label} point(s){target}");
+            }
+            Ok(ExitCode::SUCCESS)
+        }
+        StopReason::PointLimit { t } => {
+            eprintln!("wrote {written} {label} point(s){target}; stopped at the point limit (limits.max_points) at t = {t}");
+            Ok(ExitCode::SUCCESS)
+        }
+        other => {
+            eprintln!("wrote {written} valid {label} point(s){target}; the run stopped early: {other}");
+            Ok(ExitCode::FAILURE)
+        }
+    }
+}

@@ -1,0 +1,34 @@
+//! Loading a scenario for a batch command: parse, check, compile into a core run.
+
+use std::path::Path;
+
+use anyhow::{Context, Result, bail};
+use lamina_core::model::Model;
+use lamina_core::run::{Cut, RunSpec, Strobe};
+
+/// A scenario compiled for the core.
+pub struct Prepared {
+    /// The compiled model.
+    pub model: Model,
+    /// Run settings.
+    pub spec: RunSpec,
+    /// The cut, if the scenario has one.
+    pub cut: Option<Cut>,
+    /// The strobe, if the scenario has one.
+    pub strobe: Option<Strobe>,
+}
+
+/// Loads and checks `path`; any problem is an error listing all of them.
+pub fn prepare(path: &Path) -> Result<Prepared> {
+    let scenario = lamina_scenario::load_file(path).with_context(|| format!("cannot load {}", path.display()))?;
+    let problems: Vec<_> = scenario.check().into_iter().filter(|p| p.is_error()).collect();
+    if !problems.is_empty() {
+        let list: Vec<String> = problems.iter().map(|p| p.to_string()).collect();
+        bail!("{} has {} problem(s):\n{}", path.display(), problems.len(), list.join("\n"));
+    }
+    let model = Model::compile(&scenario.model_spec()).context("model")?;
+    let cut = scenario.cut_spec().map(|spec| Cut::compile(&spec, &model)).transpose().context("cut")?;
+    let strobe = scenario.strobe_spec().map(|spec| Strobe::compile(&spec, &model)).transpose().context("strobe")?;
+    let spec = scenario.run_spec();
+    Ok(Prepared { model, spec, cut, strobe })
+}
