@@ -3,10 +3,15 @@
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use anyhow::{Result, bail};
+use anyhow::{Result, anyhow};
 
 /// Opens the explorer on `file`, or on the built-in demo scenario.
 pub fn open_explorer(file: Option<PathBuf>) -> Result<ExitCode> {
-    let _ = file;
-    bail!("the explorer window is not built yet; use `lamina cut`, `lamina strobe` or `lamina check`")
+    if let Some(path) = &file
+        && !path.exists()
+    {
+        return Err(anyhow!("{}: no such file", path.display()));
+    }
+    lamina_explorer::run_window(file).map_err(|e| anyhow!(e))?;
+    Ok(ExitCode::SUCCESS)
 }

@@ -1,0 +1,259 @@
+//! The explorer application: owns the document, the results, the worker and the views, and
+//! runs one frame: drain events, draw, then apply what the user asked for.
+
+use std::path::PathBuf;
+use std::time::Instant;
+
+use egui::{Key, KeyboardShortcut, Modifiers, Ui};
+
+use crate::document::Document;
+use crate::execution::Execution;
+use crate::files::Files;
+use crate::help;
+use crate::layout::{self, Layout};
+use crate::model_panel::model_panel_ui;
+use crate::results::Results;
+use crate::settings::Settings;
+
+/// How the app talks to the outside world; tests switch the native parts off.
+#[derive(Clone, Debug)]
+pub struct Options {
+    /// Use the desktop's file dialogs (off in tests: a path field is shown instead).
+    pub native_dialogs: bool,
+    /// Keep a recovery copy of unsaved edits and offer it after a crash.
+    pub recovery: bool,
+    /// Start the run as soon as the window opens.
+    pub autostart: bool,
+}
+
+impl Default for Options {
+    fn default() -> Self {
+        Self { native_dialogs: false, recovery: false, autostart: true }
+    }
+}
+
+/// A request from the menus, buttons or keys, applied after drawing.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Action {
+    /// Run from the start.
+    Run,
+    /// Stop the run.
+    Stop,
+    /// Continue a finished run.
+    Continue,
+    /// New scenario.
+    New,
+    /// Open (asks for a file).
+    Open,
+    /// Open this file.
+    OpenPath(PathBuf),
+    /// Save (asks for a file if there is none).
+    Save,
+    /// Save as.
+    SaveAs,
+    /// Export a point set as CSV.
+    ExportCsv(crate::export::PointSet),
+    /// Export a view as PNG.
+    ExportPng(layout::ViewKind),
+    /// Load one of the built-in demos.
+    LoadDemo(&'static str),
+}
+
+/// The explorer window's state.
+pub struct ExplorerApp {
+    pub(crate) doc: Document,
+    pub(crate) results: Results,
+    pub(crate) execution: Execution,
+    pub(crate) files: Files,
+    pub(crate) layout: Layout,
+    pub(crate) settings: Settings,
+    pub(crate) options: Options,
+    pub(crate) show_about: bool,
+    pub(crate) show_shortcuts: bool,
+    pub(crate) log: Vec<(Instant, String)>,
+    pub(crate) pending_autostart: bool,
+}
+
+impl ExplorerApp {
+    /// The explorer on `file` (or the built-in demo).
+    pub fn new(file: Option<PathBuf>, settings: Settings, options: Options) -> Self {
+        let mut app = Self {
+            doc: Document::demo(),
+            results: Results::new(Vec::new()),
+            execution: Execution::default(),
+            files: Files::new(options.native_dialogs, options.recovery),
+            layout: Layout::default(),
+            settings,
+            options: options.clone(),
+            show_about: false,
+            show_shortcuts: false,
+            log: Vec::new(),
+            pending_autostart: options.autostart,
+        };
+        app.results = Results::new(app.state_names());
+        match file {
+            Some(path) => app.open_path(path),
+            None => app.note("opened the built-in demo scenario"),
+        }
+        app
+    }
+
+    /// Adds a line to the message log.
+    pub(crate) fn note(&mut self, message: impl Into<String>) {
+        self.log.push((Instant::now(), message.into()));
+        if self.log.len() > 500 {
+            self.log.remove(0);
+        }
+    }
+
+    /// State names of the current scenario.
+    pub(crate) fn state_names(&self) -> Vec<String> {
+        self.doc.scenario.states.iter().map(|s| s.name.clone()).collect()
+    }
+
+    /// The document (for tests and the binary).
+    pub fn document(&self) -> &Document {
+        &self.doc
+    }
+
+    /// The scenario being edited.
+    pub fn scenario(&self) -> &lamina_scenario::Scenario {
+        &self.doc.scenario
+    }
+
+    /// Replaces the scenario as if the user had edited it.
+    pub fn edit_scenario(&mut self, edit: impl FnOnce(&mut lamina_scenario::Scenario)) {
+        edit(&mut self.doc.scenario);
+        self.doc.changed();
+    }
+
+    /// Where the run stands.
+    pub fn run_state(&self) -> &crate::RunState {
+        &self.results.state
+    }
+
+    /// Number of cut points shown.
+    pub fn n_cut_points(&self) -> usize {
+        self.results.cut.len()
+    }
+
+    /// Number of strobe samples shown.
+    pub fn n_strobe_samples(&self) -> usize {
+        self.results.strobe.len()
+    }
+
+    /// How many runs were started since the window opened.
+    pub fn n_runs_started(&self) -> u64 {
+        self.execution.n_started
+    }
+
+    /// Time of each cut point shown (for tests).
+    pub fn cut_times(&self) -> &[f64] {
+        &self.results.cut.t
+    }
+
+    /// Whether a run is going.
+    pub fn is_running(&self) -> bool {
+        self.execution.worker.is_running()
+    }
+
+    /// One frame of the whole window.
+    pub fn show(&mut self, ui: &mut Ui) {
+        let ctx = ui.ctx().clone();
+        self.drain_worker(&ctx);
+        let mut actions = self.keyboard(&ctx);
+        if std::mem::take(&mut self.pending_autostart) {
+            actions.push(Action::Run);
+        }
+        layout::menu_bar(self, ui, &mut actions);
+        layout::status_bar(self, ui);
+        let changes = egui::Panel::left("model_panel")
+            .resizable(true)
+            .default_size(430.0)
+            .min_size(300.0)
+            .show(ui, |ui| model_panel_ui(ui, &mut self.doc))
+            .inner;
+        layout::lower_views(self, ui);
+        layout::main_views(self, ui, &mut actions);
+        help::about_window(&ctx, &mut self.show_about);
+        help::shortcuts_window(&ctx, &mut self.show_shortcuts);
+        crate::files::dialogs(self, &ctx, &mut actions);
+        self.handle_dropped_files(&ctx, &mut actions);
+        self.apply_changes(&ctx, changes);
+        for action in actions {
+            self.apply(&ctx, action);
+        }
+        self.execution_tick(&ctx);
+        self.files_tick(&ctx);
+        ctx.send_viewport_cmd(egui::ViewportCommand::Title(self.doc.window_title()));
+    }
+
+    fn keyboard(&mut self, ctx: &egui::Context) -> Vec<Action> {
+        let mut actions = Vec::new();
+        let shortcut = |m: Modifiers, k: Key| KeyboardShortcut::new(m, k);
+        ctx.input_mut(|i| {
+            if i.consume_shortcut(&shortcut(Modifiers::SHIFT, Key::F5)) {
+                actions.push(Action::Continue);
+            }
+            if i.consume_shortcut(&shortcut(Modifiers::NONE, Key::F5)) || i.consume_shortcut(&shortcut(Modifiers::COMMAND, Key::R)) {
+                actions.push(Action::Run);
+            }
+            if i.consume_shortcut(&shortcut(Modifiers::NONE, Key::Escape)) {
+                actions.push(Action::Stop);
+            }
+            if i.consume_shortcut(&shortcut(Modifiers::COMMAND | Modifiers::SHIFT, Key::S)) {
+                actions.push(Action::SaveAs);
+            }
+            if i.consume_shortcut(&shortcut(Modifiers::COMMAND, Key::S)) {
+                actions.push(Action::Save);
+            }
+            if i.consume_shortcut(&shortcut(Modifiers::COMMAND, Key::O)) {
+                actions.push(Action::Open);
+            }
+            if i.consume_shortcut(&shortcut(Modifiers::COMMAND, Key::N)) {
+                actions.push(Action::New);
+            }
+            if i.consume_shortcut(&shortcut(Modifiers::NONE, Key::F1)) {
+                self.show_shortcuts = !self.show_shortcuts;
+            }
+        });
+        actions
+    }
+
+    fn handle_dropped_files(&mut self, ctx: &egui::Context, actions: &mut Vec<Action>) {
+        let dropped: Vec<PathBuf> = ctx.input(|i| i.raw.dropped_files.iter().map(|f| f.path().to_path_buf()).filter(|p| !p.as_os_str().is_empty()).collect());
+        for path in dropped {
+            if path.extension().is_some_and(|e| e == "ron") {
+                actions.push(Action::OpenPath(path));
+            } else {
+                self.note(format!("{}: not a scenario file (.ron)", path.display()));
+            }
+        }
+    }
+
+    fn apply(&mut self, ctx: &egui::Context, action: Action) {
+        match action {
+            Action::Run => self.start_run(ctx),
+            Action::Stop => self.stop_run(),
+            Action::Continue => self.continue_run(ctx),
+            Action::New => self.request_new(),
+            Action::Open => self.request_open(),
+            Action::OpenPath(path) => self.request_open_path(path),
+            Action::Save => self.save(false),
+            Action::SaveAs => self.save(true),
+            Action::ExportCsv(set) => self.request_csv_export(set),
+            Action::ExportPng(view) => self.request_png_export(ctx, view),
+            Action::LoadDemo(name) => self.request_demo(name),
+        }
+    }
+}
+
+impl eframe::App for ExplorerApp {
+    fn ui(&mut self, ui: &mut Ui, _frame: &mut eframe::Frame) {
+        self.show(ui);
+    }
+
+    fn save(&mut self, storage: &mut dyn eframe::Storage) {
+        self.settings.store(storage);
+    }
+}

@@ -1,0 +1,503 @@
+//! Files: new, open, save, save as, recent files, dropped files, the prompt before unsaved
+//! edits are dropped, and the recovery copy of unsaved edits. File dialogs run on a helper
+//! thread; where none is available (no desktop portal) a path field is shown instead.
+
+use std::path::PathBuf;
+use std::sync::mpsc::{Receiver, channel};
+use std::time::{Duration, Instant};
+
+use egui::Context;
+
+use crate::app::{Action, ExplorerApp};
+use crate::document::Document;
+use crate::export::PointSet;
+use crate::layout::ViewKind;
+use crate::results::Results;
+
+/// What a chosen path is for.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Purpose {
+    /// Open a scenario.
+    Open,
+    /// Save the scenario.
+    Save,
+    /// Export a point set as CSV.
+    Csv(PointSet),
+    /// Export a view as PNG.
+    Png(ViewKind),
+}
+
+/// What was waiting for the answer to "save changes?".
+#[derive(Clone, Debug, PartialEq)]
+pub enum Pending {
+    /// Open a file chosen next.
+    Open,
+    /// Open this file.
+    OpenPath(PathBuf),
+    /// Start a new scenario.
+    New,
+    /// Load a demo.
+    Demo(&'static str),
+    /// Close the window.
+    Quit,
+}
+
+enum DialogAnswer {
+    Picked(Purpose, PathBuf),
+    Cancelled,
+    Unavailable(Purpose),
+}
+
+/// File dialogs, prompts and recovery.
+pub struct Files {
+    native: bool,
+    recovery: bool,
+    dialog: Option<Receiver<DialogAnswer>>,
+    /// A path field shown instead of a dialog: purpose and text.
+    pub prompt: Option<(Purpose, String, Option<String>)>,
+    /// "Save changes?" waiting on this.
+    pub confirm: Option<Pending>,
+    after_save: Option<Pending>,
+    /// Unsaved edits found from an earlier session.
+    pub recovery_offer: Option<(String, Option<PathBuf>)>,
+    last_recovery_write: Option<Instant>,
+    recovery_revision: u64,
+    closing: bool,
+    /// A message to show in a window (a failed open or save).
+    pub alert: Option<String>,
+}
+
+/// How often unsaved edits are copied for recovery.
+const RECOVERY_EVERY: Duration = Duration::from_secs(5);
+/// A dialog that answers faster than this without a path was never shown.
+const DIALOG_NOT_SHOWN: Duration = Duration::from_millis(250);
+
+fn recovery_paths() -> Option<(PathBuf, PathBuf)> {
+    let dir = eframe::storage_dir("Lamina")?;
+    Some((dir.join("recovery.ron"), dir.join("recovery.path")))
+}
+
+impl Files {
+    /// File handling; `native` uses desktop dialogs, `recovery` keeps recovery copies.
+    pub fn new(native: bool, recovery: bool) -> Self {
+        let recovery_offer = if recovery {
+            recovery_paths().and_then(|(ron, path)| {
+                let text = std::fs::read_to_string(ron).ok()?;
+                let original = std::fs::read_to_string(path).ok().map(PathBuf::from).filter(|p| !p.as_os_str().is_empty());
+                Some((text, original))
+            })
+        } else {
+            None
+        };
+        Self {
+            native,
+            recovery,
+            dialog: None,
+            prompt: None,
+            confirm: None,
+            after_save: None,
+            recovery_offer,
+            last_recovery_write: None,
+            recovery_revision: u64::MAX,
+            closing: false,
+            alert: None,
+        }
+    }
+
+    /// Asks for a path: a desktop dialog on a helper thread, or the path field.
+    pub fn ask_path(&mut self, purpose: Purpose, suggested: Option<PathBuf>) {
+        if !self.native {
+            let text = suggested.map(|p| p.display().to_string()).unwrap_or_default();
+            self.prompt = Some((purpose, text, None));
+            return;
+        }
+        if self.dialog.is_some() {
+            return;
+        }
+        let (tx, rx) = channel();
+        self.dialog = Some(rx);
+        let spawned = std::thread::Builder::new().name("lamina-file-dialog".into()).spawn(move || {
+            let started = Instant::now();
+            let mut dialog = rfd::FileDialog::new();
+            let (name, ext) = match &purpose {
+                Purpose::Open | Purpose::Save => ("Lamina scenario", "ron"),
+                Purpose::Csv(_) => ("CSV", "csv"),
+                Purpose::Png(_) => ("PNG image", "png"),
+            };
+            dialog = dialog.add_filter(name, &[ext]);
+            if let Some(s) = &suggested {
+                if let Some(dir) = s.parent() {
+                    dialog = dialog.set_directory(dir);
+                }
+                if let Some(file) = s.file_name() {
+                    dialog = dialog.set_file_name(file.to_string_lossy());
+                }
+            }
+            let picked = match purpose {
+                Purpose::Open => dialog.pick_file(),
+                _ => dialog.save_file(),
+            };
+            let answer = match picked {
+                Some(path) => DialogAnswer::Picked(purpose, path),
+                None if started.elapsed() < DIALOG_NOT_SHOWN => DialogAnswer::Unavailable(purpose),
+                None => DialogAnswer::Cancelled,
+            };
+            let _ = tx.send(answer);
+        });
+        if spawned.is_err() {
+            self.dialog = None;
+            self.prompt = Some((Purpose::Open, String::new(), Some("no file dialog available: type a path".into())));
+        }
+    }
+}
+
+impl ExplorerApp {
+    /// Polls the dialog thread and writes the recovery copy; runs every frame.
+    pub(crate) fn files_tick(&mut self, ctx: &Context) {
+        if let Some(rx) = &self.files.dialog {
+            match rx.try_recv() {
+                Ok(answer) => {
+                    self.files.dialog = None;
+                    match answer {
+                        DialogAnswer::Picked(purpose, path) => self.path_chosen(ctx, purpose, path),
+                        DialogAnswer::Cancelled => self.files.after_save = None,
+                        DialogAnswer::Unavailable(purpose) => {
+                            self.files.prompt = Some((purpose, String::new(), Some("No file dialog is available on this desktop: type a path instead.".into())));
+                        }
+                    }
+                }
+                Err(std::sync::mpsc::TryRecvError::Empty) => ctx.request_repaint_after(Duration::from_millis(100)),
+                Err(std::sync::mpsc::TryRecvError::Disconnected) => self.files.dialog = None,
+            }
+        }
+        self.write_recovery();
+        if ctx.input(|i| i.viewport().close_requested()) && !self.files.closing && self.doc.is_dirty() {
+            ctx.send_viewport_cmd(egui::ViewportCommand::CancelClose);
+            self.files.confirm = Some(Pending::Quit);
+        }
+    }
+
+    fn write_recovery(&mut self) {
+        if !self.files.recovery || self.files.recovery_offer.is_some() {
+            return;
+        }
+        let Some((ron_path, path_path)) = recovery_paths() else { return };
+        if !self.doc.is_dirty() {
+            return;
+        }
+        let due = self.files.last_recovery_write.is_none_or(|t| t.elapsed() >= RECOVERY_EVERY);
+        if !due || self.files.recovery_revision == self.doc.revision {
+            return;
+        }
+        self.files.last_recovery_write = Some(Instant::now());
+        self.files.recovery_revision = self.doc.revision;
+        let text = lamina_scenario::to_ron_string(&self.doc.scenario);
+        let original = self.doc.path.as_ref().map(|p| p.display().to_string()).unwrap_or_default();
+        let _ = std::fs::create_dir_all(ron_path.parent().unwrap_or(&ron_path));
+        let write = |path: &PathBuf, contents: &str| {
+            lamina_export::write_atomically(path, |f| {
+                use std::io::Write;
+                f.write_all(contents.as_bytes()).map_err(|e| lamina_export::ExportError::Io { path: path.display().to_string(), source: e })
+            })
+        };
+        if write(&ron_path, &text).is_ok() {
+            let _ = write(&path_path, &original);
+        }
+    }
+
+    fn clear_recovery(&mut self) {
+        if let Some((ron, path)) = recovery_paths().filter(|_| self.files.recovery) {
+            let _ = std::fs::remove_file(ron);
+            let _ = std::fs::remove_file(path);
+        }
+    }
+
+    fn path_chosen(&mut self, ctx: &Context, purpose: Purpose, path: PathBuf) {
+        match purpose {
+            Purpose::Open => self.open_path(path),
+            Purpose::Save => {
+                if self.save_to(path) {
+                    if let Some(pending) = self.files.after_save.take() {
+                        self.proceed(pending, ctx);
+                    }
+                } else {
+                    self.files.after_save = None;
+                }
+            }
+            Purpose::Csv(set) => self.export_csv(set, &path),
+            Purpose::Png(view) => self.start_png_export(ctx, view, path),
+        }
+    }
+
+    /// Opens `path`, replacing the current scenario (already confirmed).
+    pub(crate) fn open_path(&mut self, path: PathBuf) {
+        match lamina_scenario::load_file(&path) {
+            Ok(scenario) => {
+                self.stop_run();
+                self.doc = Document::new(scenario, Some(path.clone()));
+                self.results = Results::new(self.state_names());
+                self.settings.remember(path.clone());
+                self.note(format!("opened {}", path.display()));
+                self.apply_view_block();
+                self.queue_run();
+            }
+            Err(e) => {
+                let message = format!("cannot open {}: {e}", path.display());
+                self.note(message.clone());
+                self.files.alert = Some(message);
+            }
+        }
+    }
+
+    /// Takes the 3D axes and camera from the scenario's view block, if it has one.
+    fn apply_view_block(&mut self) {
+        if let Some(axes) = self.doc.scenario.view_axes() {
+            let mut idx = [0usize; 3];
+            for (k, a) in axes.iter().enumerate() {
+                if let lamina_scenario::ViewAxis::State(i) = a {
+                    idx[k] = *i;
+                }
+            }
+            self.settings.space.axes = idx;
+        } else {
+            let n = self.doc.scenario.states.len();
+            self.settings.space.axes = [0, 1.min(n.saturating_sub(1)), 2.min(n.saturating_sub(1))];
+        }
+        if let Some(camera) = self.doc.scenario.view.as_ref().and_then(|v| v.camera.as_ref()) {
+            self.settings.space.yaw = camera.yaw_deg.to_radians() as f32;
+            self.settings.space.pitch = camera.pitch_deg.to_radians() as f32;
+            self.settings.space.zoom = camera.zoom as f32;
+        }
+    }
+
+    fn queue_run(&mut self) {
+        if self.options.autostart {
+            self.pending_autostart = true;
+        }
+    }
+
+    /// Writes the scenario to `path`; true on success.
+    pub(crate) fn save_to(&mut self, path: PathBuf) -> bool {
+        match lamina_scenario::save_file(&path, &self.doc.scenario) {
+            Ok(()) => {
+                self.doc.mark_saved(path.clone());
+                self.settings.remember(path.clone());
+                self.clear_recovery();
+                self.note(format!("saved {}", path.display()));
+                true
+            }
+            Err(e) => {
+                let message = format!("cannot save {}: {e}", path.display());
+                self.note(message.clone());
+                self.files.alert = Some(message);
+                false
+            }
+        }
+    }
+
+    /// Save (to the known file) or save as.
+    pub(crate) fn save(&mut self, choose: bool) {
+        match (&self.doc.path, choose) {
+            (Some(path), false) => {
+                let path = path.clone();
+                self.save_to(path);
+            }
+            _ => {
+                let suggested = self.doc.path.clone().or_else(|| Some(PathBuf::from(format!("{}.ron", slug(&self.doc.scenario.title)))));
+                self.files.ask_path(Purpose::Save, suggested);
+            }
+        }
+    }
+
+    fn guard(&mut self, pending: Pending, ctx: Option<&Context>) {
+        if self.doc.is_dirty() {
+            self.files.confirm = Some(pending);
+        } else if let Some(ctx) = ctx {
+            self.proceed(pending, ctx);
+        } else {
+            self.proceed_without_ctx(pending);
+        }
+    }
+
+    pub(crate) fn request_open(&mut self) {
+        self.guard(Pending::Open, None);
+    }
+
+    pub(crate) fn request_open_path(&mut self, path: PathBuf) {
+        self.guard(Pending::OpenPath(path), None);
+    }
+
+    pub(crate) fn request_new(&mut self) {
+        self.guard(Pending::New, None);
+    }
+
+    pub(crate) fn request_demo(&mut self, name: &'static str) {
+        self.guard(Pending::Demo(name), None);
+    }
+
+    fn proceed_without_ctx(&mut self, pending: Pending) {
+        match pending {
+            Pending::Open => self.files.ask_path(Purpose::Open, self.settings.recent.first().cloned()),
+            Pending::OpenPath(path) => self.open_path(path),
+            Pending::New => {
+                self.stop_run();
+                self.doc = Document::blank();
+                self.results = Results::new(self.state_names());
+                self.apply_view_block();
+                self.note("new scenario");
+            }
+            Pending::Demo(name) => {
+                if let Some((_, text)) = crate::document::DEMOS.iter().find(|(n, _)| *n == name)
+                    && let Ok(scenario) = lamina_scenario::load_str(text)
+                {
+                    self.stop_run();
+                    self.doc = Document::new(scenario, None);
+                    self.results = Results::new(self.state_names());
+                    self.apply_view_block();
+                    self.note(format!("opened the demo '{name}'"));
+                    self.queue_run();
+                }
+            }
+            Pending::Quit => {}
+        }
+    }
+
+    fn proceed(&mut self, pending: Pending, ctx: &Context) {
+        if pending == Pending::Quit {
+            self.files.closing = true;
+            self.clear_recovery();
+            ctx.send_viewport_cmd(egui::ViewportCommand::Close);
+        } else {
+            self.proceed_without_ctx(pending);
+        }
+    }
+}
+
+/// A file-name-friendly version of a title.
+fn slug(title: &str) -> String {
+    let s: String = title.chars().map(|c| if c.is_ascii_alphanumeric() { c.to_ascii_lowercase() } else { '_' }).collect();
+    let s = s.trim_matches('_').to_string();
+    if s.is_empty() { "scenario".into() } else { s }
+}
+
+/// The windows of this module: the path field, "save changes?", recovery, alerts.
+pub fn dialogs(app: &mut ExplorerApp, ctx: &Context, actions: &mut Vec<Action>) {
+    let _ = actions;
+    if let Some(pending) = app.files.confirm.clone() {
+        let mut answer = None;
+        egui::Modal::new(egui::Id::unique("confirm_discard")).show(ctx, |ui| {
+            ui.heading("Unsaved changes");
+            ui.label(format!("“{}” has changes that are not saved.", app.doc.scenario.title));
+            ui.horizontal(|ui| {
+                if ui.button("Save").on_hover_text("Save, then go on").clicked() {
+                    answer = Some(0);
+                }
+                if ui.button("Discard changes").on_hover_text("Go on without saving").clicked() {
+                    answer = Some(1);
+                }
+                if ui.button("Cancel").on_hover_text("Stay here").clicked() {
+                    answer = Some(2);
+                }
+            });
+        });
+        match answer {
+            Some(0) => {
+                app.files.confirm = None;
+                if let Some(path) = app.doc.path.clone() {
+                    if app.save_to(path) {
+                        app.proceed(pending, ctx);
+                    }
+                } else {
+                    app.files.after_save = Some(pending);
+                    app.save(true);
+                }
+            }
+            Some(1) => {
+                app.files.confirm = None;
+                app.clear_recovery();
+                app.proceed(pending, ctx);
+            }
+            Some(2) => app.files.confirm = None,
+            _ => {}
+        }
+    }
+    if let Some((purpose, mut text, message)) = app.files.prompt.take() {
+        let mut done = None;
+        let title = match &purpose {
+            Purpose::Open => "Open scenario",
+            Purpose::Save => "Save scenario as",
+            Purpose::Csv(_) => "Export CSV",
+            Purpose::Png(_) => "Export PNG",
+        };
+        egui::Modal::new(egui::Id::unique("path_prompt")).show(ctx, |ui| {
+            ui.heading(title);
+            if let Some(m) = &message {
+                ui.label(m);
+            }
+            let label = ui.label("path");
+            let response = ui.add(egui::TextEdit::singleline(&mut text).desired_width(420.0)).labelled_by(label.id);
+            if response.lost_focus() && ui.input(|i| i.key_pressed(egui::Key::Enter)) {
+                done = Some(true);
+            }
+            ui.horizontal(|ui| {
+                if ui.button("OK").clicked() {
+                    done = Some(true);
+                }
+                if ui.button("Cancel").clicked() {
+                    done = Some(false);
+                }
+            });
+        });
+        match done {
+            Some(true) if !text.trim().is_empty() => app.path_chosen(ctx, purpose, PathBuf::from(text.trim())),
+            Some(_) => app.files.after_save = None,
+            None => app.files.prompt = Some((purpose, text, message)),
+        }
+    }
+    if let Some((text, original)) = app.files.recovery_offer.clone() {
+        let mut answer = None;
+        egui::Modal::new(egui::Id::unique("recovery")).show(ctx, |ui| {
+            ui.heading("Recover unsaved edits?");
+            ui.label("Lamina closed last time with edits that were not saved.");
+            if let Some(p) = &original {
+                ui.label(format!("They belong to {}.", p.display()));
+            }
+            ui.horizontal(|ui| {
+                if ui.button("Recover").clicked() {
+                    answer = Some(true);
+                }
+                if ui.button("Discard them").clicked() {
+                    answer = Some(false);
+                }
+            });
+        });
+        match answer {
+            Some(true) => {
+                app.files.recovery_offer = None;
+                match lamina_scenario::load_str(&text) {
+                    Ok(scenario) => {
+                        app.doc = Document::new(scenario, original);
+                        app.doc.changed();
+                        app.results = Results::new(app.state_names());
+                        app.note("recovered unsaved edits from the last session");
+                    }
+                    Err(e) => app.note(format!("the recovery copy cannot be read: {e}")),
+                }
+            }
+            Some(false) => {
+                app.files.recovery_offer = None;
+                app.clear_recovery();
+            }
+            None => {}
+        }
+    }
+    if let Some(message) = app.files.alert.clone() {
+        let mut open = true;
+        egui::Window::new("Problem").collapsible(false).resizable(false).open(&mut open).show(ctx, |ui| {
+            ui.label(&message);
+        });
+        if !open {
+            app.files.alert = None;
+        }
+    }
+}

@@ -1,0 +1,49 @@
+//! Help: the keyboard shortcuts window and the About box with the caution paragraph.
+
+use egui::{Context, RichText};
+
+/// The caution paragraph of the README, shown in the About box.
+pub const CAUTION: &str = "Lamina's results are numerical approximations of the model you typed, not a certification of \
+hardware: a design decision about equipment that can hurt someone (power electronics, actuators, medical or vehicle \
+systems) needs measurement, the applicable codes and standards, and review by a licensed engineer.";
+
+/// Keyboard shortcuts: keys and what they do.
+pub const SHORTCUTS: &[(&str, &str)] = &[
+    ("F5  or  Ctrl+R", "Run the scenario from the start"),
+    ("Esc", "Stop the run"),
+    ("Shift+F5", "Continue a finished run for another span"),
+    ("Ctrl+N", "New scenario"),
+    ("Ctrl+O", "Open a scenario"),
+    ("Ctrl+S", "Save"),
+    ("Ctrl+Shift+S", "Save as"),
+    ("F1", "This list"),
+    ("drag in 3D view", "Turn the view (drag the round handle to move the cut plane)"),
+    ("wheel in a view", "Zoom"),
+    ("double-click a view", "Fit the view to the data"),
+];
+
+/// The shortcuts window.
+pub fn shortcuts_window(ctx: &Context, open: &mut bool) {
+    egui::Window::new("Keyboard shortcuts").open(open).resizable(false).collapsible(false).show(ctx, |ui| {
+        egui::Grid::new("shortcuts").num_columns(2).striped(true).show(ui, |ui| {
+            for (keys, what) in SHORTCUTS {
+                ui.label(RichText::new(*keys).monospace());
+                ui.label(*what);
+                ui.end_row();
+            }
+        });
+    });
+}
+
+/// The About box.
+pub fn about_window(ctx: &Context, open: &mut bool) {
+    egui::Window::new("About Lamina").open(open).resizable(false).collapsible(false).default_width(420.0).show(ctx, |ui| {
+        ui.heading("Lamina");
+        ui.label(format!("version {}", env!("CARGO_PKG_VERSION")));
+        ui.add_space(6.0);
+        ui.label("Poincaré sections, strobe maps and return times of typed nonlinear models, for engineers who need to know what their system settles into.");
+        ui.add_space(8.0);
+        ui.label(RichText::new("Caution").strong());
+        ui.label(CAUTION);
+    });
+}

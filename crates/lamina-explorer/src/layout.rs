@@ -1,0 +1,410 @@
+//! The window's layout: menu bar with the run buttons, status line, the three main views side
+//! by side (resizable, each can be maximised), and the small views below them.
+
+use std::collections::HashMap;
+
+use egui::{Color32, Rect, RichText, Sense, Ui, vec2};
+use lamina_scenario::Surface;
+
+use crate::app::{Action, ExplorerApp};
+use crate::document::DEMOS;
+use crate::export::{PngRequest, PointSet};
+use crate::results::RunState;
+use crate::views::cloud::{CloudView, ColourBy};
+use crate::views::series;
+use crate::views::space::{PlaneGeometry, SpaceColours};
+
+/// The views that can be exported.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum ViewKind {
+    /// The 3D trajectory.
+    Trajectory,
+    /// The cut-point cloud.
+    Cut,
+    /// The strobe samples.
+    Strobe,
+    /// The return-time sequence.
+    ReturnTimes,
+    /// The first-return map.
+    ReturnMap,
+}
+
+impl ViewKind {
+    /// Name in menus.
+    pub fn title(self) -> &'static str {
+        match self {
+            Self::Trajectory => "Trajectory (3D)",
+            Self::Cut => "Cut points",
+            Self::Strobe => "Strobe samples",
+            Self::ReturnTimes => "Return times",
+            Self::ReturnMap => "First-return map",
+        }
+    }
+
+    /// Default file name.
+    pub fn file_stem(self) -> &'static str {
+        match self {
+            Self::Trajectory => "trajectory",
+            Self::Cut => "cut_points",
+            Self::Strobe => "strobe_samples",
+            Self::ReturnTimes => "return_times",
+            Self::ReturnMap => "first_return_map",
+        }
+    }
+}
+
+const MAIN_VIEWS: [ViewKind; 3] = [ViewKind::Trajectory, ViewKind::Cut, ViewKind::Strobe];
+
+/// Per-frame layout state that is not persisted.
+#[derive(Default)]
+pub struct Layout {
+    /// Where each view was drawn last frame (for PNG export).
+    pub view_rects: HashMap<ViewKind, Rect>,
+    /// A PNG export waiting for its screenshot.
+    pub png_request: Option<PngRequest>,
+    /// Where the screenshot arrives (from the renderer's callback).
+    pub screenshot: std::sync::Arc<std::sync::Mutex<Option<std::sync::Arc<egui::ColorImage>>>>,
+    /// The cut view's state.
+    pub cut_view: CloudView,
+    /// The strobe view's state.
+    pub strobe_view: CloudView,
+}
+
+/// The menu bar and the run buttons.
+pub fn menu_bar(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
+    egui::Panel::top("menu_bar").show(ui, |ui| {
+        egui::MenuBar::new().ui(ui, |ui| {
+            ui.menu_button("File", |ui| {
+                if ui.button("New").on_hover_text("Start a new scenario (Ctrl+N)").clicked() {
+                    actions.push(Action::New);
+                }
+                if ui.button("Open…").on_hover_text("Open a scenario file (Ctrl+O)").clicked() {
+                    actions.push(Action::Open);
+                }
+                ui.menu_button("Open recent", |ui| {
+                    if app.settings.recent.is_empty() {
+                        ui.label("no recent files");
+                    }
+                    for path in app.settings.recent.clone() {
+                        if ui.button(path.display().to_string()).clicked() {
+                            actions.push(Action::OpenPath(path));
+                        }
+                    }
+                });
+                ui.menu_button("Demo scenarios", |ui| {
+                    for (name, _) in DEMOS {
+                        if ui.button(*name).clicked() {
+                            actions.push(Action::LoadDemo(name));
+                        }
+                    }
+                });
+                ui.separator();
+                if ui.button("Save").on_hover_text("Save the scenario (Ctrl+S)").clicked() {
+                    actions.push(Action::Save);
+                }
+                if ui.button("Save as…").on_hover_text("Save under a new name (Ctrl+Shift+S)").clicked() {
+                    actions.push(Action::SaveAs);
+                }
+                ui.separator();
+                ui.menu_button("Export CSV", |ui| {
+                    for (set, text) in [(PointSet::Cut, "Cut points"), (PointSet::Strobe, "Strobe samples"), (PointSet::Trajectory, "Trajectory")] {
+                        if ui.button(text).clicked() {
+                            actions.push(Action::ExportCsv(set));
+                        }
+                    }
+                });
+                ui.menu_button("Export PNG", |ui| {
+                    ui.horizontal(|ui| {
+                        ui.label("size");
+                        ui.add(egui::DragValue::new(&mut app.settings.png_size[0]).range(16..=8000).suffix(" px"));
+                        ui.label("×");
+                        ui.add(egui::DragValue::new(&mut app.settings.png_size[1]).range(16..=8000).suffix(" px"));
+                    });
+                    for view in [ViewKind::Trajectory, ViewKind::Cut, ViewKind::Strobe, ViewKind::ReturnTimes, ViewKind::ReturnMap] {
+                        if ui.button(view.title()).clicked() {
+                            actions.push(Action::ExportPng(view));
+                        }
+                    }
+                });
+            });
+            ui.menu_button("Run", |ui| {
+                if ui.button("Run from the start   F5").clicked() {
+                    actions.push(Action::Run);
+                }
+                if ui.button("Stop   Esc").clicked() {
+                    actions.push(Action::Stop);
+                }
+                if ui.button("Continue   Shift+F5").clicked() {
+                    actions.push(Action::Continue);
+                }
+            });
+            ui.menu_button("Help", |ui| {
+                if ui.button("Keyboard shortcuts   F1").clicked() {
+                    app.show_shortcuts = true;
+                }
+                if ui.button("About Lamina").clicked() {
+                    app.show_about = true;
+                }
+            });
+            ui.separator();
+            run_buttons(app, ui, actions);
+        });
+    });
+}
+
+fn run_buttons(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
+    let running = app.is_running();
+    let error = app.doc.first_error().map(|p| format!("{}: {}", p.field, p.message));
+    let run = ui.add_enabled(error.is_none(), egui::Button::new(RichText::new("▶ Run").strong()));
+    let run = match &error {
+        Some(reason) => run.on_disabled_hover_text(format!("Fix this first — {reason}")),
+        None => run.on_hover_text("Integrate from the start and record cut points and strobe samples (F5)"),
+    };
+    if run.clicked() {
+        actions.push(Action::Run);
+    }
+    if ui.add_enabled(running, egui::Button::new("■ Stop")).on_hover_text("Stop the run (Esc)").clicked() {
+        actions.push(Action::Stop);
+    }
+    let can_continue = !running && app.results.run.is_some();
+    if ui.add_enabled(can_continue, egui::Button::new("⏩ Continue")).on_hover_text("Integrate another span from where the run ended (Shift+F5)").clicked() {
+        actions.push(Action::Continue);
+    }
+    if let Some(reason) = error {
+        let first_line = reason.lines().next().unwrap_or("").to_string();
+        ui.label(RichText::new(format!("Run is off: {first_line}")).color(crate::widgets::ERROR_COLOUR));
+    } else if app.execution.stale && !running {
+        ui.label(RichText::new("model changed — press Run to see it").color(crate::widgets::WARNING_COLOUR));
+    }
+}
+
+/// The status line: run state, points, steps, times.
+pub fn status_bar(app: &ExplorerApp, ui: &mut Ui) {
+    egui::Panel::bottom("status_bar").show(ui, |ui| {
+        ui.horizontal(|ui| {
+            let r = &app.results;
+            let (text, colour) = match &r.state {
+                RunState::Idle => ("idle".to_string(), Color32::GRAY),
+                RunState::Running => (format!("running {:.0}%", 100.0 * r.fraction), Color32::from_rgb(120, 190, 240)),
+                RunState::Finished => ("finished".to_string(), Color32::from_rgb(120, 200, 140)),
+                RunState::Cancelled => (format!("cancelled at t = {:.6}", r.t_reached), Color32::from_rgb(220, 180, 90)),
+                RunState::Stopped(reason) => (format!("stopped: {reason}"), crate::widgets::ERROR_COLOUR),
+            };
+            ui.label(RichText::new(text).color(colour).strong());
+            ui.separator();
+            ui.label(format!("{} cut points", r.cut.len()));
+            ui.separator();
+            ui.label(format!("{} strobe samples", r.strobe.len()));
+            ui.separator();
+            ui.label(format!("{} steps", r.n_steps));
+            ui.separator();
+            ui.label(format!("t = {:.6}", r.t_reached));
+            ui.separator();
+            ui.label(format!("{:.2} s", r.elapsed.as_secs_f64()));
+        });
+    });
+}
+
+/// The return-time sequence, the first-return map and the message log.
+pub fn lower_views(app: &mut ExplorerApp, ui: &mut Ui) {
+    egui::Panel::bottom("lower_views").resizable(true).default_size(200.0).min_size(120.0).show(ui, |ui| {
+        let width = ui.available_width();
+        let height = ui.available_height();
+        ui.horizontal(|ui| {
+            let third = (width - 16.0) / 3.0;
+            let source_is_cut = !app.results.cut.is_empty() || app.results.strobe.is_empty();
+            ui.allocate_ui(vec2(third, height), |ui| {
+                ui.label(RichText::new(if source_is_cut { "Return times (cut)" } else { "Sample spacing (strobe)" }).small().strong());
+                let cloud = if source_is_cut { &app.results.cut } else { &app.results.strobe };
+                let r = series::return_times_ui(ui, cloud, if source_is_cut { "cut" } else { "strobe" });
+                app.layout.view_rects.insert(ViewKind::ReturnTimes, r);
+            });
+            ui.separator();
+            ui.allocate_ui(vec2(third, height), |ui| {
+                ui.label(RichText::new("First-return map").small().strong());
+                let cloud = if source_is_cut { &app.results.cut } else { &app.results.strobe };
+                let r = series::first_return_map_ui(ui, cloud, &app.results.names, &mut app.settings.map_coordinate);
+                app.layout.view_rects.insert(ViewKind::ReturnMap, r);
+            });
+            ui.separator();
+            ui.allocate_ui(vec2(third, height), |ui| {
+                ui.label(RichText::new("Messages").small().strong());
+                egui::ScrollArea::vertical().stick_to_bottom(true).auto_shrink([false, false]).show(ui, |ui| {
+                    let start = app.log.first().map(|(t, _)| *t);
+                    for (t, line) in &app.log {
+                        let secs = start.map_or(0.0, |s| t.duration_since(s).as_secs_f64());
+                        ui.label(RichText::new(format!("{secs:7.1} s  {line}")).monospace().small());
+                    }
+                });
+            });
+        });
+    });
+}
+
+/// The plane of the scenario's cut as seen in the 3D view's coordinates, with the part of the
+/// offset owed to states that are not shown (taken at their mean along the trajectory).
+fn plane_in_view(app: &ExplorerApp) -> Option<(PlaneGeometry, f64)> {
+    let cut = app.doc.scenario.cut.as_ref()?;
+    let Surface::Plane { normal, offset } = &cut.surface else { return None };
+    let names = &app.results.names;
+    let axes = app.settings.space.axes;
+    let weight = |idx: usize| names.get(idx).and_then(|n| normal.0.iter().find(|(m, _)| m == n)).map_or(0.0, |(_, w)| *w);
+    let traj = &app.results.trajectory;
+    let mut hidden = 0.0;
+    for (idx, name) in names.iter().enumerate() {
+        if axes.contains(&idx) {
+            continue;
+        }
+        let w = normal.0.iter().find(|(m, _)| m == name).map_or(0.0, |(_, w)| *w);
+        if w != 0.0 && !traj.is_empty() {
+            let mean = (0..traj.len()).map(|i| traj.state(i)[idx]).sum::<f64>() / traj.len() as f64;
+            hidden += w * mean;
+        }
+    }
+    Some((PlaneGeometry { normal: [weight(axes[0]), weight(axes[1]), weight(axes[2])], offset: offset - hidden }, hidden))
+}
+
+/// The three main views side by side, resizable, each with a maximise button.
+pub fn main_views(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
+    egui::CentralPanel::default().show(ui, |ui| {
+        let full = ui.available_rect_before_wrap();
+        let shown: Vec<usize> = match app.settings.maximised {
+            Some(m) if m < 3 => vec![m],
+            _ => vec![0, 1, 2],
+        };
+        let gap = 8.0;
+        let total_weight: f32 = shown.iter().map(|&i| app.settings.tile_weights[i].max(0.05)).sum();
+        let usable = full.width() - gap * (shown.len() as f32 - 1.0);
+        let mut x = full.left();
+        let mut rects = Vec::new();
+        for &i in &shown {
+            let w = usable * app.settings.tile_weights[i].max(0.05) / total_weight;
+            rects.push((i, Rect::from_min_size(egui::pos2(x, full.top()), vec2(w, full.height()))));
+            x += w + gap;
+        }
+        // splitters between tiles
+        for pair in rects.windows(2) {
+            let (a, ra) = pair[0];
+            let (b, _) = pair[1];
+            let handle = Rect::from_min_max(egui::pos2(ra.right(), full.top()), egui::pos2(ra.right() + gap, full.bottom()));
+            let response = ui.interact(handle, ui.scope_id().with(("splitter", a)), Sense::drag());
+            if response.hovered() || response.dragged() {
+                ui.ctx().set_cursor_icon(egui::CursorIcon::ResizeHorizontal);
+            }
+            ui.painter().line_segment([handle.center_top(), handle.center_bottom()], egui::Stroke::new(if response.dragged() { 2.0 } else { 1.0 }, Color32::from_gray(70)));
+            if response.dragged() {
+                let dx = response.drag_delta().x / usable * total_weight;
+                let (wa, wb) = (app.settings.tile_weights[a] + dx, app.settings.tile_weights[b] - dx);
+                if wa > 0.15 && wb > 0.15 {
+                    app.settings.tile_weights[a] = wa;
+                    app.settings.tile_weights[b] = wb;
+                }
+            }
+        }
+        for (i, rect) in rects {
+            let mut tile = ui.new_child(egui::UiBuilder::new().max_rect(rect).id_salt(("tile", i)));
+            tile.set_clip_rect(rect);
+            tile_ui(app, &mut tile, MAIN_VIEWS[i], i, actions);
+        }
+    });
+    let ctx = ui.ctx().clone();
+    app.receive_screenshot(&ctx);
+}
+
+fn tile_ui(app: &mut ExplorerApp, ui: &mut Ui, kind: ViewKind, index: usize, actions: &mut Vec<Action>) {
+    ui.horizontal(|ui| {
+        ui.label(RichText::new(kind.title()).strong());
+        ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
+            let maximised = app.settings.maximised == Some(index);
+            if ui.small_button(if maximised { "⊟" } else { "⛶" }).on_hover_text(if maximised { "Back to three views" } else { "Fill the window with this view" }).clicked() {
+                app.settings.maximised = if maximised { None } else { Some(index) };
+            }
+            if ui.small_button("PNG").on_hover_text("Export this view as a PNG at the size set in File ▸ Export PNG").clicked() {
+                actions.push(Action::ExportPng(kind));
+            }
+            let colour = match kind {
+                ViewKind::Cut => Some(&mut app.settings.cut_colour),
+                ViewKind::Strobe => Some(&mut app.settings.strobe_colour),
+                _ => None,
+            };
+            if let Some(colour) = colour {
+                let text = match colour {
+                    ColourBy::Arrival => "colour: order",
+                    ColourBy::ReturnTime => "colour: return time",
+                };
+                if ui.small_button(text).on_hover_text("Colour points by order of arrival or by return time").clicked() {
+                    *colour = match colour {
+                        ColourBy::Arrival => ColourBy::ReturnTime,
+                        ColourBy::ReturnTime => ColourBy::Arrival,
+                    };
+                }
+            }
+        });
+    });
+    let rect = ui.available_rect_before_wrap();
+    app.layout.view_rects.insert(kind, rect);
+    match kind {
+        ViewKind::Trajectory => {
+            let plane = plane_in_view(app);
+            let colours = SpaceColours {
+                background: Color32::from_rgb(18, 22, 30),
+                trajectory: Color32::from_rgb(150, 200, 230),
+                surface: Color32::from_rgba_unmultiplied(236, 150, 70, 48),
+                cut_points: Color32::from_rgb(250, 210, 120),
+            };
+            let response = app.settings.space.ui(
+                ui,
+                &app.results.names,
+                &app.results.trajectory,
+                &app.results.cut,
+                plane.as_ref().map(|(p, _)| p),
+                &colours,
+            );
+            if let (Some(new_offset), Some((_, hidden))) = (response.new_offset, plane)
+                && let Some(cut) = &mut app.doc.scenario.cut
+                && let Surface::Plane { offset, .. } = &mut cut.surface
+            {
+                *offset = new_offset + hidden;
+                app.doc.changed();
+                app.reslice_now_or_later();
+            }
+        }
+        ViewKind::Cut | ViewKind::Strobe => {
+            let (cloud, axes, colour, view) = if kind == ViewKind::Cut {
+                (&app.results.cut, app.doc.scenario.cut_axes(), app.settings.cut_colour, &mut app.layout.cut_view)
+            } else {
+                (&app.results.strobe, app.doc.scenario.strobe_axes(), app.settings.strobe_colour, &mut app.layout.strobe_view)
+            };
+            let Some(axes) = axes else {
+                ui.label(if kind == ViewKind::Cut { "No cut: switch it on in the model panel." } else { "No strobe: switch it on in the model panel." });
+                return;
+            };
+            let id = if kind == ViewKind::Cut { "cut_view" } else { "strobe_view" };
+            let height = ui.available_height() - 22.0;
+            let mut clicked = None;
+            ui.allocate_ui(vec2(ui.available_width(), height.max(40.0)), |ui| {
+                clicked = view.ui(ui, id, &app.results.names, cloud, axes, colour, &[]).clicked;
+            });
+            let selected = clicked.or(view.selected).filter(|&s| s < cloud.len());
+            ui.horizontal(|ui| match selected {
+                Some(k) => {
+                    let mut text = format!("k = {k}, t = {}", cloud.t[k]);
+                    if cloud.return_time[k].is_finite() {
+                        text.push_str(&format!(", return time = {}", cloud.return_time[k]));
+                    }
+                    for (name, v) in app.results.names.iter().zip(cloud.state(k)) {
+                        text.push_str(&format!(", {name} = {v}"));
+                    }
+                    ui.label(RichText::new(&text).monospace().small());
+                    if ui.small_button("copy").on_hover_text("Copy this point's values to the clipboard").clicked() {
+                        ui.ctx().copy_text(text);
+                    }
+                }
+                None => {
+                    ui.label(RichText::new("click a point to see its values").weak().small());
+                }
+            });
+        }
+        ViewKind::ReturnTimes | ViewKind::ReturnMap => {}
+    }
+}

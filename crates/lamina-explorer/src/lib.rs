@@ -1,0 +1,50 @@
+//! Lamina's explorer window: type the model, run it on a worker thread, watch the cut and
+//! strobe points pile up, drag the cut, save and export.
+//!
+//! **Boundary:** this crate only draws and routes; every number comes from `lamina-core`,
+//! every file format from `lamina-scenario` and `lamina-export`.
+
+mod app;
+mod document;
+mod execution;
+mod export;
+mod files;
+mod help;
+mod layout;
+mod model_panel;
+mod results;
+mod settings;
+mod views;
+mod widgets;
+mod worker;
+
+use std::path::PathBuf;
+
+pub use app::{ExplorerApp, Options};
+pub use document::DEMO_SCENARIO;
+pub use help::CAUTION;
+pub use results::RunState;
+
+/// Opens the explorer window on `file`, or on the built-in demo scenario, and blocks until
+/// the window is closed.
+pub fn run_window(file: Option<PathBuf>) -> Result<(), String> {
+    let native = eframe::NativeOptions {
+        viewport: egui::ViewportBuilder::default()
+            .with_title("Lamina")
+            .with_inner_size([1440.0, 900.0])
+            .with_min_inner_size([900.0, 560.0])
+            .with_drag_and_drop(true),
+        persist_window: true,
+        ..Default::default()
+    };
+    eframe::run_native(
+        "Lamina",
+        native,
+        Box::new(move |cc| {
+            let settings = cc.storage.and_then(settings::Settings::load).unwrap_or_default();
+            let options = Options { native_dialogs: true, recovery: true, ..Options::default() };
+            Ok(Box::new(ExplorerApp::new(file, settings, options)))
+        }),
+    )
+    .map_err(|e| format!("cannot open the window: {e}"))
+}

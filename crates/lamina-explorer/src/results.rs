@@ -1,0 +1,221 @@
+//! What the current run has produced, as the views need it: point clouds, the trajectory,
+//! the run's state, and the finished run itself (kept for re-slicing and continuing).
+
+use std::time::Duration;
+
+use lamina_core::run::{CutPoint, Run, StopReason, StrobeSample};
+
+/// A growing set of points (cut points or strobe samples) stored flat.
+#[derive(Clone, Debug, Default)]
+pub struct PointCloud {
+    dim: usize,
+    /// Time of each point.
+    pub t: Vec<f64>,
+    /// Return time of each point (NaN where there is none).
+    pub return_time: Vec<f64>,
+    states: Vec<f64>,
+    /// Bumped on every change, so views can cache what they derive.
+    pub revision: u64,
+}
+
+impl PointCloud {
+    /// An empty cloud of `dim`-state points.
+    pub fn new(dim: usize) -> Self {
+        Self { dim, ..Self::default() }
+    }
+
+    /// Number of points.
+    pub fn len(&self) -> usize {
+        self.t.len()
+    }
+
+    /// Whether there are none.
+    pub fn is_empty(&self) -> bool {
+        self.t.is_empty()
+    }
+
+    /// Number of states per point.
+    pub fn dim(&self) -> usize {
+        self.dim
+    }
+
+    /// State of point `idx`.
+    pub fn state(&self, idx: usize) -> &[f64] {
+        &self.states[idx * self.dim..(idx + 1) * self.dim]
+    }
+
+    /// Coordinate `axis` of point `idx`.
+    pub fn coord(&self, idx: usize, axis: usize) -> f64 {
+        self.states[idx * self.dim + axis]
+    }
+
+    /// Appends a cut point.
+    pub fn push_cut(&mut self, point: &CutPoint) {
+        self.t.push(point.t);
+        self.return_time.push(point.return_time.unwrap_or(f64::NAN));
+        self.states.extend_from_slice(&point.state);
+        self.revision += 1;
+    }
+
+    /// Appends a strobe sample (its return time is the time since the previous sample).
+    pub fn push_strobe(&mut self, sample: &StrobeSample) {
+        let rt = self.t.last().map_or(f64::NAN, |last| sample.t - last);
+        self.t.push(sample.t);
+        self.return_time.push(rt);
+        self.states.extend_from_slice(&sample.state);
+        self.revision += 1;
+    }
+
+    /// Replaces everything with `points`.
+    pub fn set_cut_points(&mut self, points: &[CutPoint]) {
+        self.clear();
+        for p in points {
+            self.push_cut(p);
+        }
+    }
+
+    /// Removes every point.
+    pub fn clear(&mut self) {
+        self.t.clear();
+        self.return_time.clear();
+        self.states.clear();
+        self.revision += 1;
+    }
+
+    /// As cut points (for exports).
+    pub fn cut_points(&self) -> impl Iterator<Item = CutPoint> + '_ {
+        (0..self.len()).map(|i| CutPoint {
+            t: self.t[i],
+            return_time: Some(self.return_time[i]).filter(|r| r.is_finite()),
+            state: self.state(i).to_vec(),
+        })
+    }
+
+    /// As strobe samples (for exports).
+    pub fn strobe_samples(&self) -> impl Iterator<Item = StrobeSample> + '_ {
+        (0..self.len()).map(|i| StrobeSample { index: i as i64, t: self.t[i], state: self.state(i).to_vec() })
+    }
+}
+
+/// Step-end states of the recorded part of the run, for the 3D view and the CSV export.
+#[derive(Clone, Debug, Default)]
+pub struct Trajectory {
+    dim: usize,
+    /// Time of each sample.
+    pub t: Vec<f64>,
+    states: Vec<f64>,
+    /// Bumped on every change.
+    pub revision: u64,
+}
+
+/// Most trajectory samples kept; past it every other sample is dropped (the view decimates
+/// anyway, and the stored run keeps full accuracy).
+const MAX_TRAJECTORY_SAMPLES: usize = 400_000;
+
+impl Trajectory {
+    /// An empty trajectory of `dim` states.
+    pub fn new(dim: usize) -> Self {
+        Self { dim, ..Self::default() }
+    }
+
+    /// Number of samples.
+    pub fn len(&self) -> usize {
+        self.t.len()
+    }
+
+    /// Whether there are none.
+    pub fn is_empty(&self) -> bool {
+        self.t.is_empty()
+    }
+
+    /// Number of states.
+    pub fn dim(&self) -> usize {
+        self.dim
+    }
+
+    /// State of sample `idx`.
+    pub fn state(&self, idx: usize) -> &[f64] {
+        &self.states[idx * self.dim..(idx + 1) * self.dim]
+    }
+
+    /// Appends a sample, thinning the oldest half when full.
+    pub fn push(&mut self, t: f64, state: &[f64]) {
+        if self.t.len() >= MAX_TRAJECTORY_SAMPLES {
+            self.thin();
+        }
+        self.t.push(t);
+        self.states.extend_from_slice(state);
+        self.revision += 1;
+    }
+
+    fn thin(&mut self) {
+        let dim = self.dim;
+        let n = self.t.len();
+        let mut w = 0;
+        for r in (0..n).step_by(2) {
+            self.t[w] = self.t[r];
+            self.states.copy_within(r * dim..(r + 1) * dim, w * dim);
+            w += 1;
+        }
+        self.t.truncate(w);
+        self.states.truncate(w * dim);
+    }
+}
+
+/// Where the current run stands.
+#[derive(Clone, Debug, PartialEq)]
+pub enum RunState {
+    /// Nothing has run yet (or the results were cleared).
+    Idle,
+    /// The worker is integrating.
+    Running,
+    /// The run reached the end of its window.
+    Finished,
+    /// The user stopped it.
+    Cancelled,
+    /// It stopped early for the reason given.
+    Stopped(StopReason),
+}
+
+/// Everything the current run has produced.
+pub struct Results {
+    /// State names, in order.
+    pub names: Vec<String>,
+    /// Cut points.
+    pub cut: PointCloud,
+    /// Strobe samples.
+    pub strobe: PointCloud,
+    /// Step-end states.
+    pub trajectory: Trajectory,
+    /// The run's state.
+    pub state: RunState,
+    /// Simulated time reached.
+    pub t_reached: f64,
+    /// Accepted steps.
+    pub n_steps: u64,
+    /// Fraction of the window done.
+    pub fraction: f64,
+    /// Wall-clock time of the run so far.
+    pub elapsed: Duration,
+    /// The finished (or stopped) run, with its stored steps; `None` while running.
+    pub run: Option<Box<Run>>,
+}
+
+impl Results {
+    /// Empty results for a model with these state names.
+    pub fn new(names: Vec<String>) -> Self {
+        let dim = names.len();
+        Self {
+            names,
+            cut: PointCloud::new(dim),
+            strobe: PointCloud::new(dim),
+            trajectory: Trajectory::new(dim),
+            state: RunState::Idle,
+            t_reached: 0.0,
+            n_steps: 0,
+            fraction: 0.0,
+            elapsed: Duration::ZERO,
+            run: None,
+        }
+    }
+}

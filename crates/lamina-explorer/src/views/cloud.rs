@@ -1,0 +1,254 @@
+//! A 2D view of a point cloud (cut points or strobe samples) in two chosen coordinates,
+//! coloured by arrival order or by return time. Up to [`MESH_LIMIT`] points are drawn as
+//! small squares in one mesh; larger clouds as a density image binned at screen resolution,
+//! so 200,000 points pan and zoom smoothly.
+
+use egui::{Color32, ColorImage, Mesh, Pos2, Rect, TextureHandle, TextureOptions, Ui, pos2, vec2};
+use egui_plot::{Plot, PlotPoint, PlotPoints, Points};
+
+use super::palette::ramp;
+use crate::results::PointCloud;
+
+/// Clouds up to this size are drawn point by point.
+pub const MESH_LIMIT: usize = 40_000;
+
+/// How points are coloured.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub enum ColourBy {
+    /// Early points blue, late points coral.
+    Arrival,
+    /// Short return times blue, long ones coral.
+    ReturnTime,
+}
+
+/// Per-view state: colouring, the selected point, the density image cache.
+#[derive(Default)]
+pub struct CloudView {
+    /// Selected point index.
+    pub selected: Option<usize>,
+    density: Option<(DensityKey, TextureHandle)>,
+}
+
+#[derive(Clone, PartialEq)]
+struct DensityKey {
+    revision: u64,
+    bounds: [f64; 4],
+    size: [usize; 2],
+    axes: [usize; 2],
+    colour_by: ColourBy,
+}
+
+/// What the user did in the view.
+#[derive(Default)]
+pub struct CloudResponse {
+    /// A point was clicked: its index.
+    pub clicked: Option<usize>,
+    /// The plot's screen rectangle (for PNG export).
+    pub rect: Option<Rect>,
+}
+
+/// A point the caller wants marked (for example the current parameter's cycle points).
+pub struct Mark {
+    /// Position in the view's coordinates.
+    pub at: [f64; 2],
+    /// Colour.
+    pub colour: Color32,
+}
+
+impl CloudView {
+    /// Draws `cloud` in coordinates `axes` with axis labels from `names`.
+    #[allow(clippy::too_many_arguments)]
+    pub fn ui(
+        &mut self,
+        ui: &mut Ui,
+        id: &str,
+        names: &[String],
+        cloud: &PointCloud,
+        axes: [usize; 2],
+        colour_by: ColourBy,
+        marks: &[Mark],
+    ) -> CloudResponse {
+        let mut out = CloudResponse::default();
+        let dim = cloud.dim();
+        if axes.iter().any(|&a| a >= dim.max(1)) || dim == 0 {
+            ui.label("choose two coordinates");
+            return out;
+        }
+        let (colour_key, key_range) = colour_keys(cloud, colour_by);
+        let extent = extent(cloud, axes);
+        let plot = Plot::new(id)
+            .x_axis_label(names.get(axes[0]).cloned().unwrap_or_default())
+            .y_axis_label(names.get(axes[1]).cloned().unwrap_or_default())
+            .allow_double_click_reset(true)
+            .show_crosshair(false);
+        let response = plot.show(ui, |plot_ui| {
+            if let Some([x0, y0, x1, y1]) = extent {
+                // invisible corners so that automatic bounds fit the cloud
+                plot_ui.points(Points::new("extent", PlotPoints::new(vec![[x0, y0], [x1, y1]])).radius(0.0).color(Color32::TRANSPARENT));
+            }
+            plot_ui.pointer_coordinate()
+        });
+        let transform = response.transform;
+        let frame = *transform.frame();
+        out.rect = Some(response.response.rect);
+        let painter = ui.painter_at(frame);
+        let n = cloud.len();
+        if n <= MESH_LIMIT {
+            let mut mesh = Mesh::default();
+            let half = if n < 2000 { 1.8 } else { 1.1 };
+            for i in 0..n {
+                let p = transform.position_from_point(&PlotPoint::new(cloud.coord(i, axes[0]), cloud.coord(i, axes[1])));
+                if frame.expand(2.0).contains(p) {
+                    let u = normalise(colour_key[i], key_range);
+                    mesh.add_colored_rect(Rect::from_center_size(p, vec2(2.0 * half, 2.0 * half)), ramp(u));
+                }
+            }
+            painter.add(mesh);
+        } else {
+            let b = transform.bounds();
+            let key = DensityKey {
+                revision: cloud.revision,
+                bounds: [b.min()[0], b.min()[1], b.max()[0], b.max()[1]],
+                size: [(frame.width() / 2.0).max(1.0) as usize, (frame.height() / 2.0).max(1.0) as usize],
+                axes,
+                colour_by,
+            };
+            if self.density.as_ref().is_none_or(|(k, _)| *k != key) {
+                let image = density_image(cloud, &key, &colour_key, key_range);
+                match &mut self.density {
+                    Some((k, texture)) => {
+                        texture.set(image, TextureOptions::NEAREST);
+                        *k = key;
+                    }
+                    None => self.density = Some((key, ui.ctx().load_texture(format!("{id}-density"), image, TextureOptions::NEAREST))),
+                }
+            }
+            if let Some((_, texture)) = &self.density {
+                painter.image(texture.id(), frame, Rect::from_min_max(pos2(0.0, 0.0), pos2(1.0, 1.0)), Color32::WHITE);
+            }
+        }
+        for mark in marks {
+            let p = transform.position_from_point(&PlotPoint::new(mark.at[0], mark.at[1]));
+            painter.circle_stroke(p, 6.0, egui::Stroke::new(2.0, mark.colour));
+        }
+        if let Some(sel) = self.selected.filter(|&s| s < n) {
+            let p = transform.position_from_point(&PlotPoint::new(cloud.coord(sel, axes[0]), cloud.coord(sel, axes[1])));
+            painter.circle_stroke(p, 5.0, egui::Stroke::new(1.5, Color32::WHITE));
+        }
+        if response.response.clicked()
+            && let Some(pointer) = response.response.interact_pointer_pos()
+        {
+            let nearest = nearest_point(cloud, axes, |x, y| transform.position_from_point(&PlotPoint::new(x, y)), pointer);
+            self.selected = nearest;
+            out.clicked = nearest;
+        }
+        legend_ui(&painter, frame, colour_by, key_range, n);
+        out
+    }
+}
+
+fn colour_keys(cloud: &PointCloud, colour_by: ColourBy) -> (Vec<f64>, (f64, f64)) {
+    let n = cloud.len();
+    match colour_by {
+        ColourBy::Arrival => ((0..n).map(|i| i as f64).collect(), (0.0, n.saturating_sub(1).max(1) as f64)),
+        ColourBy::ReturnTime => {
+            let keys: Vec<f64> = cloud.return_time.clone();
+            let finite = keys.iter().copied().filter(|v| v.is_finite());
+            let lo = finite.clone().fold(f64::INFINITY, f64::min);
+            let hi = finite.fold(f64::NEG_INFINITY, f64::max);
+            let range = if lo.is_finite() { (lo, if hi > lo { hi } else { lo + 1.0 }) } else { (0.0, 1.0) };
+            (keys, range)
+        }
+    }
+}
+
+fn normalise(v: f64, (lo, hi): (f64, f64)) -> f32 {
+    if !v.is_finite() {
+        return 0.0;
+    }
+    ((v - lo) / (hi - lo)) as f32
+}
+
+fn extent(cloud: &PointCloud, axes: [usize; 2]) -> Option<[f64; 4]> {
+    let mut e = [f64::INFINITY, f64::INFINITY, f64::NEG_INFINITY, f64::NEG_INFINITY];
+    for i in 0..cloud.len() {
+        let (x, y) = (cloud.coord(i, axes[0]), cloud.coord(i, axes[1]));
+        if x.is_finite() && y.is_finite() {
+            e = [e[0].min(x), e[1].min(y), e[2].max(x), e[3].max(y)];
+        }
+    }
+    (e[0] <= e[2]).then_some(e)
+}
+
+fn density_image(cloud: &PointCloud, key: &DensityKey, colour_key: &[f64], range: (f64, f64)) -> ColorImage {
+    let [w, h] = key.size;
+    let [x0, y0, x1, y1] = key.bounds;
+    let mut count = vec![0u32; w * h];
+    let mut latest = vec![0.0f64; w * h];
+    let (sx, sy) = (w as f64 / (x1 - x0), h as f64 / (y1 - y0));
+    for i in 0..cloud.len() {
+        let (x, y) = (cloud.coord(i, key.axes[0]), cloud.coord(i, key.axes[1]));
+        let (cx, cy) = ((x - x0) * sx, (y1 - y) * sy);
+        if cx >= 0.0 && cy >= 0.0 && (cx as usize) < w && (cy as usize) < h {
+            let cell = cy as usize * w + cx as usize;
+            count[cell] += 1;
+            latest[cell] = colour_key[i];
+        }
+    }
+    let max = count.iter().copied().max().unwrap_or(1).max(1) as f32;
+    let pixels = count
+        .iter()
+        .zip(&latest)
+        .map(|(&c, &k)| {
+            if c == 0 {
+                Color32::TRANSPARENT
+            } else {
+                let alpha = 0.45 + 0.55 * ((c as f32).ln_1p() / max.ln_1p());
+                ramp(normalise(k, range)).gamma_multiply(alpha)
+            }
+        })
+        .collect();
+    ColorImage::new([w, h], pixels)
+}
+
+fn nearest_point(cloud: &PointCloud, axes: [usize; 2], screen: impl Fn(f64, f64) -> Pos2, pointer: Pos2) -> Option<usize> {
+    let mut best = None;
+    let mut best_d = 10.0f32;
+    for i in 0..cloud.len() {
+        let d = screen(cloud.coord(i, axes[0]), cloud.coord(i, axes[1])).distance(pointer);
+        if d < best_d {
+            best_d = d;
+            best = Some(i);
+        }
+    }
+    best
+}
+
+fn legend_ui(painter: &egui::Painter, frame: Rect, colour_by: ColourBy, (lo, hi): (f64, f64), n: usize) {
+    if n == 0 {
+        return;
+    }
+    let width = 90.0;
+    let top_right = pos2(frame.right() - width - 10.0, frame.top() + 8.0);
+    let bar = Rect::from_min_size(top_right + vec2(0.0, 14.0), vec2(width, 6.0));
+    let mut mesh = Mesh::default();
+    let steps = 24;
+    for s in 0..steps {
+        let r = Rect::from_min_size(pos2(bar.left() + bar.width() * s as f32 / steps as f32, bar.top()), vec2(bar.width() / steps as f32 + 0.5, bar.height()));
+        mesh.add_colored_rect(r, ramp(s as f32 / (steps - 1) as f32));
+    }
+    painter.add(mesh);
+    let font = egui::FontId::proportional(10.0);
+    let text_colour = Color32::from_gray(190);
+    let title = match colour_by {
+        ColourBy::Arrival => format!("order of arrival ({n} points)"),
+        ColourBy::ReturnTime => "return time".to_string(),
+    };
+    painter.text(top_right, egui::Align2::LEFT_TOP, title, font.clone(), text_colour);
+    let (a, b) = match colour_by {
+        ColourBy::Arrival => ("first".to_string(), "last".to_string()),
+        ColourBy::ReturnTime => (format!("{lo:.4}"), format!("{hi:.4}")),
+    };
+    painter.text(bar.left_bottom() + vec2(0.0, 2.0), egui::Align2::LEFT_TOP, a, font.clone(), text_colour);
+    painter.text(bar.right_bottom() + vec2(0.0, 2.0), egui::Align2::RIGHT_TOP, b, font, text_colour);
+}

@@ -1,0 +1,6 @@
+//! The views: the 3D trajectory, the point clouds, and the small series views.
+
+pub mod cloud;
+pub mod palette;
+pub mod series;
+pub mod space;

@@ -1,0 +1,79 @@
+//! The small views under the main ones: the return-time sequence and the first-return map
+//! (s_n against s_n+1 for a chosen coordinate).
+
+use egui::{Rect, Ui};
+use egui_plot::{Line, Plot, PlotPoints, Points};
+
+use crate::results::PointCloud;
+
+/// Return time against point number.
+pub fn return_times_ui(ui: &mut Ui, cloud: &PointCloud, label: &str) -> Rect {
+    let points: Vec<[f64; 2]> = cloud
+        .return_time
+        .iter()
+        .enumerate()
+        .filter(|(_, r)| r.is_finite())
+        .map(|(k, r)| [k as f64, *r])
+        .collect();
+    let response = Plot::new("return_times")
+        .x_axis_label("n")
+        .y_axis_label(format!("return time ({label})"))
+        .show(ui, |plot_ui| {
+            if points.len() < 4000 {
+                plot_ui.line(Line::new("return time", PlotPoints::new(points.clone())).width(1.0));
+            }
+            plot_ui.points(Points::new("return time", PlotPoints::new(points)).radius(1.5));
+        });
+    response.response.rect
+}
+
+/// The coordinate of the first-return map: a state, or the return time.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub enum MapCoordinate {
+    /// State with this index.
+    State(usize),
+    /// The return time.
+    ReturnTime,
+}
+
+/// s_n+1 against s_n, with the diagonal for reading fixed points.
+pub fn first_return_map_ui(ui: &mut Ui, cloud: &PointCloud, names: &[String], coordinate: &mut MapCoordinate) -> Rect {
+    ui.horizontal(|ui| {
+        ui.label("s =");
+        let current = match *coordinate {
+            MapCoordinate::State(i) => names.get(i).cloned().unwrap_or_default(),
+            MapCoordinate::ReturnTime => "return time".into(),
+        };
+        egui::ComboBox::from_id_salt("map_coordinate")
+            .selected_text(current)
+            .show_ui(ui, |ui| {
+                for (i, n) in names.iter().enumerate() {
+                    ui.selectable_value(coordinate, MapCoordinate::State(i), n);
+                }
+                ui.selectable_value(coordinate, MapCoordinate::ReturnTime, "return time");
+            })
+            .response
+            .on_hover_text("Coordinate s of the first-return map s(n) → s(n+1)");
+    });
+    let value = |i: usize| match *coordinate {
+        MapCoordinate::State(k) if k < cloud.dim() => cloud.coord(i, k),
+        MapCoordinate::State(_) => f64::NAN,
+        MapCoordinate::ReturnTime => cloud.return_time[i],
+    };
+    let pairs: Vec<[f64; 2]> = (1..cloud.len())
+        .map(|i| [value(i - 1), value(i)])
+        .filter(|p| p[0].is_finite() && p[1].is_finite())
+        .collect();
+    let (lo, hi) = pairs.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), p| (lo.min(p[0]).min(p[1]), hi.max(p[0]).max(p[1])));
+    let response = Plot::new("first_return_map")
+        .x_axis_label("s(n)")
+        .y_axis_label("s(n+1)")
+        .data_aspect(1.0)
+        .show(ui, |plot_ui| {
+            if lo < hi {
+                plot_ui.line(Line::new("diagonal", PlotPoints::new(vec![[lo, lo], [hi, hi]])).width(0.5).color(egui::Color32::from_gray(110)));
+            }
+            plot_ui.points(Points::new("s(n+1)", PlotPoints::new(pairs)).radius(1.5));
+        });
+    response.response.rect
+}

@@ -1,0 +1,57 @@
+//! Small widgets shared by the panels: a number field that accepts any float notation, and
+//! the in-place problem message.
+
+use egui::{Color32, Response, RichText, Ui};
+use lamina_scenario::Problem;
+
+/// The colour of error text.
+pub const ERROR_COLOUR: Color32 = Color32::from_rgb(226, 84, 72);
+/// The colour of warning text.
+pub const WARNING_COLOUR: Color32 = Color32::from_rgb(222, 170, 60);
+
+/// A text field for a float that keeps what the user types (so `1e-9` stays `1e-9`) and
+/// writes `value` whenever the text parses to a finite number. Marked red while it does not.
+/// Returns the field's response; `changed()` is true only when `value` changed.
+pub fn number_field(ui: &mut Ui, id: egui::Id, value: &mut f64, width: f32) -> Response {
+    let text_id = id.with("text");
+    let mut text: String = ui
+        .data_mut(|d| d.get_temp::<(f64, String)>(text_id))
+        .filter(|(shown, _)| shown.to_bits() == value.to_bits())
+        .map(|(_, t)| t)
+        .unwrap_or_else(|| format_value(*value));
+    let parsed = text.trim().parse::<f64>().ok().filter(|v| v.is_finite());
+    let mut edit = egui::TextEdit::singleline(&mut text).id(id).desired_width(width);
+    if parsed.is_none() {
+        edit = edit.text_color(ERROR_COLOUR);
+    }
+    let mut response = ui.add(edit);
+    let mut changed = false;
+    if response.changed()
+        && let Some(v) = text.trim().parse::<f64>().ok().filter(|v| v.is_finite())
+        && v.to_bits() != value.to_bits()
+    {
+        *value = v;
+        changed = true;
+    }
+    ui.data_mut(|d| d.insert_temp(text_id, (*value, text)));
+    if !changed && response.changed() {
+        // typed text that is not (yet) a number: not a change of the value
+        response.flags.remove(egui::response::Flags::CHANGED);
+    }
+    response
+}
+
+/// Shortest text that reads back as `v`.
+pub fn format_value(v: f64) -> String {
+    let plain = format!("{v}");
+    let debug = format!("{v:?}");
+    if plain.len() <= debug.len() { plain } else { debug }
+}
+
+/// Shows each problem under its field: red for errors, amber for warnings.
+pub fn problems_ui<'a>(ui: &mut Ui, problems: impl Iterator<Item = &'a Problem>) {
+    for problem in problems {
+        let colour = if problem.is_error() { ERROR_COLOUR } else { WARNING_COLOUR };
+        ui.label(RichText::new(&problem.message).color(colour).monospace().small());
+    }
+}
