@@ -46,8 +46,22 @@ fn main() -> ExitCode {
     match result {
         Ok(code) => code,
         Err(err) => {
-            eprintln!("error: {err:#}");
+            eprintln!("error: {}", error_chain(&err));
             ExitCode::FAILURE
         }
     }
+}
+
+/// The error and its causes joined by `: `, leaving out a cause whose text the message before
+/// it already ends with (errors that print their source as part of their own message).
+fn error_chain(err: &anyhow::Error) -> String {
+    let mut text = err.to_string();
+    for cause in err.chain().skip(1) {
+        let cause = cause.to_string();
+        if !text.ends_with(&cause) {
+            text.push_str(": ");
+            text.push_str(&cause);
+        }
+    }
+    text
 }

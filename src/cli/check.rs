@@ -9,6 +9,11 @@ use anyhow::Result;
 pub fn check(path: &Path) -> Result<ExitCode> {
     let scenario = match lamina_scenario::load_file(path) {
         Ok(s) => s,
+        // An I/O error already names the file.
+        Err(err @ lamina_scenario::ScenarioError::Io { .. }) => {
+            eprintln!("{err}");
+            return Ok(ExitCode::FAILURE);
+        }
         Err(err) => {
             eprintln!("{}: {err}", path.display());
             return Ok(ExitCode::FAILURE);
