@@ -92,9 +92,15 @@ pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
     let prepared = prepare(&args.file)?;
     let names = prepared.model.names().states.clone();
     match kind {
-        PointKind::Cut if prepared.cut.is_none() => bail!("{} has no cut: add a `cut: Some((...))` block", args.file.display()),
+        PointKind::Cut if prepared.cut.is_none() => bail!(
+            "{} has no cut: add a `cut: Some((...))` block",
+            args.file.display()
+        ),
         PointKind::Strobe if prepared.strobe.is_none() => {
-            bail!("{} has no strobe: add a `strobe: Some((...))` block", args.file.display())
+            bail!(
+                "{} has no strobe: add a `strobe: Some((...))` block",
+                args.file.display()
+            )
         }
         _ => {}
     }
@@ -115,14 +121,17 @@ pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
     match &args.out {
         Some(path) => {
             let file = AtomicFile::create(path)?;
-            let (reason, written, file) = execute(kind, args.count, &names, file, &mut run, &interrupt, label)?;
+            let (reason, written, file) =
+                execute(kind, args.count, &names, file, &mut run, &interrupt, label)?;
             // A run stopped by numerical trouble still keeps the valid points it found.
             file.commit()?;
             report(reason, written, label, Some(path))
         }
         None => {
             let stdout = std::io::stdout().lock();
-            let (reason, written, mut out) = execute(kind, args.count, &names, stdout, &mut run, &interrupt, label)?;
+            let (reason, written, mut out) = execute(
+                kind, args.count, &names, stdout, &mut run, &interrupt, label,
+            )?;
             out.flush().context("writing to stdout")?;
             report(reason, written, label, None)
         }
@@ -142,7 +151,13 @@ fn execute<W: Write>(
         PointKind::Cut => Writer::Cut(CutCsv::new(out, names)?),
         PointKind::Strobe => Writer::Strobe(StrobeCsv::new(out, names)?),
     };
-    let mut sink = CsvSink { writer, count, written: 0, error: None, progress: Progress::new(label) };
+    let mut sink = CsvSink {
+        writer,
+        count,
+        written: 0,
+        error: None,
+        progress: Progress::new(label),
+    };
     let outcome = run.execute(&mut sink, interrupt);
     sink.progress.finish();
     if let Some(err) = sink.error {
@@ -155,8 +170,15 @@ fn execute<W: Write>(
     Ok((outcome.reason, sink.written, out))
 }
 
-fn report(reason: StopReason, written: usize, label: &str, path: Option<&PathBuf>) -> Result<ExitCode> {
-    let target = path.map(|p| format!(" to {}", p.display())).unwrap_or_default();
+fn report(
+    reason: StopReason,
+    written: usize,
+    label: &str,
+    path: Option<&PathBuf>,
+) -> Result<ExitCode> {
+    let target = path
+        .map(|p| format!(" to {}", p.display()))
+        .unwrap_or_default();
     match reason {
         StopReason::Finished | StopReason::SinkStopped { .. } => {
             if path.is_some() {
@@ -165,11 +187,15 @@ fn report(reason: StopReason, written: usize, label: &str, path: Option<&PathBuf
             Ok(ExitCode::SUCCESS)
         }
         StopReason::PointLimit { t } => {
-            eprintln!("wrote {written} {label} point(s){target}; stopped at the point limit (limits.max_points) at t = {t}");
+            eprintln!(
+                "wrote {written} {label} point(s){target}; stopped at the point limit (limits.max_points) at t = {t}"
+            );
             Ok(ExitCode::SUCCESS)
         }
         other => {
-            eprintln!("wrote {written} valid {label} point(s){target}; the run stopped early: {other}");
+            eprintln!(
+                "wrote {written} valid {label} point(s){target}; the run stopped early: {other}"
+            );
             Ok(ExitCode::FAILURE)
         }
     }

@@ -20,15 +20,38 @@ pub struct Prepared {
 
 /// Loads and checks `path`; any problem is an error listing all of them.
 pub fn prepare(path: &Path) -> Result<Prepared> {
-    let scenario = lamina_scenario::load_file(path).with_context(|| format!("cannot load {}", path.display()))?;
-    let problems: Vec<_> = scenario.check().into_iter().filter(|p| p.is_error()).collect();
+    let scenario = lamina_scenario::load_file(path)
+        .with_context(|| format!("cannot load {}", path.display()))?;
+    let problems: Vec<_> = scenario
+        .check()
+        .into_iter()
+        .filter(|p| p.is_error())
+        .collect();
     if !problems.is_empty() {
         let list: Vec<String> = problems.iter().map(|p| p.to_string()).collect();
-        bail!("{} has {} problem(s):\n{}", path.display(), problems.len(), list.join("\n"));
+        bail!(
+            "{} has {} problem(s):\n{}",
+            path.display(),
+            problems.len(),
+            list.join("\n")
+        );
     }
     let model = Model::compile(&scenario.model_spec()).context("model")?;
-    let cut = scenario.cut_spec().map(|spec| Cut::compile(&spec, &model)).transpose().context("cut")?;
-    let strobe = scenario.strobe_spec().map(|spec| Strobe::compile(&spec, &model)).transpose().context("strobe")?;
+    let cut = scenario
+        .cut_spec()
+        .map(|spec| Cut::compile(&spec, &model))
+        .transpose()
+        .context("cut")?;
+    let strobe = scenario
+        .strobe_spec()
+        .map(|spec| Strobe::compile(&spec, &model))
+        .transpose()
+        .context("strobe")?;
     let spec = scenario.run_spec();
-    Ok(Prepared { model, spec, cut, strobe })
+    Ok(Prepared {
+        model,
+        spec,
+        cut,
+        strobe,
+    })
 }

@@ -16,9 +16,10 @@ impl Progress {
             return Self { bar: None };
         }
         let bar = ProgressBar::with_draw_target(Some(1000), ProgressDrawTarget::stderr());
-        let style = ProgressStyle::with_template("{msg} [{bar:40}] {percent}% t = {prefix} ({elapsed})")
-            .unwrap_or_else(|_| ProgressStyle::default_bar())
-            .progress_chars("=> ");
+        let style =
+            ProgressStyle::with_template("{msg} [{bar:40}] {percent}% t = {prefix} ({elapsed})")
+                .unwrap_or_else(|_| ProgressStyle::default_bar())
+                .progress_chars("=> ");
         bar.set_style(style);
         bar.set_message(what.to_string());
         Self { bar: Some(bar) }

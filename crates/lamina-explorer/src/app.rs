@@ -28,7 +28,11 @@ pub struct Options {
 
 impl Default for Options {
     fn default() -> Self {
-        Self { native_dialogs: false, recovery: false, autostart: true }
+        Self {
+            native_dialogs: false,
+            recovery: false,
+            autostart: true,
+        }
     }
 }
 
@@ -108,7 +112,12 @@ impl ExplorerApp {
 
     /// State names of the current scenario.
     pub(crate) fn state_names(&self) -> Vec<String> {
-        self.doc.scenario.states.iter().map(|s| s.name.clone()).collect()
+        self.doc
+            .scenario
+            .states
+            .iter()
+            .map(|s| s.name.clone())
+            .collect()
     }
 
     /// The document (for tests and the binary).
@@ -195,7 +204,9 @@ impl ExplorerApp {
             if i.consume_shortcut(&shortcut(Modifiers::SHIFT, Key::F5)) {
                 actions.push(Action::Continue);
             }
-            if i.consume_shortcut(&shortcut(Modifiers::NONE, Key::F5)) || i.consume_shortcut(&shortcut(Modifiers::COMMAND, Key::R)) {
+            if i.consume_shortcut(&shortcut(Modifiers::NONE, Key::F5))
+                || i.consume_shortcut(&shortcut(Modifiers::COMMAND, Key::R))
+            {
                 actions.push(Action::Run);
             }
             if i.consume_shortcut(&shortcut(Modifiers::NONE, Key::Escape)) {
@@ -221,7 +232,14 @@ impl ExplorerApp {
     }
 
     fn handle_dropped_files(&mut self, ctx: &egui::Context, actions: &mut Vec<Action>) {
-        let dropped: Vec<PathBuf> = ctx.input(|i| i.raw.dropped_files.iter().map(|f| f.path().to_path_buf()).filter(|p| !p.as_os_str().is_empty()).collect());
+        let dropped: Vec<PathBuf> = ctx.input(|i| {
+            i.raw
+                .dropped_files
+                .iter()
+                .map(|f| f.path().to_path_buf())
+                .filter(|p| !p.as_os_str().is_empty())
+                .collect()
+        });
         for path in dropped {
             if path.extension().is_some_and(|e| e == "ron") {
                 actions.push(Action::OpenPath(path));

@@ -11,10 +11,22 @@ pub const DEMO_SCENARIO: &str = include_str!("../../../demo_scenarios/clocked_re
 /// Every demo scenario shipped with Lamina: menu name and text.
 pub const DEMOS: &[(&str, &str)] = &[
     ("Clocked buckled MEMS beam", DEMO_SCENARIO),
-    ("Negative-resistance relaxation oscillator", include_str!("../../../demo_scenarios/tunnel_diode_oscillator.ron")),
-    ("Three-state piecewise-linear circuit", include_str!("../../../demo_scenarios/piecewise_circuit.ron")),
-    ("Relay loop with hysteresis", include_str!("../../../demo_scenarios/relay_loop.ron")),
-    ("Two coupled LC oscillators", include_str!("../../../demo_scenarios/coupled_oscillators.ron")),
+    (
+        "Negative-resistance relaxation oscillator",
+        include_str!("../../../demo_scenarios/tunnel_diode_oscillator.ron"),
+    ),
+    (
+        "Three-state piecewise-linear circuit",
+        include_str!("../../../demo_scenarios/piecewise_circuit.ron"),
+    ),
+    (
+        "Relay loop with hysteresis",
+        include_str!("../../../demo_scenarios/relay_loop.ron"),
+    ),
+    (
+        "Two coupled LC oscillators",
+        include_str!("../../../demo_scenarios/coupled_oscillators.ron"),
+    ),
 ];
 
 /// The scenario in the window.
@@ -34,7 +46,13 @@ impl Document {
     /// A document for `scenario`, as loaded from `path` (not dirty).
     pub fn new(scenario: Scenario, path: Option<PathBuf>) -> Self {
         let problems = scenario.check();
-        Self { saved: scenario.clone(), scenario, path, problems, revision: 0 }
+        Self {
+            saved: scenario.clone(),
+            scenario,
+            path,
+            problems,
+            revision: 0,
+        }
     }
 
     /// The built-in demo.
@@ -75,7 +93,10 @@ impl Document {
     /// Problems of one field: the field itself or anything inside it.
     pub fn problems_at<'a>(&'a self, field: &'a str) -> impl Iterator<Item = &'a Problem> + 'a {
         self.problems.iter().filter(move |p| {
-            p.field == field || p.field.strip_prefix(field).is_some_and(|rest| rest.starts_with('.') || rest.starts_with('['))
+            p.field == field
+                || p.field
+                    .strip_prefix(field)
+                    .is_some_and(|rest| rest.starts_with('.') || rest.starts_with('['))
         })
     }
 
@@ -92,7 +113,11 @@ impl Document {
             .and_then(|p| p.file_name())
             .map(|n| n.to_string_lossy().into_owned())
             .unwrap_or_else(|| self.scenario.title.clone());
-        format!("{}{} — Lamina", if self.is_dirty() { "● " } else { "" }, name)
+        format!(
+            "{}{} — Lamina",
+            if self.is_dirty() { "● " } else { "" },
+            name
+        )
     }
 }
 
@@ -101,11 +126,27 @@ fn blank_scenario() -> Scenario {
     Scenario::new(
         "New model",
         vec![
-            State { name: "x".into(), start: 1.0, rate: "v".into() },
-            State { name: "v".into(), start: 0.0, rate: "-x - c*v".into() },
+            State {
+                name: "x".into(),
+                start: 1.0,
+                rate: "v".into(),
+            },
+            State {
+                name: "v".into(),
+                start: 0.0,
+                rate: "-x - c*v".into(),
+            },
         ],
-        vec![Parameter { name: "c".into(), value: 0.1, range: (0.0, 1.0) }],
-        Time { start: 0.0, settle: 0.0, span: 100.0 },
+        vec![Parameter {
+            name: "c".into(),
+            value: 0.1,
+            range: (0.0, 1.0),
+        }],
+        Time {
+            start: 0.0,
+            settle: 0.0,
+            span: 100.0,
+        },
     )
 }
 
@@ -198,8 +239,14 @@ mod tests {
 
     #[test]
     fn renames_whole_words_only() {
-        assert_eq!(rename_in_expression("-x - k3*x^3 + xx", "x", "pos"), "-pos - k3*pos^3 + xx");
-        assert_eq!(rename_in_expression("2e-3*e + exp(e)", "e", "q"), "2e-3*q + exp(q)");
+        assert_eq!(
+            rename_in_expression("-x - k3*x^3 + xx", "x", "pos"),
+            "-pos - k3*pos^3 + xx"
+        );
+        assert_eq!(
+            rename_in_expression("2e-3*e + exp(e)", "e", "q"),
+            "2e-3*q + exp(q)"
+        );
         assert_eq!(rename_in_expression("a1+a", "a", "b"), "a1+b");
     }
 }

@@ -47,7 +47,12 @@ impl ExplorerApp {
                 continue;
             }
             match event {
-                WorkerEvent::Progress { t, fraction, n_steps, .. } => {
+                WorkerEvent::Progress {
+                    t,
+                    fraction,
+                    n_steps,
+                    ..
+                } => {
                     self.results.t_reached = t;
                     self.results.fraction = fraction;
                     self.results.n_steps = n_steps;
@@ -61,10 +66,17 @@ impl ExplorerApp {
                     }
                     let dim = self.results.trajectory.dim().max(1);
                     for (k, t) in batch.trajectory_t.iter().enumerate() {
-                        self.results.trajectory.push(*t, &batch.trajectory[k * dim..(k + 1) * dim]);
+                        self.results
+                            .trajectory
+                            .push(*t, &batch.trajectory[k * dim..(k + 1) * dim]);
                     }
                 }
-                WorkerEvent::Finished { run, outcome, elapsed, .. } => {
+                WorkerEvent::Finished {
+                    run,
+                    outcome,
+                    elapsed,
+                    ..
+                } => {
                     self.results.elapsed += elapsed;
                     self.results.t_reached = outcome.t_reached;
                     self.results.n_steps = outcome.stats.n_accepted;
@@ -128,8 +140,12 @@ impl ExplorerApp {
                 return;
             }
         };
-        let cut = scenario.cut_spec().and_then(|spec| Cut::compile(&spec, &model).ok());
-        let strobe = scenario.strobe_spec().and_then(|spec| Strobe::compile(&spec, &model).ok());
+        let cut = scenario
+            .cut_spec()
+            .and_then(|spec| Cut::compile(&spec, &model).ok());
+        let strobe = scenario
+            .strobe_spec()
+            .and_then(|spec| Strobe::compile(&spec, &model).ok());
         let run = Box::new(Run::new(model, scenario.run_spec(), cut, strobe, true));
         self.results = Results::new(self.state_names());
         self.launch(ctx, run, "run started");
@@ -138,7 +154,11 @@ impl ExplorerApp {
 
     fn launch(&mut self, ctx: &egui::Context, run: Box<Run>, message: &str) {
         let repaint_ctx = ctx.clone();
-        match self.execution.worker.start(run, move || repaint_ctx.request_repaint()) {
+        match self
+            .execution
+            .worker
+            .start(run, move || repaint_ctx.request_repaint())
+        {
             Ok(_) => {
                 self.execution.n_started += 1;
                 self.results.state = RunState::Running;
@@ -218,7 +238,10 @@ impl ExplorerApp {
         if let Some(at) = self.execution.rerun_at {
             let now = Instant::now();
             if self.execution.slider_held || now < at {
-                ctx.request_repaint_after(at.saturating_duration_since(now).max(Duration::from_millis(20)));
+                ctx.request_repaint_after(
+                    at.saturating_duration_since(now)
+                        .max(Duration::from_millis(20)),
+                );
             } else if self.doc.first_error().is_none() {
                 self.execution.rerun_at = None;
                 self.start_run(ctx);
@@ -246,7 +269,10 @@ impl ExplorerApp {
 
     /// Whether the finished run still matches the scenario's states.
     fn run_matches_model(&self) -> bool {
-        self.results.run.as_ref().is_some_and(|run| run.model().names().states == self.state_names())
+        self.results
+            .run
+            .as_ref()
+            .is_some_and(|run| run.model().names().states == self.state_names())
     }
 
     /// Cuts the stored run again with the scenario's cut (no new integration).
@@ -254,20 +280,30 @@ impl ExplorerApp {
         if !self.run_matches_model() {
             return;
         }
-        let Some(run) = self.results.run.as_mut() else { return };
+        let Some(run) = self.results.run.as_mut() else {
+            return;
+        };
         let Some(spec) = self.doc.scenario.cut_spec() else {
             run.set_cut(None);
             self.results.cut.clear();
             return;
         };
-        let Ok(mut cut) = Cut::compile(&spec, run.model()) else { return };
+        let Ok(mut cut) = Cut::compile(&spec, run.model()) else {
+            return;
+        };
         let started = Instant::now();
-        let points = run.stored().reslice_points(&mut cut, run.model().parameters());
+        let points = run
+            .stored()
+            .reslice_points(&mut cut, run.model().parameters());
         let took = started.elapsed();
         let n_steps = run.stored().n_steps();
         run.set_cut(Some(cut));
         self.results.cut.set_cut_points(&points);
-        self.note(format!("re-sliced {n_steps} stored steps in {:.1} ms: {} cut points", took.as_secs_f64() * 1e3, points.len()));
+        self.note(format!(
+            "re-sliced {n_steps} stored steps in {:.1} ms: {} cut points",
+            took.as_secs_f64() * 1e3,
+            points.len()
+        ));
     }
 
     /// Samples the stored run again with the scenario's strobe.
@@ -275,19 +311,26 @@ impl ExplorerApp {
         if !self.run_matches_model() {
             return;
         }
-        let Some(run) = self.results.run.as_mut() else { return };
+        let Some(run) = self.results.run.as_mut() else {
+            return;
+        };
         let Some(spec) = self.doc.scenario.strobe_spec() else {
             run.set_strobe(None);
             self.results.strobe.clear();
             return;
         };
-        let Ok(strobe) = Strobe::compile(&spec, run.model()) else { return };
+        let Ok(strobe) = Strobe::compile(&spec, run.model()) else {
+            return;
+        };
         let samples = run.stored().strobe_samples(&strobe);
         run.set_strobe(Some(strobe));
         self.results.strobe.clear();
         for s in &samples {
             self.results.strobe.push_strobe(s);
         }
-        self.note(format!("re-sampled the stored run: {} strobe samples", samples.len()));
+        self.note(format!(
+            "re-sampled the stored run: {} strobe samples",
+            samples.len()
+        ));
     }
 }

@@ -42,8 +42,16 @@ pub struct PngRequest {
 
 impl ExplorerApp {
     pub(crate) fn request_csv_export(&mut self, set: PointSet) {
-        let dir = self.doc.path.as_ref().and_then(|p| p.parent().map(Path::to_path_buf)).unwrap_or_default();
-        self.files.ask_path(Purpose::Csv(set), Some(dir.join(format!("{}.csv", set.file_stem()))));
+        let dir = self
+            .doc
+            .path
+            .as_ref()
+            .and_then(|p| p.parent().map(Path::to_path_buf))
+            .unwrap_or_default();
+        self.files.ask_path(
+            Purpose::Csv(set),
+            Some(dir.join(format!("{}.csv", set.file_stem()))),
+        );
     }
 
     /// Writes `set` to `path` atomically.
@@ -92,8 +100,16 @@ impl ExplorerApp {
     }
 
     pub(crate) fn request_png_export(&mut self, _ctx: &Context, view: ViewKind) {
-        let dir = self.doc.path.as_ref().and_then(|p| p.parent().map(Path::to_path_buf)).unwrap_or_default();
-        self.files.ask_path(Purpose::Png(view), Some(dir.join(format!("{}.png", view.file_stem()))));
+        let dir = self
+            .doc
+            .path
+            .as_ref()
+            .and_then(|p| p.parent().map(Path::to_path_buf))
+            .unwrap_or_default();
+        self.files.ask_path(
+            Purpose::Png(view),
+            Some(dir.join(format!("{}.png", view.file_stem()))),
+        );
     }
 
     /// Asks for a screenshot; the PNG is written when it arrives.
@@ -101,19 +117,28 @@ impl ExplorerApp {
         self.layout.png_request = Some(PngRequest { view, path });
         let slot = std::sync::Arc::clone(&self.layout.screenshot);
         let repaint = ctx.clone();
-        ctx.send_viewport_cmd(egui::ViewportCommand::Screenshot(egui::ScreenshotCallback::new(move |image| {
-            if let Ok(mut s) = slot.lock() {
-                *s = Some(image);
-            }
-            repaint.request_repaint();
-        })));
+        ctx.send_viewport_cmd(egui::ViewportCommand::Screenshot(
+            egui::ScreenshotCallback::new(move |image| {
+                if let Ok(mut s) = slot.lock() {
+                    *s = Some(image);
+                }
+                repaint.request_repaint();
+            }),
+        ));
         ctx.request_repaint();
     }
 
     /// Handles a screenshot event: crops the requested view and writes it at the chosen size.
     pub(crate) fn receive_screenshot(&mut self, ctx: &Context) {
-        let shot = self.layout.screenshot.lock().ok().and_then(|mut s| s.take());
-        let (Some(image), Some(request)) = (shot, self.layout.png_request.take()) else { return };
+        let shot = self
+            .layout
+            .screenshot
+            .lock()
+            .ok()
+            .and_then(|mut s| s.take());
+        let (Some(image), Some(request)) = (shot, self.layout.png_request.take()) else {
+            return;
+        };
         let Some(rect) = self.layout.view_rects.get(&request.view).copied() else {
             self.note("that view is not on screen: show it, then export");
             return;
@@ -128,17 +153,33 @@ impl ExplorerApp {
         for y in y0..y1 {
             for x in x0..x1 {
                 let c = image.pixels[y * w + x];
-                buffer.put_pixel((x - x0) as u32, (y - y0) as u32, image::Rgba([c.r(), c.g(), c.b(), 255]));
+                buffer.put_pixel(
+                    (x - x0) as u32,
+                    (y - y0) as u32,
+                    image::Rgba([c.r(), c.g(), c.b(), 255]),
+                );
             }
         }
         let [tw, th] = self.settings.png_size;
-        let resized = image::imageops::resize(&buffer, tw.max(16), th.max(16), image::imageops::FilterType::Lanczos3);
+        let resized = image::imageops::resize(
+            &buffer,
+            tw.max(16),
+            th.max(16),
+            image::imageops::FilterType::Lanczos3,
+        );
         let mut bytes = Vec::new();
-        let encoded = resized.write_to(&mut std::io::Cursor::new(&mut bytes), image::ImageFormat::Png);
+        let encoded = resized.write_to(
+            &mut std::io::Cursor::new(&mut bytes),
+            image::ImageFormat::Png,
+        );
         let written = encoded.map_err(|e| e.to_string()).and_then(|()| {
             lamina_export::write_atomically(&request.path, |f| {
                 use std::io::Write;
-                f.write_all(&bytes).map_err(|e| lamina_export::ExportError::Io { path: request.path.display().to_string(), source: e })
+                f.write_all(&bytes)
+                    .map_err(|e| lamina_export::ExportError::Io {
+                        path: request.path.display().to_string(),
+                        source: e,
+                    })
             })
             .map_err(|e| e.to_string())
         });

@@ -83,7 +83,10 @@ impl Files {
         let recovery_offer = if recovery {
             recovery_paths().and_then(|(ron, path)| {
                 let text = std::fs::read_to_string(ron).ok()?;
-                let original = std::fs::read_to_string(path).ok().map(PathBuf::from).filter(|p| !p.as_os_str().is_empty());
+                let original = std::fs::read_to_string(path)
+                    .ok()
+                    .map(PathBuf::from)
+                    .filter(|p| !p.as_os_str().is_empty());
                 Some((text, original))
             })
         } else {
@@ -107,7 +110,9 @@ impl Files {
     /// Asks for a path: a desktop dialog on a helper thread, or the path field.
     pub fn ask_path(&mut self, purpose: Purpose, suggested: Option<PathBuf>) {
         if !self.native {
-            let text = suggested.map(|p| p.display().to_string()).unwrap_or_default();
+            let text = suggested
+                .map(|p| p.display().to_string())
+                .unwrap_or_default();
             self.prompt = Some((purpose, text, None));
             return;
         }
@@ -116,37 +121,45 @@ impl Files {
         }
         let (tx, rx) = channel();
         self.dialog = Some(rx);
-        let spawned = std::thread::Builder::new().name("lamina-file-dialog".into()).spawn(move || {
-            let started = Instant::now();
-            let mut dialog = rfd::FileDialog::new();
-            let (name, ext) = match &purpose {
-                Purpose::Open | Purpose::Save => ("Lamina scenario", "ron"),
-                Purpose::Csv(_) => ("CSV", "csv"),
-                Purpose::Png(_) => ("PNG image", "png"),
-            };
-            dialog = dialog.add_filter(name, &[ext]);
-            if let Some(s) = &suggested {
-                if let Some(dir) = s.parent() {
-                    dialog = dialog.set_directory(dir);
+        let spawned = std::thread::Builder::new()
+            .name("lamina-file-dialog".into())
+            .spawn(move || {
+                let started = Instant::now();
+                let mut dialog = rfd::FileDialog::new();
+                let (name, ext) = match &purpose {
+                    Purpose::Open | Purpose::Save => ("Lamina scenario", "ron"),
+                    Purpose::Csv(_) => ("CSV", "csv"),
+                    Purpose::Png(_) => ("PNG image", "png"),
+                };
+                dialog = dialog.add_filter(name, &[ext]);
+                if let Some(s) = &suggested {
+                    if let Some(dir) = s.parent() {
+                        dialog = dialog.set_directory(dir);
+                    }
+                    if let Some(file) = s.file_name() {
+                        dialog = dialog.set_file_name(file.to_string_lossy());
+                    }
                 }
-                if let Some(file) = s.file_name() {
-                    dialog = dialog.set_file_name(file.to_string_lossy());
-                }
-            }
-            let picked = match purpose {
-                Purpose::Open => dialog.pick_file(),
-                _ => dialog.save_file(),
-            };
-            let answer = match picked {
-                Some(path) => DialogAnswer::Picked(purpose, path),
-                None if started.elapsed() < DIALOG_NOT_SHOWN => DialogAnswer::Unavailable(purpose),
-                None => DialogAnswer::Cancelled,
-            };
-            let _ = tx.send(answer);
-        });
+                let picked = match purpose {
+                    Purpose::Open => dialog.pick_file(),
+                    _ => dialog.save_file(),
+                };
+                let answer = match picked {
+                    Some(path) => DialogAnswer::Picked(purpose, path),
+                    None if started.elapsed() < DIALOG_NOT_SHOWN => {
+                        DialogAnswer::Unavailable(purpose)
+                    }
+                    None => DialogAnswer::Cancelled,
+                };
+                let _ = tx.send(answer);
+            });
         if spawned.is_err() {
             self.dialog = None;
-            self.prompt = Some((Purpose::Open, String::new(), Some("no file dialog available: type a path".into())));
+            self.prompt = Some((
+                Purpose::Open,
+                String::new(),
+                Some("no file dialog available: type a path".into()),
+            ));
         }
     }
 }
@@ -166,12 +179,17 @@ impl ExplorerApp {
                         }
                     }
                 }
-                Err(std::sync::mpsc::TryRecvError::Empty) => ctx.request_repaint_after(Duration::from_millis(100)),
+                Err(std::sync::mpsc::TryRecvError::Empty) => {
+                    ctx.request_repaint_after(Duration::from_millis(100))
+                }
                 Err(std::sync::mpsc::TryRecvError::Disconnected) => self.files.dialog = None,
             }
         }
         self.write_recovery();
-        if ctx.input(|i| i.viewport().close_requested()) && !self.files.closing && self.doc.is_dirty() {
+        if ctx.input(|i| i.viewport().close_requested())
+            && !self.files.closing
+            && self.doc.is_dirty()
+        {
             ctx.send_viewport_cmd(egui::ViewportCommand::CancelClose);
             self.files.confirm = Some(Pending::Quit);
         }
@@ -181,23 +199,37 @@ impl ExplorerApp {
         if !self.files.recovery || self.files.recovery_offer.is_some() {
             return;
         }
-        let Some((ron_path, path_path)) = recovery_paths() else { return };
+        let Some((ron_path, path_path)) = recovery_paths() else {
+            return;
+        };
         if !self.doc.is_dirty() {
             return;
         }
-        let due = self.files.last_recovery_write.is_none_or(|t| t.elapsed() >= RECOVERY_EVERY);
+        let due = self
+            .files
+            .last_recovery_write
+            .is_none_or(|t| t.elapsed() >= RECOVERY_EVERY);
         if !due || self.files.recovery_revision == self.doc.revision {
             return;
         }
         self.files.last_recovery_write = Some(Instant::now());
         self.files.recovery_revision = self.doc.revision;
         let text = lamina_scenario::to_ron_string(&self.doc.scenario);
-        let original = self.doc.path.as_ref().map(|p| p.display().to_string()).unwrap_or_default();
+        let original = self
+            .doc
+            .path
+            .as_ref()
+            .map(|p| p.display().to_string())
+            .unwrap_or_default();
         let _ = std::fs::create_dir_all(ron_path.parent().unwrap_or(&ron_path));
         let write = |path: &PathBuf, contents: &str| {
             lamina_export::write_atomically(path, |f| {
                 use std::io::Write;
-                f.write_all(contents.as_bytes()).map_err(|e| lamina_export::ExportError::Io { path: path.display().to_string(), source: e })
+                f.write_all(contents.as_bytes())
+                    .map_err(|e| lamina_export::ExportError::Io {
+                        path: path.display().to_string(),
+                        source: e,
+                    })
             })
         };
         if write(&ron_path, &text).is_ok() {
@@ -263,7 +295,13 @@ impl ExplorerApp {
             let n = self.doc.scenario.states.len();
             self.settings.space.axes = [0, 1.min(n.saturating_sub(1)), 2.min(n.saturating_sub(1))];
         }
-        if let Some(camera) = self.doc.scenario.view.as_ref().and_then(|v| v.camera.as_ref()) {
+        if let Some(camera) = self
+            .doc
+            .scenario
+            .view
+            .as_ref()
+            .and_then(|v| v.camera.as_ref())
+        {
             self.settings.space.yaw = camera.yaw_deg.to_radians() as f32;
             self.settings.space.pitch = camera.pitch_deg.to_radians() as f32;
             self.settings.space.zoom = camera.zoom as f32;
@@ -303,7 +341,12 @@ impl ExplorerApp {
                 self.save_to(path);
             }
             _ => {
-                let suggested = self.doc.path.clone().or_else(|| Some(PathBuf::from(format!("{}.ron", slug(&self.doc.scenario.title)))));
+                let suggested = self.doc.path.clone().or_else(|| {
+                    Some(PathBuf::from(format!(
+                        "{}.ron",
+                        slug(&self.doc.scenario.title)
+                    )))
+                });
                 self.files.ask_path(Purpose::Save, suggested);
             }
         }
@@ -337,7 +380,9 @@ impl ExplorerApp {
 
     fn proceed_without_ctx(&mut self, pending: Pending) {
         match pending {
-            Pending::Open => self.files.ask_path(Purpose::Open, self.settings.recent.first().cloned()),
+            Pending::Open => self
+                .files
+                .ask_path(Purpose::Open, self.settings.recent.first().cloned()),
             Pending::OpenPath(path) => self.open_path(path),
             Pending::New => {
                 self.stop_run();
@@ -375,7 +420,16 @@ impl ExplorerApp {
 
 /// A file-name-friendly version of a title.
 fn slug(title: &str) -> String {
-    let s: String = title.chars().map(|c| if c.is_ascii_alphanumeric() { c.to_ascii_lowercase() } else { '_' }).collect();
+    let s: String = title
+        .chars()
+        .map(|c| {
+            if c.is_ascii_alphanumeric() {
+                c.to_ascii_lowercase()
+            } else {
+                '_'
+            }
+        })
+        .collect();
     let s = s.trim_matches('_').to_string();
     if s.is_empty() { "scenario".into() } else { s }
 }
@@ -387,12 +441,23 @@ pub fn dialogs(app: &mut ExplorerApp, ctx: &Context, actions: &mut Vec<Action>) 
         let mut answer = None;
         egui::Modal::new(egui::Id::unique("confirm_discard")).show(ctx, |ui| {
             ui.heading("Unsaved changes");
-            ui.label(format!("“{}” has changes that are not saved.", app.doc.scenario.title));
+            ui.label(format!(
+                "“{}” has changes that are not saved.",
+                app.doc.scenario.title
+            ));
             ui.horizontal(|ui| {
-                if ui.button("Save").on_hover_text("Save, then go on").clicked() {
+                if ui
+                    .button("Save")
+                    .on_hover_text("Save, then go on")
+                    .clicked()
+                {
                     answer = Some(0);
                 }
-                if ui.button("Discard changes").on_hover_text("Go on without saving").clicked() {
+                if ui
+                    .button("Discard changes")
+                    .on_hover_text("Go on without saving")
+                    .clicked()
+                {
                     answer = Some(1);
                 }
                 if ui.button("Cancel").on_hover_text("Stay here").clicked() {
@@ -435,7 +500,9 @@ pub fn dialogs(app: &mut ExplorerApp, ctx: &Context, actions: &mut Vec<Action>) 
                 ui.label(m);
             }
             let label = ui.label("path");
-            let response = ui.add(egui::TextEdit::singleline(&mut text).desired_width(420.0)).labelled_by(label.id);
+            let response = ui
+                .add(egui::TextEdit::singleline(&mut text).desired_width(420.0))
+                .labelled_by(label.id);
             if response.lost_focus() && ui.input(|i| i.key_pressed(egui::Key::Enter)) {
                 done = Some(true);
             }
@@ -449,7 +516,9 @@ pub fn dialogs(app: &mut ExplorerApp, ctx: &Context, actions: &mut Vec<Action>) 
             });
         });
         match done {
-            Some(true) if !text.trim().is_empty() => app.path_chosen(ctx, purpose, PathBuf::from(text.trim())),
+            Some(true) if !text.trim().is_empty() => {
+                app.path_chosen(ctx, purpose, PathBuf::from(text.trim()))
+            }
             Some(_) => app.files.after_save = None,
             None => app.files.prompt = Some((purpose, text, message)),
         }
@@ -493,9 +562,13 @@ pub fn dialogs(app: &mut ExplorerApp, ctx: &Context, actions: &mut Vec<Action>) 
     }
     if let Some(message) = app.files.alert.clone() {
         let mut open = true;
-        egui::Window::new("Problem").collapsible(false).resizable(false).open(&mut open).show(ctx, |ui| {
-            ui.label(&message);
-        });
+        egui::Window::new("Problem")
+            .collapsible(false)
+            .resizable(false)
+            .open(&mut open)
+            .show(ctx, |ui| {
+                ui.label(&message);
+            });
         if !open {
             app.files.alert = None;
         }

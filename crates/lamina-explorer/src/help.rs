@@ -17,22 +17,32 @@ pub const SHORTCUTS: &[(&str, &str)] = &[
     ("Ctrl+S", "Save"),
     ("Ctrl+Shift+S", "Save as"),
     ("F1", "This list"),
-    ("drag in 3D view", "Turn the view (drag the round handle to move the cut plane)"),
+    (
+        "drag in 3D view",
+        "Turn the view (drag the round handle to move the cut plane)",
+    ),
     ("wheel in a view", "Zoom"),
     ("double-click a view", "Fit the view to the data"),
 ];
 
 /// The shortcuts window.
 pub fn shortcuts_window(ctx: &Context, open: &mut bool) {
-    egui::Window::new("Keyboard shortcuts").open(open).resizable(false).collapsible(false).show(ctx, |ui| {
-        egui::Grid::new("shortcuts").num_columns(2).striped(true).show(ui, |ui| {
-            for (keys, what) in SHORTCUTS {
-                ui.label(RichText::new(*keys).monospace());
-                ui.label(*what);
-                ui.end_row();
-            }
+    egui::Window::new("Keyboard shortcuts")
+        .open(open)
+        .resizable(false)
+        .collapsible(false)
+        .show(ctx, |ui| {
+            egui::Grid::new("shortcuts")
+                .num_columns(2)
+                .striped(true)
+                .show(ui, |ui| {
+                    for (keys, what) in SHORTCUTS {
+                        ui.label(RichText::new(*keys).monospace());
+                        ui.label(*what);
+                        ui.end_row();
+                    }
+                });
         });
-    });
 }
 
 /// The About box.

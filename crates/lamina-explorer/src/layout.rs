@@ -75,10 +75,18 @@ pub fn menu_bar(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
     egui::Panel::top("menu_bar").show(ui, |ui| {
         egui::MenuBar::new().ui(ui, |ui| {
             ui.menu_button("File", |ui| {
-                if ui.button("New").on_hover_text("Start a new scenario (Ctrl+N)").clicked() {
+                if ui
+                    .button("New")
+                    .on_hover_text("Start a new scenario (Ctrl+N)")
+                    .clicked()
+                {
                     actions.push(Action::New);
                 }
-                if ui.button("Open…").on_hover_text("Open a scenario file (Ctrl+O)").clicked() {
+                if ui
+                    .button("Open…")
+                    .on_hover_text("Open a scenario file (Ctrl+O)")
+                    .clicked()
+                {
                     actions.push(Action::Open);
                 }
                 ui.menu_button("Open recent", |ui| {
@@ -99,15 +107,27 @@ pub fn menu_bar(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
                     }
                 });
                 ui.separator();
-                if ui.button("Save").on_hover_text("Save the scenario (Ctrl+S)").clicked() {
+                if ui
+                    .button("Save")
+                    .on_hover_text("Save the scenario (Ctrl+S)")
+                    .clicked()
+                {
                     actions.push(Action::Save);
                 }
-                if ui.button("Save as…").on_hover_text("Save under a new name (Ctrl+Shift+S)").clicked() {
+                if ui
+                    .button("Save as…")
+                    .on_hover_text("Save under a new name (Ctrl+Shift+S)")
+                    .clicked()
+                {
                     actions.push(Action::SaveAs);
                 }
                 ui.separator();
                 ui.menu_button("Export CSV", |ui| {
-                    for (set, text) in [(PointSet::Cut, "Cut points"), (PointSet::Strobe, "Strobe samples"), (PointSet::Trajectory, "Trajectory")] {
+                    for (set, text) in [
+                        (PointSet::Cut, "Cut points"),
+                        (PointSet::Strobe, "Strobe samples"),
+                        (PointSet::Trajectory, "Trajectory"),
+                    ] {
                         if ui.button(text).clicked() {
                             actions.push(Action::ExportCsv(set));
                         }
@@ -116,11 +136,25 @@ pub fn menu_bar(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
                 ui.menu_button("Export PNG", |ui| {
                     ui.horizontal(|ui| {
                         ui.label("size");
-                        ui.add(egui::DragValue::new(&mut app.settings.png_size[0]).range(16..=8000).suffix(" px"));
+                        ui.add(
+                            egui::DragValue::new(&mut app.settings.png_size[0])
+                                .range(16..=8000)
+                                .suffix(" px"),
+                        );
                         ui.label("×");
-                        ui.add(egui::DragValue::new(&mut app.settings.png_size[1]).range(16..=8000).suffix(" px"));
+                        ui.add(
+                            egui::DragValue::new(&mut app.settings.png_size[1])
+                                .range(16..=8000)
+                                .suffix(" px"),
+                        );
                     });
-                    for view in [ViewKind::Trajectory, ViewKind::Cut, ViewKind::Strobe, ViewKind::ReturnTimes, ViewKind::ReturnMap] {
+                    for view in [
+                        ViewKind::Trajectory,
+                        ViewKind::Cut,
+                        ViewKind::Strobe,
+                        ViewKind::ReturnTimes,
+                        ViewKind::ReturnMap,
+                    ] {
                         if ui.button(view.title()).clicked() {
                             actions.push(Action::ExportPng(view));
                         }
@@ -154,27 +188,48 @@ pub fn menu_bar(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
 
 fn run_buttons(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
     let running = app.is_running();
-    let error = app.doc.first_error().map(|p| format!("{}: {}", p.field, p.message));
-    let run = ui.add_enabled(error.is_none(), egui::Button::new(RichText::new("▶ Run").strong()));
+    let error = app
+        .doc
+        .first_error()
+        .map(|p| format!("{}: {}", p.field, p.message));
+    let run = ui.add_enabled(
+        error.is_none(),
+        egui::Button::new(RichText::new("▶ Run").strong()),
+    );
     let run = match &error {
         Some(reason) => run.on_disabled_hover_text(format!("Fix this first — {reason}")),
-        None => run.on_hover_text("Integrate from the start and record cut points and strobe samples (F5)"),
+        None => run.on_hover_text(
+            "Integrate from the start and record cut points and strobe samples (F5)",
+        ),
     };
     if run.clicked() {
         actions.push(Action::Run);
     }
-    if ui.add_enabled(running, egui::Button::new("■ Stop")).on_hover_text("Stop the run (Esc)").clicked() {
+    if ui
+        .add_enabled(running, egui::Button::new("■ Stop"))
+        .on_hover_text("Stop the run (Esc)")
+        .clicked()
+    {
         actions.push(Action::Stop);
     }
     let can_continue = !running && app.results.run.is_some();
-    if ui.add_enabled(can_continue, egui::Button::new("⏩ Continue")).on_hover_text("Integrate another span from where the run ended (Shift+F5)").clicked() {
+    if ui
+        .add_enabled(can_continue, egui::Button::new("⏩ Continue"))
+        .on_hover_text("Integrate another span from where the run ended (Shift+F5)")
+        .clicked()
+    {
         actions.push(Action::Continue);
     }
     if let Some(reason) = error {
         let first_line = reason.lines().next().unwrap_or("").to_string();
-        ui.label(RichText::new(format!("Run is off: {first_line}")).color(crate::widgets::ERROR_COLOUR));
+        ui.label(
+            RichText::new(format!("Run is off: {first_line}")).color(crate::widgets::ERROR_COLOUR),
+        );
     } else if app.execution.stale && !running {
-        ui.label(RichText::new("model changed — press Run to see it").color(crate::widgets::WARNING_COLOUR));
+        ui.label(
+            RichText::new("model changed — press Run to see it")
+                .color(crate::widgets::WARNING_COLOUR),
+        );
     }
 }
 
@@ -185,10 +240,18 @@ pub fn status_bar(app: &ExplorerApp, ui: &mut Ui) {
             let r = &app.results;
             let (text, colour) = match &r.state {
                 RunState::Idle => ("idle".to_string(), Color32::GRAY),
-                RunState::Running => (format!("running {:.0}%", 100.0 * r.fraction), Color32::from_rgb(120, 190, 240)),
+                RunState::Running => (
+                    format!("running {:.0}%", 100.0 * r.fraction),
+                    Color32::from_rgb(120, 190, 240),
+                ),
                 RunState::Finished => ("finished".to_string(), Color32::from_rgb(120, 200, 140)),
-                RunState::Cancelled => (format!("cancelled at t = {:.6}", r.t_reached), Color32::from_rgb(220, 180, 90)),
-                RunState::Stopped(reason) => (format!("stopped: {reason}"), crate::widgets::ERROR_COLOUR),
+                RunState::Cancelled => (
+                    format!("cancelled at t = {:.6}", r.t_reached),
+                    Color32::from_rgb(220, 180, 90),
+                ),
+                RunState::Stopped(reason) => {
+                    (format!("stopped: {reason}"), crate::widgets::ERROR_COLOUR)
+                }
             };
             ui.label(RichText::new(text).color(colour).strong());
             ui.separator();
@@ -207,61 +270,114 @@ pub fn status_bar(app: &ExplorerApp, ui: &mut Ui) {
 
 /// The return-time sequence, the first-return map and the message log.
 pub fn lower_views(app: &mut ExplorerApp, ui: &mut Ui) {
-    egui::Panel::bottom("lower_views").resizable(true).default_size(200.0).min_size(120.0).show(ui, |ui| {
-        let width = ui.available_width();
-        let height = ui.available_height();
-        ui.horizontal(|ui| {
-            let third = (width - 16.0) / 3.0;
-            let source_is_cut = !app.results.cut.is_empty() || app.results.strobe.is_empty();
-            ui.allocate_ui(vec2(third, height), |ui| {
-                ui.label(RichText::new(if source_is_cut { "Return times (cut)" } else { "Sample spacing (strobe)" }).small().strong());
-                let cloud = if source_is_cut { &app.results.cut } else { &app.results.strobe };
-                let r = series::return_times_ui(ui, cloud, if source_is_cut { "cut" } else { "strobe" });
-                app.layout.view_rects.insert(ViewKind::ReturnTimes, r);
-            });
-            ui.separator();
-            ui.allocate_ui(vec2(third, height), |ui| {
-                ui.label(RichText::new("First-return map").small().strong());
-                let cloud = if source_is_cut { &app.results.cut } else { &app.results.strobe };
-                let r = series::first_return_map_ui(ui, cloud, &app.results.names, &mut app.settings.map_coordinate);
-                app.layout.view_rects.insert(ViewKind::ReturnMap, r);
-            });
-            ui.separator();
-            ui.allocate_ui(vec2(third, height), |ui| {
-                ui.label(RichText::new("Messages").small().strong());
-                egui::ScrollArea::vertical().stick_to_bottom(true).auto_shrink([false, false]).show(ui, |ui| {
-                    let start = app.log.first().map(|(t, _)| *t);
-                    for (t, line) in &app.log {
-                        let secs = start.map_or(0.0, |s| t.duration_since(s).as_secs_f64());
-                        ui.label(RichText::new(format!("{secs:7.1} s  {line}")).monospace().small());
-                    }
+    egui::Panel::bottom("lower_views")
+        .resizable(true)
+        .default_size(200.0)
+        .min_size(120.0)
+        .show(ui, |ui| {
+            let width = ui.available_width();
+            let height = ui.available_height();
+            ui.horizontal(|ui| {
+                let third = (width - 16.0) / 3.0;
+                let source_is_cut = !app.results.cut.is_empty() || app.results.strobe.is_empty();
+                ui.allocate_ui(vec2(third, height), |ui| {
+                    ui.label(
+                        RichText::new(if source_is_cut {
+                            "Return times (cut)"
+                        } else {
+                            "Sample spacing (strobe)"
+                        })
+                        .small()
+                        .strong(),
+                    );
+                    let cloud = if source_is_cut {
+                        &app.results.cut
+                    } else {
+                        &app.results.strobe
+                    };
+                    let r = series::return_times_ui(
+                        ui,
+                        cloud,
+                        if source_is_cut { "cut" } else { "strobe" },
+                    );
+                    app.layout.view_rects.insert(ViewKind::ReturnTimes, r);
+                });
+                ui.separator();
+                ui.allocate_ui(vec2(third, height), |ui| {
+                    ui.label(RichText::new("First-return map").small().strong());
+                    let cloud = if source_is_cut {
+                        &app.results.cut
+                    } else {
+                        &app.results.strobe
+                    };
+                    let r = series::first_return_map_ui(
+                        ui,
+                        cloud,
+                        &app.results.names,
+                        &mut app.settings.map_coordinate,
+                    );
+                    app.layout.view_rects.insert(ViewKind::ReturnMap, r);
+                });
+                ui.separator();
+                ui.allocate_ui(vec2(third, height), |ui| {
+                    ui.label(RichText::new("Messages").small().strong());
+                    egui::ScrollArea::vertical()
+                        .stick_to_bottom(true)
+                        .auto_shrink([false, false])
+                        .show(ui, |ui| {
+                            let start = app.log.first().map(|(t, _)| *t);
+                            for (t, line) in &app.log {
+                                let secs = start.map_or(0.0, |s| t.duration_since(s).as_secs_f64());
+                                ui.label(
+                                    RichText::new(format!("{secs:7.1} s  {line}"))
+                                        .monospace()
+                                        .small(),
+                                );
+                            }
+                        });
                 });
             });
         });
-    });
 }
 
 /// The plane of the scenario's cut as seen in the 3D view's coordinates, with the part of the
 /// offset owed to states that are not shown (taken at their mean along the trajectory).
 fn plane_in_view(app: &ExplorerApp) -> Option<(PlaneGeometry, f64)> {
     let cut = app.doc.scenario.cut.as_ref()?;
-    let Surface::Plane { normal, offset } = &cut.surface else { return None };
+    let Surface::Plane { normal, offset } = &cut.surface else {
+        return None;
+    };
     let names = &app.results.names;
     let axes = app.settings.space.axes;
-    let weight = |idx: usize| names.get(idx).and_then(|n| normal.0.iter().find(|(m, _)| m == n)).map_or(0.0, |(_, w)| *w);
+    let weight = |idx: usize| {
+        names
+            .get(idx)
+            .and_then(|n| normal.0.iter().find(|(m, _)| m == n))
+            .map_or(0.0, |(_, w)| *w)
+    };
     let traj = &app.results.trajectory;
     let mut hidden = 0.0;
     for (idx, name) in names.iter().enumerate() {
         if axes.contains(&idx) {
             continue;
         }
-        let w = normal.0.iter().find(|(m, _)| m == name).map_or(0.0, |(_, w)| *w);
+        let w = normal
+            .0
+            .iter()
+            .find(|(m, _)| m == name)
+            .map_or(0.0, |(_, w)| *w);
         if w != 0.0 && !traj.is_empty() {
             let mean = (0..traj.len()).map(|i| traj.state(i)[idx]).sum::<f64>() / traj.len() as f64;
             hidden += w * mean;
         }
     }
-    Some((PlaneGeometry { normal: [weight(axes[0]), weight(axes[1]), weight(axes[2])], offset: offset - hidden }, hidden))
+    Some((
+        PlaneGeometry {
+            normal: [weight(axes[0]), weight(axes[1]), weight(axes[2])],
+            offset: offset - hidden,
+        },
+        hidden,
+    ))
 }
 
 /// The three main views side by side, resizable, each with a maximise button.
@@ -273,28 +389,46 @@ pub fn main_views(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>)
             _ => vec![0, 1, 2],
         };
         let gap = 8.0;
-        let total_weight: f32 = shown.iter().map(|&i| app.settings.tile_weights[i].max(0.05)).sum();
+        let total_weight: f32 = shown
+            .iter()
+            .map(|&i| app.settings.tile_weights[i].max(0.05))
+            .sum();
         let usable = full.width() - gap * (shown.len() as f32 - 1.0);
         let mut x = full.left();
         let mut rects = Vec::new();
         for &i in &shown {
             let w = usable * app.settings.tile_weights[i].max(0.05) / total_weight;
-            rects.push((i, Rect::from_min_size(egui::pos2(x, full.top()), vec2(w, full.height()))));
+            rects.push((
+                i,
+                Rect::from_min_size(egui::pos2(x, full.top()), vec2(w, full.height())),
+            ));
             x += w + gap;
         }
         // splitters between tiles
         for pair in rects.windows(2) {
             let (a, ra) = pair[0];
             let (b, _) = pair[1];
-            let handle = Rect::from_min_max(egui::pos2(ra.right(), full.top()), egui::pos2(ra.right() + gap, full.bottom()));
+            let handle = Rect::from_min_max(
+                egui::pos2(ra.right(), full.top()),
+                egui::pos2(ra.right() + gap, full.bottom()),
+            );
             let response = ui.interact(handle, ui.scope_id().with(("splitter", a)), Sense::drag());
             if response.hovered() || response.dragged() {
                 ui.ctx().set_cursor_icon(egui::CursorIcon::ResizeHorizontal);
             }
-            ui.painter().line_segment([handle.center_top(), handle.center_bottom()], egui::Stroke::new(if response.dragged() { 2.0 } else { 1.0 }, Color32::from_gray(70)));
+            ui.painter().line_segment(
+                [handle.center_top(), handle.center_bottom()],
+                egui::Stroke::new(
+                    if response.dragged() { 2.0 } else { 1.0 },
+                    Color32::from_gray(70),
+                ),
+            );
             if response.dragged() {
                 let dx = response.drag_delta().x / usable * total_weight;
-                let (wa, wb) = (app.settings.tile_weights[a] + dx, app.settings.tile_weights[b] - dx);
+                let (wa, wb) = (
+                    app.settings.tile_weights[a] + dx,
+                    app.settings.tile_weights[b] - dx,
+                );
                 if wa > 0.15 && wb > 0.15 {
                     app.settings.tile_weights[a] = wa;
                     app.settings.tile_weights[b] = wb;
@@ -311,15 +445,33 @@ pub fn main_views(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>)
     app.receive_screenshot(&ctx);
 }
 
-fn tile_ui(app: &mut ExplorerApp, ui: &mut Ui, kind: ViewKind, index: usize, actions: &mut Vec<Action>) {
+fn tile_ui(
+    app: &mut ExplorerApp,
+    ui: &mut Ui,
+    kind: ViewKind,
+    index: usize,
+    actions: &mut Vec<Action>,
+) {
     ui.horizontal(|ui| {
         ui.label(RichText::new(kind.title()).strong());
         ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
             let maximised = app.settings.maximised == Some(index);
-            if ui.small_button(if maximised { "⊟" } else { "⛶" }).on_hover_text(if maximised { "Back to three views" } else { "Fill the window with this view" }).clicked() {
+            if ui
+                .small_button(if maximised { "⊟" } else { "⛶" })
+                .on_hover_text(if maximised {
+                    "Back to three views"
+                } else {
+                    "Fill the window with this view"
+                })
+                .clicked()
+            {
                 app.settings.maximised = if maximised { None } else { Some(index) };
             }
-            if ui.small_button("PNG").on_hover_text("Export this view as a PNG at the size set in File ▸ Export PNG").clicked() {
+            if ui
+                .small_button("PNG")
+                .on_hover_text("Export this view as a PNG at the size set in File ▸ Export PNG")
+                .clicked()
+            {
                 actions.push(Action::ExportPng(kind));
             }
             let colour = match kind {
@@ -332,7 +484,11 @@ fn tile_ui(app: &mut ExplorerApp, ui: &mut Ui, kind: ViewKind, index: usize, act
                     ColourBy::Arrival => "colour: order",
                     ColourBy::ReturnTime => "colour: return time",
                 };
-                if ui.small_button(text).on_hover_text("Colour points by order of arrival or by return time").clicked() {
+                if ui
+                    .small_button(text)
+                    .on_hover_text("Colour points by order of arrival or by return time")
+                    .clicked()
+                {
                     *colour = match colour {
                         ColourBy::Arrival => ColourBy::ReturnTime,
                         ColourBy::ReturnTime => ColourBy::Arrival,
@@ -371,19 +527,39 @@ fn tile_ui(app: &mut ExplorerApp, ui: &mut Ui, kind: ViewKind, index: usize, act
         }
         ViewKind::Cut | ViewKind::Strobe => {
             let (cloud, axes, colour, view) = if kind == ViewKind::Cut {
-                (&app.results.cut, app.doc.scenario.cut_axes(), app.settings.cut_colour, &mut app.layout.cut_view)
+                (
+                    &app.results.cut,
+                    app.doc.scenario.cut_axes(),
+                    app.settings.cut_colour,
+                    &mut app.layout.cut_view,
+                )
             } else {
-                (&app.results.strobe, app.doc.scenario.strobe_axes(), app.settings.strobe_colour, &mut app.layout.strobe_view)
+                (
+                    &app.results.strobe,
+                    app.doc.scenario.strobe_axes(),
+                    app.settings.strobe_colour,
+                    &mut app.layout.strobe_view,
+                )
             };
             let Some(axes) = axes else {
-                ui.label(if kind == ViewKind::Cut { "No cut: switch it on in the model panel." } else { "No strobe: switch it on in the model panel." });
+                ui.label(if kind == ViewKind::Cut {
+                    "No cut: switch it on in the model panel."
+                } else {
+                    "No strobe: switch it on in the model panel."
+                });
                 return;
             };
-            let id = if kind == ViewKind::Cut { "cut_view" } else { "strobe_view" };
+            let id = if kind == ViewKind::Cut {
+                "cut_view"
+            } else {
+                "strobe_view"
+            };
             let height = ui.available_height() - 22.0;
             let mut clicked = None;
             ui.allocate_ui(vec2(ui.available_width(), height.max(40.0)), |ui| {
-                clicked = view.ui(ui, id, &app.results.names, cloud, axes, colour, &[]).clicked;
+                clicked = view
+                    .ui(ui, id, &app.results.names, cloud, axes, colour, &[])
+                    .clicked;
             });
             let selected = clicked.or(view.selected).filter(|&s| s < cloud.len());
             ui.horizontal(|ui| match selected {
@@ -396,12 +572,20 @@ fn tile_ui(app: &mut ExplorerApp, ui: &mut Ui, kind: ViewKind, index: usize, act
                         text.push_str(&format!(", {name} = {v}"));
                     }
                     ui.label(RichText::new(&text).monospace().small());
-                    if ui.small_button("copy").on_hover_text("Copy this point's values to the clipboard").clicked() {
+                    if ui
+                        .small_button("copy")
+                        .on_hover_text("Copy this point's values to the clipboard")
+                        .clicked()
+                    {
                         ui.ctx().copy_text(text);
                     }
                 }
                 None => {
-                    ui.label(RichText::new("click a point to see its values").weak().small());
+                    ui.label(
+                        RichText::new("click a point to see its values")
+                            .weak()
+                            .small(),
+                    );
                 }
             });
         }

@@ -41,8 +41,15 @@ pub fn run_window(file: Option<PathBuf>) -> Result<(), String> {
         "Lamina",
         native,
         Box::new(move |cc| {
-            let settings = cc.storage.and_then(settings::Settings::load).unwrap_or_default();
-            let options = Options { native_dialogs: true, recovery: true, ..Options::default() };
+            let settings = cc
+                .storage
+                .and_then(settings::Settings::load)
+                .unwrap_or_default();
+            let options = Options {
+                native_dialogs: true,
+                recovery: true,
+                ..Options::default()
+            };
             Ok(Box::new(ExplorerApp::new(file, settings, options)))
         }),
     )

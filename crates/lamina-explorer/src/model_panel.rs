@@ -2,7 +2,9 @@
 //! strobe, each field checked as it is typed with the message shown in place.
 
 use egui::{ComboBox, Id, RichText, Ui};
-use lamina_scenario::{Cut, Direction, MethodChoice, Parameter, Scenario, State, Strobe, Surface, Weights};
+use lamina_scenario::{
+    Cut, Direction, MethodChoice, Parameter, Scenario, State, Strobe, Surface, Weights,
+};
 
 use crate::document::{Document, rename_everywhere};
 use crate::widgets::{ERROR_COLOUR, number_field, problems_ui};
@@ -35,32 +37,52 @@ impl PanelChanges {
 /// Draws the whole panel for `doc`.
 pub fn model_panel_ui(ui: &mut Ui, doc: &mut Document) -> PanelChanges {
     let mut changes = PanelChanges::default();
-    egui::ScrollArea::vertical().auto_shrink([false, false]).show(ui, |ui| {
-        ui.horizontal(|ui| {
-            let label = ui.label("Title");
-            if ui.add(egui::TextEdit::singleline(&mut doc.scenario.title).desired_width(f32::INFINITY)).labelled_by(label.id).changed() {
-                changes.view = true;
-            }
+    egui::ScrollArea::vertical()
+        .auto_shrink([false, false])
+        .show(ui, |ui| {
+            ui.horizontal(|ui| {
+                let label = ui.label("Title");
+                if ui
+                    .add(
+                        egui::TextEdit::singleline(&mut doc.scenario.title)
+                            .desired_width(f32::INFINITY),
+                    )
+                    .labelled_by(label.id)
+                    .changed()
+                {
+                    changes.view = true;
+                }
+            });
+            egui::CollapsingHeader::new(RichText::new("States").strong())
+                .default_open(true)
+                .show(ui, |ui| states_ui(ui, doc, &mut changes));
+            egui::CollapsingHeader::new(RichText::new("Parameters").strong())
+                .default_open(true)
+                .show(ui, |ui| parameters_ui(ui, doc, &mut changes));
+            egui::CollapsingHeader::new(RichText::new("Integrator and time").strong())
+                .default_open(true)
+                .show(ui, |ui| integrator_ui(ui, doc, &mut changes));
+            egui::CollapsingHeader::new(RichText::new("Cut (Poincaré section)").strong())
+                .default_open(true)
+                .show(ui, |ui| cut_ui(ui, doc, &mut changes));
+            egui::CollapsingHeader::new(RichText::new("Strobe (time-T map)").strong())
+                .default_open(true)
+                .show(ui, |ui| strobe_ui(ui, doc, &mut changes));
+            egui::CollapsingHeader::new(RichText::new("Notes").strong())
+                .default_open(false)
+                .show(ui, |ui| {
+                    if ui
+                        .add(
+                            egui::TextEdit::multiline(&mut doc.scenario.notes)
+                                .desired_width(f32::INFINITY)
+                                .desired_rows(4),
+                        )
+                        .changed()
+                    {
+                        changes.view = true;
+                    }
+                });
         });
-        egui::CollapsingHeader::new(RichText::new("States").strong()).default_open(true).show(ui, |ui| states_ui(ui, doc, &mut changes));
-        egui::CollapsingHeader::new(RichText::new("Parameters").strong())
-            .default_open(true)
-            .show(ui, |ui| parameters_ui(ui, doc, &mut changes));
-        egui::CollapsingHeader::new(RichText::new("Integrator and time").strong())
-            .default_open(true)
-            .show(ui, |ui| integrator_ui(ui, doc, &mut changes));
-        egui::CollapsingHeader::new(RichText::new("Cut (Poincaré section)").strong())
-            .default_open(true)
-            .show(ui, |ui| cut_ui(ui, doc, &mut changes));
-        egui::CollapsingHeader::new(RichText::new("Strobe (time-T map)").strong())
-            .default_open(true)
-            .show(ui, |ui| strobe_ui(ui, doc, &mut changes));
-        egui::CollapsingHeader::new(RichText::new("Notes").strong()).default_open(false).show(ui, |ui| {
-            if ui.add(egui::TextEdit::multiline(&mut doc.scenario.notes).desired_width(f32::INFINITY).desired_rows(4)).changed() {
-                changes.view = true;
-            }
-        });
-    });
     if changes.any() {
         doc.changed();
     }
@@ -74,18 +96,35 @@ fn state_names(scenario: &Scenario) -> Vec<String> {
 /// A name field that renames everywhere when editing ends, if the new name is free and valid.
 fn name_field(ui: &mut Ui, id: Id, current: &str, scenario: &Scenario) -> Option<String> {
     let buffer_id = id.with("buffer");
-    let mut text: String = ui.data_mut(|d| d.get_temp(buffer_id)).unwrap_or_else(|| current.to_string());
-    let response = ui.add(egui::TextEdit::singleline(&mut text).id(id).desired_width(56.0));
+    let mut text: String = ui
+        .data_mut(|d| d.get_temp(buffer_id))
+        .unwrap_or_else(|| current.to_string());
+    let response = ui.add(
+        egui::TextEdit::singleline(&mut text)
+            .id(id)
+            .desired_width(56.0),
+    );
     let taken = text != current
-        && (scenario.states.iter().any(|s| s.name == text) || scenario.parameters.iter().any(|p| p.name == text));
-    let valid = lamina_scenario::is_identifier(&text) && !lamina_core::expr::is_reserved(&text) && !taken;
+        && (scenario.states.iter().any(|s| s.name == text)
+            || scenario.parameters.iter().any(|p| p.name == text));
+    let valid =
+        lamina_scenario::is_identifier(&text) && !lamina_core::expr::is_reserved(&text) && !taken;
     if response.has_focus() || response.changed() {
         ui.data_mut(|d| d.insert_temp(buffer_id, text.clone()));
     }
     if !valid && text != current {
-        let why = if taken { "name already used" } else { "not a usable name" };
+        let why = if taken {
+            "name already used"
+        } else {
+            "not a usable name"
+        };
         response.clone().on_hover_text(why);
-        ui.painter().rect_stroke(response.rect, 2.0, egui::Stroke::new(1.0, ERROR_COLOUR), egui::StrokeKind::Outside);
+        ui.painter().rect_stroke(
+            response.rect,
+            2.0,
+            egui::Stroke::new(1.0, ERROR_COLOUR),
+            egui::StrokeKind::Outside,
+        );
     }
     if response.lost_focus() {
         ui.data_mut(|d| d.remove::<String>(buffer_id));
@@ -100,52 +139,74 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
     let mut remove = None;
     let mut rename = None;
     let n_states = doc.scenario.states.len();
-    egui::Grid::new("states_grid").num_columns(4).spacing([6.0, 4.0]).show(ui, |ui| {
-        ui.label(RichText::new("name").weak());
-        ui.label(RichText::new("start").weak());
-        ui.label(RichText::new("rate").weak());
-        ui.end_row();
-        for idx in 0..n_states {
-            let name = doc.scenario.states[idx].name.clone();
-            if let Some(new) = name_field(ui, Id::unique(("state_name", idx)), &name, &doc.scenario) {
-                rename = Some((name.clone(), new));
-            }
-            let start = &mut doc.scenario.states[idx].start;
-            if number_field(ui, Id::unique(("state_start", idx)), start, 64.0)
-                .on_hover_text(format!("Value of {name} at the start time"))
-                .changed()
-            {
-                changes.model = true;
-            }
-            ui.horizontal(|ui| {
-                let label = ui.label(format!("d{name}/dt ="));
-                let state = &mut doc.scenario.states[idx];
-                let edit = egui::TextEdit::singleline(&mut state.rate).desired_width(220.0).code_editor();
-                if ui
-                    .add(edit)
-                    .labelled_by(label.id)
-                    .on_hover_text("Rate of change: ordinary math in states, parameters, t, pi, e")
+    egui::Grid::new("states_grid")
+        .num_columns(4)
+        .spacing([6.0, 4.0])
+        .show(ui, |ui| {
+            ui.label(RichText::new("name").weak());
+            ui.label(RichText::new("start").weak());
+            ui.label(RichText::new("rate").weak());
+            ui.end_row();
+            for idx in 0..n_states {
+                let name = doc.scenario.states[idx].name.clone();
+                if let Some(new) =
+                    name_field(ui, Id::unique(("state_name", idx)), &name, &doc.scenario)
+                {
+                    rename = Some((name.clone(), new));
+                }
+                let start = &mut doc.scenario.states[idx].start;
+                if number_field(ui, Id::unique(("state_start", idx)), start, 64.0)
+                    .on_hover_text(format!("Value of {name} at the start time"))
                     .changed()
                 {
                     changes.model = true;
                 }
-                if ui.small_button("✖").on_hover_text(format!("Remove state {name}")).clicked() && n_states > 1 {
-                    remove = Some(idx);
-                }
-            });
-            ui.end_row();
-            let field = format!("states[{idx}]");
-            if doc.problems_at(&field).next().is_some() {
-                ui.label("");
-                ui.label("");
-                ui.vertical(|ui| problems_ui(ui, doc.problems_at(&field)));
+                ui.horizontal(|ui| {
+                    let label = ui.label(format!("d{name}/dt ="));
+                    let state = &mut doc.scenario.states[idx];
+                    let edit = egui::TextEdit::singleline(&mut state.rate)
+                        .desired_width(220.0)
+                        .code_editor();
+                    if ui
+                        .add(edit)
+                        .labelled_by(label.id)
+                        .on_hover_text(
+                            "Rate of change: ordinary math in states, parameters, t, pi, e",
+                        )
+                        .changed()
+                    {
+                        changes.model = true;
+                    }
+                    if ui
+                        .small_button("✖")
+                        .on_hover_text(format!("Remove state {name}"))
+                        .clicked()
+                        && n_states > 1
+                    {
+                        remove = Some(idx);
+                    }
+                });
                 ui.end_row();
+                let field = format!("states[{idx}]");
+                if doc.problems_at(&field).next().is_some() {
+                    ui.label("");
+                    ui.label("");
+                    ui.vertical(|ui| problems_ui(ui, doc.problems_at(&field)));
+                    ui.end_row();
+                }
             }
-        }
-    });
-    if ui.button("+ state").on_hover_text("Add a state variable").clicked() {
+        });
+    if ui
+        .button("+ state")
+        .on_hover_text("Add a state variable")
+        .clicked()
+    {
         let name = free_name(&doc.scenario, "s");
-        doc.scenario.states.push(State { name, start: 0.0, rate: "0".into() });
+        doc.scenario.states.push(State {
+            name,
+            start: 0.0,
+            rate: "0".into(),
+        });
         changes.model = true;
     }
     if let Some(idx) = remove {
@@ -166,7 +227,10 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
 fn free_name(scenario: &Scenario, stem: &str) -> String {
     (1..)
         .map(|k| format!("{stem}{k}"))
-        .find(|n| !scenario.states.iter().any(|s| &s.name == n) && !scenario.parameters.iter().any(|p| &p.name == n))
+        .find(|n| {
+            !scenario.states.iter().any(|s| &s.name == n)
+                && !scenario.parameters.iter().any(|p| &p.name == n)
+        })
         .unwrap_or_else(|| stem.to_string())
 }
 
@@ -177,25 +241,41 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
     for idx in 0..n {
         let name = doc.scenario.parameters[idx].name.clone();
         ui.horizontal(|ui| {
-            if let Some(new) = name_field(ui, Id::unique(("parameter_name", idx)), &name, &doc.scenario) {
+            if let Some(new) = name_field(
+                ui,
+                Id::unique(("parameter_name", idx)),
+                &name,
+                &doc.scenario,
+            ) {
                 rename = Some((name.clone(), new));
             }
             let label = ui.label("=");
             let p = &mut doc.scenario.parameters[idx];
             let (lo, hi) = p.range;
             if lo < hi {
-                let slider = egui::Slider::new(&mut p.value, lo..=hi).clamping(egui::SliderClamping::Never);
-                let response = ui.add(slider).labelled_by(label.id).on_hover_text(format!("Value of {name}; drag to explore, the run follows"));
+                let slider =
+                    egui::Slider::new(&mut p.value, lo..=hi).clamping(egui::SliderClamping::Never);
+                let response = ui
+                    .add(slider)
+                    .labelled_by(label.id)
+                    .on_hover_text(format!("Value of {name}; drag to explore, the run follows"));
                 if response.changed() {
                     changes.slider = true;
                 }
                 if response.dragged() {
                     changes.slider_held = true;
                 }
-            } else if number_field(ui, Id::unique(("parameter_value", idx)), &mut p.value, 80.0).labelled_by(label.id).changed() {
+            } else if number_field(ui, Id::unique(("parameter_value", idx)), &mut p.value, 80.0)
+                .labelled_by(label.id)
+                .changed()
+            {
                 changes.model = true;
             }
-            if ui.small_button("✖").on_hover_text(format!("Remove parameter {name}")).clicked() {
+            if ui
+                .small_button("✖")
+                .on_hover_text(format!("Remove parameter {name}"))
+                .clicked()
+            {
                 remove = Some(idx);
             }
         });
@@ -203,18 +283,28 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             ui.add_space(62.0);
             ui.label(RichText::new("range").weak());
             let p = &mut doc.scenario.parameters[idx];
-            let lo = number_field(ui, Id::unique(("parameter_lo", idx)), &mut p.range.0, 56.0).on_hover_text("Slider minimum");
+            let lo = number_field(ui, Id::unique(("parameter_lo", idx)), &mut p.range.0, 56.0)
+                .on_hover_text("Slider minimum");
             ui.label("…");
-            let hi = number_field(ui, Id::unique(("parameter_hi", idx)), &mut p.range.1, 56.0).on_hover_text("Slider maximum");
+            let hi = number_field(ui, Id::unique(("parameter_hi", idx)), &mut p.range.1, 56.0)
+                .on_hover_text("Slider maximum");
             if lo.changed() || hi.changed() {
                 changes.view = true;
             }
         });
         problems_ui(ui, doc.problems_at(&format!("parameters[{idx}]")));
     }
-    if ui.button("+ parameter").on_hover_text("Add a named parameter").clicked() {
+    if ui
+        .button("+ parameter")
+        .on_hover_text("Add a named parameter")
+        .clicked()
+    {
         let name = free_name(&doc.scenario, "p");
-        doc.scenario.parameters.push(Parameter { name, value: 1.0, range: (0.0, 2.0) });
+        doc.scenario.parameters.push(Parameter {
+            name,
+            value: 1.0,
+            range: (0.0, 2.0),
+        });
         changes.model = true;
     }
     if let Some(idx) = remove {
@@ -276,7 +366,12 @@ fn integrator_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         changes.model |= number_field(ui, Id::unique("span"), &mut s.time.span, 80.0).on_hover_text("Length of the recorded window after the transient").changed();
         ui.end_row();
     });
-    problems_ui(ui, doc.problems_at("integrator").chain(doc.problems_at("time")).chain(doc.problems_at("limits")));
+    problems_ui(
+        ui,
+        doc.problems_at("integrator")
+            .chain(doc.problems_at("time"))
+            .chain(doc.problems_at("limits")),
+    );
 }
 
 fn method_label(m: MethodChoice) -> &'static str {
@@ -293,11 +388,14 @@ fn axes_ui(ui: &mut Ui, id: &str, names: &[String], axes: &mut (String, String))
     ui.horizontal(|ui| {
         ui.label("axes");
         for (k, axis) in [&mut axes.0, &mut axes.1].into_iter().enumerate() {
-            ComboBox::from_id_salt((id, k)).selected_text(axis.as_str()).width(64.0).show_ui(ui, |ui| {
-                for n in names {
-                    changed |= ui.selectable_value(axis, n.clone(), n).changed();
-                }
-            });
+            ComboBox::from_id_salt((id, k))
+                .selected_text(axis.as_str())
+                .width(64.0)
+                .show_ui(ui, |ui| {
+                    for n in names {
+                        changed |= ui.selectable_value(axis, n.clone(), n).changed();
+                    }
+                });
         }
     });
     changed
@@ -306,18 +404,40 @@ fn axes_ui(ui: &mut Ui, id: &str, names: &[String], axes: &mut (String, String))
 fn cut_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
     let names = state_names(&doc.scenario);
     let mut enabled = doc.scenario.cut.is_some();
-    if ui.checkbox(&mut enabled, "cut the flow").on_hover_text("Record where the trajectory crosses a surface").changed() {
+    if ui
+        .checkbox(&mut enabled, "cut the flow")
+        .on_hover_text("Record where the trajectory crosses a surface")
+        .changed()
+    {
         doc.scenario.cut = enabled.then(|| default_cut(&names));
         changes.cut = true;
     }
-    let Some(cut) = &mut doc.scenario.cut else { return };
+    let Some(cut) = &mut doc.scenario.cut else {
+        return;
+    };
     ui.horizontal(|ui| {
         let is_plane = matches!(cut.surface, Surface::Plane { .. });
-        if ui.selectable_label(is_plane, "plane").on_hover_text("sum of weight × state = offset").clicked() && !is_plane {
-            cut.surface = Surface::Plane { normal: Weights(vec![(names.get(1).or(names.first()).cloned().unwrap_or_default(), 1.0)]), offset: 0.0 };
+        if ui
+            .selectable_label(is_plane, "plane")
+            .on_hover_text("sum of weight × state = offset")
+            .clicked()
+            && !is_plane
+        {
+            cut.surface = Surface::Plane {
+                normal: Weights(vec![(
+                    names.get(1).or(names.first()).cloned().unwrap_or_default(),
+                    1.0,
+                )]),
+                offset: 0.0,
+            };
             changes.cut = true;
         }
-        if ui.selectable_label(!is_plane, "level surface").on_hover_text("g(states, t) = 0 for an expression g").clicked() && is_plane {
+        if ui
+            .selectable_label(!is_plane, "level surface")
+            .on_hover_text("g(states, t) = 0 for an expression g")
+            .clicked()
+            && is_plane
+        {
             cut.surface = Surface::Level(names.first().cloned().unwrap_or_default());
             changes.cut = true;
         }
@@ -326,9 +446,16 @@ fn cut_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         Surface::Plane { normal, offset } => {
             ui.horizontal_wrapped(|ui| {
                 for name in &names {
-                    let mut w = normal.0.iter().find(|(n, _)| n == name).map_or(0.0, |(_, w)| *w);
+                    let mut w = normal
+                        .0
+                        .iter()
+                        .find(|(n, _)| n == name)
+                        .map_or(0.0, |(_, w)| *w);
                     ui.label(format!("{name} ×"));
-                    if number_field(ui, Id::unique(("normal", name.as_str())), &mut w, 40.0).on_hover_text(format!("Weight of {name} in the plane")).changed() {
+                    if number_field(ui, Id::unique(("normal", name.as_str())), &mut w, 40.0)
+                        .on_hover_text(format!("Weight of {name} in the plane"))
+                        .changed()
+                    {
                         normal.0.retain(|(n, _)| n != name);
                         if w != 0.0 {
                             normal.0.push((name.clone(), w));
@@ -354,7 +481,11 @@ fn cut_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             ui.horizontal(|ui| {
                 let label = ui.label("g =");
                 changes.cut |= ui
-                    .add(egui::TextEdit::singleline(expr).desired_width(220.0).code_editor())
+                    .add(
+                        egui::TextEdit::singleline(expr)
+                            .desired_width(220.0)
+                            .code_editor(),
+                    )
                     .labelled_by(label.id)
                     .on_hover_text("The cut is where this expression is zero")
                     .changed();
@@ -364,11 +495,24 @@ fn cut_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
     ui.horizontal(|ui| {
         ui.label("direction");
         for (d, text, tip) in [
-            (Direction::Rising, "rising", "count crossings where g goes from negative to positive"),
-            (Direction::Falling, "falling", "count crossings where g goes from positive to negative"),
+            (
+                Direction::Rising,
+                "rising",
+                "count crossings where g goes from negative to positive",
+            ),
+            (
+                Direction::Falling,
+                "falling",
+                "count crossings where g goes from positive to negative",
+            ),
             (Direction::Both, "both", "count every crossing"),
         ] {
-            if ui.selectable_label(cut.direction == d, text).on_hover_text(tip).clicked() && cut.direction != d {
+            if ui
+                .selectable_label(cut.direction == d, text)
+                .on_hover_text(tip)
+                .clicked()
+                && cut.direction != d
+            {
                 cut.direction = d;
                 changes.cut = true;
             }
@@ -382,7 +526,10 @@ fn default_cut(names: &[String]) -> Cut {
     let first = names.first().cloned().unwrap_or_default();
     let second = names.get(1).cloned().unwrap_or_else(|| first.clone());
     Cut {
-        surface: Surface::Plane { normal: Weights(vec![(second.clone(), 1.0)]), offset: 0.0 },
+        surface: Surface::Plane {
+            normal: Weights(vec![(second.clone(), 1.0)]),
+            offset: 0.0,
+        },
         direction: Direction::Falling,
         axes: (first, second),
     }
@@ -391,22 +538,38 @@ fn default_cut(names: &[String]) -> Cut {
 fn strobe_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
     let names = state_names(&doc.scenario);
     let mut enabled = doc.scenario.strobe.is_some();
-    if ui.checkbox(&mut enabled, "sample at a fixed period").on_hover_text("Record the state at phase + k × period").changed() {
+    if ui
+        .checkbox(&mut enabled, "sample at a fixed period")
+        .on_hover_text("Record the state at phase + k × period")
+        .changed()
+    {
         let first = names.first().cloned().unwrap_or_default();
         let second = names.get(1).cloned().unwrap_or_else(|| first.clone());
-        doc.scenario.strobe = enabled.then(|| Strobe { period: "1".into(), phase: 0.0, axes: (first, second) });
+        doc.scenario.strobe = enabled.then(|| Strobe {
+            period: "1".into(),
+            phase: 0.0,
+            axes: (first, second),
+        });
         changes.strobe = true;
     }
-    let Some(strobe) = &mut doc.scenario.strobe else { return };
+    let Some(strobe) = &mut doc.scenario.strobe else {
+        return;
+    };
     ui.horizontal(|ui| {
         let label = ui.label("period");
         changes.strobe |= ui
-            .add(egui::TextEdit::singleline(&mut strobe.period).desired_width(120.0).code_editor())
+            .add(
+                egui::TextEdit::singleline(&mut strobe.period)
+                    .desired_width(120.0)
+                    .code_editor(),
+            )
             .labelled_by(label.id)
             .on_hover_text("An expression in parameters and constants, e.g. 2*pi/w")
             .changed();
         ui.label("phase");
-        changes.strobe |= number_field(ui, Id::unique("strobe_phase"), &mut strobe.phase, 56.0).on_hover_text("Time of sample 0").changed();
+        changes.strobe |= number_field(ui, Id::unique("strobe_phase"), &mut strobe.phase, 56.0)
+            .on_hover_text("Time of sample 0")
+            .changed();
     });
     changes.view |= axes_ui(ui, "strobe_axes", &names, &mut strobe.axes);
     problems_ui(ui, doc.problems_at("strobe"));

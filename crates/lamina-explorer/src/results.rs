@@ -21,7 +21,10 @@ pub struct PointCloud {
 impl PointCloud {
     /// An empty cloud of `dim`-state points.
     pub fn new(dim: usize) -> Self {
-        Self { dim, ..Self::default() }
+        Self {
+            dim,
+            ..Self::default()
+        }
     }
 
     /// Number of points.
@@ -93,7 +96,11 @@ impl PointCloud {
 
     /// As strobe samples (for exports).
     pub fn strobe_samples(&self) -> impl Iterator<Item = StrobeSample> + '_ {
-        (0..self.len()).map(|i| StrobeSample { index: i as i64, t: self.t[i], state: self.state(i).to_vec() })
+        (0..self.len()).map(|i| StrobeSample {
+            index: i as i64,
+            t: self.t[i],
+            state: self.state(i).to_vec(),
+        })
     }
 }
 
@@ -115,7 +122,10 @@ const MAX_TRAJECTORY_SAMPLES: usize = 400_000;
 impl Trajectory {
     /// An empty trajectory of `dim` states.
     pub fn new(dim: usize) -> Self {
-        Self { dim, ..Self::default() }
+        Self {
+            dim,
+            ..Self::default()
+        }
     }
 
     /// Number of samples.

@@ -20,7 +20,9 @@ pub fn number_field(ui: &mut Ui, id: egui::Id, value: &mut f64, width: f32) -> R
         .map(|(_, t)| t)
         .unwrap_or_else(|| format_value(*value));
     let parsed = text.trim().parse::<f64>().ok().filter(|v| v.is_finite());
-    let mut edit = egui::TextEdit::singleline(&mut text).id(id).desired_width(width);
+    let mut edit = egui::TextEdit::singleline(&mut text)
+        .id(id)
+        .desired_width(width);
     if parsed.is_none() {
         edit = edit.text_color(ERROR_COLOUR);
     }
@@ -45,13 +47,26 @@ pub fn number_field(ui: &mut Ui, id: egui::Id, value: &mut f64, width: f32) -> R
 pub fn format_value(v: f64) -> String {
     let plain = format!("{v}");
     let debug = format!("{v:?}");
-    if plain.len() <= debug.len() { plain } else { debug }
+    if plain.len() <= debug.len() {
+        plain
+    } else {
+        debug
+    }
 }
 
 /// Shows each problem under its field: red for errors, amber for warnings.
 pub fn problems_ui<'a>(ui: &mut Ui, problems: impl Iterator<Item = &'a Problem>) {
     for problem in problems {
-        let colour = if problem.is_error() { ERROR_COLOUR } else { WARNING_COLOUR };
-        ui.label(RichText::new(&problem.message).color(colour).monospace().small());
+        let colour = if problem.is_error() {
+            ERROR_COLOUR
+        } else {
+            WARNING_COLOUR
+        };
+        ui.label(
+            RichText::new(&problem.message)
+                .color(colour)
+                .monospace()
+                .small(),
+        );
     }
 }

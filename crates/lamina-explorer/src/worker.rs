@@ -67,7 +67,9 @@ impl WorkerEvent {
     /// The job the event belongs to.
     pub fn job(&self) -> u64 {
         match self {
-            Self::Progress { job, .. } | Self::Partial { job, .. } | Self::Finished { job, .. } => *job,
+            Self::Progress { job, .. } | Self::Partial { job, .. } | Self::Finished { job, .. } => {
+                *job
+            }
         }
     }
 }
@@ -97,7 +99,10 @@ impl ChannelSink {
     fn flush(&mut self) {
         if !self.batch.is_empty() {
             let batch = std::mem::take(&mut self.batch);
-            let _ = self.tx.send(WorkerEvent::Partial { job: self.job, batch });
+            let _ = self.tx.send(WorkerEvent::Partial {
+                job: self.job,
+                batch,
+            });
             (self.repaint)();
         }
         self.last_sent = Instant::now();
@@ -116,7 +121,12 @@ impl Sink for ChannelSink {
         ControlFlow::Continue(())
     }
     fn progress(&mut self, t: f64, fraction: f64) {
-        let _ = self.tx.send(WorkerEvent::Progress { job: self.job, t, fraction, n_steps: self.n_steps });
+        let _ = self.tx.send(WorkerEvent::Progress {
+            job: self.job,
+            t,
+            fraction,
+            n_steps: self.n_steps,
+        });
         self.maybe_send();
     }
     fn step(&mut self, t: f64, state: &[f64]) {
@@ -152,14 +162,21 @@ pub struct RunWorker {
 impl Default for RunWorker {
     fn default() -> Self {
         let (tx, rx) = channel();
-        Self { tx, rx, current: None, next_id: 1 }
+        Self {
+            tx,
+            rx,
+            current: None,
+            next_id: 1,
+        }
     }
 }
 
 impl RunWorker {
     /// Whether a job is running.
     pub fn is_running(&self) -> bool {
-        self.current.as_ref().is_some_and(|job| !job.handle.is_finished())
+        self.current
+            .as_ref()
+            .is_some_and(|job| !job.handle.is_finished())
     }
 
     /// The running job's number.
@@ -169,7 +186,11 @@ impl RunWorker {
 
     /// Starts integrating `run` (from where it stands); refused while a job runs.
     /// `repaint` is called whenever events are sent.
-    pub fn start(&mut self, mut run: Box<Run>, repaint: impl Fn() + Send + 'static) -> Result<u64, StartError> {
+    pub fn start(
+        &mut self,
+        mut run: Box<Run>,
+        repaint: impl Fn() + Send + 'static,
+    ) -> Result<u64, StartError> {
         if self.is_running() {
             return Err(StartError::Busy(run));
         }
@@ -193,12 +214,21 @@ impl RunWorker {
                 };
                 let outcome = run.execute(&mut sink, &flag);
                 sink.flush();
-                let _ = tx.send(WorkerEvent::Finished { job: id, run, outcome, elapsed: started.elapsed() });
+                let _ = tx.send(WorkerEvent::Finished {
+                    job: id,
+                    run,
+                    outcome,
+                    elapsed: started.elapsed(),
+                });
                 (sink.repaint)();
             });
         match handle {
             Ok(handle) => {
-                self.current = Some(Job { id, interrupt, handle });
+                self.current = Some(Job {
+                    id,
+                    interrupt,
+                    handle,
+                });
                 Ok(id)
             }
             Err(err) => Err(StartError::Thread(err.to_string())),
@@ -215,7 +245,9 @@ impl RunWorker {
     /// Every event that has arrived.
     pub fn drain(&mut self) -> Vec<WorkerEvent> {
         let events: Vec<WorkerEvent> = self.rx.try_iter().collect();
-        if events.iter().any(|e| matches!(e, WorkerEvent::Finished { job, .. } if Some(*job) == self.current_job())) {
+        if events.iter().any(
+            |e| matches!(e, WorkerEvent::Finished { job, .. } if Some(*job) == self.current_job()),
+        ) {
             self.current = None;
         }
         events

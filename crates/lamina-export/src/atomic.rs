@@ -16,7 +16,10 @@ pub struct AtomicFile {
 }
 
 fn io_error(path: &Path, source: io::Error) -> ExportError {
-    ExportError::Io { path: path.display().to_string(), source }
+    ExportError::Io {
+        path: path.display().to_string(),
+        source,
+    }
 }
 
 impl AtomicFile {
@@ -32,7 +35,10 @@ impl AtomicFile {
             .suffix(".partial")
             .tempfile_in(&dir)
             .map_err(|e| io_error(&target, e))?;
-        Ok(Self { target, temp: io::BufWriter::new(temp) })
+        Ok(Self {
+            target,
+            temp: io::BufWriter::new(temp),
+        })
     }
 
     /// The file that will be replaced.
@@ -43,9 +49,15 @@ impl AtomicFile {
     /// Flushes, syncs and renames the temporary file over the target.
     pub fn commit(self) -> Result<(), ExportError> {
         let target = self.target;
-        let temp = self.temp.into_inner().map_err(|e| io_error(&target, e.into_error()))?;
-        temp.as_file().sync_all().map_err(|e| io_error(&target, e))?;
-        temp.persist(&target).map_err(|e| io_error(&target, e.error))?;
+        let temp = self
+            .temp
+            .into_inner()
+            .map_err(|e| io_error(&target, e.into_error()))?;
+        temp.as_file()
+            .sync_all()
+            .map_err(|e| io_error(&target, e))?;
+        temp.persist(&target)
+            .map_err(|e| io_error(&target, e.error))?;
         Ok(())
     }
 }

@@ -14,7 +14,9 @@ pub fn format_number(v: f64) -> String {
 }
 
 fn writer<W: Write>(out: W, header: Vec<String>) -> Result<csv::Writer<W>, ExportError> {
-    let mut w = csv::WriterBuilder::new().has_headers(false).from_writer(out);
+    let mut w = csv::WriterBuilder::new()
+        .has_headers(false)
+        .from_writer(out);
     w.write_record(&header)?;
     Ok(w)
 }
@@ -31,7 +33,11 @@ impl<W: Write> CutCsv<W> {
     pub fn new(out: W, state_names: &[String]) -> Result<Self, ExportError> {
         let mut header = vec!["k".to_string(), "t".into(), "return_time".into()];
         header.extend(state_names.iter().cloned());
-        Ok(Self { out: writer(out, header)?, k: 0, row: Vec::new() })
+        Ok(Self {
+            out: writer(out, header)?,
+            k: 0,
+            row: Vec::new(),
+        })
     }
 
     /// Writes one point as row `k` (counting from 0).
@@ -39,8 +45,13 @@ impl<W: Write> CutCsv<W> {
         self.row.clear();
         self.row.push(self.k.to_string());
         self.row.push(format_number(point.t));
-        self.row.push(if self.k == 0 { String::new() } else { point.return_time.map(format_number).unwrap_or_default() });
-        self.row.extend(point.state.iter().map(|&v| format_number(v)));
+        self.row.push(if self.k == 0 {
+            String::new()
+        } else {
+            point.return_time.map(format_number).unwrap_or_default()
+        });
+        self.row
+            .extend(point.state.iter().map(|&v| format_number(v)));
         self.out.write_record(&self.row)?;
         self.k += 1;
         Ok(())
@@ -48,7 +59,10 @@ impl<W: Write> CutCsv<W> {
 
     /// Flushes and returns the inner writer.
     pub fn finish(self) -> Result<W, ExportError> {
-        self.out.into_inner().map_err(|e| ExportError::Io { path: "CSV output".into(), source: e.into_error() })
+        self.out.into_inner().map_err(|e| ExportError::Io {
+            path: "CSV output".into(),
+            source: e.into_error(),
+        })
     }
 }
 
@@ -64,7 +78,11 @@ impl<W: Write> StrobeCsv<W> {
     pub fn new(out: W, state_names: &[String]) -> Result<Self, ExportError> {
         let mut header = vec!["k".to_string(), "t".into()];
         header.extend(state_names.iter().cloned());
-        Ok(Self { out: writer(out, header)?, k: 0, row: Vec::new() })
+        Ok(Self {
+            out: writer(out, header)?,
+            k: 0,
+            row: Vec::new(),
+        })
     }
 
     /// Writes one sample as row `k` (counting from 0).
@@ -72,7 +90,8 @@ impl<W: Write> StrobeCsv<W> {
         self.row.clear();
         self.row.push(self.k.to_string());
         self.row.push(format_number(sample.t));
-        self.row.extend(sample.state.iter().map(|&v| format_number(v)));
+        self.row
+            .extend(sample.state.iter().map(|&v| format_number(v)));
         self.out.write_record(&self.row)?;
         self.k += 1;
         Ok(())
@@ -80,7 +99,10 @@ impl<W: Write> StrobeCsv<W> {
 
     /// Flushes and returns the inner writer.
     pub fn finish(self) -> Result<W, ExportError> {
-        self.out.into_inner().map_err(|e| ExportError::Io { path: "CSV output".into(), source: e.into_error() })
+        self.out.into_inner().map_err(|e| ExportError::Io {
+            path: "CSV output".into(),
+            source: e.into_error(),
+        })
     }
 }
 
@@ -95,7 +117,10 @@ impl<W: Write> TrajectoryCsv<W> {
     pub fn new(out: W, state_names: &[String]) -> Result<Self, ExportError> {
         let mut header = vec!["t".to_string()];
         header.extend(state_names.iter().cloned());
-        Ok(Self { out: writer(out, header)?, row: Vec::new() })
+        Ok(Self {
+            out: writer(out, header)?,
+            row: Vec::new(),
+        })
     }
 
     /// Writes the state at time `t`.
@@ -109,6 +134,9 @@ impl<W: Write> TrajectoryCsv<W> {
 
     /// Flushes and returns the inner writer.
     pub fn finish(self) -> Result<W, ExportError> {
-        self.out.into_inner().map_err(|e| ExportError::Io { path: "CSV output".into(), source: e.into_error() })
+        self.out.into_inner().map_err(|e| ExportError::Io {
+            path: "CSV output".into(),
+            source: e.into_error(),
+        })
     }
 }

@@ -7,7 +7,16 @@ use lamina_export::{AtomicFile, CutCsv, ExportError, StrobeCsv, format_number, w
 
 #[test]
 fn numbers_round_trip_exactly() {
-    for v in [0.1, 1.0 / 3.0, 1e-300, -2.5e300, 6.663286859323130, f64::MIN_POSITIVE, -0.0, 123456789.0] {
+    for v in [
+        0.1,
+        1.0 / 3.0,
+        1e-300,
+        -2.5e300,
+        6.663_286_859_323_13,
+        f64::MIN_POSITIVE,
+        -0.0,
+        123456789.0,
+    ] {
         let text = format_number(v);
         let back: f64 = text.parse().expect("parses");
         // [common practice] shortest round-trip formatting gives back the same bits
@@ -19,17 +28,35 @@ fn numbers_round_trip_exactly() {
 fn cut_csv_has_the_product_columns() {
     let names = vec!["x".to_string(), "v".to_string()];
     let mut csv = CutCsv::new(Vec::new(), &names).expect("header");
-    csv.write(&CutPoint { t: 1.5, return_time: None, state: vec![0.25, -1.0] }).expect("row");
-    csv.write(&CutPoint { t: 3.0, return_time: Some(1.5), state: vec![0.5, 2.0] }).expect("row");
+    csv.write(&CutPoint {
+        t: 1.5,
+        return_time: None,
+        state: vec![0.25, -1.0],
+    })
+    .expect("row");
+    csv.write(&CutPoint {
+        t: 3.0,
+        return_time: Some(1.5),
+        state: vec![0.5, 2.0],
+    })
+    .expect("row");
     let text = String::from_utf8(csv.finish().expect("flush")).expect("utf8");
-    assert_eq!(text, "k,t,return_time,x,v\n0,1.5,,0.25,-1.0\n1,3.0,1.5,0.5,2.0\n");
+    assert_eq!(
+        text,
+        "k,t,return_time,x,v\n0,1.5,,0.25,-1.0\n1,3.0,1.5,0.5,2.0\n"
+    );
 }
 
 #[test]
 fn strobe_csv_has_the_product_columns() {
     let names = vec!["x".to_string()];
     let mut csv = StrobeCsv::new(Vec::new(), &names).expect("header");
-    csv.write(&StrobeSample { index: 7, t: 14.0, state: vec![0.1] }).expect("row");
+    csv.write(&StrobeSample {
+        index: 7,
+        t: 14.0,
+        state: vec![0.1],
+    })
+    .expect("row");
     let text = String::from_utf8(csv.finish().expect("flush")).expect("utf8");
     assert_eq!(text, "k,t,x\n0,14.0,0.1\n");
 }
@@ -46,7 +73,10 @@ fn atomic_file_replaces_only_on_commit() {
     }
     assert_eq!(std::fs::read_to_string(&target).expect("read"), "good\n");
     let result: Result<(), ExportError> = write_atomically(&target, |f| {
-        f.write_all(b"new\n").map_err(|e| ExportError::Io { path: "t".into(), source: e })
+        f.write_all(b"new\n").map_err(|e| ExportError::Io {
+            path: "t".into(),
+            source: e,
+        })
     });
     result.expect("commit");
     assert_eq!(std::fs::read_to_string(&target).expect("read"), "new\n");

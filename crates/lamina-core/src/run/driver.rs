@@ -264,10 +264,17 @@ impl Run {
     pub fn set_strobe(&mut self, strobe: Option<Strobe>) {
         self.strobe = strobe;
         if let Some(s) = &self.strobe {
-            let from = if self.started { self.integrator.t().max(self.spec.t_record()) } else { self.spec.t_record() };
+            let from = if self.started {
+                self.integrator.t().max(self.spec.t_record())
+            } else {
+                self.spec.t_record()
+            };
             self.next_strobe = s.first_index_from(from);
             // a sample exactly at the current time was already taken
-            if self.started && s.time_of(self.next_strobe) <= self.integrator.t() && self.integrator.t() > self.spec.t_record() {
+            if self.started
+                && s.time_of(self.next_strobe) <= self.integrator.t()
+                && self.integrator.t() > self.spec.t_record()
+            {
                 self.next_strobe += 1;
             }
         }

@@ -84,7 +84,11 @@ impl CloudView {
         let response = plot.show(ui, |plot_ui| {
             if let Some([x0, y0, x1, y1]) = extent {
                 // invisible corners so that automatic bounds fit the cloud
-                plot_ui.points(Points::new("extent", PlotPoints::new(vec![[x0, y0], [x1, y1]])).radius(0.0).color(Color32::TRANSPARENT));
+                plot_ui.points(
+                    Points::new("extent", PlotPoints::new(vec![[x0, y0], [x1, y1]]))
+                        .radius(0.0)
+                        .color(Color32::TRANSPARENT),
+                );
             }
             plot_ui.pointer_coordinate()
         });
@@ -96,11 +100,17 @@ impl CloudView {
         if n <= MESH_LIMIT {
             let mut mesh = Mesh::default();
             let half = if n < 2000 { 1.8 } else { 1.1 };
-            for i in 0..n {
-                let p = transform.position_from_point(&PlotPoint::new(cloud.coord(i, axes[0]), cloud.coord(i, axes[1])));
+            for (i, key) in colour_key.iter().enumerate().take(n) {
+                let p = transform.position_from_point(&PlotPoint::new(
+                    cloud.coord(i, axes[0]),
+                    cloud.coord(i, axes[1]),
+                ));
                 if frame.expand(2.0).contains(p) {
-                    let u = normalise(colour_key[i], key_range);
-                    mesh.add_colored_rect(Rect::from_center_size(p, vec2(2.0 * half, 2.0 * half)), ramp(u));
+                    let u = normalise(*key, key_range);
+                    mesh.add_colored_rect(
+                        Rect::from_center_size(p, vec2(2.0 * half, 2.0 * half)),
+                        ramp(u),
+                    );
                 }
             }
             painter.add(mesh);
@@ -109,7 +119,10 @@ impl CloudView {
             let key = DensityKey {
                 revision: cloud.revision,
                 bounds: [b.min()[0], b.min()[1], b.max()[0], b.max()[1]],
-                size: [(frame.width() / 2.0).max(1.0) as usize, (frame.height() / 2.0).max(1.0) as usize],
+                size: [
+                    (frame.width() / 2.0).max(1.0) as usize,
+                    (frame.height() / 2.0).max(1.0) as usize,
+                ],
                 axes,
                 colour_by,
             };
@@ -120,11 +133,25 @@ impl CloudView {
                         texture.set(image, TextureOptions::NEAREST);
                         *k = key;
                     }
-                    None => self.density = Some((key, ui.ctx().load_texture(format!("{id}-density"), image, TextureOptions::NEAREST))),
+                    None => {
+                        self.density = Some((
+                            key,
+                            ui.ctx().load_texture(
+                                format!("{id}-density"),
+                                image,
+                                TextureOptions::NEAREST,
+                            ),
+                        ))
+                    }
                 }
             }
             if let Some((_, texture)) = &self.density {
-                painter.image(texture.id(), frame, Rect::from_min_max(pos2(0.0, 0.0), pos2(1.0, 1.0)), Color32::WHITE);
+                painter.image(
+                    texture.id(),
+                    frame,
+                    Rect::from_min_max(pos2(0.0, 0.0), pos2(1.0, 1.0)),
+                    Color32::WHITE,
+                );
             }
         }
         for mark in marks {
@@ -132,13 +159,21 @@ impl CloudView {
             painter.circle_stroke(p, 6.0, egui::Stroke::new(2.0, mark.colour));
         }
         if let Some(sel) = self.selected.filter(|&s| s < n) {
-            let p = transform.position_from_point(&PlotPoint::new(cloud.coord(sel, axes[0]), cloud.coord(sel, axes[1])));
+            let p = transform.position_from_point(&PlotPoint::new(
+                cloud.coord(sel, axes[0]),
+                cloud.coord(sel, axes[1]),
+            ));
             painter.circle_stroke(p, 5.0, egui::Stroke::new(1.5, Color32::WHITE));
         }
         if response.response.clicked()
             && let Some(pointer) = response.response.interact_pointer_pos()
         {
-            let nearest = nearest_point(cloud, axes, |x, y| transform.position_from_point(&PlotPoint::new(x, y)), pointer);
+            let nearest = nearest_point(
+                cloud,
+                axes,
+                |x, y| transform.position_from_point(&PlotPoint::new(x, y)),
+                pointer,
+            );
             self.selected = nearest;
             out.clicked = nearest;
         }
@@ -150,13 +185,20 @@ impl CloudView {
 fn colour_keys(cloud: &PointCloud, colour_by: ColourBy) -> (Vec<f64>, (f64, f64)) {
     let n = cloud.len();
     match colour_by {
-        ColourBy::Arrival => ((0..n).map(|i| i as f64).collect(), (0.0, n.saturating_sub(1).max(1) as f64)),
+        ColourBy::Arrival => (
+            (0..n).map(|i| i as f64).collect(),
+            (0.0, n.saturating_sub(1).max(1) as f64),
+        ),
         ColourBy::ReturnTime => {
             let keys: Vec<f64> = cloud.return_time.clone();
             let finite = keys.iter().copied().filter(|v| v.is_finite());
             let lo = finite.clone().fold(f64::INFINITY, f64::min);
             let hi = finite.fold(f64::NEG_INFINITY, f64::max);
-            let range = if lo.is_finite() { (lo, if hi > lo { hi } else { lo + 1.0 }) } else { (0.0, 1.0) };
+            let range = if lo.is_finite() {
+                (lo, if hi > lo { hi } else { lo + 1.0 })
+            } else {
+                (0.0, 1.0)
+            };
             (keys, range)
         }
     }
@@ -170,7 +212,12 @@ fn normalise(v: f64, (lo, hi): (f64, f64)) -> f32 {
 }
 
 fn extent(cloud: &PointCloud, axes: [usize; 2]) -> Option<[f64; 4]> {
-    let mut e = [f64::INFINITY, f64::INFINITY, f64::NEG_INFINITY, f64::NEG_INFINITY];
+    let mut e = [
+        f64::INFINITY,
+        f64::INFINITY,
+        f64::NEG_INFINITY,
+        f64::NEG_INFINITY,
+    ];
     for i in 0..cloud.len() {
         let (x, y) = (cloud.coord(i, axes[0]), cloud.coord(i, axes[1]));
         if x.is_finite() && y.is_finite() {
@@ -180,19 +227,24 @@ fn extent(cloud: &PointCloud, axes: [usize; 2]) -> Option<[f64; 4]> {
     (e[0] <= e[2]).then_some(e)
 }
 
-fn density_image(cloud: &PointCloud, key: &DensityKey, colour_key: &[f64], range: (f64, f64)) -> ColorImage {
+fn density_image(
+    cloud: &PointCloud,
+    key: &DensityKey,
+    colour_key: &[f64],
+    range: (f64, f64),
+) -> ColorImage {
     let [w, h] = key.size;
     let [x0, y0, x1, y1] = key.bounds;
     let mut count = vec![0u32; w * h];
     let mut latest = vec![0.0f64; w * h];
     let (sx, sy) = (w as f64 / (x1 - x0), h as f64 / (y1 - y0));
-    for i in 0..cloud.len() {
+    for (i, &colour) in colour_key.iter().enumerate().take(cloud.len()) {
         let (x, y) = (cloud.coord(i, key.axes[0]), cloud.coord(i, key.axes[1]));
         let (cx, cy) = ((x - x0) * sx, (y1 - y) * sy);
         if cx >= 0.0 && cy >= 0.0 && (cx as usize) < w && (cy as usize) < h {
             let cell = cy as usize * w + cx as usize;
             count[cell] += 1;
-            latest[cell] = colour_key[i];
+            latest[cell] = colour;
         }
     }
     let max = count.iter().copied().max().unwrap_or(1).max(1) as f32;
@@ -211,7 +263,12 @@ fn density_image(cloud: &PointCloud, key: &DensityKey, colour_key: &[f64], range
     ColorImage::new([w, h], pixels)
 }
 
-fn nearest_point(cloud: &PointCloud, axes: [usize; 2], screen: impl Fn(f64, f64) -> Pos2, pointer: Pos2) -> Option<usize> {
+fn nearest_point(
+    cloud: &PointCloud,
+    axes: [usize; 2],
+    screen: impl Fn(f64, f64) -> Pos2,
+    pointer: Pos2,
+) -> Option<usize> {
     let mut best = None;
     let mut best_d = 10.0f32;
     for i in 0..cloud.len() {
@@ -224,7 +281,13 @@ fn nearest_point(cloud: &PointCloud, axes: [usize; 2], screen: impl Fn(f64, f64)
     best
 }
 
-fn legend_ui(painter: &egui::Painter, frame: Rect, colour_by: ColourBy, (lo, hi): (f64, f64), n: usize) {
+fn legend_ui(
+    painter: &egui::Painter,
+    frame: Rect,
+    colour_by: ColourBy,
+    (lo, hi): (f64, f64),
+    n: usize,
+) {
     if n == 0 {
         return;
     }
@@ -234,7 +297,13 @@ fn legend_ui(painter: &egui::Painter, frame: Rect, colour_by: ColourBy, (lo, hi)
     let mut mesh = Mesh::default();
     let steps = 24;
     for s in 0..steps {
-        let r = Rect::from_min_size(pos2(bar.left() + bar.width() * s as f32 / steps as f32, bar.top()), vec2(bar.width() / steps as f32 + 0.5, bar.height()));
+        let r = Rect::from_min_size(
+            pos2(
+                bar.left() + bar.width() * s as f32 / steps as f32,
+                bar.top(),
+            ),
+            vec2(bar.width() / steps as f32 + 0.5, bar.height()),
+        );
         mesh.add_colored_rect(r, ramp(s as f32 / (steps - 1) as f32));
     }
     painter.add(mesh);
@@ -244,11 +313,29 @@ fn legend_ui(painter: &egui::Painter, frame: Rect, colour_by: ColourBy, (lo, hi)
         ColourBy::Arrival => format!("order of arrival ({n} points)"),
         ColourBy::ReturnTime => "return time".to_string(),
     };
-    painter.text(top_right, egui::Align2::LEFT_TOP, title, font.clone(), text_colour);
+    painter.text(
+        top_right,
+        egui::Align2::LEFT_TOP,
+        title,
+        font.clone(),
+        text_colour,
+    );
     let (a, b) = match colour_by {
         ColourBy::Arrival => ("first".to_string(), "last".to_string()),
         ColourBy::ReturnTime => (format!("{lo:.4}"), format!("{hi:.4}")),
     };
-    painter.text(bar.left_bottom() + vec2(0.0, 2.0), egui::Align2::LEFT_TOP, a, font.clone(), text_colour);
-    painter.text(bar.right_bottom() + vec2(0.0, 2.0), egui::Align2::RIGHT_TOP, b, font, text_colour);
+    painter.text(
+        bar.left_bottom() + vec2(0.0, 2.0),
+        egui::Align2::LEFT_TOP,
+        a,
+        font.clone(),
+        text_colour,
+    );
+    painter.text(
+        bar.right_bottom() + vec2(0.0, 2.0),
+        egui::Align2::RIGHT_TOP,
+        b,
+        font,
+        text_colour,
+    );
 }

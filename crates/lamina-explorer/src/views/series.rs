@@ -37,7 +37,12 @@ pub enum MapCoordinate {
 }
 
 /// s_n+1 against s_n, with the diagonal for reading fixed points.
-pub fn first_return_map_ui(ui: &mut Ui, cloud: &PointCloud, names: &[String], coordinate: &mut MapCoordinate) -> Rect {
+pub fn first_return_map_ui(
+    ui: &mut Ui,
+    cloud: &PointCloud,
+    names: &[String],
+    coordinate: &mut MapCoordinate,
+) -> Rect {
     ui.horizontal(|ui| {
         ui.label("s =");
         let current = match *coordinate {
@@ -64,14 +69,22 @@ pub fn first_return_map_ui(ui: &mut Ui, cloud: &PointCloud, names: &[String], co
         .map(|i| [value(i - 1), value(i)])
         .filter(|p| p[0].is_finite() && p[1].is_finite())
         .collect();
-    let (lo, hi) = pairs.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), p| (lo.min(p[0]).min(p[1]), hi.max(p[0]).max(p[1])));
+    let (lo, hi) = pairs
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), p| {
+            (lo.min(p[0]).min(p[1]), hi.max(p[0]).max(p[1]))
+        });
     let response = Plot::new("first_return_map")
         .x_axis_label("s(n)")
         .y_axis_label("s(n+1)")
         .data_aspect(1.0)
         .show(ui, |plot_ui| {
             if lo < hi {
-                plot_ui.line(Line::new("diagonal", PlotPoints::new(vec![[lo, lo], [hi, hi]])).width(0.5).color(egui::Color32::from_gray(110)));
+                plot_ui.line(
+                    Line::new("diagonal", PlotPoints::new(vec![[lo, lo], [hi, hi]]))
+                        .width(0.5)
+                        .color(egui::Color32::from_gray(110)),
+                );
             }
             plot_ui.points(Points::new("s(n+1)", PlotPoints::new(pairs)).radius(1.5));
         });

@@ -21,7 +21,12 @@ pub struct SpaceView {
 
 impl Default for SpaceView {
     fn default() -> Self {
-        Self { yaw: 0.6, pitch: 0.45, zoom: 1.0, axes: [0, 1, 2] }
+        Self {
+            yaw: 0.6,
+            pitch: 0.45,
+            zoom: 1.0,
+            axes: [0, 1, 2],
+        }
     }
 }
 
@@ -110,7 +115,13 @@ impl Projection {
         let depth = sy * u[0] + cy * u[1];
         let up = cp * u[2] - sp * depth;
         let toward = sp * u[2] + cp * depth;
-        (pos2(self.centre.x + self.scale * x, self.centre.y - self.scale * up), toward)
+        (
+            pos2(
+                self.centre.x + self.scale * x,
+                self.centre.y - self.scale * up,
+            ),
+            toward,
+        )
     }
 }
 
@@ -148,9 +159,16 @@ impl SpaceView {
                     .response
                     .on_hover_text(format!("Coordinate shown {label}"));
             }
-            if ui.small_button("reset view").on_hover_text("Back to the default angle and zoom").clicked() {
+            if ui
+                .small_button("reset view")
+                .on_hover_text("Back to the default angle and zoom")
+                .clicked()
+            {
                 let axes = self.axes;
-                *self = Self { axes, ..Self::default() };
+                *self = Self {
+                    axes,
+                    ..Self::default()
+                };
             }
         });
         for a in &mut self.axes {
@@ -158,11 +176,20 @@ impl SpaceView {
                 *a = 0;
             }
         }
-        let (rect, response) = ui.allocate_exact_size(ui.available_size().max(vec2(50.0, 50.0)), Sense::click_and_drag());
+        let (rect, response) = ui.allocate_exact_size(
+            ui.available_size().max(vec2(50.0, 50.0)),
+            Sense::click_and_drag(),
+        );
         let painter = ui.painter_at(rect);
         painter.rect_filled(rect, 0.0, colours.background);
         let Some(data_box) = DataBox::of(trajectory, cut_points, self.axes) else {
-            painter.text(rect.center(), egui::Align2::CENTER_CENTER, "no trajectory yet — press Run", egui::FontId::proportional(14.0), Color32::GRAY);
+            painter.text(
+                rect.center(),
+                egui::Align2::CENTER_CENTER,
+                "no trajectory yet — press Run",
+                egui::FontId::proportional(14.0),
+                Color32::GRAY,
+            );
             return out;
         };
         if response.hovered() {
@@ -177,9 +204,15 @@ impl SpaceView {
             let c = centroid(poly);
             projection.screen_from_unit(data_box.unit(c)).0
         });
-        let dragging_handle = ui.memory(|m| m.data.get_temp::<bool>(response.id.with("handle")).unwrap_or(false));
+        let dragging_handle = ui.memory(|m| {
+            m.data
+                .get_temp::<bool>(response.id.with("handle"))
+                .unwrap_or(false)
+        });
         if response.drag_started() {
-            let near = handle_pos.zip(response.interact_pointer_pos()).is_some_and(|(h, p)| h.distance(p) < 12.0);
+            let near = handle_pos
+                .zip(response.interact_pointer_pos())
+                .is_some_and(|(h, p)| h.distance(p) < 12.0);
             ui.memory_mut(|m| m.data.insert_temp(response.id.with("handle"), near));
         }
         if response.dragged() {
@@ -195,7 +228,10 @@ impl SpaceView {
         }
         if response.double_clicked() {
             let axes = self.axes;
-            *self = Self { axes, ..Self::default() };
+            *self = Self {
+                axes,
+                ..Self::default()
+            };
         }
         let projection = Projection::new(rect, self);
         draw_box(&painter, &projection, names, self.axes);
@@ -217,8 +253,15 @@ impl SpaceView {
         }
         painter.extend(segments);
         if let Some((_, poly)) = &handle {
-            let points: Vec<Pos2> = poly.iter().map(|p| projection.screen_from_unit(data_box.unit(*p)).0).collect();
-            painter.add(Shape::convex_polygon(points, colours.surface, Stroke::new(1.0, colours.surface.gamma_multiply(2.5))));
+            let points: Vec<Pos2> = poly
+                .iter()
+                .map(|p| projection.screen_from_unit(data_box.unit(*p)).0)
+                .collect();
+            painter.add(Shape::convex_polygon(
+                points,
+                colours.surface,
+                Stroke::new(1.0, colours.surface.gamma_multiply(2.5)),
+            ));
         }
         for i in 0..cut_points.len() {
             let s = cut_points.state(i);
@@ -227,7 +270,12 @@ impl SpaceView {
         }
         if let Some(h) = handle_pos {
             let active = dragging_handle && response.dragged();
-            painter.circle(h, if active { 8.0 } else { 6.0 }, colours.surface.gamma_multiply(3.0), Stroke::new(1.5, Color32::WHITE));
+            painter.circle(
+                h,
+                if active { 8.0 } else { 6.0 },
+                colours.surface.gamma_multiply(3.0),
+                Stroke::new(1.5, Color32::WHITE),
+            );
             if response.hover_pos().is_some_and(|p| p.distance(h) < 12.0) {
                 ui.ctx().set_cursor_icon(egui::CursorIcon::Grab);
             }
@@ -250,7 +298,13 @@ pub struct SpaceColours {
 
 fn draw_box(painter: &egui::Painter, projection: &Projection, names: &[String], axes: [usize; 3]) {
     let stroke = Stroke::new(0.5, Color32::from_gray(90));
-    let corners = |i: usize| [if i & 1 == 0 { -1.0 } else { 1.0 }, if i & 2 == 0 { -1.0 } else { 1.0 }, if i & 4 == 0 { -1.0 } else { 1.0 }];
+    let corners = |i: usize| {
+        [
+            if i & 1 == 0 { -1.0 } else { 1.0 },
+            if i & 2 == 0 { -1.0 } else { 1.0 },
+            if i & 4 == 0 { -1.0 } else { 1.0 },
+        ]
+    };
     for i in 0..8usize {
         for bit in [1usize, 2, 4] {
             if i & bit == 0 {
@@ -261,10 +315,23 @@ fn draw_box(painter: &egui::Painter, projection: &Projection, names: &[String], 
         }
     }
     let font = egui::FontId::proportional(12.0);
-    for (k, end) in [[1.15f32, -1.0, -1.0], [-1.0, 1.15, -1.0], [-1.0, -1.0, 1.15]].into_iter().enumerate() {
+    for (k, end) in [
+        [1.15f32, -1.0, -1.0],
+        [-1.0, 1.15, -1.0],
+        [-1.0, -1.0, 1.15],
+    ]
+    .into_iter()
+    .enumerate()
+    {
         let p = projection.screen_from_unit(end).0;
         let name = names.get(axes[k]).map_or("", String::as_str);
-        painter.text(p, egui::Align2::CENTER_CENTER, name, font.clone(), Color32::from_gray(170));
+        painter.text(
+            p,
+            egui::Align2::CENTER_CENTER,
+            name,
+            font.clone(),
+            Color32::from_gray(170),
+        );
     }
 }
 
@@ -274,7 +341,13 @@ fn plane_polygon(plane: &PlaneGeometry, b: &DataBox) -> Option<Vec<[f64; 3]>> {
     if n.iter().all(|&w| w == 0.0) {
         return None;
     }
-    let corner = |i: usize| [if i & 1 == 0 { b.lo[0] } else { b.hi[0] }, if i & 2 == 0 { b.lo[1] } else { b.hi[1] }, if i & 4 == 0 { b.lo[2] } else { b.hi[2] }];
+    let corner = |i: usize| {
+        [
+            if i & 1 == 0 { b.lo[0] } else { b.hi[0] },
+            if i & 2 == 0 { b.lo[1] } else { b.hi[1] },
+            if i & 4 == 0 { b.lo[2] } else { b.hi[2] },
+        ]
+    };
     let g = |p: [f64; 3]| n[0] * p[0] + n[1] * p[1] + n[2] * p[2] - plane.offset;
     let mut points = Vec::new();
     for i in 0..8usize {
@@ -284,7 +357,11 @@ fn plane_polygon(plane: &PlaneGeometry, b: &DataBox) -> Option<Vec<[f64; 3]>> {
                 let (gp, gq) = (g(p), g(q));
                 if (gp <= 0.0) != (gq <= 0.0) {
                     let s = gp / (gp - gq);
-                    points.push([p[0] + s * (q[0] - p[0]), p[1] + s * (q[1] - p[1]), p[2] + s * (q[2] - p[2])]);
+                    points.push([
+                        p[0] + s * (q[0] - p[0]),
+                        p[1] + s * (q[1] - p[1]),
+                        p[2] + s * (q[2] - p[2]),
+                    ]);
                 }
             }
         }
@@ -295,7 +372,13 @@ fn plane_polygon(plane: &PlaneGeometry, b: &DataBox) -> Option<Vec<[f64; 3]>> {
     // order around the centroid, in the plane's own 2D frame (scaled to the box)
     let c = centroid(&points);
     let scale = [b.hi[0] - b.lo[0], b.hi[1] - b.lo[1], b.hi[2] - b.lo[2]];
-    let rel = |p: &[f64; 3]| [(p[0] - c[0]) / scale[0], (p[1] - c[1]) / scale[1], (p[2] - c[2]) / scale[2]];
+    let rel = |p: &[f64; 3]| {
+        [
+            (p[0] - c[0]) / scale[0],
+            (p[1] - c[1]) / scale[1],
+            (p[2] - c[2]) / scale[2],
+        ]
+    };
     let first = rel(&points[0]);
     let nn = [n[0] * scale[0], n[1] * scale[1], n[2] * scale[2]];
     let second = cross(nn, first);
@@ -326,12 +409,22 @@ fn dot(a: [f64; 3], b: [f64; 3]) -> f64 {
 }
 
 fn cross(a: [f64; 3], b: [f64; 3]) -> [f64; 3] {
-    [a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0]]
+    [
+        a[1] * b[2] - a[2] * b[1],
+        a[2] * b[0] - a[0] * b[2],
+        a[0] * b[1] - a[1] * b[0],
+    ]
 }
 
 /// The offset after dragging the handle by `delta` on screen: the drag is projected onto the
 /// screen direction of the plane's normal.
-fn drag_plane(plane: &PlaneGeometry, poly: &[[f64; 3]], b: &DataBox, projection: &Projection, delta: Vec2) -> Option<f64> {
+fn drag_plane(
+    plane: &PlaneGeometry,
+    poly: &[[f64; 3]],
+    b: &DataBox,
+    projection: &Projection,
+    delta: Vec2,
+) -> Option<f64> {
     let n = plane.normal;
     let norm = dot(n, n).sqrt();
     if norm == 0.0 {
@@ -339,9 +432,15 @@ fn drag_plane(plane: &PlaneGeometry, poly: &[[f64; 3]], b: &DataBox, projection:
     }
     let c = centroid(poly);
     // a step along the unit normal of a tenth of the box diagonal
-    let diag = ((b.hi[0] - b.lo[0]).powi(2) + (b.hi[1] - b.lo[1]).powi(2) + (b.hi[2] - b.lo[2]).powi(2)).sqrt();
+    let diag =
+        ((b.hi[0] - b.lo[0]).powi(2) + (b.hi[1] - b.lo[1]).powi(2) + (b.hi[2] - b.lo[2]).powi(2))
+            .sqrt();
     let step = 0.1 * diag;
-    let moved = [c[0] + step * n[0] / norm, c[1] + step * n[1] / norm, c[2] + step * n[2] / norm];
+    let moved = [
+        c[0] + step * n[0] / norm,
+        c[1] + step * n[1] / norm,
+        c[2] + step * n[2] / norm,
+    ];
     let a = projection.screen_from_unit(b.unit(c)).0;
     let z = projection.screen_from_unit(b.unit(moved)).0;
     let v = z - a;
