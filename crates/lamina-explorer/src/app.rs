@@ -97,7 +97,10 @@ impl ExplorerApp {
         app.results = Results::new(app.state_names());
         match file {
             Some(path) => app.open_path(path),
-            None => app.note("opened the built-in demo scenario"),
+            None => {
+                app.apply_view_block();
+                app.note("opened the built-in demo scenario");
+            }
         }
         app
     }

@@ -146,8 +146,10 @@ impl ExplorerApp {
         let strobe = scenario
             .strobe_spec()
             .and_then(|spec| Strobe::compile(&spec, &model).ok());
+        let period = strobe.map(|s| s.period);
         let run = Box::new(Run::new(model, scenario.run_spec(), cut, strobe, true));
         self.results = Results::new(self.state_names());
+        self.results.strobe_period = period;
         self.launch(ctx, run, "run started");
         self.execution.stale = false;
     }

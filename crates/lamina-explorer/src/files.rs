@@ -282,18 +282,26 @@ impl ExplorerApp {
     }
 
     /// Takes the 3D axes and camera from the scenario's view block, if it has one.
-    fn apply_view_block(&mut self) {
+    pub(crate) fn apply_view_block(&mut self) {
+        self.layout.cut_axes = None;
+        self.layout.strobe_axes = None;
         if let Some(axes) = self.doc.scenario.view_axes() {
-            let mut idx = [0usize; 3];
-            for (k, a) in axes.iter().enumerate() {
-                if let lamina_scenario::ViewAxis::State(i) = a {
-                    idx[k] = *i;
-                }
-            }
-            self.settings.space.axes = idx;
+            let n = self.doc.scenario.states.len();
+            self.settings.space.axes = axes.map(|a| match a {
+                lamina_scenario::ViewAxis::State(i) => i,
+                lamina_scenario::ViewAxis::Time => n,
+            });
         } else {
             let n = self.doc.scenario.states.len();
-            self.settings.space.axes = [0, 1.min(n.saturating_sub(1)), 2.min(n.saturating_sub(1))];
+            // a forced model with two states: the drive phase (or time) as the third axis
+            let third = if n >= 3 {
+                2
+            } else if self.doc.scenario.strobe.is_some() {
+                n + 1
+            } else {
+                n
+            };
+            self.settings.space.axes = [0, 1.min(n.saturating_sub(1)), third];
         }
         if let Some(camera) = self
             .doc

@@ -9,7 +9,7 @@ use lamina_scenario::Surface;
 use crate::app::{Action, ExplorerApp};
 use crate::document::DEMOS;
 use crate::export::{PngRequest, PointSet};
-use crate::results::RunState;
+use crate::results::{CloudAxis, RunState};
 use crate::views::cloud::{CloudView, ColourBy};
 use crate::views::series;
 use crate::views::space::{PlaneGeometry, SpaceColours};
@@ -68,6 +68,64 @@ pub struct Layout {
     pub cut_view: CloudView,
     /// The strobe view's state.
     pub strobe_view: CloudView,
+    /// Axes of the cut view chosen in the view (None: from the scenario).
+    pub cut_axes: Option<[CloudAxis; 2]>,
+    /// Axes of the strobe view chosen in the view (None: from the scenario).
+    pub strobe_axes: Option<[CloudAxis; 2]>,
+}
+
+/// The cut view's axes from the scenario; a coordinate that is constant on a plane cut
+/// (the plane's normal is that one state) is replaced by the return time.
+fn default_cut_axes(app: &ExplorerApp) -> Option<[CloudAxis; 2]> {
+    let [a, b] = app.doc.scenario.cut_axes()?;
+    let fixed = match &app.doc.scenario.cut.as_ref()?.surface {
+        Surface::Plane { normal, .. } => {
+            let nonzero: Vec<&String> = normal
+                .0
+                .iter()
+                .filter(|(_, w)| *w != 0.0)
+                .map(|(n, _)| n)
+                .collect();
+            match nonzero.as_slice() {
+                [only] => app.doc.scenario.state_index(only),
+                _ => None,
+            }
+        }
+        Surface::Level(_) => None,
+    };
+    Some(if fixed == Some(b) {
+        [CloudAxis::State(a), CloudAxis::ReturnTime]
+    } else if fixed == Some(a) {
+        [CloudAxis::State(b), CloudAxis::ReturnTime]
+    } else {
+        [CloudAxis::State(a), CloudAxis::State(b)]
+    })
+}
+
+/// Two axis pickers: states, t, return time. Returns the new choice if changed.
+fn cloud_axes_ui(
+    ui: &mut Ui,
+    id: &str,
+    names: &[String],
+    axes: [CloudAxis; 2],
+) -> Option<[CloudAxis; 2]> {
+    let mut chosen = axes;
+    let mut options: Vec<CloudAxis> = (0..names.len()).map(CloudAxis::State).collect();
+    options.push(CloudAxis::Time);
+    options.push(CloudAxis::ReturnTime);
+    for (k, tip) in [(0, "Horizontal coordinate"), (1, "Vertical coordinate")] {
+        egui::ComboBox::from_id_salt((id, k))
+            .selected_text(chosen[k].label(names))
+            .width(70.0)
+            .show_ui(ui, |ui| {
+                for o in &options {
+                    ui.selectable_value(&mut chosen[k], *o, o.label(names));
+                }
+            })
+            .response
+            .on_hover_text(tip);
+    }
+    (chosen != axes).then_some(chosen)
 }
 
 /// The menu bar and the run buttons.
@@ -161,7 +219,7 @@ pub fn menu_bar(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
                     }
                 });
             });
-            ui.menu_button("Run", |ui| {
+            ui.menu_button("Simulation", |ui| {
                 if ui.button("Run from the start   F5").clicked() {
                     actions.push(Action::Run);
                 }
@@ -194,7 +252,7 @@ fn run_buttons(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
         .map(|p| format!("{}: {}", p.field, p.message));
     let run = ui.add_enabled(
         error.is_none(),
-        egui::Button::new(RichText::new("▶ Run").strong()),
+        egui::Button::new(RichText::new("Run").strong()),
     );
     let run = match &error {
         Some(reason) => run.on_disabled_hover_text(format!("Fix this first — {reason}")),
@@ -206,7 +264,7 @@ fn run_buttons(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
         actions.push(Action::Run);
     }
     if ui
-        .add_enabled(running, egui::Button::new("■ Stop"))
+        .add_enabled(running, egui::Button::new("Stop"))
         .on_hover_text("Stop the run (Esc)")
         .clicked()
     {
@@ -214,7 +272,7 @@ fn run_buttons(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
     }
     let can_continue = !running && app.results.run.is_some();
     if ui
-        .add_enabled(can_continue, egui::Button::new("⏩ Continue"))
+        .add_enabled(can_continue, egui::Button::new("Continue"))
         .on_hover_text("Integrate another span from where the run ended (Shift+F5)")
         .clicked()
     {
@@ -280,62 +338,75 @@ pub fn lower_views(app: &mut ExplorerApp, ui: &mut Ui) {
             ui.horizontal(|ui| {
                 let third = (width - 16.0) / 3.0;
                 let source_is_cut = !app.results.cut.is_empty() || app.results.strobe.is_empty();
-                ui.allocate_ui(vec2(third, height), |ui| {
-                    ui.label(
-                        RichText::new(if source_is_cut {
-                            "Return times (cut)"
+                ui.allocate_ui_with_layout(
+                    vec2(third, height),
+                    egui::Layout::top_down(egui::Align::Min),
+                    |ui| {
+                        ui.label(
+                            RichText::new(if source_is_cut {
+                                "Return times (cut)"
+                            } else {
+                                "Sample spacing (strobe)"
+                            })
+                            .small()
+                            .strong(),
+                        );
+                        let cloud = if source_is_cut {
+                            &app.results.cut
                         } else {
-                            "Sample spacing (strobe)"
-                        })
-                        .small()
-                        .strong(),
-                    );
-                    let cloud = if source_is_cut {
-                        &app.results.cut
-                    } else {
-                        &app.results.strobe
-                    };
-                    let r = series::return_times_ui(
-                        ui,
-                        cloud,
-                        if source_is_cut { "cut" } else { "strobe" },
-                    );
-                    app.layout.view_rects.insert(ViewKind::ReturnTimes, r);
-                });
+                            &app.results.strobe
+                        };
+                        let r = series::return_times_ui(
+                            ui,
+                            cloud,
+                            if source_is_cut { "cut" } else { "strobe" },
+                        );
+                        app.layout.view_rects.insert(ViewKind::ReturnTimes, r);
+                    },
+                );
                 ui.separator();
-                ui.allocate_ui(vec2(third, height), |ui| {
-                    ui.label(RichText::new("First-return map").small().strong());
-                    let cloud = if source_is_cut {
-                        &app.results.cut
-                    } else {
-                        &app.results.strobe
-                    };
-                    let r = series::first_return_map_ui(
-                        ui,
-                        cloud,
-                        &app.results.names,
-                        &mut app.settings.map_coordinate,
-                    );
-                    app.layout.view_rects.insert(ViewKind::ReturnMap, r);
-                });
+                ui.allocate_ui_with_layout(
+                    vec2(third, height),
+                    egui::Layout::top_down(egui::Align::Min),
+                    |ui| {
+                        ui.label(RichText::new("First-return map").small().strong());
+                        let cloud = if source_is_cut {
+                            &app.results.cut
+                        } else {
+                            &app.results.strobe
+                        };
+                        let r = series::first_return_map_ui(
+                            ui,
+                            cloud,
+                            &app.results.names,
+                            &mut app.settings.map_coordinate,
+                        );
+                        app.layout.view_rects.insert(ViewKind::ReturnMap, r);
+                    },
+                );
                 ui.separator();
-                ui.allocate_ui(vec2(third, height), |ui| {
-                    ui.label(RichText::new("Messages").small().strong());
-                    egui::ScrollArea::vertical()
-                        .stick_to_bottom(true)
-                        .auto_shrink([false, false])
-                        .show(ui, |ui| {
-                            let start = app.log.first().map(|(t, _)| *t);
-                            for (t, line) in &app.log {
-                                let secs = start.map_or(0.0, |s| t.duration_since(s).as_secs_f64());
-                                ui.label(
-                                    RichText::new(format!("{secs:7.1} s  {line}"))
-                                        .monospace()
-                                        .small(),
-                                );
-                            }
-                        });
-                });
+                ui.allocate_ui_with_layout(
+                    vec2(third, height),
+                    egui::Layout::top_down(egui::Align::Min),
+                    |ui| {
+                        ui.label(RichText::new("Messages").small().strong());
+                        egui::ScrollArea::vertical()
+                            .stick_to_bottom(true)
+                            .auto_shrink([false, false])
+                            .show(ui, |ui| {
+                                let start = app.log.first().map(|(t, _)| *t);
+                                for (t, line) in &app.log {
+                                    let secs =
+                                        start.map_or(0.0, |s| t.duration_since(s).as_secs_f64());
+                                    ui.label(
+                                        RichText::new(format!("{secs:7.1} s  {line}"))
+                                            .monospace()
+                                            .small(),
+                                    );
+                                }
+                            });
+                    },
+                );
             });
         });
 }
@@ -457,7 +528,7 @@ fn tile_ui(
         ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
             let maximised = app.settings.maximised == Some(index);
             if ui
-                .small_button(if maximised { "⊟" } else { "⛶" })
+                .small_button(if maximised { "restore" } else { "enlarge" })
                 .on_hover_text(if maximised {
                     "Back to three views"
                 } else {
@@ -515,6 +586,7 @@ fn tile_ui(
                 &app.results.cut,
                 plane.as_ref().map(|(p, _)| p),
                 &colours,
+                app.results.strobe_period,
             );
             if let (Some(new_offset), Some((_, hidden))) = (response.new_offset, plane)
                 && let Some(cut) = &mut app.doc.scenario.cut
@@ -526,17 +598,39 @@ fn tile_ui(
             }
         }
         ViewKind::Cut | ViewKind::Strobe => {
-            let (cloud, axes, colour, view) = if kind == ViewKind::Cut {
+            let scenario_axes = if kind == ViewKind::Cut {
+                app.layout.cut_axes.or_else(|| default_cut_axes(app))
+            } else {
+                app.layout.strobe_axes.or_else(|| {
+                    app.doc
+                        .scenario
+                        .strobe_axes()
+                        .map(|[a, b]| [CloudAxis::State(a), CloudAxis::State(b)])
+                })
+            };
+            let picker_id = if kind == ViewKind::Cut {
+                "cut_axes_pick"
+            } else {
+                "strobe_axes_pick"
+            };
+            let axes = scenario_axes.map(|axes| {
+                let picked = ui
+                    .horizontal(|ui| cloud_axes_ui(ui, picker_id, &app.results.names, axes))
+                    .inner;
+                if let Some(new) = picked {
+                    app.choose_cloud_axes(kind, new);
+                }
+                picked.unwrap_or(axes)
+            });
+            let (cloud, colour, view) = if kind == ViewKind::Cut {
                 (
                     &app.results.cut,
-                    app.doc.scenario.cut_axes(),
                     app.settings.cut_colour,
                     &mut app.layout.cut_view,
                 )
             } else {
                 (
                     &app.results.strobe,
-                    app.doc.scenario.strobe_axes(),
                     app.settings.strobe_colour,
                     &mut app.layout.strobe_view,
                 )
@@ -590,5 +684,33 @@ fn tile_ui(
             });
         }
         ViewKind::ReturnTimes | ViewKind::ReturnMap => {}
+    }
+}
+
+impl ExplorerApp {
+    /// Takes the axes picked in a cloud view; a pair of states is also written to the
+    /// scenario (so it is saved), time and return time stay a choice of the view.
+    fn choose_cloud_axes(&mut self, kind: ViewKind, axes: [CloudAxis; 2]) {
+        if let [CloudAxis::State(a), CloudAxis::State(b)] = axes {
+            let name = |i: usize| self.results.names.get(i).cloned().unwrap_or_default();
+            let pair = (name(a), name(b));
+            match kind {
+                ViewKind::Cut => {
+                    if let Some(c) = &mut self.doc.scenario.cut {
+                        c.axes = pair;
+                    }
+                }
+                _ => {
+                    if let Some(s) = &mut self.doc.scenario.strobe {
+                        s.axes = pair;
+                    }
+                }
+            }
+            self.doc.changed();
+        }
+        match kind {
+            ViewKind::Cut => self.layout.cut_axes = Some(axes),
+            _ => self.layout.strobe_axes = Some(axes),
+        }
     }
 }

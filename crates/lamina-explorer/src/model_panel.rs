@@ -178,7 +178,7 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                         changes.model = true;
                     }
                     if ui
-                        .small_button("✖")
+                        .small_button("remove")
                         .on_hover_text(format!("Remove state {name}"))
                         .clicked()
                         && n_states > 1
@@ -272,7 +272,7 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                 changes.model = true;
             }
             if ui
-                .small_button("✖")
+                .small_button("remove")
                 .on_hover_text(format!("Remove parameter {name}"))
                 .clicked()
             {

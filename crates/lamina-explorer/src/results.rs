@@ -5,6 +5,28 @@ use std::time::Duration;
 
 use lamina_core::run::{CutPoint, Run, StopReason, StrobeSample};
 
+/// A coordinate of a point cloud view: a state, the time, or the return time.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum CloudAxis {
+    /// The state with this index.
+    State(usize),
+    /// The time of the point.
+    Time,
+    /// The time since the previous point.
+    ReturnTime,
+}
+
+impl CloudAxis {
+    /// Name shown on the axis.
+    pub fn label(self, names: &[String]) -> String {
+        match self {
+            Self::State(i) => names.get(i).cloned().unwrap_or_default(),
+            Self::Time => "t".into(),
+            Self::ReturnTime => "return time".into(),
+        }
+    }
+}
+
 /// A growing set of points (cut points or strobe samples) stored flat.
 #[derive(Clone, Debug, Default)]
 pub struct PointCloud {
@@ -50,6 +72,16 @@ impl PointCloud {
     /// Coordinate `axis` of point `idx`.
     pub fn coord(&self, idx: usize, axis: usize) -> f64 {
         self.states[idx * self.dim + axis]
+    }
+
+    /// Value of `axis` at point `idx`.
+    pub fn value(&self, idx: usize, axis: CloudAxis) -> f64 {
+        match axis {
+            CloudAxis::State(k) if k < self.dim => self.states[idx * self.dim + k],
+            CloudAxis::State(_) => f64::NAN,
+            CloudAxis::Time => self.t[idx],
+            CloudAxis::ReturnTime => self.return_time[idx],
+        }
     }
 
     /// Appends a cut point.
@@ -209,6 +241,8 @@ pub struct Results {
     pub elapsed: Duration,
     /// The finished (or stopped) run, with its stored steps; `None` while running.
     pub run: Option<Box<Run>>,
+    /// The strobe period of the run, for the drive-phase axis.
+    pub strobe_period: Option<f64>,
 }
 
 impl Results {
@@ -226,6 +260,7 @@ impl Results {
             fraction: 0.0,
             elapsed: Duration::ZERO,
             run: None,
+            strobe_period: None,
         }
     }
 }

@@ -7,7 +7,7 @@ use egui::{Color32, ColorImage, Mesh, Pos2, Rect, TextureHandle, TextureOptions,
 use egui_plot::{Plot, PlotPoint, PlotPoints, Points};
 
 use super::palette::ramp;
-use crate::results::PointCloud;
+use crate::results::{CloudAxis, PointCloud};
 
 /// Clouds up to this size are drawn point by point.
 pub const MESH_LIMIT: usize = 40_000;
@@ -34,7 +34,7 @@ struct DensityKey {
     revision: u64,
     bounds: [f64; 4],
     size: [usize; 2],
-    axes: [usize; 2],
+    axes: [CloudAxis; 2],
     colour_by: ColourBy,
 }
 
@@ -64,21 +64,16 @@ impl CloudView {
         id: &str,
         names: &[String],
         cloud: &PointCloud,
-        axes: [usize; 2],
+        axes: [CloudAxis; 2],
         colour_by: ColourBy,
         marks: &[Mark],
     ) -> CloudResponse {
         let mut out = CloudResponse::default();
-        let dim = cloud.dim();
-        if axes.iter().any(|&a| a >= dim.max(1)) || dim == 0 {
-            ui.label("choose two coordinates");
-            return out;
-        }
         let (colour_key, key_range) = colour_keys(cloud, colour_by);
         let extent = extent(cloud, axes);
         let plot = Plot::new(id)
-            .x_axis_label(names.get(axes[0]).cloned().unwrap_or_default())
-            .y_axis_label(names.get(axes[1]).cloned().unwrap_or_default())
+            .x_axis_label(axes[0].label(names))
+            .y_axis_label(axes[1].label(names))
             .allow_double_click_reset(true)
             .show_crosshair(false);
         let response = plot.show(ui, |plot_ui| {
@@ -102,8 +97,8 @@ impl CloudView {
             let half = if n < 2000 { 1.8 } else { 1.1 };
             for (i, key) in colour_key.iter().enumerate().take(n) {
                 let p = transform.position_from_point(&PlotPoint::new(
-                    cloud.coord(i, axes[0]),
-                    cloud.coord(i, axes[1]),
+                    cloud.value(i, axes[0]),
+                    cloud.value(i, axes[1]),
                 ));
                 if frame.expand(2.0).contains(p) {
                     let u = normalise(*key, key_range);
@@ -160,8 +155,8 @@ impl CloudView {
         }
         if let Some(sel) = self.selected.filter(|&s| s < n) {
             let p = transform.position_from_point(&PlotPoint::new(
-                cloud.coord(sel, axes[0]),
-                cloud.coord(sel, axes[1]),
+                cloud.value(sel, axes[0]),
+                cloud.value(sel, axes[1]),
             ));
             painter.circle_stroke(p, 5.0, egui::Stroke::new(1.5, Color32::WHITE));
         }
@@ -211,7 +206,7 @@ fn normalise(v: f64, (lo, hi): (f64, f64)) -> f32 {
     ((v - lo) / (hi - lo)) as f32
 }
 
-fn extent(cloud: &PointCloud, axes: [usize; 2]) -> Option<[f64; 4]> {
+fn extent(cloud: &PointCloud, axes: [CloudAxis; 2]) -> Option<[f64; 4]> {
     let mut e = [
         f64::INFINITY,
         f64::INFINITY,
@@ -219,12 +214,25 @@ fn extent(cloud: &PointCloud, axes: [usize; 2]) -> Option<[f64; 4]> {
         f64::NEG_INFINITY,
     ];
     for i in 0..cloud.len() {
-        let (x, y) = (cloud.coord(i, axes[0]), cloud.coord(i, axes[1]));
+        let (x, y) = (cloud.value(i, axes[0]), cloud.value(i, axes[1]));
         if x.is_finite() && y.is_finite() {
             e = [e[0].min(x), e[1].min(y), e[2].max(x), e[3].max(y)];
         }
     }
-    (e[0] <= e[2]).then_some(e)
+    if e[0] > e[2] {
+        return None;
+    }
+    // a coordinate that is constant up to round-off gets a unit-sized window, so that
+    // 1e-17 noise does not fill the view
+    for (lo, hi) in [(0, 2), (1, 3)] {
+        let span = e[hi] - e[lo];
+        let scale = e[lo].abs().max(e[hi].abs()).max(1.0);
+        if span < 1e-9 * scale {
+            e[lo] -= 0.5 * scale;
+            e[hi] += 0.5 * scale;
+        }
+    }
+    Some(e)
 }
 
 fn density_image(
@@ -239,7 +247,7 @@ fn density_image(
     let mut latest = vec![0.0f64; w * h];
     let (sx, sy) = (w as f64 / (x1 - x0), h as f64 / (y1 - y0));
     for (i, &colour) in colour_key.iter().enumerate().take(cloud.len()) {
-        let (x, y) = (cloud.coord(i, key.axes[0]), cloud.coord(i, key.axes[1]));
+        let (x, y) = (cloud.value(i, key.axes[0]), cloud.value(i, key.axes[1]));
         let (cx, cy) = ((x - x0) * sx, (y1 - y) * sy);
         if cx >= 0.0 && cy >= 0.0 && (cx as usize) < w && (cy as usize) < h {
             let cell = cy as usize * w + cx as usize;
@@ -265,14 +273,14 @@ fn density_image(
 
 fn nearest_point(
     cloud: &PointCloud,
-    axes: [usize; 2],
+    axes: [CloudAxis; 2],
     screen: impl Fn(f64, f64) -> Pos2,
     pointer: Pos2,
 ) -> Option<usize> {
     let mut best = None;
     let mut best_d = 10.0f32;
     for i in 0..cloud.len() {
-        let d = screen(cloud.coord(i, axes[0]), cloud.coord(i, axes[1])).distance(pointer);
+        let d = screen(cloud.value(i, axes[0]), cloud.value(i, axes[1])).distance(pointer);
         if d < best_d {
             best_d = d;
             best = Some(i);
@@ -310,7 +318,7 @@ fn legend_ui(
     let font = egui::FontId::proportional(10.0);
     let text_colour = Color32::from_gray(190);
     let title = match colour_by {
-        ColourBy::Arrival => format!("order of arrival ({n} points)"),
+        ColourBy::Arrival => "arrival order".to_string(),
         ColourBy::ReturnTime => "return time".to_string(),
     };
     painter.text(

@@ -19,9 +19,6 @@ pub fn return_times_ui(ui: &mut Ui, cloud: &PointCloud, label: &str) -> Rect {
         .x_axis_label("n")
         .y_axis_label(format!("return time ({label})"))
         .show(ui, |plot_ui| {
-            if points.len() < 4000 {
-                plot_ui.line(Line::new("return time", PlotPoints::new(points.clone())).width(1.0));
-            }
             plot_ui.points(Points::new("return time", PlotPoints::new(points)).radius(1.5));
         });
     response.response.rect

@@ -30,6 +30,31 @@ impl Default for SpaceView {
     }
 }
 
+/// Value of a 3D-view axis: a state (index below `dim`), the time (`dim`), or the phase of
+/// the strobe period (`dim + 1`, the time modulo the period).
+pub fn axis_value(axis: usize, state: &[f64], t: f64, period: Option<f64>) -> f64 {
+    let dim = state.len();
+    if axis < dim {
+        state[axis]
+    } else if axis == dim {
+        t
+    } else {
+        period.map_or(t, |p| t.rem_euclid(p))
+    }
+}
+
+/// Name of a 3D-view axis.
+pub fn axis_name(axis: usize, names: &[String]) -> String {
+    let dim = names.len();
+    if axis < dim {
+        names[axis].clone()
+    } else if axis == dim {
+        "t".into()
+    } else {
+        "drive phase".into()
+    }
+}
+
 /// The plane to draw: weights on the three shown axes and the right-hand side there.
 pub struct PlaneGeometry {
     /// Weights of the three shown coordinates.
@@ -49,12 +74,17 @@ struct DataBox {
 }
 
 impl DataBox {
-    fn of(trajectory: &Trajectory, cloud: &PointCloud, axes: [usize; 3]) -> Option<Self> {
+    fn of(
+        trajectory: &Trajectory,
+        cloud: &PointCloud,
+        axes: [usize; 3],
+        period: Option<f64>,
+    ) -> Option<Self> {
         let mut lo = [f64::INFINITY; 3];
         let mut hi = [f64::NEG_INFINITY; 3];
-        let mut grow = |s: &[f64]| {
+        let mut grow = |s: &[f64], t: f64| {
             for k in 0..3 {
-                let v = s.get(axes[k]).copied().unwrap_or(0.0);
+                let v = axis_value(axes[k], s, t, period);
                 if v.is_finite() {
                     lo[k] = lo[k].min(v);
                     hi[k] = hi[k].max(v);
@@ -62,10 +92,10 @@ impl DataBox {
             }
         };
         for i in 0..trajectory.len() {
-            grow(trajectory.state(i));
+            grow(trajectory.state(i), trajectory.t[i]);
         }
         for i in 0..cloud.len() {
-            grow(cloud.state(i));
+            grow(cloud.state(i), cloud.t[i]);
         }
         if lo.iter().zip(&hi).any(|(l, h)| l > h) {
             return None;
@@ -142,18 +172,20 @@ impl SpaceView {
         cut_points: &PointCloud,
         plane: Option<&PlaneGeometry>,
         colours: &SpaceColours,
+        period: Option<f64>,
     ) -> SpaceResponse {
         let mut out = SpaceResponse::default();
         let dim = names.len();
+        let n_axes = dim + if period.is_some() { 2 } else { 1 };
         ui.horizontal(|ui| {
             for (k, label) in ["across", "depth", "up"].into_iter().enumerate() {
-                let current = names.get(self.axes[k]).cloned().unwrap_or_default();
+                let current = axis_name(self.axes[k], names);
                 egui::ComboBox::from_id_salt(("space_axis", k))
                     .selected_text(current)
                     .width(56.0)
                     .show_ui(ui, |ui| {
-                        for (idx, n) in names.iter().enumerate() {
-                            ui.selectable_value(&mut self.axes[k], idx, n);
+                        for idx in 0..n_axes {
+                            ui.selectable_value(&mut self.axes[k], idx, axis_name(idx, names));
                         }
                     })
                     .response
@@ -171,8 +203,9 @@ impl SpaceView {
                 };
             }
         });
+        // the drive-phase axis may wait for the run to know its period
         for a in &mut self.axes {
-            if *a >= dim {
+            if *a >= dim + 2 {
                 *a = 0;
             }
         }
@@ -182,7 +215,7 @@ impl SpaceView {
         );
         let painter = ui.painter_at(rect);
         painter.rect_filled(rect, 0.0, colours.background);
-        let Some(data_box) = DataBox::of(trajectory, cut_points, self.axes) else {
+        let Some(data_box) = DataBox::of(trajectory, cut_points, self.axes, period) else {
             painter.text(
                 rect.center(),
                 egui::Align2::CENTER_CENTER,
@@ -235,15 +268,25 @@ impl SpaceView {
         }
         let projection = Projection::new(rect, self);
         draw_box(&painter, &projection, names, self.axes);
+        let phase_axis = self.axes.iter().position(|&a| a == dim + 1);
         // trajectory, older parts fainter
         let n = trajectory.len();
         let stride = n.div_ceil(MAX_DRAWN_SAMPLES).max(1);
         let mut prev: Option<Pos2> = None;
+        let mut prev_phase = f64::NEG_INFINITY;
         let mut segments = Vec::with_capacity(n / stride + 1);
         for i in (0..n).step_by(stride) {
             let s = trajectory.state(i);
-            let u = data_box.unit([s[self.axes[0]], s[self.axes[1]], s[self.axes[2]]]);
+            let t = trajectory.t[i];
+            let v = self.axes.map(|a| axis_value(a, s, t, period));
+            let u = data_box.unit(v);
             let (q, _) = projection.screen_from_unit(u);
+            // the drive phase wraps around: do not draw a line back across the box
+            let wrapped = phase_axis.is_some_and(|k| v[k] < prev_phase);
+            prev_phase = phase_axis.map_or(f64::NEG_INFINITY, |k| v[k]);
+            if wrapped {
+                prev = None;
+            }
             if let Some(p) = prev {
                 let age = i as f32 / n.max(1) as f32;
                 let colour = colours.trajectory.gamma_multiply(0.25 + 0.75 * age);
@@ -265,7 +308,7 @@ impl SpaceView {
         }
         for i in 0..cut_points.len() {
             let s = cut_points.state(i);
-            let u = data_box.unit([s[self.axes[0]], s[self.axes[1]], s[self.axes[2]]]);
+            let u = data_box.unit(self.axes.map(|a| axis_value(a, s, cut_points.t[i], period)));
             painter.circle_filled(projection.screen_from_unit(u).0, 1.6, colours.cut_points);
         }
         if let Some(h) = handle_pos {

@@ -1,0 +1,229 @@
+//! The explorer driven headless through egui_kittest: editing, running, cutting, saving.
+
+use std::time::Duration;
+
+use egui::accesskit::Role;
+use egui_kittest::Harness;
+use egui_kittest::kittest::{NodeT, Queryable};
+use lamina_explorer::{ExplorerApp, Options, RunState};
+
+/// A window on the built-in demo with a short time window, not started.
+fn app() -> ExplorerApp {
+    let options = Options {
+        autostart: false,
+        ..Options::default()
+    };
+    let mut app = ExplorerApp::new(None, Default::default(), options);
+    app.edit_scenario(|s| {
+        s.time.settle = 50.0;
+        s.time.span = 400.0;
+    });
+    app
+}
+
+fn harness(app: ExplorerApp) -> Harness<'static, ExplorerApp> {
+    Harness::builder()
+        .with_size(egui::vec2(1500.0, 950.0))
+        .with_max_steps(20)
+        .build_ui_state(|ui, app: &mut ExplorerApp| app.show(ui), app)
+}
+
+/// Steps frames until the run is no longer going (at most a minute).
+fn wait_for_run(h: &mut Harness<'static, ExplorerApp>) {
+    for _ in 0..12_000 {
+        h.step();
+        if !h.state().is_running() && *h.state().run_state() != RunState::Running {
+            h.step();
+            return;
+        }
+        std::thread::sleep(Duration::from_millis(5));
+    }
+    panic!("the run did not finish");
+}
+
+/// A few frames: windows and modals appear one frame after they are asked for.
+fn steps(h: &mut Harness<'static, ExplorerApp>, n: usize) {
+    for _ in 0..n {
+        h.step();
+    }
+}
+
+fn click_run(h: &mut Harness<'static, ExplorerApp>) {
+    h.get_by_label("Run").click();
+    h.step();
+    h.step();
+}
+
+#[test]
+fn running_the_demo_produces_cut_points_and_strobe_samples() {
+    let mut h = harness(app());
+    h.step();
+    click_run(&mut h);
+    wait_for_run(&mut h);
+    assert_eq!(*h.state().run_state(), RunState::Finished);
+    assert!(
+        h.state().n_cut_points() > 10,
+        "{}",
+        h.state().n_cut_points()
+    );
+    // [analytic] one strobe sample per drive period 2 pi / w over the 400-unit window
+    let period = 2.0 * std::f64::consts::PI / 1.1;
+    let expected = (400.0 / period).floor() as usize;
+    let n = h.state().n_strobe_samples();
+    assert!(n == expected || n == expected + 1, "{n} vs {expected}");
+    // the status line counts them
+    h.get_by_label(&format!("{} cut points", h.state().n_cut_points()));
+}
+
+#[test]
+fn a_bad_rate_shows_its_message_and_turns_run_off() {
+    let mut h = harness(app());
+    h.step();
+    let rate = h.get_by_label("dv/dt =");
+    rate.focus();
+    rate.type_text(" + q9");
+    h.step();
+    h.step();
+    assert!(h.state().document().first_error().is_some());
+    // shown in place under the field (and repeated beside the switched-off Run button)
+    assert!(h.get_all_by_label_contains("unknown name 'q9'").count() >= 1);
+    let run = h.get_by_label("Run");
+    assert!(
+        run.accesskit_node().is_disabled(),
+        "Run must be off while a rate is wrong"
+    );
+    h.get_by_label_contains("Run is off");
+}
+
+#[test]
+fn switching_direction_to_both_doubles_the_count_without_a_new_run() {
+    let mut h = harness(app());
+    h.state_mut().edit_scenario(|s| {
+        // a single stable cycle: every rising crossing is followed by a falling one
+        s.parameters
+            .iter_mut()
+            .find(|p| p.name == "a")
+            .expect("a")
+            .value = 0.2;
+        if let Some(cut) = &mut s.cut {
+            cut.direction = lamina_scenario::Direction::Rising;
+        }
+    });
+    h.step();
+    click_run(&mut h);
+    wait_for_run(&mut h);
+    let rising = h.state().n_cut_points();
+    let runs = h.state().n_runs_started();
+    assert!(rising > 10);
+    h.get_by_label("both").click();
+    h.step();
+    h.step();
+    let both = h.state().n_cut_points();
+    // [analytic] on a closed orbit rising and falling crossings alternate: both = 2 x rising (+-1)
+    assert!(
+        both.abs_diff(2 * rising) <= 1,
+        "rising {rising}, both {both}"
+    );
+    assert_eq!(
+        h.state().n_runs_started(),
+        runs,
+        "re-sliced from the stored run, not run again"
+    );
+}
+
+#[test]
+fn moving_the_cut_offset_re_slices_without_a_new_run() {
+    let mut h = harness(app());
+    h.step();
+    click_run(&mut h);
+    wait_for_run(&mut h);
+    let before: Vec<f64> = h.state().cut_times().to_vec();
+    let runs = h.state().n_runs_started();
+    h.get_by_label("= offset").set_value_accesskit(0.3);
+    h.step();
+    h.step();
+    let after: Vec<f64> = h.state().cut_times().to_vec();
+    assert_eq!(h.state().n_runs_started(), runs, "no new run");
+    assert!(!after.is_empty());
+    assert_ne!(before, after, "the cut points moved with the plane");
+    if let Some(lamina_scenario::Cut {
+        surface: lamina_scenario::Surface::Plane { offset, .. },
+        ..
+    }) = &h.state().scenario().cut
+    {
+        assert_eq!(*offset, 0.3);
+    }
+}
+
+#[test]
+fn a_parameter_slider_change_runs_the_model_again() {
+    let mut h = harness(app());
+    h.step();
+    click_run(&mut h);
+    wait_for_run(&mut h);
+    let runs = h.state().n_runs_started();
+    let sliders = h.get_all_by_role(Role::Slider).collect::<Vec<_>>();
+    assert!(!sliders.is_empty());
+    sliders[0].set_value_accesskit(0.2);
+    drop(sliders);
+    // the re-run waits for the slider to rest
+    for _ in 0..200 {
+        h.step();
+        std::thread::sleep(Duration::from_millis(5));
+        if h.state().n_runs_started() > runs {
+            break;
+        }
+    }
+    assert_eq!(h.state().n_runs_started(), runs + 1);
+    wait_for_run(&mut h);
+    assert_eq!(*h.state().run_state(), RunState::Finished);
+}
+
+#[test]
+fn opening_a_demo_file_and_saving_it_gives_the_same_scenario() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let source = dir.path().join("relay.ron");
+    std::fs::copy(
+        concat!(
+            env!("CARGO_MANIFEST_DIR"),
+            "/../../demo_scenarios/relay_loop.ron"
+        ),
+        &source,
+    )
+    .expect("copy");
+    let mut h = harness(app());
+    steps(&mut h, 3);
+    h.get_by_label("File").click();
+    steps(&mut h, 3);
+    h.get_by_label("Open…").click_accesskit();
+    steps(&mut h, 3);
+    // the edit made above (the short window) is unsaved: the window asks first
+    h.get_by_label("Discard changes").click();
+    steps(&mut h, 3);
+    let path = h.get_by_label("path");
+    path.focus();
+    path.type_text(&source.display().to_string());
+    steps(&mut h, 3);
+    h.get_by_label("OK").click();
+    steps(&mut h, 3);
+    assert_eq!(
+        h.state().scenario().title,
+        "Relay temperature loop with hysteresis"
+    );
+    let saved = dir.path().join("relay_saved.ron");
+    h.get_by_label("File").click();
+    steps(&mut h, 3);
+    h.get_by_label("Save as…").click_accesskit();
+    steps(&mut h, 3);
+    // the field suggests the current file: replace it
+    let path = h.get_by_label("path");
+    path.focus();
+    path.set_text_value_accesskit(&saved.display().to_string());
+    steps(&mut h, 3);
+    h.get_by_label("OK").click();
+    steps(&mut h, 3);
+    let original = lamina_scenario::load_file(&source).expect("original loads");
+    let written = lamina_scenario::load_file(&saved).expect("saved file loads");
+    assert_eq!(original, written);
+    assert!(!h.state().document().is_dirty());
+}
