@@ -12,7 +12,7 @@ use crate::export::{PngRequest, PointSet};
 use crate::results::{CloudAxis, RunState};
 use crate::views::cloud::{CloudView, ColourBy};
 use crate::views::series;
-use crate::views::space::{PlaneGeometry, SpaceColours};
+use crate::views::space::{PlaneGeometry, SpaceColours, SpaceScene};
 
 /// The views that can be exported.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
@@ -579,15 +579,15 @@ fn tile_ui(
                 surface: Color32::from_rgba_unmultiplied(236, 150, 70, 48),
                 cut_points: Color32::from_rgb(250, 210, 120),
             };
-            let response = app.settings.space.ui(
-                ui,
-                &app.results.names,
-                &app.results.trajectory,
-                &app.results.cut,
-                plane.as_ref().map(|(p, _)| p),
-                &colours,
-                app.results.strobe_period,
-            );
+            let scene = SpaceScene {
+                names: &app.results.names,
+                trajectory: &app.results.trajectory,
+                cut_points: &app.results.cut,
+                plane: plane.as_ref().map(|(p, _)| p),
+                colours: &colours,
+                period: app.results.strobe_period,
+            };
+            let response = app.settings.space.ui(ui, &scene);
             if let (Some(new_offset), Some((_, hidden))) = (response.new_offset, plane)
                 && let Some(cut) = &mut app.doc.scenario.cut
                 && let Surface::Plane { offset, .. } = &mut cut.surface

@@ -155,6 +155,23 @@ impl Projection {
     }
 }
 
+/// What the 3D view draws.
+#[derive(Clone, Copy)]
+pub struct SpaceScene<'a> {
+    /// State names.
+    pub names: &'a [String],
+    /// The trajectory.
+    pub trajectory: &'a Trajectory,
+    /// Cut points, drawn as dots.
+    pub cut_points: &'a PointCloud,
+    /// The cut plane in the view's coordinates, if it is a plane.
+    pub plane: Option<&'a PlaneGeometry>,
+    /// Colours.
+    pub colours: &'a SpaceColours,
+    /// The strobe period, for the drive-phase axis.
+    pub period: Option<f64>,
+}
+
 /// What the user did in the view.
 #[derive(Default)]
 pub struct SpaceResponse {
@@ -164,16 +181,15 @@ pub struct SpaceResponse {
 
 impl SpaceView {
     /// Draws the view into the available space.
-    pub fn ui(
-        &mut self,
-        ui: &mut Ui,
-        names: &[String],
-        trajectory: &Trajectory,
-        cut_points: &PointCloud,
-        plane: Option<&PlaneGeometry>,
-        colours: &SpaceColours,
-        period: Option<f64>,
-    ) -> SpaceResponse {
+    pub fn ui(&mut self, ui: &mut Ui, scene: &SpaceScene<'_>) -> SpaceResponse {
+        let SpaceScene {
+            names,
+            trajectory,
+            cut_points,
+            plane,
+            colours,
+            period,
+        } = *scene;
         let mut out = SpaceResponse::default();
         let dim = names.len();
         let n_axes = dim + if period.is_some() { 2 } else { 1 };
