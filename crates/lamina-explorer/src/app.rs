@@ -164,6 +164,35 @@ impl ExplorerApp {
         &self.results.cut.t
     }
 
+    /// A window showing `n_points` synthetic cut points and strobe samples, for the frame
+    /// benchmark only (the points lie on a noisy closed curve; they are not a model's).
+    #[doc(hidden)]
+    pub fn benchmark_scene(n_points: usize) -> Self {
+        let options = Options { autostart: false, ..Options::default() };
+        let mut app = Self::new(None, Settings::default(), options);
+        let names = app.state_names();
+        app.results = Results::new(names);
+        let mut state = [0.0; 2];
+        for k in 0..n_points {
+            let phase = k as f64 * 0.618_033_988_75 * std::f64::consts::TAU;
+            let wobble = 1.0 + 0.05 * ((k as f64 * 0.37).sin());
+            state[0] = wobble * phase.cos();
+            state[1] = wobble * phase.sin();
+            let point = lamina_core::run::CutPoint { t: k as f64, return_time: Some(1.0 + 0.1 * phase.sin()), state: state.to_vec() };
+            app.results.cut.push_cut(&point);
+            app.results.strobe.push_cut(&point);
+        }
+        app.results.state = crate::RunState::Finished;
+        app
+    }
+
+    /// Marks the point clouds as changed, as a pan or a new batch would (benchmark only).
+    #[doc(hidden)]
+    pub fn benchmark_touch(&mut self) {
+        self.results.cut.revision += 1;
+        self.results.strobe.revision += 1;
+    }
+
     /// Whether a run is going.
     pub fn is_running(&self) -> bool {
         self.execution.worker.is_running()
