@@ -19,7 +19,7 @@ use lamina_core::run::{Cut, Direction, StoredRun};
 
 const CROSSINGS: usize = 20_000;
 const CHAIN_CROSSINGS: usize = 1_000;
-const ROUNDS: usize = 5;
+const ROUNDS: usize = 7;
 
 /// Oscillators in the chain (two states each), their damping and coupling.
 const N_OSCILLATORS: usize = 10;

@@ -15,6 +15,8 @@ pub(super) struct Compiled {
     states: Vec<(usize, u32)>,
     /// `(output index, register)` of the outputs held in registers.
     held: Vec<(usize, u8)>,
+    /// Whether `computed` is every output, in order.
+    in_order: bool,
     n_operations: usize,
 }
 
@@ -26,6 +28,7 @@ impl Compiled {
             computed: Vec::new(),
             states: Vec::new(),
             held: Vec::new(),
+            in_order: false,
             n_operations: 0,
             plan: Plan {
                 time: None,
@@ -50,6 +53,13 @@ impl Compiled {
             }
             compiled.n_operations += count_operations(root);
         }
+        compiled.in_order = compiled.states.is_empty()
+            && compiled.held.is_empty()
+            && compiled
+                .computed
+                .iter()
+                .enumerate()
+                .all(|(k, (idx, _))| k == *idx);
         compiled.plan = plan;
         Some(compiled)
     }
@@ -66,6 +76,13 @@ impl Compiled {
         for (dst, node) in &self.statements {
             let v = node(x, regs);
             regs[*dst as usize] = v;
+        }
+        if self.in_order {
+            // every output computed, in order (the usual case): no index to check
+            for (o, (_, node)) in out.iter_mut().zip(&self.computed) {
+                *o = node(x, regs);
+            }
+            return;
         }
         for (idx, node) in &self.computed {
             if let Some(o) = out.get_mut(*idx) {
@@ -100,6 +117,7 @@ impl Clone for Compiled {
             computed: Vec::new(),
             states: Vec::new(),
             held: Vec::new(),
+            in_order: false,
             n_operations: 0,
         })
     }
