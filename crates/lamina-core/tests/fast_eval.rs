@@ -215,3 +215,12 @@ fn a_model_too_large_for_the_registers_still_evaluates() {
     let last = (n_states - 1) as f64;
     assert_eq!(dx[n_states - 1], -(last + 2.0) * last);
 }
+
+#[test]
+fn compiled_models_can_move_between_threads() {
+    // sweeps and workers hand models to other threads
+    fn send_and_share<T: Send + Sync>() {}
+    send_and_share::<Model>();
+    send_and_share::<Program>();
+    send_and_share::<lamina_core::expr::Kernel>();
+}
