@@ -1,7 +1,7 @@
 //! A model ready to integrate: compiled rates, parameter values and start state, plus the
 //! plain specifications (names and expression texts) that it is compiled from.
 
-use crate::expr::{CompileError, Names, Program, Scratch};
+use crate::expr::{CompileError, Kernel, Names, Program, Scratch};
 use crate::integrate::Rates;
 
 /// One state variable as the user typed it.
@@ -44,10 +44,15 @@ impl ModelSpec {
 }
 
 /// A compiled model: evaluates all rates in one program.
+///
+/// The rates are evaluated by a [`Kernel`] specialised to the current parameter values
+/// (made again by [`Model::set_parameter`]), or by the program itself when it is too large
+/// for a kernel.
 #[derive(Clone, Debug)]
 pub struct Model {
     names: Names,
     program: Program,
+    kernel: Option<Kernel>,
     parameters: Vec<f64>,
     start: Vec<f64>,
     scratch: Scratch,
@@ -64,10 +69,12 @@ impl Model {
             .collect();
         let program = Program::compile(&names, &sources)?;
         let scratch = program.scratch();
+        let parameters: Vec<f64> = spec.parameters.iter().map(|p| p.value).collect();
         Ok(Self {
             names,
+            kernel: program.specialise(&parameters),
             program,
-            parameters: spec.parameters.iter().map(|p| p.value).collect(),
+            parameters,
             start: spec.states.iter().map(|s| s.start).collect(),
             scratch,
         })
@@ -93,9 +100,12 @@ impl Model {
         &self.parameters
     }
 
-    /// Sets parameter `idx` to `value`.
+    /// Sets parameter `idx` to `value` (and specialises the rates to the new values).
     pub fn set_parameter(&mut self, idx: usize, value: f64) {
-        self.parameters[idx] = value;
+        if self.parameters[idx].to_bits() != value.to_bits() {
+            self.parameters[idx] = value;
+            self.kernel = self.program.specialise(&self.parameters);
+        }
     }
 
     /// Sets the start state.
@@ -122,6 +132,15 @@ impl Model {
         );
     }
 
+    /// The rates of a model too large for a kernel (kept out of line, so that the usual path
+    /// stays small where the integrator inlines it).
+    #[cold]
+    #[inline(never)]
+    fn rates_without_kernel(&mut self, t: f64, x: &[f64], dx: &mut [f64]) {
+        self.program
+            .eval(&mut self.scratch, t, x, &self.parameters, dx);
+    }
+
     /// Whether any rate uses the time `t` (a forced, non-autonomous model).
     pub fn uses_time(&self) -> bool {
         self.program.uses_time()
@@ -132,8 +151,11 @@ impl Rates for Model {
     fn dim(&self) -> usize {
         self.start.len()
     }
+    #[inline]
     fn rates(&mut self, t: f64, x: &[f64], dx: &mut [f64]) {
-        self.program
-            .eval(&mut self.scratch, t, x, &self.parameters, dx);
+        match &mut self.kernel {
+            Some(kernel) => kernel.eval(t, x, dx),
+            None => self.rates_without_kernel(t, x, dx),
+        }
     }
 }

@@ -1,15 +1,23 @@
 //! Typed expressions: parsing with `meval`, compiling a whole system of expressions into one
-//! evaluation program with shared subexpressions, and forward-mode derivatives from it.
+//! evaluation program with shared subexpressions, compiling it into fast closures, and
+//! forward-mode derivatives from it.
 
 mod compile;
 mod error;
 mod functions;
+mod fuse;
 mod instr;
+mod kernel;
+mod lower;
+mod nodes;
+mod plan;
 mod program;
 mod tangent;
 
 pub use error::{CompileError, ExprError, ExprErrorKind};
 pub use functions::{CONSTANTS, FUNCTIONS, is_reserved};
+pub use kernel::Kernel;
+pub use plan::N_REGISTERS;
 pub use program::{Program, Scratch};
 
 /// The names an expression may use besides functions and constants: states (in order),

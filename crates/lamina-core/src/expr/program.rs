@@ -2,6 +2,9 @@
 
 use super::compile::{Builder, compile_expression};
 use super::instr::Instr;
+use super::kernel::{Compiled, Kernel};
+use super::lower::lower;
+use super::plan::{Registers, registers};
 use super::{CompileError, Names};
 
 /// Working memory of a [`Program`]; one per thread, made by [`Program::scratch`].
@@ -9,16 +12,23 @@ use super::{CompileError, Names};
 pub struct Scratch {
     pub(super) values: Vec<f64>,
     pub(super) tangents: Vec<f64>,
+    pub(super) registers: Option<Box<Registers>>,
 }
 
 /// A compiled set of expressions over states, parameters and `t`.
 ///
 /// All outputs share one instruction list in which equal subexpressions appear once and
 /// constant subexpressions are folded; evaluating allocates nothing and looks up no names.
+/// [`Program::eval`] runs the list lowered to compiled expression trees (see
+/// [`Program::specialise`] for a faster form with fixed parameters);
+/// [`Program::eval_reference`] runs the list itself, the reference the faster forms agree
+/// with.
 #[derive(Clone, Debug)]
 pub struct Program {
     pub(super) instrs: Vec<Instr>,
     pub(super) outputs: Vec<u32>,
+    /// The fast form (boxed: it is large, and a program sits in other types).
+    fast: Option<Box<Compiled>>,
     n_states: usize,
     n_parameters: usize,
     uses_time: bool,
@@ -68,7 +78,11 @@ impl Program {
         let outputs: Vec<u32> = outputs.iter().map(|&o| map[o as usize]).collect();
         let uses_time = kept.iter().any(|i| matches!(i, Instr::Time));
         let uses_states = kept.iter().any(|i| matches!(i, Instr::State(_)));
+        let fast = lower(&kept, &outputs, None)
+            .and_then(Compiled::new)
+            .map(Box::new);
         Self {
+            fast,
             instrs: kept,
             outputs,
             n_states: names.states.len(),
@@ -103,7 +117,18 @@ impl Program {
         Scratch {
             values: vec![0.0; self.instrs.len()],
             tangents: Vec::new(),
+            registers: self.fast.as_ref().map(|_| registers()),
         }
+    }
+
+    /// This program with the parameter values fixed to `parameters`: they are folded into
+    /// constants (with everything that depends only on them) and the kernel keeps its own
+    /// registers, so evaluating it is the fastest form. Make a new kernel when a parameter
+    /// changes. `None` when the program is too large for the register file (evaluate it with
+    /// [`Program::eval`] then).
+    pub fn specialise(&self, parameters: &[f64]) -> Option<Kernel> {
+        let plan = lower(&self.instrs, &self.outputs, Some(parameters))?;
+        Compiled::new(plan).map(Kernel::new)
     }
 
     /// Evaluates every instruction into `scratch` (values only).
@@ -137,6 +162,26 @@ impl Program {
     /// Evaluates every output at `(t, x)` with parameters `p` into `out`.
     #[inline]
     pub fn eval(&self, scratch: &mut Scratch, t: f64, x: &[f64], p: &[f64], out: &mut [f64]) {
+        match &self.fast {
+            Some(fast) => {
+                let regs = scratch.registers.get_or_insert_with(registers);
+                fast.load_constants(regs);
+                fast.eval(regs, t, x, p, out);
+            }
+            None => self.eval_reference(scratch, t, x, p, out),
+        }
+    }
+
+    /// Evaluates every output with the straight-line instruction list itself: the reference
+    /// that [`Program::eval`] and [`Kernel::eval`] reproduce (bit for bit, as the tests check).
+    pub fn eval_reference(
+        &self,
+        scratch: &mut Scratch,
+        t: f64,
+        x: &[f64],
+        p: &[f64],
+        out: &mut [f64],
+    ) {
         self.run(scratch, t, x, p);
         for (o, &slot) in out.iter_mut().zip(&self.outputs) {
             *o = scratch.values[slot as usize];
@@ -145,10 +190,18 @@ impl Program {
 
     /// Evaluates the single output of a one-expression program.
     pub fn eval_one(&self, scratch: &mut Scratch, t: f64, x: &[f64], p: &[f64]) -> f64 {
-        self.run(scratch, t, x, p);
-        self.outputs
-            .first()
-            .map_or(f64::NAN, |&slot| scratch.values[slot as usize])
+        let mut out = [f64::NAN];
+        if self.outputs.is_empty() {
+            return f64::NAN;
+        }
+        self.eval(scratch, t, x, p, &mut out);
+        out[0]
+    }
+
+    /// Number of operations [`Program::eval`] runs on its fast path (after folding and
+    /// fusing products into sums), or `None` when it runs the reference list.
+    pub fn n_fast_operations(&self) -> Option<usize> {
+        self.fast.as_deref().map(Compiled::n_operations)
     }
 
     /// Whether any output depends on `t`.

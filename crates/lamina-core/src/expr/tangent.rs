@@ -24,7 +24,9 @@ impl Program {
             Seed::States => self.n_states(),
             Seed::Parameter(_) | Seed::Time => 1,
         };
-        let Scratch { values, tangents } = scratch;
+        let Scratch {
+            values, tangents, ..
+        } = scratch;
         tangents.clear();
         tangents.resize(self.instrs.len() * n_dir, 0.0);
         for (idx, instr) in self.instrs.iter().enumerate() {

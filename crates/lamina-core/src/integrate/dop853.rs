@@ -1,5 +1,6 @@
 //! Dormand–Prince 8(5,3), Hairer's DOP853: 12 stages per attempt, the combined 5th/3rd-order
-//! error estimate, and three more stages on accepted steps for the seventh-order dense output.
+//! error estimate, and three more stages for the seventh-order dense output of an accepted
+//! step, evaluated only when that output is wanted.
 
 use super::Rates;
 use super::dop853_tableau::*;
@@ -10,8 +11,9 @@ pub(super) const N_TERMS: usize = 8;
 pub(super) const ORDER: i32 = 8;
 /// Right-hand-side evaluations of one step attempt (stages 2 to 12).
 pub(super) const EVALS_PER_ATTEMPT: u64 = 11;
-/// Further evaluations on an accepted step: stage 13 (first same as last) and 14–16.
-pub(super) const EVALS_PER_ACCEPT: u64 = 4;
+/// Further evaluations for the dense output of an accepted step (stages 14–16); stage 13,
+/// `f` at the new state, is needed anyway as the first stage of the next step.
+pub(super) const EVALS_FOR_DENSE: u64 = 3;
 
 /// Stage vectors and scratch of the DOP853 stepper, allocated once.
 #[derive(Clone, Debug)]
@@ -152,10 +154,13 @@ impl Dop853 {
         h.abs() * err5_sq * (1.0 / (n.max(1) as f64 * denominator)).sqrt()
     }
 
-    /// Completes an accepted attempt of size `h` from `(t, x)`: evaluates stage 13 (`f` at the
-    /// new state) and stages 14–16, builds the interpolant and makes stage 13 the first stage
-    /// of the next step. Returns whether everything is finite (if not, the current step's
-    /// first stage is unchanged).
+    /// Completes an accepted attempt of size `h` from `(t, x)`: evaluates stage 13 (`f` at
+    /// the new state), with `dense` also stages 14–16 and the interpolant (into
+    /// [`Dop853::dense_mut`]), and makes stage 13 the first stage of the next step. Returns
+    /// whether everything is finite (if not, the current step's first stage is unchanged).
+    ///
+    /// Without `dense`, [`Dop853::build_dense`] builds the interpolant later, as long as no
+    /// other attempt has been made since.
     #[inline]
     pub(super) fn finish<R: Rates + ?Sized>(
         &mut self,
@@ -164,9 +169,55 @@ impl Dop853 {
         x: &[f64],
         h: f64,
         n_rates: &mut u64,
+        dense: bool,
+    ) -> bool {
+        rates.rates(t + h, &self.x_new, &mut self.k[12]);
+        *n_rates += 1;
+        if !self.k[12].iter().all(|v| v.is_finite()) {
+            return false;
+        }
+        if dense {
+            let mut coeffs = std::mem::take(&mut self.dense);
+            let finite = self.interpolant(rates, t, x, h, n_rates, Order::BeforeSwap, &mut coeffs);
+            self.dense = coeffs;
+            if !finite {
+                return false;
+            }
+        }
+        self.k.swap(0, 12);
+        true
+    }
+
+    /// Builds the interpolant of the step just completed by [`Dop853::finish`] without
+    /// `dense` (from `t` with size `h`; `start` is the state it started from) into `coeffs`
+    /// (`N_TERMS * dim`). Evaluates stages 14–16; returns whether everything is finite.
+    pub(super) fn build_dense<R: Rates + ?Sized>(
+        &mut self,
+        rates: &mut R,
+        t: f64,
+        start: &[f64],
+        h: f64,
+        n_rates: &mut u64,
+        coeffs: &mut [f64],
+    ) -> bool {
+        self.interpolant(rates, t, start, h, n_rates, Order::AfterSwap, coeffs)
+    }
+
+    /// Stages 14–16 and the interpolant coefficients. Stage 1 and stage 13 trade places when
+    /// a step completes, so `order` says where they are.
+    #[allow(clippy::too_many_arguments)]
+    fn interpolant<R: Rates + ?Sized>(
+        &mut self,
+        rates: &mut R,
+        t: f64,
+        x: &[f64],
+        h: f64,
+        n_rates: &mut u64,
+        order: Order,
+        coeffs: &mut [f64],
     ) -> bool {
         let [
-            k1,
+            first,
             _,
             _,
             _,
@@ -178,13 +229,16 @@ impl Dop853 {
             k10,
             k11,
             k12,
-            k13,
+            last,
             k14,
             k15,
             k16,
         ] = &mut self.k;
+        let (k1, k13) = match order {
+            Order::BeforeSwap => (&*first, &*last),
+            Order::AfterSwap => (&*last, &*first),
+        };
         let ys = &mut self.y_stage;
-        rates.rates(t + h, &self.x_new, k13);
         combine!(ys = x + h * (A141, k1; A147, k7; A148, k8; A149, k9; A1410, k10; A1411, k11;
             A1412, k12; A1413, k13));
         rates.rates(t + C14 * h, ys, k14);
@@ -194,14 +248,14 @@ impl Dop853 {
         combine!(ys = x + h * (A161, k1; A166, k6; A167, k7; A168, k8; A169, k9; A1613, k13;
             A1614, k14; A1615, k15));
         rates.rates(t + C16 * h, ys, k16);
-        *n_rates += EVALS_PER_ACCEPT;
+        *n_rates += EVALS_FOR_DENSE;
 
         let n = x.len();
         let (x, x_new) = (&x[..n], &self.x_new[..n]);
         let (k1, k6, k7, k8, k9) = (&k1[..n], &k6[..n], &k7[..n], &k8[..n], &k9[..n]);
         let (k10, k11, k12, k13) = (&k10[..n], &k11[..n], &k12[..n], &k13[..n]);
         let (k14, k15, k16) = (&k14[..n], &k15[..n], &k16[..n]);
-        let (c0, rest) = self.dense.split_at_mut(n);
+        let (c0, rest) = coeffs.split_at_mut(n);
         let (c1, rest) = rest.split_at_mut(n);
         let (c2, rest) = rest.split_at_mut(n);
         let (c3, rest) = rest.split_at_mut(n);
@@ -271,9 +325,14 @@ impl Dop853 {
                     + D716 * k16[i]);
             finite &= (c3[i] + c4[i] + c5[i] + c6[i] + c7[i]).is_finite();
         }
-        if finite {
-            self.k.swap(0, 12);
-        }
         finite
     }
+}
+
+/// Where the first stage of the step and `f` at its end are, relative to the swap that
+/// makes the latter the first stage of the next step.
+#[derive(Clone, Copy)]
+enum Order {
+    BeforeSwap,
+    AfterSwap,
 }

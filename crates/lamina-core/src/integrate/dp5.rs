@@ -157,16 +157,46 @@ impl Dp5 {
         (err_sq / n.max(1) as f64).sqrt()
     }
 
-    /// Completes an accepted attempt of size `h` from `x`: builds the interpolant and makes
-    /// the last stage the first of the next step. Returns whether everything is finite
-    /// (if not, nothing of the current step is changed).
+    /// Completes an accepted attempt of size `h` from `x`: with `dense` builds the
+    /// interpolant (into [`Dp5::dense_mut`]), and makes the last stage the first of the next
+    /// step. Returns whether everything is finite (if not, nothing of the current step is
+    /// changed). Without `dense`, [`Dp5::build_dense`] builds the interpolant later, as long
+    /// as no other attempt has been made since.
     #[inline]
-    pub(super) fn finish(&mut self, x: &[f64], h: f64) -> bool {
+    pub(super) fn finish(&mut self, x: &[f64], h: f64, dense: bool) -> bool {
+        if !self.k[6].iter().all(|v| v.is_finite()) {
+            return false;
+        }
+        if dense {
+            let mut coeffs = std::mem::take(&mut self.dense);
+            let finite = self.interpolant(x, h, Order::BeforeSwap, &mut coeffs);
+            self.dense = coeffs;
+            if !finite {
+                return false;
+            }
+        }
+        self.k.swap(0, 6);
+        true
+    }
+
+    /// Builds the interpolant of the step just completed by [`Dp5::finish`] without `dense`
+    /// (of size `h` from the state `start`) into `coeffs`; returns whether it is finite.
+    pub(super) fn build_dense(&self, start: &[f64], h: f64, coeffs: &mut [f64]) -> bool {
+        self.interpolant(start, h, Order::AfterSwap, coeffs)
+    }
+
+    /// The interpolant coefficients. The first and last stages trade places when a step
+    /// completes, so `order` says where they are.
+    fn interpolant(&self, x: &[f64], h: f64, order: Order, coeffs: &mut [f64]) -> bool {
         let n = x.len();
-        let [k1, _, k3, k4, k5, k6, k7] = &self.k;
+        let [first, _, k3, k4, k5, k6, last] = &self.k;
+        let (k1, k7) = match order {
+            Order::BeforeSwap => (first, last),
+            Order::AfterSwap => (last, first),
+        };
         let (x, x_new) = (&x[..n], &self.x_new[..n]);
         let (k1, k3, k4, k5, k6, k7) = (&k1[..n], &k3[..n], &k4[..n], &k5[..n], &k6[..n], &k7[..n]);
-        let (c0, rest) = self.dense.split_at_mut(n);
+        let (c0, rest) = coeffs.split_at_mut(n);
         let (c1, rest) = rest.split_at_mut(n);
         let (c2, rest) = rest.split_at_mut(n);
         let (c3, c4) = rest.split_at_mut(n);
@@ -183,11 +213,16 @@ impl Dp5 {
                 h * (D1 * k1[i] + D3 * k3[i] + D4 * k4[i] + D5 * k5[i] + D6 * k6[i] + D7 * k7[i]);
             finite &= c4[i].is_finite() && c3[i].is_finite();
         }
-        if finite {
-            self.k.swap(0, 6);
-        }
         finite
     }
+}
+
+/// Where the first stage of the step and `f` at its end are, relative to the swap that
+/// makes the latter the first stage of the next step.
+#[derive(Clone, Copy)]
+enum Order {
+    BeforeSwap,
+    AfterSwap,
 }
 
 #[cfg(test)]

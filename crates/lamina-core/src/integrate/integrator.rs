@@ -1,8 +1,7 @@
 //! The adaptive stepper: one accepted step per call, with its dense output.
 
 use super::controller::{PiController, initial_step};
-use super::dop853::{self, Dop853};
-use super::dp5::{self, Dp5};
+use super::stepper::Stepper;
 use super::{DenseSegment, Method, Rates, Stats, StepControl, StepError};
 
 /// Smallest step allowed regardless of `t` (a step below the floating-point resolution of `t`
@@ -13,113 +12,13 @@ const MAX_NON_FINITE_RETRIES: u32 = 12;
 /// Step reduction after an attempt that produced non-finite values.
 const NON_FINITE_SHRINK: f64 = 0.25;
 
-/// The stage storage of the chosen method (enum dispatch, no allocation per step).
-// one per integrator, so the size difference of the variants does not matter
-#[allow(clippy::large_enum_variant)]
-#[derive(Clone, Debug)]
-enum Stepper {
-    Dp5(Dp5),
-    Dp853(Dop853),
-}
-
-impl Stepper {
-    fn new(method: Method, dim: usize) -> Self {
-        match method {
-            Method::Dp5 => Self::Dp5(Dp5::new(dim)),
-            Method::Dp853 => Self::Dp853(Dop853::new(dim)),
-        }
-    }
-
-    fn n_terms(method: Method) -> usize {
-        match method {
-            Method::Dp5 => dp5::N_TERMS,
-            Method::Dp853 => dop853::N_TERMS,
-        }
-    }
-
-    fn order(&self) -> i32 {
-        match self {
-            Self::Dp5(_) => dp5::ORDER,
-            Self::Dp853(_) => dop853::ORDER,
-        }
-    }
-
-    fn f0(&self) -> &[f64] {
-        match self {
-            Self::Dp5(s) => s.f0(),
-            Self::Dp853(s) => s.f0(),
-        }
-    }
-
-    fn f0_mut(&mut self) -> &mut [f64] {
-        match self {
-            Self::Dp5(s) => s.f0_mut(),
-            Self::Dp853(s) => s.f0_mut(),
-        }
-    }
-
-    /// `f0` with two scratch vectors, for the automatic initial step.
-    fn f0_and_scratch(&mut self) -> (&[f64], &mut [f64], &mut [f64]) {
-        match self {
-            Self::Dp5(s) => s.f0_and_scratch(),
-            Self::Dp853(s) => s.f0_and_scratch(),
-        }
-    }
-
-    fn x_new(&self) -> &[f64] {
-        match self {
-            Self::Dp5(s) => s.x_new(),
-            Self::Dp853(s) => s.x_new(),
-        }
-    }
-
-    fn dense_mut(&mut self) -> &mut Vec<f64> {
-        match self {
-            Self::Dp5(s) => s.dense_mut(),
-            Self::Dp853(s) => s.dense_mut(),
-        }
-    }
-
-    /// One attempt; returns the scaled error (NaN if something is not finite).
-    #[inline]
-    #[allow(clippy::too_many_arguments)]
-    fn attempt<R: Rates + ?Sized>(
-        &mut self,
-        rates: &mut R,
-        t: f64,
-        x: &[f64],
-        h: f64,
-        control: &StepControl,
-        n_rates: &mut u64,
-    ) -> f64 {
-        let (rtol, atol) = (control.rtol, control.atol);
-        match self {
-            Self::Dp5(s) => s.attempt(rates, t, x, h, rtol, atol, n_rates),
-            Self::Dp853(s) => s.attempt(rates, t, x, h, rtol, atol, n_rates),
-        }
-    }
-
-    /// Completes an accepted attempt (dense output, first-same-as-last); false if not finite.
-    #[inline]
-    fn finish<R: Rates + ?Sized>(
-        &mut self,
-        rates: &mut R,
-        t: f64,
-        x: &[f64],
-        h: f64,
-        n_rates: &mut u64,
-    ) -> bool {
-        match self {
-            Self::Dp5(s) => s.finish(x, h),
-            Self::Dp853(s) => s.finish(rates, t, x, h, n_rates),
-        }
-    }
-}
-
 /// An adaptive integrator of either method, stepping one accepted step at a time.
 ///
 /// Time runs forward only. After every successful [`Integrator::step`] or
 /// [`Integrator::step_fixed`], [`Integrator::segment`] holds the dense output of that step.
+/// [`Integrator::step_lazy`] takes the same step without building the dense output (for
+/// DOP853 that saves three of its fifteen right-hand-side evaluations per step);
+/// [`Integrator::ensure_dense`] builds it afterwards, for that step, when it is wanted.
 /// All storage is allocated in [`Integrator::new`] (and again in [`Integrator::reset`] only if
 /// the state length changes); stepping allocates nothing.
 #[derive(Clone, Debug)]
@@ -128,6 +27,10 @@ pub struct Integrator {
     control: StepControl,
     t: f64,
     x: Vec<f64>,
+    /// State at the start of the last step taken by `step_lazy`.
+    x_start: Vec<f64>,
+    /// Whether `segment` holds the complete dense output of the last step.
+    dense_ready: bool,
     /// Proposed size of the next step; meaningful when `h_chosen`.
     h: f64,
     h_chosen: bool,
@@ -148,6 +51,8 @@ impl Integrator {
             control,
             t: 0.0,
             x: vec![0.0; dim],
+            x_start: vec![0.0; dim],
+            dense_ready: true,
             h: 0.0,
             h_chosen: false,
             f0_valid: false,
@@ -191,8 +96,10 @@ impl Integrator {
         let dim = x0.len();
         if dim != self.x.len() {
             self.x = vec![0.0; dim];
+            self.x_start = vec![0.0; dim];
             self.stepper = Stepper::new(self.method, dim);
         }
+        self.dense_ready = true;
         self.x.copy_from_slice(x0);
         self.t = t0;
         let segment = &mut self.segment;
@@ -236,6 +143,77 @@ impl Integrator {
         rates: &mut R,
         t_limit: f64,
     ) -> Result<(), StepError> {
+        self.advance(rates, t_limit, true)
+    }
+
+    /// The step of [`Integrator::step`] without its dense output: afterwards
+    /// [`Integrator::segment`] has the step's times and its start and end states (the first
+    /// two coefficient vectors) but the other coefficients only after
+    /// [`Integrator::ensure_dense`]. The steps, and so the states and times, are exactly
+    /// those of [`Integrator::step`] (unless the dense output would not be finite: `step`
+    /// then takes a smaller step, `ensure_dense` reports the error).
+    ///
+    /// # Errors
+    /// As [`Integrator::step`].
+    pub fn step_lazy<R: Rates + ?Sized>(
+        &mut self,
+        rates: &mut R,
+        t_limit: f64,
+    ) -> Result<(), StepError> {
+        self.advance(rates, t_limit, false)
+    }
+
+    /// Builds the dense output of the last step if [`Integrator::step_lazy`] left it out
+    /// (three right-hand-side evaluations for DOP853, none for Dormand–Prince 5(4)).
+    ///
+    /// # Errors
+    /// [`StepError::NotFinite`] (at the step's start time) when the dense output is not
+    /// finite; the segment then keeps only its start and end states.
+    pub fn ensure_dense<R: Rates + ?Sized>(&mut self, rates: &mut R) -> Result<(), StepError> {
+        if self.dense_ready {
+            return Ok(());
+        }
+        let segment = &mut self.segment;
+        let finite = self.stepper.build_dense(
+            rates,
+            segment.t0,
+            &self.x_start,
+            segment.h,
+            &mut self.stats.n_rates,
+            &mut segment.coeffs,
+        );
+        if !finite {
+            return Err(StepError::NotFinite { t: segment.t0 });
+        }
+        self.dense_ready = true;
+        Ok(())
+    }
+
+    /// The dense output of the last step, built first if needed
+    /// ([`Integrator::ensure_dense`]).
+    ///
+    /// # Errors
+    /// As [`Integrator::ensure_dense`].
+    pub fn segment_dense<R: Rates + ?Sized>(
+        &mut self,
+        rates: &mut R,
+    ) -> Result<&DenseSegment, StepError> {
+        self.ensure_dense(rates)?;
+        Ok(&self.segment)
+    }
+
+    /// Whether [`Integrator::segment`] holds the complete dense output of the last step.
+    pub fn has_dense(&self) -> bool {
+        self.dense_ready
+    }
+
+    /// One accepted step; with `dense` its dense output too.
+    fn advance<R: Rates + ?Sized>(
+        &mut self,
+        rates: &mut R,
+        t_limit: f64,
+        dense: bool,
+    ) -> Result<(), StepError> {
         let t = self.t;
         if t_limit.is_nan() || t_limit <= t {
             return Err(StepError::StepTooSmall { t, h: t_limit - t });
@@ -266,7 +244,7 @@ impl Integrator {
                 .stepper
                 .attempt(rates, t, &self.x, h, &self.control, n_rates);
             let finite = err.is_finite()
-                && (err > 1.0 || self.stepper.finish(rates, t, &self.x, h, n_rates));
+                && (err > 1.0 || self.stepper.finish(rates, t, &self.x, h, n_rates, dense));
             if !finite {
                 self.stats.n_rejected += 1;
                 n_non_finite += 1;
@@ -291,7 +269,12 @@ impl Integrator {
                 h_next = h_next.max(h_wanted);
             }
             self.h = h_next.min(h_max);
-            self.commit(h, if clipped { t_limit } else { t + h });
+            let t_end = if clipped { t_limit } else { t + h };
+            if dense {
+                self.commit(h, t_end);
+            } else {
+                self.commit_lazy(h, t_end);
+            }
             return Ok(());
         }
     }
@@ -317,7 +300,7 @@ impl Integrator {
         let err = self
             .stepper
             .attempt(rates, t, &self.x, h, &self.control, n_rates);
-        if !(err.is_finite() && self.stepper.finish(rates, t, &self.x, h, n_rates)) {
+        if !(err.is_finite() && self.stepper.finish(rates, t, &self.x, h, n_rates, true)) {
             return Err(StepError::NotFinite { t });
         }
         self.commit(h, t + h);
@@ -340,7 +323,8 @@ impl Integrator {
         self.h
     }
 
-    /// Dense output of the last accepted step.
+    /// Dense output of the last accepted step (after [`Integrator::step_lazy`] complete only
+    /// once [`Integrator::ensure_dense`] has run; see [`Integrator::has_dense`]).
     pub fn segment(&self) -> &DenseSegment {
         &self.segment
     }
@@ -383,6 +367,27 @@ impl Integrator {
         self.x.copy_from_slice(self.stepper.x_new());
         self.t = t_end;
         self.stats.n_accepted += 1;
+        self.dense_ready = true;
+    }
+
+    /// As [`Integrator::commit`] for a step without dense output: the segment gets the
+    /// times and the start and end states (first two coefficient vectors) only.
+    fn commit_lazy(&mut self, h: f64, t_end: f64) {
+        let n = self.x.len();
+        let segment = &mut self.segment;
+        segment.t0 = self.t;
+        segment.h = h;
+        segment.dim = n;
+        std::mem::swap(&mut self.x, &mut self.x_start);
+        self.x.copy_from_slice(self.stepper.x_new());
+        let (start, rest) = segment.coeffs.split_at_mut(n);
+        start.copy_from_slice(&self.x_start);
+        for ((c1, &x1), &x0) in rest.iter_mut().zip(&self.x).zip(&self.x_start) {
+            *c1 = x1 - x0;
+        }
+        self.t = t_end;
+        self.stats.n_accepted += 1;
+        self.dense_ready = false;
     }
 }
 

@@ -24,6 +24,7 @@ mod dop853;
 mod dop853_tableau;
 mod dp5;
 mod integrator;
+mod stepper;
 
 pub use dense::DenseSegment;
 pub use integrator::Integrator;

@@ -1,7 +1,7 @@
 //! The cut (Poincaré section): a plane or a level surface, a crossing direction, and the
 //! location of crossings on a step's dense output.
 
-use super::root::brent;
+use super::root::{brent, newton_bracketed};
 use super::{CutSpec, SpecError, SurfaceSpec};
 use crate::expr::{Program, Scratch};
 use crate::integrate::dense::eval_split;
@@ -112,9 +112,7 @@ impl Cut {
     #[inline]
     pub fn value(&mut self, t: f64, x: &[f64], parameters: &[f64]) -> f64 {
         match &self.surface {
-            Surface::Plane { normal, offset } => {
-                normal.iter().zip(x).map(|(n, x)| n * x).sum::<f64>() - offset
-            }
+            Surface::Plane { normal, offset } => plane_value(normal, *offset, x),
             Surface::Level { program, .. } => program.eval_one(&mut self.scratch, t, x, parameters),
         }
     }
@@ -129,7 +127,9 @@ impl Cut {
     /// Locates the crossing inside one step given by its start state and the remaining
     /// dense-output terms, with `g0` and `g1` the surface values at its ends. Returns the
     /// crossing time and writes the state there into `state`. The root is found by Brent's
-    /// method on the interpolant, to round-off in the step fraction.
+    /// method on the interpolant, to round-off in the step fraction; for a plane on the
+    /// interpolant of `g` itself (the terms projected on the normal), which is much cheaper
+    /// than interpolating the state at every trial.
     #[allow(clippy::too_many_arguments)]
     pub fn locate(
         &mut self,
@@ -143,18 +143,115 @@ impl Cut {
         state: &mut [f64],
     ) -> f64 {
         let dim = start.len();
-        let s = brent(
+        let s = match &self.surface {
+            Surface::Plane { normal, offset } => {
+                return locate_on_plane(normal, *offset, start, terms, t0, h, g0, g1, state);
+            }
+            Surface::Level { .. } => brent(
+                |s| {
+                    eval_split(start, terms, dim, s, state);
+                    self.value(t0 + s * h, state, parameters)
+                },
+                0.0,
+                1.0,
+                g0,
+                g1,
+            ),
+        };
+        eval_split(start, terms, dim, s, state);
+        t0 + s * h
+    }
+}
+
+/// [`Cut::locate`] for the plane `normal . x = offset` (shared by live runs and re-slices, so
+/// that they agree to the last bit).
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn locate_on_plane(
+    normal: &[f64],
+    offset: f64,
+    start: &[f64],
+    terms: &[f64],
+    t0: f64,
+    h: f64,
+    g0: f64,
+    g1: f64,
+    state: &mut [f64],
+) -> f64 {
+    let dim = start.len();
+    let s = match ProjectedPlane::new(normal, offset, start, terms) {
+        Some(g) => newton_bracketed(|s| g.value_and_slope(s), 0.0, 1.0, g0, g1),
+        None => brent(
             |s| {
                 eval_split(start, terms, dim, s, state);
-                self.value(t0 + s * h, state, parameters)
+                plane_value(normal, offset, state)
             },
             0.0,
             1.0,
             g0,
             g1,
-        );
-        eval_split(start, terms, dim, s, state);
-        t0 + s * h
+        ),
+    };
+    eval_split(start, terms, dim, s, state);
+    t0 + s * h
+}
+
+/// `normal . x - offset`: the value of a plane cut, the same arithmetic wherever it is taken
+/// (a live run and a re-slice must agree to the last bit on which steps cross).
+#[inline]
+pub(crate) fn plane_value(normal: &[f64], offset: f64, x: &[f64]) -> f64 {
+    normal.iter().zip(x).map(|(n, x)| n * x).sum::<f64>() - offset
+}
+
+/// Most interpolation terms a projected plane holds (DOP853 has 8, Dormand–Prince 5(4) 5).
+const MAX_TERMS: usize = 8;
+
+/// A plane's `g` along one step as a polynomial in the step fraction: the dense-output terms
+/// projected on the normal, in the same nested form.
+struct ProjectedPlane {
+    /// `g` at the start of the step.
+    start: f64,
+    /// The projections of the remaining terms.
+    terms: [f64; MAX_TERMS],
+    n_terms: usize,
+}
+
+impl ProjectedPlane {
+    /// `None` when there are more terms than it holds.
+    fn new(normal: &[f64], offset: f64, start: &[f64], terms: &[f64]) -> Option<Self> {
+        let dim = start.len().max(1);
+        let n_terms = terms.len() / dim;
+        if n_terms == 0 || n_terms > MAX_TERMS {
+            return None;
+        }
+        let mut projected = [0.0; MAX_TERMS];
+        for (p, term) in projected.iter_mut().zip(terms.chunks_exact(dim)) {
+            *p = normal.iter().zip(term).map(|(n, c)| n * c).sum::<f64>();
+        }
+        Some(Self {
+            start: plane_value(normal, offset, start),
+            terms: projected,
+            n_terms,
+        })
+    }
+
+    /// `g` and `dg/ds` at the fraction `s` of the step (the nesting of [`eval_split`]).
+    #[inline]
+    fn value_and_slope(&self, s: f64) -> (f64, f64) {
+        let r = 1.0 - s;
+        let terms = &self.terms[..self.n_terms];
+        let mut acc = terms[self.n_terms - 1];
+        let mut slope = 0.0;
+        for j in (0..self.n_terms - 1).rev() {
+            // the factor is r (d/ds = -1) after odd full terms, s (d/ds = 1) after even ones
+            let (w, dw) = if (j + 1) % 2 == 1 {
+                (r, -1.0)
+            } else {
+                (s, 1.0)
+            };
+            slope = dw * acc + w * slope;
+            acc = terms[j] + w * acc;
+        }
+        (self.start + s * acc, acc + s * slope)
     }
 }
 

@@ -320,17 +320,18 @@ impl Run {
             if interrupt.is_raised() {
                 return StopReason::Cancelled { t };
             }
-            if let Err(err) = self.integrator.step(&mut self.model, self.t_end) {
-                return match err {
-                    StepError::NotFinite { t } => StopReason::NotFinite { t },
-                    StepError::StepTooSmall { t, .. } => StopReason::StepTooSmall { t },
-                };
+            // the dense output costs DOP853 three more evaluations: build it only for a stored
+            // step, a strobe sample inside the step, or a cut crossing (found from the end state)
+            if let Err(err) = self.integrator.step_lazy(&mut self.model, self.t_end) {
+                return stop_reason(err);
             }
             let t1 = self.integrator.t();
             self.end_state.copy_from_slice(self.integrator.x());
-            let segment = self.integrator.segment();
             if self.store && t1 > self.spec.t_record() {
-                self.stored.push(segment, &self.end_state);
+                if let Err(err) = self.integrator.ensure_dense(&mut self.model) {
+                    return stop_reason(err);
+                }
+                self.stored.push(self.integrator.segment(), &self.end_state);
             }
             if t1 >= self.spec.t_record() {
                 sink.step(t1, &self.end_state);
@@ -363,15 +364,19 @@ impl Run {
         None
     }
 
-    /// Records the cut crossing and strobe samples of the step just taken.
+    /// Records the cut crossing and strobe samples of the step just taken, building the
+    /// step's dense output when one of them needs it.
     fn record(&mut self, sink: &mut dyn Sink, t1: f64) -> Option<StopReason> {
-        let segment = self.integrator.segment();
-        let (t0, h, dim) = (segment.t0, segment.h, segment.dim);
         let t_record = self.spec.t_record();
-        let parameters = self.model.parameters();
         if let Some(cut) = &mut self.cut {
-            let g1 = cut.value(t1, &self.end_state, parameters);
+            let g1 = cut.value(t1, &self.end_state, self.model.parameters());
             if cut.direction.crosses(self.g_prev, g1) {
+                if let Err(err) = self.integrator.ensure_dense(&mut self.model) {
+                    return Some(stop_reason(err));
+                }
+                let segment = self.integrator.segment();
+                let (t0, h, dim) = (segment.t0, segment.h, segment.dim);
+                let parameters = self.model.parameters();
                 let (start, terms) = segment.coeffs.split_at(dim);
                 let t = cut.locate(
                     start,
@@ -400,16 +405,23 @@ impl Run {
         }
         if let Some(strobe) = &self.strobe {
             let last_step = t1 >= self.t_end;
+            let inside = |t: f64| t < t1 || (last_step && t <= self.t_end);
+            if !inside(strobe.time_of(self.next_strobe)) {
+                return None;
+            }
+            if let Err(err) = self.integrator.ensure_dense(&mut self.model) {
+                return Some(stop_reason(err));
+            }
+            let segment = self.integrator.segment();
             loop {
                 let t = strobe.time_of(self.next_strobe);
-                let inside = t < t1 || (last_step && t <= self.t_end);
-                if !inside {
+                if !inside(t) {
                     break;
                 }
                 let mut sample = StrobeSample {
                     index: self.next_strobe,
                     t,
-                    state: vec![0.0; dim],
+                    state: vec![0.0; segment.dim],
                 };
                 segment.eval(t, &mut sample.state);
                 self.next_strobe += 1;
@@ -423,6 +435,14 @@ impl Run {
             }
         }
         None
+    }
+}
+
+/// The stop reason of a failed step.
+fn stop_reason(err: StepError) -> StopReason {
+    match err {
+        StepError::NotFinite { t } => StopReason::NotFinite { t },
+        StepError::StepTooSmall { t, .. } => StopReason::StepTooSmall { t },
     }
 }
 

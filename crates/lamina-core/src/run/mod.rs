@@ -3,6 +3,7 @@
 
 mod cut;
 mod driver;
+mod plane_scan;
 mod root;
 mod spec;
 mod stored;

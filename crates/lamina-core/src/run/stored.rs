@@ -3,9 +3,14 @@
 
 use std::ops::ControlFlow;
 
-use super::{Cut, CutPoint, Strobe, StrobeSample};
+use super::cut::locate_on_plane;
+use super::plane_scan;
+use super::{Cut, CutPoint, Direction, Strobe, StrobeSample, Surface};
 use crate::integrate::DenseSegment;
 use crate::integrate::dense::eval_split;
+
+/// Crossings located together in a re-slice by a plane.
+const BATCH: usize = 128;
 
 /// Accepted steps of a run with their dense-output coefficients.
 ///
@@ -146,20 +151,37 @@ impl StoredRun {
     /// Cuts the stored steps with `cut` inside the recorded window, reporting each crossing
     /// to `each` in time order. `parameters` are the model's values (for level surfaces).
     /// The result is exactly what a fresh run with this cut records.
+    ///
+    /// A plane is scanned in one tight pass over the contiguous start states (a dot product
+    /// per step, no dispatch), and the root search runs only in the steps where the sign
+    /// changes.
     pub fn reslice(
         &self,
         cut: &mut Cut,
         parameters: &[f64],
         mut each: impl FnMut(&CutPoint) -> ControlFlow<()>,
     ) {
-        let dim = self.dim;
-        let (t_record, t_end) = self.window;
         let mut point = CutPoint {
             t: 0.0,
             return_time: None,
-            state: vec![0.0; dim],
+            state: vec![0.0; self.dim],
         };
         let mut last_t: Option<f64> = None;
+        let (t_record, t_end) = self.window;
+        let mut emit = |t: f64, state: &[f64]| {
+            if t < t_record || t > t_end {
+                return ControlFlow::Continue(());
+            }
+            point.t = t;
+            point.return_time = last_t.map(|last| t - last);
+            last_t = Some(t);
+            point.state.copy_from_slice(state);
+            each(&point)
+        };
+        if let Surface::Plane { normal, offset } = &cut.surface {
+            self.reslice_plane(normal, *offset, cut.direction, |_, t, state| emit(t, state));
+            return;
+        }
         let Some(mut g0) = self
             .t0
             .first()
@@ -167,30 +189,78 @@ impl StoredRun {
         else {
             return;
         };
+        let mut state = vec![0.0; self.dim];
         for idx in 0..self.t0.len() {
             let (t0, h) = (self.t0[idx], self.h[idx]);
             let g1 = cut.value(t0 + h, self.end_state(idx), parameters);
             if cut.direction.crosses(g0, g1) {
-                let t = cut.locate(
-                    self.start_state(idx),
-                    self.step_terms(idx),
-                    t0,
-                    h,
-                    g0,
-                    g1,
-                    parameters,
-                    &mut point.state,
-                );
-                if t >= t_record && t <= t_end {
-                    point.t = t;
-                    point.return_time = last_t.map(|last| t - last);
-                    last_t = Some(t);
-                    if each(&point).is_break() {
-                        return;
-                    }
+                let (start, terms) = (self.start_state(idx), self.step_terms(idx));
+                let t = cut.locate(start, terms, t0, h, g0, g1, parameters, &mut state);
+                if emit(t, &state).is_break() {
+                    return;
                 }
             }
             g0 = g1;
+        }
+    }
+
+    /// Re-slices with the plane `normal . x = offset`: one tight pass over the contiguous
+    /// start states finds the steps whose ends lie on the two sides, and those are located in
+    /// batches (their dense-output terms are scattered through memory, so all of a batch's
+    /// terms are requested before any is used). Calls `crossing(step index, time, state)` in
+    /// order until it breaks.
+    fn reslice_plane(
+        &self,
+        normal: &[f64],
+        offset: f64,
+        direction: Direction,
+        mut crossing: impl FnMut(usize, f64, &[f64]) -> ControlFlow<()>,
+    ) {
+        let dim = self.dim;
+        if self.t0.is_empty() || dim == 0 || normal.len() != dim {
+            return;
+        }
+        let mut batch: Vec<(usize, f64, f64)> = Vec::with_capacity(BATCH);
+        let mut state = vec![0.0; dim];
+        let mut locate_batch = |batch: &mut Vec<(usize, f64, f64)>| {
+            // ask for every line the batch needs before using any (the misses then overlap)
+            let mut touched = 0.0;
+            for &(idx, ..) in batch.iter() {
+                touched += self.t0[idx] + self.h[idx];
+                let terms = self.step_terms(idx);
+                touched += terms.iter().step_by(8).sum::<f64>() + terms.last().unwrap_or(&0.0);
+            }
+            std::hint::black_box(touched);
+            for &(idx, g0, g1) in batch.iter() {
+                let (start, terms) = (self.start_state(idx), self.step_terms(idx));
+                let (t0, h) = (self.t0[idx], self.h[idx]);
+                let t = locate_on_plane(normal, offset, start, terms, t0, h, g0, g1, &mut state);
+                if crossing(idx, t, &state).is_break() {
+                    return ControlFlow::Break(());
+                }
+            }
+            batch.clear();
+            ControlFlow::Continue(())
+        };
+        let starts = &self.starts[..self.t0.len() * dim];
+        let mut stopped = false;
+        plane_scan::scan(
+            starts,
+            &self.end_state,
+            normal,
+            offset,
+            direction,
+            |idx, g0, g1| {
+                batch.push((idx, g0, g1));
+                if batch.len() == BATCH && locate_batch(&mut batch).is_break() {
+                    stopped = true;
+                    return ControlFlow::Break(());
+                }
+                ControlFlow::Continue(())
+            },
+        );
+        if !stopped {
+            let _ = locate_batch(&mut batch);
         }
     }
 

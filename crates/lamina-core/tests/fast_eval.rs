@@ -1,0 +1,226 @@
+//! The fast evaluators (the register tape behind `Program::eval`, and a kernel with fixed
+//! parameters) against the straight-line reference evaluator on random expressions: the
+//! results must be the same numbers, bit for bit.
+
+use lamina_core::expr::{N_REGISTERS, Names, Program};
+use lamina_core::model::{Model, ModelSpec, ParameterSpec, StateSpec};
+use proptest::prelude::*;
+
+fn names(states: &[&str], parameters: &[&str]) -> Names {
+    Names {
+        states: states.iter().map(|s| s.to_string()).collect(),
+        parameters: parameters.iter().map(|s| s.to_string()).collect(),
+    }
+}
+
+/// Random expressions over x, y (states), a, b (parameters) and t, using every operator and
+/// function (values may leave a function's domain: NaN must then agree too).
+fn any_expression() -> impl Strategy<Value = String> {
+    let leaf = prop_oneof![
+        Just("x".to_string()),
+        Just("y".to_string()),
+        Just("a".to_string()),
+        Just("b".to_string()),
+        Just("t".to_string()),
+        Just("pi".to_string()),
+        (-3.0f64..3.0).prop_map(|c| format!("{c:.3}")),
+        (0u32..4).prop_map(|c| c.to_string()),
+    ];
+    let f1 = prop_oneof![
+        Just("sin"),
+        Just("cos"),
+        Just("tan"),
+        Just("asin"),
+        Just("acos"),
+        Just("atan"),
+        Just("sinh"),
+        Just("cosh"),
+        Just("tanh"),
+        Just("exp"),
+        Just("ln"),
+        Just("log10"),
+        Just("sqrt"),
+        Just("abs"),
+        Just("sign"),
+        Just("floor"),
+        Just("ceil"),
+        Just("step"),
+    ];
+    let f2 = prop_oneof![Just("atan2"), Just("min"), Just("max")];
+    let quad = (
+        prop_oneof![Just("+"), Just("-")],
+        prop_oneof![Just("+"), Just("-")],
+        0usize..4,
+    );
+    let op = prop_oneof![
+        Just("+"),
+        Just("-"),
+        Just("*"),
+        Just("/"),
+        Just("%"),
+        Just("^")
+    ];
+    leaf.prop_recursive(5, 40, 2, move |inner| {
+        let four = (inner.clone(), inner.clone(), inner.clone(), inner.clone());
+        prop_oneof![
+            // the shapes fused on four leaves: a*b ± c*d, (a ± b)*c ± d, d - (a ± b)*c
+            2 => (four, quad.clone()).prop_map(|((a, b, c, d), (o1, o2, shape))| match shape {
+                0 => format!("({a} * {b} {o1} {c} * {d})"),
+                1 => format!("(({a} {o1} {b}) * {c} {o2} {d})"),
+                2 => format!("({d} {o2} ({a} {o1} {b}) * {c})"),
+                _ => format!("({d} {o2} {c} * ({a} {o1} {b}))"),
+            }),
+            3 => (inner.clone(), op.clone(), inner.clone())
+                .prop_map(|(p, o, q)| format!("({p} {o} {q})")),
+            2 => (inner.clone(), inner.clone(), inner.clone())
+                .prop_map(|(p, q, r)| format!("({p} * {q} + {r})")),
+            2 => (inner.clone(), inner.clone(), inner.clone())
+                .prop_map(|(p, q, r)| format!("({r} - {p} * {q})")),
+            2 => (inner.clone(), inner.clone(), inner.clone())
+                .prop_map(|(p, q, r)| format!("(({p} - {q}) * {r})")),
+            1 => (inner.clone(), -4i32..6).prop_map(|(p, n)| format!("({p})^{n}")),
+            1 => (inner.clone(), -3i32..0).prop_map(|(p, n)| format!("({p})^({n})")),
+            2 => (f1.clone(), inner.clone()).prop_map(|(f, p)| format!("{f}({p})")),
+            1 => (f2.clone(), inner.clone(), inner.clone())
+                .prop_map(|(f, p, q)| format!("{f}({p}, {q})")),
+            1 => inner.clone().prop_map(|p| format!("-({p})")),
+        ]
+    })
+}
+
+fn same(fast: f64, reference: f64) -> bool {
+    fast.to_bits() == reference.to_bits() || (fast.is_nan() && reference.is_nan())
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(500))]
+    #[test]
+    fn fast_paths_equal_the_reference(
+        f in any_expression(),
+        g in any_expression(),
+        h in any_expression(),
+        x in -2.0f64..2.0, y in -2.0f64..2.0,
+        a in -1.5f64..1.5, b in -1.5f64..1.5, t in -1.0f64..3.0,
+    ) {
+        let n = names(&["x", "y"], &["a", "b"]);
+        let program = Program::compile(
+            &n,
+            &[("f".into(), f.as_str()), ("g".into(), g.as_str()), ("h".into(), h.as_str())],
+        ).expect("generated expressions compile");
+        prop_assert!(program.n_fast_operations().is_some());
+        let mut scratch = program.scratch();
+        let (state, parameters) = ([x, y], [a, b]);
+        let mut reference = [0.0; 3];
+        program.eval_reference(&mut scratch, t, &state, &parameters, &mut reference);
+        let mut tape = [0.0; 3];
+        program.eval(&mut scratch, t, &state, &parameters, &mut tape);
+        let mut kernel = program.specialise(&parameters).expect("small enough");
+        let mut fixed = [0.0; 3];
+        kernel.eval(t, &state, &mut fixed);
+        for i in 0..3 {
+            prop_assert!(same(tape[i], reference[i]), "tape {i}: {} vs {}", tape[i], reference[i]);
+            prop_assert!(same(fixed[i], reference[i]), "kernel {i}: {} vs {}", fixed[i], reference[i]);
+        }
+        // the one-output path
+        let single = Program::compile(&n, &[("f".into(), f.as_str())]).expect("compiles");
+        let one = single.eval_one(&mut single.scratch(), t, &state, &parameters);
+        prop_assert!(same(one, reference[0]), "eval_one: {one} vs {}", reference[0]);
+    }
+}
+
+#[test]
+fn products_fuse_into_their_sums() {
+    let n = names(&["x", "y", "z"], &["s", "r", "b"]);
+    let sources = [
+        ("rate of x".to_string(), "s*(y - x)"),
+        ("rate of y".to_string(), "x*(r - z) - y"),
+        ("rate of z".to_string(), "x*y - b*z"),
+    ];
+    let program = Program::compile(&n, &sources).expect("Lorenz compiles");
+    // (y - x)*s, (r - z)*x - y and x*y - b*z: one fused operation per rate
+    assert_eq!(program.n_fast_operations(), Some(3));
+    let kernel = program.specialise(&[10.0, 28.0, 8.0 / 3.0]).expect("small");
+    assert_eq!(kernel.n_operations(), 3);
+}
+
+#[test]
+fn fixed_parameters_fold_with_their_constants() {
+    let n = names(&["x"], &["w"]);
+    let program = Program::compile(&n, &[("f".into(), "-(w^2 + 1)*x")]).expect("compiles");
+    let mut kernel = program.specialise(&[2.0]).expect("small");
+    // -(w^2 + 1) is one constant once w is fixed: one multiplication is left
+    assert_eq!(kernel.n_operations(), 1);
+    let mut out = [0.0];
+    kernel.eval(0.0, &[3.0], &mut out);
+    // [analytic] -(2^2 + 1) * 3
+    assert_eq!(out, [-15.0]);
+}
+
+fn model_of(rates: &[(&str, &str)], parameters: &[(&str, f64)]) -> Model {
+    Model::compile(&ModelSpec {
+        states: rates
+            .iter()
+            .map(|(name, rate)| StateSpec {
+                name: name.to_string(),
+                start: 0.0,
+                rate: rate.to_string(),
+            })
+            .collect(),
+        parameters: parameters
+            .iter()
+            .map(|(name, value)| ParameterSpec {
+                name: name.to_string(),
+                value: *value,
+            })
+            .collect(),
+    })
+    .unwrap_or_else(|e| panic!("{e}"))
+}
+
+#[test]
+fn a_model_follows_its_parameter_changes() {
+    use lamina_core::integrate::Rates;
+    let mut model = model_of(&[("x", "-k*x + k^2")], &[("k", 2.0)]);
+    let mut dx = [0.0];
+    model.rates(0.0, &[1.0], &mut dx);
+    // [analytic] -2*1 + 4
+    assert_eq!(dx, [2.0]);
+    model.set_parameter(0, 3.0);
+    model.rates(0.0, &[1.0], &mut dx);
+    // [analytic] -3*1 + 9
+    assert_eq!(dx, [6.0]);
+}
+
+#[test]
+fn a_model_too_large_for_the_registers_still_evaluates() {
+    use lamina_core::integrate::Rates;
+    // every rate has its own constant, and constants take registers
+    let n_states = N_REGISTERS + 4;
+    let state_names: Vec<String> = (0..n_states).map(|i| format!("x{i}")).collect();
+    let rates: Vec<String> = (0..n_states)
+        .map(|i| format!("x{} - {}*x{i}", (i + 1) % n_states, i + 2))
+        .collect();
+    let pairs: Vec<(&str, &str)> = state_names
+        .iter()
+        .zip(&rates)
+        .map(|(s, r)| (s.as_str(), r.as_str()))
+        .collect();
+    let mut model = model_of(&pairs, &[]);
+    assert_eq!(model.program().n_fast_operations(), None);
+    let x: Vec<f64> = (0..n_states).map(|i| i as f64).collect();
+    let mut dx = vec![0.0; n_states];
+    model.rates(0.0, &x, &mut dx);
+    // [analytic] x_{i+1} - (i + 2) x_i with x_i = i, wrapping at the end
+    assert_eq!(dx[0], 1.0);
+    let last = (n_states - 1) as f64;
+    assert_eq!(dx[n_states - 1], -(last + 2.0) * last);
+}
+
+#[test]
+fn compiled_models_can_move_between_threads() {
+    // sweeps and workers hand models to other threads
+    fn send_and_share<T: Send + Sync>() {}
+    send_and_share::<Model>();
+    send_and_share::<Program>();
+    send_and_share::<lamina_core::expr::Kernel>();
+}
