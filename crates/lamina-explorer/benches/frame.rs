@@ -40,7 +40,9 @@ fn measure(n_points: usize) -> (f64, f64) {
 fn main() {
     for n in [20_000, 200_000] {
         let (pass, total) = measure(n);
-        println!("{n} points: egui pass {pass:.1} ms, with tessellation {total:.1} ms (median of 40 frames)");
+        println!(
+            "{n} points: egui pass {pass:.1} ms, with tessellation {total:.1} ms (median of 40 frames)"
+        );
         println!("frame: {total:.1} ms");
     }
 }

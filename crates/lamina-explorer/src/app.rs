@@ -168,7 +168,10 @@ impl ExplorerApp {
     /// benchmark only (the points lie on a noisy closed curve; they are not a model's).
     #[doc(hidden)]
     pub fn benchmark_scene(n_points: usize) -> Self {
-        let options = Options { autostart: false, ..Options::default() };
+        let options = Options {
+            autostart: false,
+            ..Options::default()
+        };
         let mut app = Self::new(None, Settings::default(), options);
         let names = app.state_names();
         app.results = Results::new(names);
@@ -178,7 +181,11 @@ impl ExplorerApp {
             let wobble = 1.0 + 0.05 * ((k as f64 * 0.37).sin());
             state[0] = wobble * phase.cos();
             state[1] = wobble * phase.sin();
-            let point = lamina_core::run::CutPoint { t: k as f64, return_time: Some(1.0 + 0.1 * phase.sin()), state: state.to_vec() };
+            let point = lamina_core::run::CutPoint {
+                t: k as f64,
+                return_time: Some(1.0 + 0.1 * phase.sin()),
+                state: state.to_vec(),
+            };
             app.results.cut.push_cut(&point);
             app.results.strobe.push_cut(&point);
         }

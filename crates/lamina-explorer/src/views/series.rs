@@ -6,12 +6,17 @@ use egui_plot::{Line, Plot, PlotPoints, Points};
 
 use crate::results::PointCloud;
 
+/// Most points drawn in a small view; longer series are thinned evenly for drawing.
+const MAX_SERIES_POINTS: usize = 8_000;
+
 /// Return time against point number.
 pub fn return_times_ui(ui: &mut Ui, cloud: &PointCloud, label: &str) -> Rect {
+    let stride = cloud.len().div_ceil(MAX_SERIES_POINTS).max(1);
     let points: Vec<[f64; 2]> = cloud
         .return_time
         .iter()
         .enumerate()
+        .step_by(stride)
         .filter(|(_, r)| r.is_finite())
         .map(|(k, r)| [k as f64, *r])
         .collect();
@@ -62,7 +67,9 @@ pub fn first_return_map_ui(
         MapCoordinate::State(_) => f64::NAN,
         MapCoordinate::ReturnTime => cloud.return_time[i],
     };
+    let stride = cloud.len().div_ceil(MAX_SERIES_POINTS).max(1);
     let pairs: Vec<[f64; 2]> = (1..cloud.len())
+        .step_by(stride)
         .map(|i| [value(i - 1), value(i)])
         .filter(|p| p[0].is_finite() && p[1].is_finite())
         .collect();

@@ -322,11 +322,20 @@ impl SpaceView {
                 Stroke::new(1.0, colours.surface.gamma_multiply(2.5)),
             ));
         }
-        for i in 0..cut_points.len() {
+        // cut points as one mesh of small squares, thinned past MAX_DRAWN_SAMPLES / 3
+        let n_cut = cut_points.len();
+        let cut_stride = n_cut.div_ceil(MAX_DRAWN_SAMPLES / 3).max(1);
+        let mut mesh = egui::Mesh::default();
+        for i in (0..n_cut).step_by(cut_stride) {
             let s = cut_points.state(i);
             let u = data_box.unit(self.axes.map(|a| axis_value(a, s, cut_points.t[i], period)));
-            painter.circle_filled(projection.screen_from_unit(u).0, 1.6, colours.cut_points);
+            let p = projection.screen_from_unit(u).0;
+            mesh.add_colored_rect(
+                Rect::from_center_size(p, vec2(2.6, 2.6)),
+                colours.cut_points,
+            );
         }
+        painter.add(mesh);
         if let Some(h) = handle_pos {
             let active = dragging_handle && response.dragged();
             painter.circle(
