@@ -313,3 +313,52 @@ fn piecewise_derivatives_take_the_active_branch() {
     // [analytic] at x = -0.5 < y: d|x|/dx = -1, max picks y, step and floor are flat; min picks x
     assert_eq!(jac, [-1.0, 1.0, 1.0, 0.0]);
 }
+
+/// Lorenz (sigma, rho, beta) compiled from typed text.
+fn lorenz_program() -> Program {
+    let n = names(&["x", "y", "z"], &["sigma", "rho", "beta"]);
+    let sources = [
+        ("rate of x".to_string(), "sigma*(y - x)"),
+        ("rate of y".to_string(), "x*(rho - z) - y"),
+        ("rate of z".to_string(), "x*y - beta*z"),
+    ];
+    Program::compile(&n, &sources).expect("Lorenz compiles")
+}
+
+#[test]
+fn lorenz_equilibria_trace_and_hopf_value() {
+    let program = lorenz_program();
+    let mut scratch = program.scratch();
+    let (sigma, beta) = (10.0f64, 8.0f64 / 3.0);
+    for rho in [28.0f64, 470.0 / 19.0] {
+        let p = [sigma, rho, beta];
+        let c = (beta * (rho - 1.0)).sqrt();
+        for sign in [1.0, -1.0] {
+            let eq = [sign * c, sign * c, rho - 1.0];
+            let mut rates = [1.0; 3];
+            program.eval(&mut scratch, 0.0, &eq, &p, &mut rates);
+            // [analytic] REFERENCES case 7: (+-sqrt(beta (rho - 1)), same, rho - 1) are equilibria
+            for r in rates {
+                assert!(r.abs() < 1e-12, "rate {r} at {eq:?}");
+            }
+            let mut j = [0.0; 9];
+            program.jacobian(&mut scratch, 0.0, &eq, &p, &mut j);
+            let trace = j[0] + j[4] + j[8];
+            // [analytic] REFERENCES case 7: the trace of the Jacobian is -(sigma + 1 + beta) everywhere
+            assert!((trace + (sigma + 1.0 + beta)).abs() < 1e-12);
+            if rho != 28.0 {
+                // characteristic polynomial l^3 + c2 l^2 + c1 l + c0 from the compiled Jacobian
+                let c2 = -trace;
+                let c1 = j[0] * j[4] - j[1] * j[3] + j[0] * j[8] - j[2] * j[6] + j[4] * j[8] - j[5] * j[7];
+                let det = j[0] * (j[4] * j[8] - j[5] * j[7]) - j[1] * (j[3] * j[8] - j[5] * j[6])
+                    + j[2] * (j[3] * j[7] - j[4] * j[6]);
+                let c0 = -det;
+                // [analytic] REFERENCES case 7: at rho_H = sigma (sigma + beta + 3) / (sigma - beta - 1) = 470/19
+                // a pair of eigenvalues is purely imaginary, i.e. c2 c1 = c0
+                assert!((c2 * c1 - c0).abs() < 1e-9 * c0.abs(), "c2 c1 = {}, c0 = {c0}", c2 * c1);
+            }
+        }
+    }
+    // [analytic] (28 - 1) * 8/3 = 72: the equilibria at rho = 28 are (+-sqrt 72, +-sqrt 72, 27)
+    assert!(((beta * 27.0f64).sqrt() - 72f64.sqrt()).abs() < 1e-14);
+}
