@@ -10,5 +10,6 @@ pub mod expr;
 pub mod integrate;
 pub mod model;
 pub mod run;
+pub mod sweep;
 
 pub use integrate::Interrupt;

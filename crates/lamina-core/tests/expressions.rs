@@ -349,13 +349,18 @@ fn lorenz_equilibria_trace_and_hopf_value() {
             if rho != 28.0 {
                 // characteristic polynomial l^3 + c2 l^2 + c1 l + c0 from the compiled Jacobian
                 let c2 = -trace;
-                let c1 = j[0] * j[4] - j[1] * j[3] + j[0] * j[8] - j[2] * j[6] + j[4] * j[8] - j[5] * j[7];
+                let c1 = j[0] * j[4] - j[1] * j[3] + j[0] * j[8] - j[2] * j[6] + j[4] * j[8]
+                    - j[5] * j[7];
                 let det = j[0] * (j[4] * j[8] - j[5] * j[7]) - j[1] * (j[3] * j[8] - j[5] * j[6])
                     + j[2] * (j[3] * j[7] - j[4] * j[6]);
                 let c0 = -det;
                 // [analytic] REFERENCES case 7: at rho_H = sigma (sigma + beta + 3) / (sigma - beta - 1) = 470/19
                 // a pair of eigenvalues is purely imaginary, i.e. c2 c1 = c0
-                assert!((c2 * c1 - c0).abs() < 1e-9 * c0.abs(), "c2 c1 = {}, c0 = {c0}", c2 * c1);
+                assert!(
+                    (c2 * c1 - c0).abs() < 1e-9 * c0.abs(),
+                    "c2 c1 = {}, c0 = {c0}",
+                    c2 * c1
+                );
             }
         }
     }

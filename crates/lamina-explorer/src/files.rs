@@ -535,7 +535,12 @@ pub fn dialogs(app: &mut ExplorerApp, ctx: &Context, actions: &mut Vec<Action>) 
         let mut answer = None;
         egui::Modal::new(egui::Id::unique("recovery")).show(ctx, |ui| {
             ui.heading("Recover unsaved edits?");
-            ui.label("Lamina closed last time with edits that were not saved.");
+            let title = lamina_scenario::load_str(&text)
+                .map(|s| s.title)
+                .unwrap_or_default();
+            ui.label(format!(
+                "Lamina closed last time with edits to “{title}” that were not saved."
+            ));
             if let Some(p) = &original {
                 ui.label(format!("They belong to {}.", p.display()));
             }
