@@ -32,6 +32,10 @@ enum Command {
     Cut(cli::PointsArgs),
     /// Compute strobe samples (time-T map) and write them as CSV.
     Strobe(cli::PointsArgs),
+    /// Sweep one parameter (the scenario's sweep block) into an orbit diagram: CSV and PNG.
+    Sweep(cli::SweepArgs),
+    /// Draw a view (trajectory, cut, strobe, sweep) into a PNG without a window.
+    Render(cli::RenderArgs),
 }
 
 fn main() -> ExitCode {
@@ -42,6 +46,8 @@ fn main() -> ExitCode {
         Some(Command::Check { file }) => cli::check(&file),
         Some(Command::Cut(args)) => cli::points(cli::PointKind::Cut, &args),
         Some(Command::Strobe(args)) => cli::points(cli::PointKind::Strobe, &args),
+        Some(Command::Sweep(args)) => cli::sweep(&args),
+        Some(Command::Render(args)) => cli::render(&args),
     };
     match result {
         Ok(code) => code,

@@ -5,7 +5,11 @@ mod explorer;
 mod points;
 mod prepare;
 mod progress;
+mod render;
+mod sweep;
 
 pub use check::check;
 pub use explorer::open_explorer;
 pub use points::{PointKind, PointsArgs, points};
+pub use render::{RenderArgs, render};
+pub use sweep::{SweepArgs, sweep};

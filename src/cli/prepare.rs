@@ -8,6 +8,8 @@ use lamina_core::run::{Cut, RunSpec, Strobe};
 
 /// A scenario compiled for the core.
 pub struct Prepared {
+    /// The scenario as loaded.
+    pub scenario: lamina_scenario::Scenario,
     /// The compiled model.
     pub model: Model,
     /// Run settings.
@@ -49,6 +51,7 @@ pub fn prepare(path: &Path) -> Result<Prepared> {
         .context("strobe")?;
     let spec = scenario.run_spec();
     Ok(Prepared {
+        scenario,
         model,
         spec,
         cut,

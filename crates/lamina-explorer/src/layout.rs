@@ -78,21 +78,7 @@ pub struct Layout {
 /// (the plane's normal is that one state) is replaced by the return time.
 fn default_cut_axes(app: &ExplorerApp) -> Option<[CloudAxis; 2]> {
     let [a, b] = app.doc.scenario.cut_axes()?;
-    let fixed = match &app.doc.scenario.cut.as_ref()?.surface {
-        Surface::Plane { normal, .. } => {
-            let nonzero: Vec<&String> = normal
-                .0
-                .iter()
-                .filter(|(_, w)| *w != 0.0)
-                .map(|(n, _)| n)
-                .collect();
-            match nonzero.as_slice() {
-                [only] => app.doc.scenario.state_index(only),
-                _ => None,
-            }
-        }
-        Surface::Level(_) => None,
-    };
+    let fixed = app.doc.scenario.cut_fixed_state();
     Some(if fixed == Some(b) {
         [CloudAxis::State(a), CloudAxis::ReturnTime]
     } else if fixed == Some(a) {

@@ -140,3 +140,42 @@ impl<W: Write> TrajectoryCsv<W> {
         })
     }
 }
+
+/// Writes sweep points: `<parameter name>,k,<state names>`, `k` counting the kept points of
+/// each parameter value from 0.
+pub struct SweepCsv<W: Write> {
+    out: csv::Writer<W>,
+    row: Vec<String>,
+}
+
+impl<W: Write> SweepCsv<W> {
+    /// Writes the header for the swept parameter and `state_names`.
+    pub fn new(out: W, parameter: &str, state_names: &[String]) -> Result<Self, ExportError> {
+        let mut header = vec![parameter.to_string(), "k".into()];
+        header.extend(state_names.iter().cloned());
+        Ok(Self {
+            out: writer(out, header)?,
+            row: Vec::new(),
+        })
+    }
+
+    /// Writes the kept points of one parameter value.
+    pub fn write_column(&mut self, value: f64, points: &[Vec<f64>]) -> Result<(), ExportError> {
+        for (k, state) in points.iter().enumerate() {
+            self.row.clear();
+            self.row.push(format_number(value));
+            self.row.push(k.to_string());
+            self.row.extend(state.iter().map(|&v| format_number(v)));
+            self.out.write_record(&self.row)?;
+        }
+        Ok(())
+    }
+
+    /// Flushes and returns the inner writer.
+    pub fn finish(self) -> Result<W, ExportError> {
+        self.out.into_inner().map_err(|e| ExportError::Io {
+            path: "CSV output".into(),
+            source: e.into_error(),
+        })
+    }
+}

@@ -135,6 +135,20 @@ impl Scenario {
         Some([self.state_index(a)?, self.state_index(b)?])
     }
 
+    /// The one state a plane cut fixes (its normal weighs only that state), if any: that
+    /// coordinate is the same for every cut point, so views show the return time instead.
+    pub fn cut_fixed_state(&self) -> Option<usize> {
+        let crate::Surface::Plane { normal, .. } = &self.cut.as_ref()?.surface else {
+            return None;
+        };
+        let mut nonzero = normal.0.iter().filter(|(_, w)| *w != 0.0);
+        let (name, _) = nonzero.next()?;
+        if nonzero.next().is_some() {
+            return None;
+        }
+        self.state_index(name)
+    }
+
     /// State indices of the strobe's two plot axes; `None` without a strobe or with an
     /// unknown name.
     pub fn strobe_axes(&self) -> Option<[usize; 2]> {

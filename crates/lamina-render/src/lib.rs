@@ -1,0 +1,10 @@
+//! Lamina's headless pictures: the trajectory (3D projection), point clouds (cut points and
+//! strobe samples) and orbit diagrams drawn with plotters into PNG bytes, with labelled axes,
+//! a title and a caption, ready to paste into a report. No window and no GPU are needed; the
+//! text uses a font embedded in the binary.
+
+mod figure;
+mod plots;
+
+pub use figure::{Figure, RenderError};
+pub use plots::{orbit_diagram_png, scatter_png, trajectory_png};

@@ -1,0 +1,291 @@
+//! `lamina render`: the explorer's views drawn headless into PNG files for reports.
+
+use std::io::Write;
+use std::ops::ControlFlow;
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use anyhow::{Context, Result, bail};
+use lamina_core::Interrupt;
+use lamina_core::run::{CutPoint, Run, Sink, StrobeSample};
+use lamina_core::sweep::{SweepColumn, SweepSpec};
+use lamina_export::AtomicFile;
+use lamina_render::Figure;
+use lamina_scenario::Scenario;
+
+use super::prepare::prepare;
+
+/// Which view to draw.
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+pub enum View {
+    /// The trajectory in 3D.
+    Trajectory,
+    /// The cut points.
+    Cut,
+    /// The strobe samples.
+    Strobe,
+    /// The orbit diagram of the scenario's sweep.
+    Sweep,
+}
+
+/// Arguments of `lamina render`.
+#[derive(clap::Args, Debug)]
+pub struct RenderArgs {
+    /// Scenario file (.ron).
+    file: PathBuf,
+    /// The view to draw.
+    #[arg(long, value_enum)]
+    view: View,
+    /// Where to write the picture.
+    #[arg(long, value_name = "FILE.png")]
+    png: PathBuf,
+    /// Picture size in pixels.
+    #[arg(long, value_name = "WxH", default_value = "1200x900", value_parser = parse_size)]
+    size: (u32, u32),
+}
+
+fn parse_size(text: &str) -> Result<(u32, u32), String> {
+    let (w, h) = text
+        .split_once(['x', 'X'])
+        .ok_or("expected WxH, for example 1200x900")?;
+    let w: u32 = w
+        .trim()
+        .parse()
+        .map_err(|_| format!("'{w}' is not a width"))?;
+    let h: u32 = h
+        .trim()
+        .parse()
+        .map_err(|_| format!("'{h}' is not a height"))?;
+    if !(64..=8192).contains(&w) || !(64..=8192).contains(&h) {
+        return Err(format!("{w}x{h}: each side must be 64 to 8192 pixels"));
+    }
+    Ok((w, h))
+}
+
+/// The parameter values and run window, for the caption.
+fn caption(scenario: &Scenario) -> String {
+    let params: Vec<String> = scenario
+        .parameters
+        .iter()
+        .map(|p| format!("{} = {}", p.name, p.value))
+        .collect();
+    let t0 = scenario.time.start + scenario.time.settle;
+    format!(
+        "{}   |   t from {} to {}, rtol {:e}, atol {:e}",
+        params.join(", "),
+        t0,
+        t0 + scenario.time.span,
+        scenario.integrator.rtol,
+        scenario.integrator.atol
+    )
+}
+
+fn write_png(path: &Path, bytes: &[u8]) -> Result<()> {
+    let mut file = AtomicFile::create(path)?;
+    file.write_all(bytes)
+        .with_context(|| format!("writing {}", path.display()))?;
+    file.commit()?;
+    Ok(())
+}
+
+#[derive(Default)]
+struct Everything {
+    trajectory: Vec<(f64, Vec<f64>)>,
+    cut: Vec<CutPoint>,
+    strobe: Vec<StrobeSample>,
+}
+
+impl Sink for Everything {
+    fn cut_point(&mut self, point: &CutPoint) -> ControlFlow<()> {
+        self.cut.push(point.clone());
+        ControlFlow::Continue(())
+    }
+    fn strobe_sample(&mut self, sample: &StrobeSample) -> ControlFlow<()> {
+        self.strobe.push(sample.clone());
+        ControlFlow::Continue(())
+    }
+    fn step(&mut self, t: f64, state: &[f64]) {
+        self.trajectory.push((t, state.to_vec()));
+    }
+}
+
+/// Draws the orbit diagram of a finished sweep.
+pub fn write_orbit_diagram(
+    path: &Path,
+    size: (u32, u32),
+    scenario: &Scenario,
+    spec: &SweepSpec,
+    coordinate: usize,
+    columns: &[SweepColumn],
+) -> Result<()> {
+    let parameter = &scenario.parameters[spec.parameter].name;
+    let coordinate_name = &scenario.states[coordinate].name;
+    let data: Vec<(f64, Vec<f64>)> = columns
+        .iter()
+        .map(|c| (c.value, c.points.iter().map(|p| p[coordinate]).collect()))
+        .collect();
+    let figure = Figure {
+        size,
+        title: format!("{} — orbit diagram", scenario.title),
+        caption: caption(scenario),
+        x_label: parameter.clone(),
+        y_label: coordinate_name.clone(),
+    };
+    let bytes = lamina_render::orbit_diagram_png(&figure, &data, None)?;
+    write_png(path, &bytes)
+}
+
+/// `lamina render`.
+pub fn render(args: &RenderArgs) -> Result<ExitCode> {
+    if args.view == View::Sweep {
+        let (scenario, spec, coordinate, columns) = super::sweep::run_sweep(&args.file, None)?;
+        write_orbit_diagram(&args.png, args.size, &scenario, &spec, coordinate, &columns)?;
+        eprintln!("wrote {}", args.png.display());
+        return Ok(ExitCode::SUCCESS);
+    }
+    let prepared = prepare(&args.file)?;
+    let scenario = prepared.scenario.clone();
+    let names: Vec<String> = scenario.states.iter().map(|s| s.name.clone()).collect();
+    let (cut, strobe) = match args.view {
+        View::Cut if prepared.cut.is_none() => bail!("{} has no cut", args.file.display()),
+        View::Strobe if prepared.strobe.is_none() => bail!("{} has no strobe", args.file.display()),
+        _ => (prepared.cut, prepared.strobe),
+    };
+    let period = strobe.as_ref().map(|s| s.period);
+    let mut sink = Everything::default();
+    let outcome = Run::new(prepared.model, prepared.spec, cut, strobe, false)
+        .execute(&mut sink, &Interrupt::new());
+    let figure = |x: String, y: String, what: &str| Figure {
+        size: args.size,
+        title: format!("{} — {what}", scenario.title),
+        caption: caption(&scenario),
+        x_label: x,
+        y_label: y,
+    };
+    let bytes = match args.view {
+        View::Trajectory => {
+            let axes = three_axes(&scenario);
+            let n = names.len();
+            let label = |a: usize| match names.get(a) {
+                Some(name) => name.clone(),
+                None if a == n => "t".into(),
+                None => "drive phase".into(),
+            };
+            let points = sink.trajectory.iter().map(|(t, s)| {
+                let v = |a: usize| match s.get(a) {
+                    Some(x) => *x,
+                    None if a == n => *t,
+                    None => period.map_or(*t, |p| t.rem_euclid(p)),
+                };
+                (v(axes[0]), v(axes[1]), v(axes[2]))
+            });
+            // a new piece of line wherever the drive phase wraps around
+            let phase_axis = axes.iter().position(|&a| a == n + 1);
+            let mut pieces: Vec<Vec<(f64, f64, f64)>> = vec![Vec::new()];
+            for p in points {
+                let coord = |q: (f64, f64, f64), k: usize| [q.0, q.1, q.2][k];
+                let wrapped = match (phase_axis, pieces.last().and_then(|piece| piece.last())) {
+                    (Some(k), Some(&last)) => coord(p, k) < coord(last, k),
+                    _ => false,
+                };
+                if wrapped {
+                    pieces.push(Vec::new());
+                }
+                if let Some(piece) = pieces.last_mut() {
+                    piece.push(p);
+                }
+            }
+            lamina_render::trajectory_png(
+                &figure(label(axes[0]), label(axes[1]), "trajectory"),
+                &label(axes[2]),
+                &pieces,
+            )?
+        }
+        View::Cut => {
+            let [a, b] = scenario.cut_axes().context("cut axes")?;
+            let fixed = scenario.cut_fixed_state();
+            if fixed == Some(a) || fixed == Some(b) {
+                // that coordinate is the same at every cut point: show the return time instead
+                let keep = if fixed == Some(b) { a } else { b };
+                let points: Vec<(f64, f64)> = sink
+                    .cut
+                    .iter()
+                    .filter_map(|p| p.return_time.map(|r| (p.state[keep], r)))
+                    .collect();
+                lamina_render::scatter_png(
+                    &figure(names[keep].clone(), "return time".into(), "cut points"),
+                    &points,
+                    None,
+                )?
+            } else {
+                let points: Vec<(f64, f64)> =
+                    sink.cut.iter().map(|p| (p.state[a], p.state[b])).collect();
+                let order: Vec<f64> = (0..points.len()).map(|i| i as f64).collect();
+                lamina_render::scatter_png(
+                    &figure(names[a].clone(), names[b].clone(), "cut points"),
+                    &points,
+                    Some(&order),
+                )?
+            }
+        }
+        View::Strobe => {
+            let [a, b] = scenario.strobe_axes().context("strobe axes")?;
+            let points: Vec<(f64, f64)> = sink
+                .strobe
+                .iter()
+                .map(|p| (p.state[a], p.state[b]))
+                .collect();
+            let order: Vec<f64> = (0..points.len()).map(|i| i as f64).collect();
+            lamina_render::scatter_png(
+                &figure(names[a].clone(), names[b].clone(), "strobe samples"),
+                &points,
+                Some(&order),
+            )?
+        }
+        View::Sweep => unreachable_sweep()?,
+    };
+    finish(args, bytes, outcome.reason)
+}
+
+fn unreachable_sweep() -> Result<Vec<u8>> {
+    bail!("the sweep view is drawn above")
+}
+
+fn finish(
+    args: &RenderArgs,
+    bytes: Vec<u8>,
+    reason: lamina_core::run::StopReason,
+) -> Result<ExitCode> {
+    write_png(&args.png, &bytes)?;
+    eprintln!(
+        "wrote {} ({}x{})",
+        args.png.display(),
+        args.size.0,
+        args.size.1
+    );
+    if reason.is_trouble() {
+        eprintln!("the run stopped early: {reason}; the picture shows what was found before");
+        return Ok(ExitCode::FAILURE);
+    }
+    Ok(ExitCode::SUCCESS)
+}
+
+/// The three coordinates of the 3D picture: the view block's, else the first three states,
+/// else two states and the time.
+fn three_axes(scenario: &Scenario) -> [usize; 3] {
+    let n = scenario.states.len();
+    if let Some(axes) = scenario.view_axes() {
+        return axes.map(|a| match a {
+            lamina_scenario::ViewAxis::State(i) => i,
+            lamina_scenario::ViewAxis::Time => n,
+        });
+    }
+    let third = if n >= 3 {
+        2
+    } else if scenario.strobe.is_some() {
+        n + 1
+    } else {
+        n
+    };
+    [0, 1.min(n.saturating_sub(1)), third]
+}

@@ -1,0 +1,205 @@
+//! `lamina sweep` and `lamina render` end to end: CSV columns, shards, pictures of the
+//! requested size for every view.
+
+use std::path::{Path, PathBuf};
+
+use assert_cmd::Command;
+
+fn lamina() -> Command {
+    Command::cargo_bin("lamina").expect("binary")
+}
+
+/// Brusselator x' = A - (B + 1) x + x^2 y, y' = B x - x^2 y (REFERENCES case 12), swept in B.
+fn brusselator(dir: &Path, follow: bool) -> PathBuf {
+    let text = format!(
+        r#"(
+    format: 1,
+    title: "Brusselator sweep",
+    states: [
+        (name: "x", start: 1.3, rate: "a - (b + 1)*x + x^2*y"),
+        (name: "y", start: 2.0, rate: "b*x - x^2*y"),
+    ],
+    parameters: [
+        (name: "a", value: 1.0, range: (0.5, 2.0)),
+        (name: "b", value: 2.2, range: (1.0, 3.0)),
+    ],
+    integrator: (method: Auto, rtol: 1e-9, atol: 1e-12),
+    time: (start: 0.0, settle: 0.0, span: 200.0),
+    cut: Some((surface: Plane(normal: {{"x": 1.0}}, offset: 1.0), direction: Rising, axes: ("x", "y"))),
+    sweep: Some((parameter: "b", from: 1.5, to: 2.5, steps: 10, settle: 600.0,
+                 keep: 4, follow: {follow}, source: Cut, coordinate: "y")),
+)"#
+    );
+    let path = dir.join(if follow { "follow.ron" } else { "restart.ron" });
+    std::fs::write(&path, text).expect("write scenario");
+    path
+}
+
+fn rows(text: &str) -> Vec<String> {
+    text.lines().skip(1).map(str::to_string).collect()
+}
+
+#[test]
+fn sweep_csv_has_the_product_columns_and_every_value() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let path = brusselator(dir.path(), false);
+    let out = lamina()
+        .args(["sweep"])
+        .arg(&path)
+        .assert()
+        .success()
+        .get_output()
+        .stdout
+        .clone();
+    let text = String::from_utf8(out).expect("utf8");
+    assert_eq!(text.lines().next(), Some("b,k,x,y"));
+    let values: std::collections::BTreeSet<String> = rows(&text)
+        .iter()
+        .map(|r| r.split(',').next().unwrap_or("").to_string())
+        .collect();
+    assert_eq!(values.len(), 11, "11 values from 1.5 to 2.5: {values:?}");
+    for row in rows(&text) {
+        let fields: Vec<&str> = row.split(',').collect();
+        let b: f64 = fields[0].parse().expect("number");
+        let y: f64 = fields[3].parse().expect("number");
+        if b > 2.05 {
+            // [analytic] REFERENCES case 12: above B = 2 a cycle crosses x = 1 away from y = B
+            assert!((y - b).abs() > 0.05, "b = {b}, y = {y}");
+        }
+    }
+}
+
+#[test]
+fn shards_together_equal_the_whole_sweep_exactly() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let path = brusselator(dir.path(), false);
+    let whole = String::from_utf8(
+        lamina()
+            .arg("sweep")
+            .arg(&path)
+            .assert()
+            .success()
+            .get_output()
+            .stdout
+            .clone(),
+    )
+    .expect("utf8");
+    let mut joined = Vec::new();
+    for shard in ["0/3", "1/3", "2/3"] {
+        let out = dir.path().join(format!("shard{}.csv", &shard[..1]));
+        lamina()
+            .arg("sweep")
+            .arg(&path)
+            .args(["--shard", shard, "--out"])
+            .arg(&out)
+            .assert()
+            .success();
+        let text = std::fs::read_to_string(&out).expect("shard file");
+        assert_eq!(text.lines().next(), Some("b,k,x,y"));
+        joined.extend(rows(&text));
+    }
+    // combine as the README says: concatenate the rows, sort by the parameter value (then k)
+    let key = |r: &String| {
+        let mut f = r.split(',');
+        let b: f64 = f.next().and_then(|v| v.parse().ok()).unwrap_or(f64::NAN);
+        let k: usize = f.next().and_then(|v| v.parse().ok()).unwrap_or(0);
+        (b.to_bits(), k)
+    };
+    joined.sort_by_key(key);
+    let mut expected = rows(&whole);
+    expected.sort_by_key(key);
+    assert_eq!(joined, expected);
+}
+
+#[test]
+fn a_following_sweep_cannot_be_sharded() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let path = brusselator(dir.path(), true);
+    lamina()
+        .arg("sweep")
+        .arg(&path)
+        .args(["--shard", "0/2"])
+        .assert()
+        .failure()
+        .stderr(predicates::str::contains("cannot be sharded"));
+    lamina()
+        .arg("sweep")
+        .arg(&path)
+        .args(["--shard", "3/2"])
+        .assert()
+        .failure();
+}
+
+/// Width and height from a PNG's IHDR chunk.
+fn png_size(path: &Path) -> (u32, u32) {
+    let bytes = std::fs::read(path).expect("png");
+    assert_eq!(&bytes[1..4], b"PNG");
+    let w = u32::from_be_bytes([bytes[16], bytes[17], bytes[18], bytes[19]]);
+    let h = u32::from_be_bytes([bytes[20], bytes[21], bytes[22], bytes[23]]);
+    (w, h)
+}
+
+#[test]
+fn render_writes_every_view_at_the_requested_size() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let demo = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/demo_scenarios/clocked_resonator.ron"
+    ))
+    .expect("demo");
+    // a shorter window and a coarser sweep, so the test stays quick in a debug build
+    let quick = demo
+        .replace("span: 20000.0", "span: 600.0")
+        .replace("steps: 300", "steps: 12")
+        .replace("settle: 300.0", "settle: 100.0");
+    let path = dir.path().join("quick.ron");
+    std::fs::write(&path, quick).expect("write");
+    for (view, size) in [
+        ("trajectory", (640, 480)),
+        ("cut", (800, 500)),
+        ("strobe", (500, 500)),
+        ("sweep", (900, 400)),
+    ] {
+        let png = dir.path().join(format!("{view}.png"));
+        lamina()
+            .arg("render")
+            .arg(&path)
+            .args(["--view", view, "--png"])
+            .arg(&png)
+            .args(["--size", &format!("{}x{}", size.0, size.1)])
+            .assert()
+            .success();
+        assert_eq!(png_size(&png), size, "{view}");
+    }
+    lamina()
+        .arg("render")
+        .arg(&path)
+        .args(["--view", "cut", "--png"])
+        .arg(dir.path().join("x.png"))
+        .args(["--size", "10x10"])
+        .assert()
+        .failure();
+}
+
+#[test]
+fn sweep_png_is_written_beside_the_csv() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let path = brusselator(dir.path(), true);
+    let png = dir.path().join("diagram.png");
+    let csv = dir.path().join("diagram.csv");
+    lamina()
+        .arg("sweep")
+        .arg(&path)
+        .arg("--out")
+        .arg(&csv)
+        .arg("--png")
+        .arg(&png)
+        .assert()
+        .success();
+    assert_eq!(png_size(&png), (1200, 900));
+    assert!(
+        std::fs::read_to_string(&csv)
+            .expect("csv")
+            .starts_with("b,k,x,y\n")
+    );
+}
