@@ -182,6 +182,7 @@ pub fn sweep(args: &SweepArgs) -> Result<ExitCode> {
             &columns,
         )?;
     }
+    report_changes(&parameter, &columns);
     let troubled: Vec<String> = columns
         .iter()
         .filter(|c| c.reason.is_trouble())
@@ -209,4 +210,35 @@ pub fn sweep(args: &SweepArgs) -> Result<ExitCode> {
         return Ok(ExitCode::FAILURE);
     }
     Ok(ExitCode::SUCCESS)
+}
+
+/// Tolerance of the repeat test, relative to the size of the kept points.
+pub const REPEAT_TOLERANCE: f64 = 1e-5;
+
+/// Prints where the repeat period changes along the sweep (stderr).
+fn report_changes(parameter: &str, columns: &[SweepColumn]) {
+    let periods: Vec<(f64, Option<usize>)> = columns
+        .iter()
+        .map(|c| {
+            (
+                c.value,
+                lamina_core::sweep::repeat_period(&c.points, 12, REPEAT_TOLERANCE),
+            )
+        })
+        .collect();
+    let name =
+        |p: Option<usize>| p.map_or("no repeat up to 12".to_string(), |k| format!("period {k}"));
+    let changes = lamina_core::sweep::period_changes(&periods);
+    if let Some(first) = periods.first() {
+        eprintln!("{parameter} = {}: {}", first.0, name(first.1));
+    }
+    for c in changes {
+        eprintln!(
+            "{} -> {} between {parameter} = {} and {}",
+            name(c.from),
+            name(c.to),
+            c.below,
+            c.above
+        );
+    }
 }

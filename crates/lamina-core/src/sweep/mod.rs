@@ -5,6 +5,8 @@
 
 mod column;
 mod driver;
+mod period;
 
 pub use column::{SweepColumn, SweepSource, SweepSpec};
 pub use driver::{SweepError, run_value, sweep_follow, sweep_restart};
+pub use period::{PeriodChange, period_changes, repeat_period};
