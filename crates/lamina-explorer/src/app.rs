@@ -76,6 +76,7 @@ pub struct ExplorerApp {
     pub(crate) show_shortcuts: bool,
     pub(crate) log: Vec<(Instant, String)>,
     pub(crate) pending_autostart: bool,
+    pub(crate) sweep: crate::sweep_panel::SweepState,
 }
 
 impl ExplorerApp {
@@ -93,6 +94,7 @@ impl ExplorerApp {
             show_shortcuts: false,
             log: Vec::new(),
             pending_autostart: options.autostart,
+            sweep: Default::default(),
         };
         app.results = Results::new(app.state_names());
         match file {
@@ -200,6 +202,16 @@ impl ExplorerApp {
         self.results.strobe.revision += 1;
     }
 
+    /// Parameter values the sweep has finished.
+    pub fn n_sweep_values(&self) -> usize {
+        self.sweep.columns.len()
+    }
+
+    /// Whether a sweep is going.
+    pub fn is_sweeping(&self) -> bool {
+        self.sweep.worker.is_running()
+    }
+
     /// Whether a run is going.
     pub fn is_running(&self) -> bool {
         self.execution.worker.is_running()
@@ -209,6 +221,10 @@ impl ExplorerApp {
     pub fn show(&mut self, ui: &mut Ui) {
         let ctx = ui.ctx().clone();
         self.drain_worker(&ctx);
+        self.drain_sweep();
+        if self.sweep.worker.is_running() {
+            ctx.request_repaint_after(std::time::Duration::from_millis(100));
+        }
         let mut actions = self.keyboard(&ctx);
         if std::mem::take(&mut self.pending_autostart) {
             actions.push(Action::Run);

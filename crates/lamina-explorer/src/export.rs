@@ -20,6 +20,8 @@ pub enum PointSet {
     Strobe,
     /// Trajectory samples (step ends): `t,<states>`.
     Trajectory,
+    /// The sweep's kept points: `<parameter>,k,<states>`.
+    Sweep,
 }
 
 impl PointSet {
@@ -28,6 +30,7 @@ impl PointSet {
             Self::Cut => "cut_points",
             Self::Strobe => "strobe_samples",
             Self::Trajectory => "trajectory",
+            Self::Sweep => "sweep",
         }
     }
 }
@@ -75,6 +78,21 @@ impl ExplorerApp {
                     }
                     csv.finish()?;
                     self.results.strobe.len()
+                }
+                PointSet::Sweep => {
+                    let parameter = self
+                        .doc
+                        .scenario
+                        .parameters
+                        .get(self.sweep.axes.0)
+                        .map(|p| p.name.clone())
+                        .unwrap_or_default();
+                    let mut csv = lamina_export::SweepCsv::new(&mut file, &parameter, &names)?;
+                    for (c, _) in &self.sweep.columns {
+                        csv.write_column(c.value, &c.points)?;
+                    }
+                    csv.finish()?;
+                    self.sweep.columns.iter().map(|(c, _)| c.points.len()).sum()
                 }
                 PointSet::Trajectory => {
                     let mut csv = TrajectoryCsv::new(&mut file, &names)?;

@@ -27,6 +27,8 @@ pub enum ViewKind {
     ReturnTimes,
     /// The first-return map.
     ReturnMap,
+    /// The orbit diagram of the sweep.
+    Orbit,
 }
 
 impl ViewKind {
@@ -38,6 +40,7 @@ impl ViewKind {
             Self::Strobe => "Strobe samples",
             Self::ReturnTimes => "Return times",
             Self::ReturnMap => "First-return map",
+            Self::Orbit => "Orbit diagram",
         }
     }
 
@@ -49,11 +52,17 @@ impl ViewKind {
             Self::Strobe => "strobe_samples",
             Self::ReturnTimes => "return_times",
             Self::ReturnMap => "first_return_map",
+            Self::Orbit => "orbit_diagram",
         }
     }
 }
 
-const MAIN_VIEWS: [ViewKind; 3] = [ViewKind::Trajectory, ViewKind::Cut, ViewKind::Strobe];
+const MAIN_VIEWS: [ViewKind; 4] = [
+    ViewKind::Trajectory,
+    ViewKind::Cut,
+    ViewKind::Strobe,
+    ViewKind::Orbit,
+];
 
 /// Per-frame layout state that is not persisted.
 #[derive(Default)]
@@ -171,6 +180,7 @@ pub fn menu_bar(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
                         (PointSet::Cut, "Cut points"),
                         (PointSet::Strobe, "Strobe samples"),
                         (PointSet::Trajectory, "Trajectory"),
+                        (PointSet::Sweep, "Sweep (orbit diagram)"),
                     ] {
                         if ui.button(text).clicked() {
                             actions.push(Action::ExportCsv(set));
@@ -198,6 +208,7 @@ pub fn menu_bar(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
                         ViewKind::Strobe,
                         ViewKind::ReturnTimes,
                         ViewKind::ReturnMap,
+                        ViewKind::Orbit,
                     ] {
                         if ui.button(view.title()).clicked() {
                             actions.push(Action::ExportPng(view));
@@ -442,7 +453,10 @@ pub fn main_views(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>)
     egui::CentralPanel::default().show(ui, |ui| {
         let full = ui.available_rect_before_wrap();
         let shown: Vec<usize> = match app.settings.maximised {
-            Some(m) if m < 3 => vec![m],
+            Some(m) if m < 4 => vec![m],
+            _ if app.doc.scenario.sweep.is_some() || !app.sweep.columns.is_empty() => {
+                vec![0, 1, 2, 3]
+            }
             _ => vec![0, 1, 2],
         };
         let gap = 8.0;
@@ -510,7 +524,7 @@ fn tile_ui(
     actions: &mut Vec<Action>,
 ) {
     ui.horizontal(|ui| {
-        ui.label(RichText::new(kind.title()).strong());
+        ui.add(egui::Label::new(RichText::new(kind.title()).strong()).truncate());
         ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
             let maximised = app.settings.maximised == Some(index);
             if ui
@@ -538,8 +552,8 @@ fn tile_ui(
             };
             if let Some(colour) = colour {
                 let text = match colour {
-                    ColourBy::Arrival => "colour: order",
-                    ColourBy::ReturnTime => "colour: return time",
+                    ColourBy::Arrival => "by order",
+                    ColourBy::ReturnTime => "by return time",
                 };
                 if ui
                     .small_button(text)
@@ -668,6 +682,10 @@ fn tile_ui(
                     );
                 }
             });
+        }
+        ViewKind::Orbit => {
+            let rect = app.orbit_tile_ui(ui);
+            app.layout.view_rects.insert(kind, rect);
         }
         ViewKind::ReturnTimes | ViewKind::ReturnMap => {}
     }

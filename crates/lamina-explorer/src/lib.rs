@@ -14,6 +14,8 @@ mod layout;
 mod model_panel;
 mod results;
 mod settings;
+mod sweep_panel;
+mod sweep_worker;
 mod views;
 mod widgets;
 mod worker;

@@ -68,6 +68,11 @@ pub fn model_panel_ui(ui: &mut Ui, doc: &mut Document) -> PanelChanges {
             egui::CollapsingHeader::new(RichText::new("Strobe (time-T map)").strong())
                 .default_open(true)
                 .show(ui, |ui| strobe_ui(ui, doc, &mut changes));
+            egui::CollapsingHeader::new(RichText::new("Sweep (orbit diagram)").strong())
+                .default_open(false)
+                .show(ui, |ui| {
+                    crate::sweep_panel::sweep_section_ui(ui, doc, &mut changes)
+                });
             egui::CollapsingHeader::new(RichText::new("Notes").strong())
                 .default_open(false)
                 .show(ui, |ui| {

@@ -18,8 +18,8 @@ const MAX_RECENT: usize = 10;
 pub struct Settings {
     /// Most recent first.
     pub recent: Vec<PathBuf>,
-    /// Relative widths of the three main views.
-    pub tile_weights: [f32; 3],
+    /// Relative widths of the main views (trajectory, cut, strobe, orbit diagram).
+    pub tile_weights: [f32; 4],
     /// The maximised view, if any.
     pub maximised: Option<usize>,
     /// Colouring of the cut view.
@@ -38,7 +38,7 @@ impl Default for Settings {
     fn default() -> Self {
         Self {
             recent: Vec::new(),
-            tile_weights: [1.0, 1.0, 1.0],
+            tile_weights: [1.0, 1.0, 1.0, 1.2],
             maximised: None,
             cut_colour: ColourBy::Arrival,
             strobe_colour: ColourBy::Arrival,

@@ -227,3 +227,33 @@ fn opening_a_demo_file_and_saving_it_gives_the_same_scenario() {
     assert_eq!(original, written);
     assert!(!h.state().document().is_dirty());
 }
+
+#[test]
+fn the_sweep_fills_the_orbit_diagram() {
+    let mut app = app();
+    app.edit_scenario(|s| {
+        if let Some(sweep) = &mut s.sweep {
+            sweep.steps = 6;
+            sweep.keep = 8;
+            sweep.settle = 60.0;
+            sweep.follow = false;
+        }
+    });
+    let mut h = harness(app);
+    steps(&mut h, 2);
+    h.get_by_label("Run sweep").click();
+    for _ in 0..12_000 {
+        h.step();
+        if !h.state().is_sweeping() && h.state().n_sweep_values() > 0 {
+            break;
+        }
+        std::thread::sleep(Duration::from_millis(5));
+    }
+    steps(&mut h, 2);
+    assert_eq!(h.state().n_sweep_values(), 7, "steps = 6 gives 7 values");
+    h.get_by_label("7 values");
+    assert!(
+        h.state().n_runs_started() <= 1,
+        "a sweep does not start single runs"
+    );
+}

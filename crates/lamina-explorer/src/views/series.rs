@@ -60,7 +60,7 @@ pub fn first_return_map_ui(
                 ui.selectable_value(coordinate, MapCoordinate::ReturnTime, "return time");
             })
             .response
-            .on_hover_text("Coordinate s of the first-return map s(n) → s(n+1)");
+            .on_hover_text("Coordinate s of the first-return map s(n) to s(n+1)");
     });
     let value = |i: usize| match *coordinate {
         MapCoordinate::State(k) if k < cloud.dim() => cloud.coord(i, k),

@@ -1,0 +1,310 @@
+//! The sweep in the window: its settings in the model panel, the sweep job (start, stop,
+//! streamed values), the orbit-diagram tile, and picking a value from it.
+
+use egui::{ComboBox, RichText, Ui};
+use lamina_core::model::Model;
+use lamina_core::run::Cut;
+use lamina_core::sweep::{SweepColumn, repeat_period};
+use lamina_scenario::{Sweep, SweepSource};
+
+use crate::app::ExplorerApp;
+use crate::document::Document;
+use crate::model_panel::PanelChanges;
+use crate::sweep_worker::{SweepEvent, SweepJob, SweepWorker};
+use crate::views::orbit::orbit_diagram_ui;
+use crate::widgets::{number_field, problems_ui};
+
+/// Tolerance of the repeat test, relative to the size of the kept points.
+const REPEAT_TOLERANCE: f64 = 1e-5;
+
+/// The sweep's job and what it has produced.
+#[derive(Default)]
+pub struct SweepState {
+    /// The background job.
+    pub worker: SweepWorker,
+    /// Finished values with their repeat period, in parameter order.
+    pub columns: Vec<(SweepColumn, Option<usize>)>,
+    /// Number of values of the running or last sweep.
+    pub total: usize,
+    /// Parameter and coordinate of the last sweep (indices).
+    pub axes: (usize, usize),
+}
+
+/// The sweep block's fields in the model panel.
+pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
+    let parameters: Vec<String> = doc
+        .scenario
+        .parameters
+        .iter()
+        .map(|p| p.name.clone())
+        .collect();
+    let states: Vec<String> = doc.scenario.states.iter().map(|s| s.name.clone()).collect();
+    let mut enabled = doc.scenario.sweep.is_some();
+    if ui
+        .checkbox(&mut enabled, "sweep a parameter")
+        .on_hover_text("Vary one parameter and draw an orbit diagram")
+        .changed()
+    {
+        doc.scenario.sweep = enabled.then(|| {
+            let p = doc.scenario.parameters.first();
+            Sweep {
+                parameter: p.map(|p| p.name.clone()).unwrap_or_default(),
+                from: p.map_or(0.0, |p| p.range.0),
+                to: p.map_or(1.0, |p| p.range.1),
+                steps: 200,
+                settle: 200.0,
+                keep: 32,
+                follow: true,
+                source: if doc.scenario.strobe.is_some() {
+                    SweepSource::Strobe
+                } else {
+                    SweepSource::Cut
+                },
+                coordinate: states.first().cloned().unwrap_or_default(),
+            }
+        });
+        changes.view = true;
+    }
+    let Some(sweep) = &mut doc.scenario.sweep else {
+        return;
+    };
+    let mut changed = false;
+    egui::Grid::new("sweep_grid").num_columns(2).spacing([8.0, 4.0]).show(ui, |ui| {
+        ui.label("parameter");
+        ComboBox::from_id_salt("sweep_parameter").selected_text(sweep.parameter.as_str()).show_ui(ui, |ui| {
+            for p in &parameters {
+                changed |= ui.selectable_value(&mut sweep.parameter, p.clone(), p).changed();
+            }
+        });
+        ui.end_row();
+        ui.label("from … to");
+        ui.horizontal(|ui| {
+            changed |= number_field(ui, egui::Id::unique("sweep_from"), &mut sweep.from, 64.0).on_hover_text("First value").changed();
+            ui.label("…");
+            changed |= number_field(ui, egui::Id::unique("sweep_to"), &mut sweep.to, 64.0).on_hover_text("Last value").changed();
+        });
+        ui.end_row();
+        ui.label("steps");
+        changed |= ui.add(egui::DragValue::new(&mut sweep.steps).range(1..=100_000)).on_hover_text("Intervals between from and to").changed();
+        ui.end_row();
+        ui.label("settle per value");
+        changed |= number_field(ui, egui::Id::unique("sweep_settle"), &mut sweep.settle, 64.0).on_hover_text("Transient at each value, not kept").changed();
+        ui.end_row();
+        ui.label("keep");
+        changed |= ui.add(egui::DragValue::new(&mut sweep.keep).range(1..=100_000)).on_hover_text("Points kept per value").changed();
+        ui.end_row();
+        ui.label("points from");
+        ui.horizontal(|ui| {
+            changed |= ui.selectable_value(&mut sweep.source, SweepSource::Strobe, "strobe").changed();
+            changed |= ui.selectable_value(&mut sweep.source, SweepSource::Cut, "cut").changed();
+        });
+        ui.end_row();
+        ui.label("plotted");
+        ComboBox::from_id_salt("sweep_coordinate").selected_text(sweep.coordinate.as_str()).show_ui(ui, |ui| {
+            for s in &states {
+                changed |= ui.selectable_value(&mut sweep.coordinate, s.clone(), s).changed();
+            }
+        });
+        ui.end_row();
+        ui.label("each value");
+        ui.horizontal(|ui| {
+            changed |= ui.selectable_value(&mut sweep.follow, true, "follows the last").on_hover_text("Start where the previous value ended: follows a branch (run up and down to see hysteresis)").changed();
+            changed |= ui.selectable_value(&mut sweep.follow, false, "restarts").on_hover_text("Start every value from the scenario's start; values run in parallel").changed();
+        });
+        ui.end_row();
+    });
+    changes.view |= changed;
+    problems_ui(ui, doc.problems_at("sweep"));
+}
+
+impl ExplorerApp {
+    /// Starts the scenario's sweep.
+    pub(crate) fn start_sweep(&mut self, ctx: &egui::Context) {
+        if self.sweep.worker.is_running() {
+            self.note("a sweep is already going: stop it first");
+            return;
+        }
+        if let Some(problem) = self.doc.first_error() {
+            self.note(format!("cannot sweep: {problem}"));
+            return;
+        }
+        let scenario = &self.doc.scenario;
+        let Some(sweep) = &scenario.sweep else {
+            self.note("no sweep: switch it on in the model panel");
+            return;
+        };
+        let (Some(parameter), Some(coordinate)) = (
+            scenario.sweep_parameter_index(),
+            scenario.sweep_coordinate_index(),
+        ) else {
+            return;
+        };
+        let Ok(model) = Model::compile(&scenario.model_spec()) else {
+            return;
+        };
+        let cut = scenario
+            .cut_spec()
+            .and_then(|s| Cut::compile(&s, &model).ok());
+        let spec = lamina_core::sweep::SweepSpec {
+            parameter,
+            from: sweep.from,
+            to: sweep.to,
+            steps: sweep.steps,
+            settle: sweep.settle,
+            keep: sweep.keep as usize,
+            span: scenario.time.span,
+            follow: sweep.follow,
+            source: match sweep.source {
+                SweepSource::Cut => lamina_core::sweep::SweepSource::Cut,
+                SweepSource::Strobe => lamina_core::sweep::SweepSource::Strobe,
+            },
+        };
+        let job = SweepJob {
+            model,
+            run: scenario.run_spec(),
+            cut,
+            strobe: scenario.strobe_spec(),
+            spec,
+        };
+        self.sweep.columns.clear();
+        self.sweep.total = job.spec.n_values();
+        self.sweep.axes = (parameter, coordinate);
+        let repaint = ctx.clone();
+        if self
+            .sweep
+            .worker
+            .start(job, move || repaint.request_repaint())
+        {
+            self.note(format!("sweep started: {} values", self.sweep.total));
+        }
+    }
+
+    /// Takes the sweep worker's values.
+    pub(crate) fn drain_sweep(&mut self) {
+        for event in self.sweep.worker.drain() {
+            match event {
+                SweepEvent::Column(column) => {
+                    let period = repeat_period(&column.points, 12, REPEAT_TOLERANCE);
+                    let at = self
+                        .sweep
+                        .columns
+                        .partition_point(|(c, _)| c.index < column.index);
+                    self.sweep.columns.insert(at, (column, period));
+                }
+                SweepEvent::Finished { error } => match error {
+                    Some(e) => self.note(format!("the sweep could not run: {e}")),
+                    None => {
+                        let periods: Vec<(f64, Option<usize>)> = self
+                            .sweep
+                            .columns
+                            .iter()
+                            .map(|(c, p)| (c.value, *p))
+                            .collect();
+                        let changes = lamina_core::sweep::period_changes(&periods);
+                        self.note(format!(
+                            "sweep done: {} of {} values, {} change(s) of period",
+                            self.sweep.columns.len(),
+                            self.sweep.total,
+                            changes.len()
+                        ));
+                        let name = self
+                            .doc
+                            .scenario
+                            .parameters
+                            .get(self.sweep.axes.0)
+                            .map(|p| p.name.clone())
+                            .unwrap_or_default();
+                        for c in changes.iter().take(12) {
+                            let show = |p: Option<usize>| {
+                                p.map_or("no repeat".to_string(), |k| format!("period {k}"))
+                            };
+                            self.note(format!(
+                                "  {} to {} between {name} = {:.6} and {:.6}",
+                                show(c.from),
+                                show(c.to),
+                                c.below,
+                                c.above
+                            ));
+                        }
+                    }
+                },
+            }
+        }
+    }
+
+    /// The orbit-diagram tile.
+    pub(crate) fn orbit_tile_ui(&mut self, ui: &mut Ui) -> egui::Rect {
+        let running = self.sweep.worker.is_running();
+        let mut start = false;
+        ui.horizontal(|ui| {
+            if running {
+                if ui
+                    .button("Stop sweep")
+                    .on_hover_text("Stop the sweep; the values done so far stay")
+                    .clicked()
+                {
+                    self.sweep.worker.stop();
+                }
+                ui.label(format!(
+                    "{} / {} values",
+                    self.sweep.columns.len(),
+                    self.sweep.total
+                ));
+            } else {
+                let ok = self.doc.first_error().is_none();
+                start = ui
+                    .add_enabled(ok, egui::Button::new("Run sweep"))
+                    .on_hover_text("Run every value of the sweep set in the model panel")
+                    .clicked();
+                if self.sweep.total > 0 {
+                    ui.label(RichText::new(format!("{} values", self.sweep.columns.len())).weak());
+                }
+            }
+        });
+        if start {
+            let ctx = ui.ctx().clone();
+            self.start_sweep(&ctx);
+        }
+        if self.sweep.total == 0
+            && let (Some(p), Some(c)) = (
+                self.doc.scenario.sweep_parameter_index(),
+                self.doc.scenario.sweep_coordinate_index(),
+            )
+        {
+            self.sweep.axes = (p, c);
+        }
+        let (parameter, coordinate) = self.sweep.axes;
+        let pname = self
+            .doc
+            .scenario
+            .parameters
+            .get(parameter)
+            .map(|p| p.name.clone())
+            .unwrap_or_default();
+        let cname = self
+            .doc
+            .scenario
+            .states
+            .get(coordinate)
+            .map(|s| s.name.clone())
+            .unwrap_or_default();
+        let current = self.doc.scenario.parameters.get(parameter).map(|p| p.value);
+        let (clicked, rect) = orbit_diagram_ui(
+            ui,
+            &self.sweep.columns,
+            coordinate,
+            (&pname, &cname),
+            current,
+        );
+        if let Some(value) = clicked
+            && let Some(p) = self.doc.scenario.parameters.get_mut(parameter)
+        {
+            p.value = value;
+            self.doc.changed();
+            self.note(format!("{pname} = {value}: running the model there"));
+            let ctx = ui.ctx().clone();
+            self.start_run(&ctx);
+        }
+        rect
+    }
+}

@@ -1,0 +1,96 @@
+//! The orbit-diagram view: for each parameter value of a sweep its kept points of one
+//! coordinate, coloured by repeat period, filling in live; the model's current value marked;
+//! a click picks a value.
+
+use egui::{Color32, Mesh, Rect, Ui, vec2};
+use egui_plot::{Plot, PlotPoint, PlotPoints, Points};
+use lamina_core::sweep::SweepColumn;
+
+use super::palette::ramp;
+
+/// Colour of a repeat period: 1 deep blue, 2 teal, 4 green, 8 sand..., none coral.
+pub fn period_colour(period: Option<usize>) -> Color32 {
+    match period {
+        Some(k) => ramp(((k as f32).log2() / 4.0).min(0.85)),
+        None => ramp(1.0),
+    }
+}
+
+/// Draws the diagram; returns the parameter value clicked, if any, and the plot's rectangle.
+pub fn orbit_diagram_ui(
+    ui: &mut Ui,
+    columns: &[(SweepColumn, Option<usize>)],
+    coordinate: usize,
+    labels: (&str, &str),
+    current: Option<f64>,
+) -> (Option<f64>, Rect) {
+    let mut extent = [
+        f64::INFINITY,
+        f64::INFINITY,
+        f64::NEG_INFINITY,
+        f64::NEG_INFINITY,
+    ];
+    for (c, _) in columns {
+        for p in &c.points {
+            let y = p.get(coordinate).copied().unwrap_or(f64::NAN);
+            if y.is_finite() {
+                extent = [
+                    extent[0].min(c.value),
+                    extent[1].min(y),
+                    extent[2].max(c.value),
+                    extent[3].max(y),
+                ];
+            }
+        }
+    }
+    let response = Plot::new("orbit_diagram")
+        .x_axis_label(labels.0)
+        .y_axis_label(labels.1)
+        .show(ui, |plot_ui| {
+            if extent[0] <= extent[2] {
+                plot_ui.points(
+                    Points::new(
+                        "extent",
+                        PlotPoints::new(vec![[extent[0], extent[1]], [extent[2], extent[3]]]),
+                    )
+                    .radius(0.0)
+                    .color(Color32::TRANSPARENT),
+                );
+            }
+        });
+    let transform = response.transform;
+    let frame = *transform.frame();
+    let painter = ui.painter_at(frame);
+    let mut mesh = Mesh::default();
+    for (c, period) in columns {
+        let colour = period_colour(*period);
+        for p in &c.points {
+            let y = p.get(coordinate).copied().unwrap_or(f64::NAN);
+            let at = transform.position_from_point(&PlotPoint::new(c.value, y));
+            if frame.contains(at) {
+                mesh.add_colored_rect(Rect::from_center_size(at, vec2(2.0, 2.0)), colour);
+            }
+        }
+    }
+    painter.add(mesh);
+    if let Some(v) = current {
+        let x = transform.position_from_point(&PlotPoint::new(v, 0.0)).x;
+        if frame.x_range().contains(x) {
+            painter.line_segment(
+                [egui::pos2(x, frame.top()), egui::pos2(x, frame.bottom())],
+                egui::Stroke::new(1.0, Color32::from_rgb(240, 240, 240)),
+            );
+        }
+    }
+    let mut clicked = None;
+    if response.response.clicked()
+        && let Some(pointer) = response.response.interact_pointer_pos()
+    {
+        let value = transform.value_from_position(pointer).x;
+        clicked = columns
+            .iter()
+            .map(|(c, _)| c.value)
+            .min_by(|a, b| (a - value).abs().total_cmp(&(b - value).abs()));
+    }
+    (clicked, response.response.rect)
+}
