@@ -148,13 +148,20 @@ impl ExplorerApp {
 
     /// Handles a screenshot event: crops the requested view and writes it at the chosen size.
     pub(crate) fn receive_screenshot(&mut self, ctx: &Context) {
-        let shot = self
+        if self.layout.png_request.is_none() {
+            return;
+        }
+        // the screenshot arrives a frame or two after it was asked for
+        let Some(image) = self
             .layout
             .screenshot
             .lock()
             .ok()
-            .and_then(|mut s| s.take());
-        let (Some(image), Some(request)) = (shot, self.layout.png_request.take()) else {
+            .and_then(|mut s| s.take())
+        else {
+            return;
+        };
+        let Some(request) = self.layout.png_request.take() else {
             return;
         };
         let Some(rect) = self.layout.view_rects.get(&request.view).copied() else {
@@ -179,11 +186,22 @@ impl ExplorerApp {
             }
         }
         let [tw, th] = self.settings.png_size;
-        let resized = image::imageops::resize(
-            &buffer,
-            tw.max(16),
-            th.max(16),
-            image::imageops::FilterType::Lanczos3,
+        // fit the view into the chosen size without distorting it, on the window's background
+        let (w, h) = (buffer.width().max(1), buffer.height().max(1));
+        let (tw, th) = (tw.max(16), th.max(16));
+        let scale = (f64::from(tw) / f64::from(w)).min(f64::from(th) / f64::from(h));
+        let (fw, fh) = (
+            ((f64::from(w) * scale).round() as u32).clamp(1, tw),
+            ((f64::from(h) * scale).round() as u32).clamp(1, th),
+        );
+        let fitted =
+            image::imageops::resize(&buffer, fw, fh, image::imageops::FilterType::Lanczos3);
+        let mut resized = image::RgbaImage::from_pixel(tw, th, image::Rgba([27, 27, 27, 255]));
+        image::imageops::overlay(
+            &mut resized,
+            &fitted,
+            i64::from((tw - fw) / 2),
+            i64::from((th - fh) / 2),
         );
         let mut bytes = Vec::new();
         let encoded = resized.write_to(
