@@ -9,7 +9,7 @@ use anyhow::{Context, Result, bail};
 use lamina_core::Interrupt;
 use lamina_core::model::Model;
 use lamina_core::run::Strobe;
-use lamina_core::sweep::{SweepColumn, SweepSource, SweepSpec, sweep_follow, sweep_restart};
+use lamina_core::sweep::{SweepColumn, SweepSpec, sweep_follow, sweep_restart};
 use lamina_export::{AtomicFile, SweepCsv};
 use lamina_scenario::Scenario;
 
@@ -54,29 +54,15 @@ fn parse_shard(text: &str) -> Result<(usize, usize), String> {
 
 /// The sweep of a scenario as core settings, with the index of the plotted coordinate.
 pub fn sweep_spec(scenario: &Scenario) -> Result<(SweepSpec, usize)> {
-    let Some(sweep) = &scenario.sweep else {
-        bail!("the scenario has no sweep: add a `sweep: Some((...))` block")
-    };
-    let parameter = scenario
-        .sweep_parameter_index()
+    if scenario.sweep.is_none() {
+        bail!("the scenario has no sweep: add a `sweep: Some((...))` block");
+    }
+    let spec = scenario
+        .sweep_spec()
         .context("the swept parameter is not a parameter")?;
     let coordinate = scenario
         .sweep_coordinate_index()
         .context("the sweep coordinate is not a state")?;
-    let spec = SweepSpec {
-        parameter,
-        from: sweep.from,
-        to: sweep.to,
-        steps: sweep.steps,
-        settle: sweep.settle,
-        keep: sweep.keep as usize,
-        span: scenario.time.span,
-        follow: sweep.follow,
-        source: match sweep.source {
-            lamina_scenario::SweepSource::Cut => SweepSource::Cut,
-            lamina_scenario::SweepSource::Strobe => SweepSource::Strobe,
-        },
-    };
     Ok((spec, coordinate))
 }
 

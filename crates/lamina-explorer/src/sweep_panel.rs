@@ -129,36 +129,19 @@ impl ExplorerApp {
             return;
         }
         let scenario = &self.doc.scenario;
-        let Some(sweep) = &scenario.sweep else {
+        let (Some(spec), Some(coordinate)) =
+            (scenario.sweep_spec(), scenario.sweep_coordinate_index())
+        else {
             self.note("no sweep: switch it on in the model panel");
             return;
         };
-        let (Some(parameter), Some(coordinate)) = (
-            scenario.sweep_parameter_index(),
-            scenario.sweep_coordinate_index(),
-        ) else {
-            return;
-        };
+        let parameter = spec.parameter;
         let Ok(model) = Model::compile(&scenario.model_spec()) else {
             return;
         };
         let cut = scenario
             .cut_spec()
             .and_then(|s| Cut::compile(&s, &model).ok());
-        let spec = lamina_core::sweep::SweepSpec {
-            parameter,
-            from: sweep.from,
-            to: sweep.to,
-            steps: sweep.steps,
-            settle: sweep.settle,
-            keep: sweep.keep as usize,
-            span: scenario.time.span,
-            follow: sweep.follow,
-            source: match sweep.source {
-                SweepSource::Cut => lamina_core::sweep::SweepSource::Cut,
-                SweepSource::Strobe => lamina_core::sweep::SweepSource::Strobe,
-            },
-        };
         let job = SweepJob {
             model,
             run: scenario.run_spec(),

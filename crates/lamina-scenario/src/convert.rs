@@ -135,6 +135,26 @@ impl Scenario {
         Some([self.state_index(a)?, self.state_index(b)?])
     }
 
+    /// The sweep block as core settings (`None` without a sweep, or with a parameter that is
+    /// not one). Each value records at most `time.span` after its own transient.
+    pub fn sweep_spec(&self) -> Option<lamina_core::sweep::SweepSpec> {
+        let sweep = self.sweep.as_ref()?;
+        Some(lamina_core::sweep::SweepSpec {
+            parameter: self.sweep_parameter_index()?,
+            from: sweep.from,
+            to: sweep.to,
+            steps: sweep.steps,
+            settle: sweep.settle,
+            keep: sweep.keep as usize,
+            span: self.time.span,
+            follow: sweep.follow,
+            source: match sweep.source {
+                crate::SweepSource::Cut => lamina_core::sweep::SweepSource::Cut,
+                crate::SweepSource::Strobe => lamina_core::sweep::SweepSource::Strobe,
+            },
+        })
+    }
+
     /// The one state a plane cut fixes (its normal weighs only that state), if any: that
     /// coordinate is the same for every cut point, so views show the return time instead.
     pub fn cut_fixed_state(&self) -> Option<usize> {
