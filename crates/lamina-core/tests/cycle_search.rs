@@ -149,3 +149,82 @@ fn failures_say_why() {
     assert!(matches!(err, CycleError::RestPoint { .. }), "{err}");
     assert!(err.to_string().contains("rest point"), "{err}");
 }
+
+#[test]
+#[allow(clippy::excessive_precision)] // the published digits, kept as printed
+fn rates_that_jump_get_their_derivatives_from_differences() {
+    // the Van der Pol oscillator of REFERENCES case 8 with a term that is zero but jumps in
+    // form: the map is the same, its derivatives now come from central differences
+    let m = model(
+        &[
+            ("x", 2.0, "v"),
+            ("v", 0.0, "mu*(1 - x^2)*v - x + 0*sign(x)"),
+        ],
+        &[("mu", 1.0)],
+    );
+    let cut = plane(&m, &[("v", 1.0)], 0.0, Direction::Falling);
+    let run = window(1e-12, 30.0, 40.0);
+    let cloud = cut_cloud(&m, &cut, &run);
+    let report = cycle_from(&m, MapKind::Cut(cut), &run, &cloud, 1);
+    assert!(report.from_differences);
+    // Hairer, Norsett & Wanner, Solving ODEs I, sec. I.16, ex. 1 (REFERENCES case 8)
+    assert!(
+        rel(report.period, 6.6632868593231301897) < 1e-9,
+        "{}",
+        report.period
+    );
+    // REFERENCES case 8 [R]: multiplier 8.59695e-4
+    assert!(
+        rel(report.multipliers[0].re, 8.59695e-4) < 1e-4,
+        "{}",
+        report.multipliers[0]
+    );
+    let floquet = report.floquet.expect("cut");
+    // [analytic] the trivial Floquet multiplier along the flow is 1
+    assert!((floquet[0].re - 1.0).abs() < 1e-6, "{floquet:?}");
+    assert!(rel(floquet[1].re, 8.59695e-4) < 1e-4);
+
+    // [analytic] the driven oscillator strobed at its drive period, with a zero jumping term:
+    // multipliers exp(lambda 2 pi / w), lambda = -c/2 +- i sqrt(1 - c^2/4)
+    let (c, w) = (0.5, 1.3);
+    let m = model(
+        &[
+            ("x", 0.0, "v"),
+            ("v", 0.0, "-c*v - x + cos(w*t) + 0*step(v)"),
+        ],
+        &[("c", c), ("w", w)],
+    );
+    let strobe = strobe(&m, "2*pi/w", 0.0);
+    let run = window(1e-12, 150.0, 60.0);
+    let cloud = strobe_cloud(&m, strobe, &run);
+    let report = cycle_from(&m, MapKind::Strobe(strobe), &run, &cloud, 1);
+    assert!(report.from_differences);
+    let modulus = (-c * PI / w).exp();
+    for mu in &report.multipliers {
+        assert!(rel(mu.modulus(), modulus) < 1e-6, "{mu}");
+    }
+}
+
+#[test]
+fn jumps_are_told_apart_from_kinks_and_forcing() {
+    let jumps = |rate: &str| model(&[("x", 0.0, rate)], &[("k", 1.0)]).jumps_with_states();
+    // [analytic] sign, step, floor, ceil and % of a state jump; abs, min and max only kink;
+    // a jump in t alone leaves the derivatives with respect to the state intact
+    for rate in [
+        "sign(x)",
+        "-k*step(x - 1)",
+        "floor(2*x)",
+        "ceil(x)",
+        "x % 2",
+    ] {
+        assert!(jumps(rate), "{rate}");
+    }
+    for rate in [
+        "abs(x)",
+        "max(x, 0) - min(x, 1)",
+        "sign(sin(t))",
+        "step(k) * x",
+    ] {
+        assert!(!jumps(rate), "{rate}");
+    }
+}

@@ -83,6 +83,7 @@ impl FlowMap {
         }
         self.x_start.copy_from_slice(&segment.coeffs[..n]);
         let (t0, h) = (segment.t0, segment.h);
+        self.z_cross.resize(dim, 0.0);
         let tc = match &mut self.kind {
             MapKind::Cut(cut) => cut.locate(
                 &self.x_start,

@@ -98,6 +98,10 @@ pub struct FlowMap {
     pub(super) x_terms: Vec<f64>,
     pub(super) x_cross: Vec<f64>,
     pub(super) z_cross: Vec<f64>,
+    /// Whether the variational matrix is integrated in the current pass.
+    with_matrix: bool,
+    /// Whether derivatives come from central differences (rates that jump with the states).
+    differences: bool,
 }
 
 impl FlowMap {
@@ -117,6 +121,7 @@ impl FlowMap {
             }
         }
         let n = model.dim();
+        let model_jumps = model.jumps_with_states();
         Ok(Self {
             integrator: Integrator::new(settings.method, settings.control, n + n * n),
             model,
@@ -129,6 +134,8 @@ impl FlowMap {
             x_terms: Vec::new(),
             x_cross: vec![0.0; n],
             z_cross: vec![0.0; n + n * n],
+            with_matrix: true,
+            differences: model_jumps,
         })
     }
 
@@ -145,6 +152,14 @@ impl FlowMap {
     /// Whether this is the cut map.
     pub fn is_cut(&self) -> bool {
         matches!(self.kind, MapKind::Cut(_))
+    }
+
+    /// Whether the map's Jacobian comes from central differences of the map instead of the
+    /// variational equations: so for a model whose rates jump with the states (`sign`,
+    /// `step`, `floor`, `ceil`, `%` of a state), where the variational equations would miss the
+    /// jumps. Its multipliers are then accurate to about `rtol^(2/3)`.
+    pub fn uses_differences(&self) -> bool {
+        self.differences
     }
 
     /// The model.
@@ -182,7 +197,7 @@ impl FlowMap {
                         state: x0.to_vec(),
                     });
                 }
-                self.reset(t0, x0);
+                self.reset(t0, x0, false);
                 self.advance_to(t1)?;
                 Ok(MapPoint {
                     t: t1,
@@ -192,7 +207,8 @@ impl FlowMap {
         }
     }
 
-    /// Applies the map `k` times to `seed`, integrating the variational equations on the way.
+    /// Applies the map `k` times to `seed`, integrating the variational equations on the way
+    /// (or, see [`FlowMap::uses_differences`], differencing the map).
     ///
     /// # Errors
     /// [`CycleError::ZeroReturns`], [`CycleError::BadSeed`], and for the way:
@@ -203,7 +219,22 @@ impl FlowMap {
             return Err(CycleError::ZeroReturns);
         }
         self.check_seed(&seed.state)?;
-        self.reset(seed.t, &seed.state);
+        if self.differences {
+            self.apply_by_differences(seed, k)
+        } else {
+            self.follow(seed, k, true)
+        }
+    }
+
+    /// Follows the orbit of `seed` through `k` applications of the map, with the variational
+    /// matrix when `with_matrix` (else the image's matrices are empty).
+    pub(super) fn follow(
+        &mut self,
+        seed: &MapPoint,
+        k: usize,
+        with_matrix: bool,
+    ) -> Result<MapImage, CycleError> {
+        self.reset(seed.t, &seed.state, with_matrix);
         match self.strobe() {
             Some(strobe) => {
                 let period = strobe.period;
@@ -229,6 +260,11 @@ impl FlowMap {
             }
             None => self.cut_returns(seed, k),
         }
+    }
+
+    /// The relative tolerance of the integration.
+    pub(super) fn integrator_rtol(&self) -> f64 {
+        self.settings.control.rtol
     }
 
     /// The strobe, for the strobe map.
@@ -274,6 +310,12 @@ impl FlowMap {
             .then(|| self.gradient.iter().map(|g| g / length).collect())
     }
 
+    /// The rates `f(t, x)`.
+    pub(super) fn rates_at(&mut self, t: f64, x: &[f64]) -> Vec<f64> {
+        self.model.rates(t, x, &mut self.rates);
+        self.rates.clone()
+    }
+
     /// The speed `|f(t, x)|` of the flow at a state.
     pub(crate) fn speed(&mut self, t: f64, x: &[f64]) -> f64 {
         self.model.rates(t, x, &mut self.rates);
@@ -294,9 +336,10 @@ impl FlowMap {
         Ok(())
     }
 
-    fn reset(&mut self, t0: f64, x0: &[f64]) {
-        let z0 = Variational::start(x0);
-        let mut rates = Variational::new(&mut self.model);
+    fn reset(&mut self, t0: f64, x0: &[f64], with_matrix: bool) {
+        self.with_matrix = with_matrix;
+        let z0 = Variational::start(x0, with_matrix);
+        let mut rates = Variational::new(&mut self.model, with_matrix);
         self.integrator.reset(&mut rates, t0, &z0);
     }
 
@@ -310,7 +353,7 @@ impl FlowMap {
 
     /// One step no further than `t_limit`, with the bound check.
     pub(super) fn step(&mut self, t_limit: f64) -> Result<(), CycleError> {
-        let mut rates = Variational::new(&mut self.model);
+        let mut rates = Variational::new(&mut self.model, self.with_matrix);
         self.integrator.step(&mut rates, t_limit)?;
         let bound = self.settings.bound;
         if self.integrator.x()[..self.n]

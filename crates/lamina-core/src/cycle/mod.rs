@@ -13,6 +13,7 @@
 //! whose `n` multipliers are its Floquet multipliers.
 
 mod cut_map;
+mod differences;
 mod error;
 mod flow_map;
 mod linalg;
@@ -27,5 +28,5 @@ pub use flow_map::{FlowMap, MapImage, MapKind, MapPoint, MapSettings};
 pub use newton::{NewtonSettings, Refined, refine};
 pub use recurrence::{CloseReturn, Recurrence, RecurrenceSettings, close_returns, find_recurrence};
 pub use report::{CycleReport, MapChoice, find_cycle};
-pub use spectrum::{Loss, Multiplier, Nearest, UNIT_CIRCLE_BAND, Verdict, multipliers};
+pub use spectrum::{Loss, Multiplier, Nearest, Number, UNIT_CIRCLE_BAND, Verdict, multipliers};
 pub use variational::Variational;

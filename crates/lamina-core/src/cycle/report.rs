@@ -42,6 +42,9 @@ pub struct CycleReport {
     pub residual: f64,
     /// Newton steps taken.
     pub iterations: usize,
+    /// Whether the derivatives came from central differences of the map (rates that jump
+    /// with the states) rather than the variational equations.
+    pub from_differences: bool,
     /// Stable, unstable (with the number of unstable directions) or neutral.
     pub verdict: Verdict,
     /// The multiplier nearest the unit circle and how stability would change there.
@@ -102,6 +105,7 @@ impl CycleReport {
             monodromy: image.monodromy,
             residual,
             iterations,
+            from_differences: map.uses_differences(),
         })
     }
 

@@ -36,13 +36,30 @@ impl Multiplier {
 }
 
 impl fmt::Display for Multiplier {
+    /// Full precision; scientific notation for very small or large parts.
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         if self.is_real() {
-            write!(f, "{}", self.re)
+            write!(f, "{}", Number(self.re))
         } else if self.im >= 0.0 {
-            write!(f, "{} + {}i", self.re, self.im)
+            write!(f, "{} + {}i", Number(self.re), Number(self.im))
         } else {
-            write!(f, "{} - {}i", self.re, -self.im)
+            write!(f, "{} - {}i", Number(self.re), Number(-self.im))
+        }
+    }
+}
+
+/// A number written with full round-trip precision, in scientific notation when it is very
+/// small or large (so `1.2e-12`, not twelve zeros).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Number(pub f64);
+
+impl fmt::Display for Number {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let magnitude = self.0.abs();
+        if magnitude == 0.0 || (1e-4..1e7).contains(&magnitude) || !magnitude.is_finite() {
+            write!(f, "{}", self.0)
+        } else {
+            write!(f, "{:e}", self.0)
         }
     }
 }

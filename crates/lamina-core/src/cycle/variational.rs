@@ -13,23 +13,29 @@ use crate::model::Model;
 pub struct Variational<'m> {
     model: &'m mut Model,
     n: usize,
+    with_matrix: bool,
     jacobian: Vec<f64>,
 }
 
 impl<'m> Variational<'m> {
-    /// The variational system of `model`.
-    pub fn new(model: &'m mut Model) -> Self {
+    /// The variational system of `model`; without `with_matrix` only the model itself
+    /// (dimension `n`), for following an orbit whose derivatives are not wanted.
+    pub fn new(model: &'m mut Model, with_matrix: bool) -> Self {
         let n = model.dim();
         Self {
             model,
             n,
-            jacobian: vec![0.0; n * n],
+            with_matrix,
+            jacobian: vec![0.0; if with_matrix { n * n } else { 0 }],
         }
     }
 
-    /// The augmented start state: `x0` followed by the identity matrix.
-    pub fn start(x0: &[f64]) -> Vec<f64> {
+    /// The start state: `x0` followed (`with_matrix`) by the identity matrix.
+    pub fn start(x0: &[f64], with_matrix: bool) -> Vec<f64> {
         let n = x0.len();
+        if !with_matrix {
+            return x0.to_vec();
+        }
         let mut z = vec![0.0; n + n * n];
         z[..n].copy_from_slice(x0);
         for i in 0..n {
@@ -41,7 +47,11 @@ impl<'m> Variational<'m> {
 
 impl Rates for Variational<'_> {
     fn dim(&self) -> usize {
-        self.n + self.n * self.n
+        if self.with_matrix {
+            self.n + self.n * self.n
+        } else {
+            self.n
+        }
     }
 
     fn rates(&mut self, t: f64, z: &[f64], dz: &mut [f64]) {
@@ -49,6 +59,9 @@ impl Rates for Variational<'_> {
         let (x, phi) = z.split_at(n);
         let (dx, dphi) = dz.split_at_mut(n);
         self.model.rates(t, x, dx);
+        if !self.with_matrix {
+            return;
+        }
         self.model.jacobian(t, x, &mut self.jacobian);
         for (i, row) in dphi.chunks_exact_mut(n).enumerate() {
             let jac_row = &self.jacobian[i * n..(i + 1) * n];
