@@ -1,11 +1,14 @@
 //! Command implementations: each loads the scenario, hands it to the core and writes results.
 
 mod check;
+mod cycle;
+mod cycle_output;
 mod explorer;
 mod points;
 mod prepare;
 mod progress;
 
 pub use check::check;
+pub use cycle::{CycleArgs, cycle};
 pub use explorer::open_explorer;
 pub use points::{PointKind, PointsArgs, points};
