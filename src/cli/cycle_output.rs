@@ -181,7 +181,7 @@ fn named(names: &[String], values: &[f64]) -> String {
     names
         .iter()
         .zip(values)
-        .map(|(n, v)| format!("{n} = {v}"))
+        .map(|(n, v)| format!("{n} = {}", Number(*v)))
         .collect::<Vec<_>>()
         .join(", ")
 }
