@@ -99,6 +99,7 @@ fn planar_limit_cycle_multiplier_is_exp_minus_two_pi() {
         &[("w", 2.0)],
     );
     let cut = plane(&m, &[("y", 1.0)], 0.0, Direction::Rising);
+    let plane_cut = cut.clone();
     let run = window(1e-12, 20.0, 30.0);
     let cloud = cut_cloud(&m, &cut, &run);
     let report = cycle_from(&m, MapKind::Cut(cut), &run, &cloud, 1);
@@ -126,6 +127,19 @@ fn planar_limit_cycle_multiplier_is_exp_minus_two_pi() {
     assert!(rel(floquet[1].re, 1.86744273171e-3) < 1e-6);
     let nearest = report.nearest.expect("one multiplier");
     assert_eq!(nearest.loss, Loss::ThroughPlusOne);
+
+    // the orbit over one period, for drawing: on the circle r = 1 and back at the start
+    let settings = MapSettings::from_run(&run, 10.0);
+    let mut map = FlowMap::new(m, MapKind::Cut(plane_cut), settings).expect("map");
+    let path = map.trace(&report.point, report.period, 4).expect("trace");
+    assert!(path.len() > 8);
+    for q in &path {
+        // [analytic] REFERENCES case 3: the cycle is the unit circle
+        assert!((q.state[0].hypot(q.state[1]) - 1.0).abs() < 1e-9, "{q:?}");
+    }
+    let last = path.last().expect("points");
+    assert!((last.t - report.point.t - report.period).abs() < 1e-12);
+    assert!((last.state[0] - 1.0).abs() < 1e-9 && last.state[1].abs() < 1e-9);
 }
 
 #[test]

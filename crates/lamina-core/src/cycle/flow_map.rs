@@ -262,6 +262,36 @@ impl FlowMap {
         }
     }
 
+    /// The orbit from `start` over `duration` (for drawing it, say over one period): the
+    /// start, then `samples_per_step` points inside every accepted step from its dense output,
+    /// ending exactly at `start.t + duration`.
+    ///
+    /// # Errors
+    /// [`CycleError::BadSeed`], [`CycleError::Escaped`], [`CycleError::Integration`].
+    pub fn trace(
+        &mut self,
+        start: &MapPoint,
+        duration: f64,
+        samples_per_step: usize,
+    ) -> Result<Vec<MapPoint>, CycleError> {
+        self.check_seed(&start.state)?;
+        self.reset(start.t, &start.state, false);
+        let t_end = start.t + duration.max(0.0);
+        let mut path = vec![start.clone()];
+        let per_step = samples_per_step.max(1);
+        while self.integrator.t() < t_end {
+            self.step(t_end)?;
+            let segment = self.integrator.segment();
+            for j in 1..=per_step {
+                let t = segment.t0 + segment.h * j as f64 / per_step as f64;
+                let mut state = vec![0.0; self.n];
+                segment.eval(t, &mut state);
+                path.push(MapPoint { t, state });
+            }
+        }
+        Ok(path)
+    }
+
     /// The relative tolerance of the integration.
     pub(super) fn integrator_rtol(&self) -> f64 {
         self.settings.control.rtol
