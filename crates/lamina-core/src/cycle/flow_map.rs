@@ -110,7 +110,8 @@ impl FlowMap {
     /// # Errors
     /// A cut of a model that uses `t` ([`CycleError::ForcedCut`]) or a cut surface that uses
     /// `t` ([`CycleError::MovingCut`]): their return maps depend on the crossing time, so they
-    /// are not maps of the state; the strobe map is the map of a forced model.
+    /// are not maps of the state; the strobe map is the map of a forced model. A model without
+    /// states gives [`CycleError::BadSeed`].
     pub fn new(model: Model, kind: MapKind, settings: MapSettings) -> Result<Self, CycleError> {
         if let MapKind::Cut(cut) = &kind {
             if model.uses_time() {
@@ -121,6 +122,11 @@ impl FlowMap {
             }
         }
         let n = model.dim();
+        if n == 0 {
+            return Err(CycleError::BadSeed {
+                detail: "is empty: the model has no states".to_string(),
+            });
+        }
         let model_jumps = model.jumps_with_states();
         Ok(Self {
             integrator: Integrator::new(settings.method, settings.control, n + n * n),
