@@ -36,6 +36,8 @@ enum Command {
     Sweep(cli::SweepArgs),
     /// Draw a view (trajectory, cut, strobe, sweep) into a PNG without a window.
     Render(cli::RenderArgs),
+    /// Find a periodic orbit of the cut or strobe map: period, point, multipliers, verdict.
+    Cycle(cli::CycleArgs),
 }
 
 fn main() -> ExitCode {
@@ -48,6 +50,7 @@ fn main() -> ExitCode {
         Some(Command::Strobe(args)) => cli::points(cli::PointKind::Strobe, &args),
         Some(Command::Sweep(args)) => cli::sweep(&args),
         Some(Command::Render(args)) => cli::render(&args),
+        Some(Command::Cycle(args)) => cli::cycle(&args),
     };
     match result {
         Ok(code) => code,

@@ -1,6 +1,8 @@
 //! Command implementations: each loads the scenario, hands it to the core and writes results.
 
 mod check;
+mod cycle;
+mod cycle_output;
 mod explorer;
 mod points;
 mod prepare;
@@ -9,6 +11,7 @@ mod render;
 mod sweep;
 
 pub use check::check;
+pub use cycle::{CycleArgs, cycle};
 pub use explorer::open_explorer;
 pub use points::{PointKind, PointsArgs, points};
 pub use render::{RenderArgs, render};

@@ -7,6 +7,7 @@ use lamina_core::model::Model;
 use lamina_core::run::{Cut, RunSpec, Strobe};
 
 /// A scenario compiled for the core.
+#[derive(Clone)]
 pub struct Prepared {
     /// The scenario as loaded.
     pub scenario: lamina_scenario::Scenario,

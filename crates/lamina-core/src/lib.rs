@@ -1,11 +1,13 @@
 //! Lamina's numerical core: typed model equations compiled into an evaluation program,
 //! adaptive Runge–Kutta integrators with dense output, and the cut (Poincaré section) and
-//! strobe (time-T map) drivers built on them.
+//! strobe (time-T map) drivers built on them, and periodic orbits found by Newton's method on
+//! the cut or strobe map with their Floquet multipliers.
 //!
 //! **Invariant:** this crate does no I/O, starts no threads, never reads the clock and knows
 //! nothing of serde or egui. Cancellation comes in as an [`Interrupt`] flag, progress goes out
 //! through a [`run::Sink`].
 
+pub mod cycle;
 pub mod expr;
 pub mod integrate;
 pub mod model;

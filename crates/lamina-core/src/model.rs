@@ -141,6 +141,12 @@ impl Model {
             .eval(&mut self.scratch, t, x, &self.parameters, dx);
     }
 
+    /// Whether a rate can jump as the states change (`sign`, `step`, `floor`, `ceil` or `%` of
+    /// a state): the variational equations then miss the jumps of the flow's derivative.
+    pub fn jumps_with_states(&self) -> bool {
+        self.program.jumps_with_states()
+    }
+
     /// Whether any rate uses the time `t` (a forced, non-autonomous model).
     pub fn uses_time(&self) -> bool {
         self.program.uses_time()

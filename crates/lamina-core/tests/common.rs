@@ -3,6 +3,9 @@
 #![allow(dead_code)]
 
 use lamina_core::Interrupt;
+use lamina_core::cycle::{
+    CycleReport, FlowMap, MapKind, MapPoint, MapSettings, NewtonSettings, close_returns, find_cycle,
+};
 use lamina_core::integrate::{Method, StepControl};
 use lamina_core::model::{Model, ModelSpec, ParameterSpec, StateSpec};
 use lamina_core::run::{
@@ -100,3 +103,62 @@ pub fn rel(a: f64, b: f64) -> f64 {
 
 /// Both explicit methods.
 pub const METHODS: [Method; 2] = [Method::Dp5, Method::Dp853];
+
+/// Run settings at tolerance `tol` with a settle and a recorded span.
+pub fn window(tol: f64, settle: f64, span: f64) -> RunSpec {
+    spec(Method::Dp853, tol, settle, span)
+}
+
+/// The settled cut points of a run, as map points.
+pub fn cut_cloud(model: &Model, cut: &Cut, run: &RunSpec) -> Vec<MapPoint> {
+    let (points, _) = collect(model.clone(), run.clone(), Some(cut.clone()), None);
+    points
+        .cut_points
+        .into_iter()
+        .map(|p| MapPoint {
+            t: p.t,
+            state: p.state,
+        })
+        .collect()
+}
+
+/// The settled strobe samples of a run, as map points.
+pub fn strobe_cloud(model: &Model, strobe: Strobe, run: &RunSpec) -> Vec<MapPoint> {
+    let (points, _) = collect(model.clone(), run.clone(), None, Some(strobe));
+    points
+        .strobe_samples
+        .into_iter()
+        .map(|p| MapPoint {
+            t: p.t,
+            state: p.state,
+        })
+        .collect()
+}
+
+/// Finds the period-`k` orbit of `kind` seeded from the closest returns of `cloud`.
+pub fn cycle_from(
+    model: &Model,
+    kind: MapKind,
+    run: &RunSpec,
+    cloud: &[MapPoint],
+    k: usize,
+) -> CycleReport {
+    let settings = MapSettings::from_run(run, 100.0);
+    let mut map = FlowMap::new(model.clone(), kind, settings).unwrap_or_else(|e| panic!("{e}"));
+    let seeds: Vec<MapPoint> = close_returns(cloud, k, 4)
+        .iter()
+        .map(|r| cloud[r.index].clone())
+        .collect();
+    find_cycle(
+        &mut map,
+        &seeds,
+        k,
+        &NewtonSettings::for_rtol(run.control.rtol),
+    )
+    .unwrap_or_else(|e| panic!("{e}"))
+}
+
+/// The harmonic oscillator x' = v, v' = -w^2 x from (1, 0.3).
+pub fn harmonic(w: f64) -> Model {
+    model(&[("x", 1.0, "v"), ("v", 0.3, "-w^2*x")], &[("w", w)])
+}

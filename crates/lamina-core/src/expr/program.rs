@@ -1,7 +1,7 @@
 //! The compiled evaluation program: one straight-line instruction list for all outputs.
 
 use super::compile::{Builder, compile_expression};
-use super::instr::Instr;
+use super::instr::{Func1, Instr};
 use super::kernel::{Compiled, Kernel};
 use super::lower::lower;
 use super::plan::{Registers, registers};
@@ -212,5 +212,31 @@ impl Program {
     /// Whether any output depends on a state.
     pub fn uses_states(&self) -> bool {
         self.uses_states
+    }
+
+    /// Whether an output can jump as the states change: a `sign`, `step`, `floor`, `ceil` or
+    /// `%` of something that depends on a state. Forward-mode derivatives are zero across such
+    /// a jump, so derivatives of the flow from the variational equations miss it.
+    pub fn jumps_with_states(&self) -> bool {
+        let mut depends = vec![false; self.instrs.len()];
+        for (idx, instr) in self.instrs.iter().enumerate() {
+            let on_state = |slot: u32| depends[slot as usize];
+            let (state_dependent, jumps) = match *instr {
+                Instr::State(_) => (true, false),
+                Instr::F1(Func1::Sign | Func1::Step | Func1::Floor | Func1::Ceil, a) => {
+                    (on_state(a), on_state(a))
+                }
+                Instr::Rem(a, b) => {
+                    let d = on_state(a) || on_state(b);
+                    (d, d)
+                }
+                ref other => (other.args().into_iter().any(on_state), false),
+            };
+            if jumps {
+                return true;
+            }
+            depends[idx] = state_dependent;
+        }
+        false
     }
 }

@@ -117,6 +117,28 @@ impl Cut {
         }
     }
 
+    /// Gradient of `g` with respect to the states at `(t, x)` into `out` (length of `x`).
+    pub fn gradient(&mut self, t: f64, x: &[f64], parameters: &[f64], out: &mut [f64]) {
+        match &self.surface {
+            Surface::Plane { normal, .. } => {
+                for (o, &w) in out.iter_mut().zip(normal) {
+                    *o = w;
+                }
+            }
+            Surface::Level { program, .. } => {
+                program.jacobian(&mut self.scratch, t, x, parameters, out);
+            }
+        }
+    }
+
+    /// Whether the surface moves with the time `t` (a level surface whose expression uses `t`).
+    pub fn uses_time(&self) -> bool {
+        match &self.surface {
+            Surface::Plane { .. } => false,
+            Surface::Level { program, .. } => program.uses_time(),
+        }
+    }
+
     /// Moves a plane along its normal to `offset`; a level surface is unchanged.
     pub fn set_offset(&mut self, new_offset: f64) {
         if let Surface::Plane { offset, .. } = &mut self.surface {
@@ -264,4 +286,11 @@ pub struct CutPoint {
     pub return_time: Option<f64>,
     /// State at the crossing.
     pub state: Vec<f64>,
+}
+
+impl AsRef<[f64]> for CutPoint {
+    /// The state at the crossing.
+    fn as_ref(&self) -> &[f64] {
+        &self.state
+    }
 }

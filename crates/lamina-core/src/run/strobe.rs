@@ -68,3 +68,10 @@ pub struct StrobeSample {
     /// State at `t`.
     pub state: Vec<f64>,
 }
+
+impl AsRef<[f64]> for StrobeSample {
+    /// The sampled state.
+    fn as_ref(&self) -> &[f64] {
+        &self.state
+    }
+}

@@ -1,0 +1,144 @@
+//! The periodic-orbit report: Newton's point measured (period, multipliers of the map, Floquet
+//! multipliers, verdict), and the search that tries seeds in turn.
+
+use super::flow_map::{FlowMap, MapPoint};
+use super::newton::{NewtonSettings, Refined, refine};
+use super::spectrum::{Multiplier, Nearest, Verdict, multipliers};
+use super::{CycleError, linalg};
+
+/// Which map an orbit was found on.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum MapChoice {
+    /// The cut map (Poincaré map).
+    Cut,
+    /// The strobe map (time-T map).
+    Strobe,
+}
+
+/// A periodic orbit found and measured.
+#[derive(Clone, Debug, PartialEq)]
+pub struct CycleReport {
+    /// The map the orbit is a fixed point of (after `k` applications).
+    pub map: MapChoice,
+    /// Returns per period (the orbit is a period-k point of the map).
+    pub k: usize,
+    /// The total time of the `k` returns.
+    pub period: f64,
+    /// The periodic point (all states; on the cut for the cut map).
+    pub point: MapPoint,
+    /// The `k` points of the orbit on the map, starting with `point`.
+    pub orbit: Vec<MapPoint>,
+    /// Multipliers of the k-times-applied map, by decreasing modulus: `n - 1` for the cut map
+    /// (the linearised map restricted to the cut), `n` for the strobe map.
+    pub multipliers: Vec<Multiplier>,
+    /// For the cut map: all `n` Floquet multipliers, the eigenvalues of the monodromy matrix
+    /// over the period, one of them the trivial 1 (along the flow), by decreasing modulus.
+    /// `None` for the strobe map, whose multipliers are already those of the monodromy matrix
+    /// over `k` strobe periods.
+    pub floquet: Option<Vec<Multiplier>>,
+    /// The monodromy matrix `Phi` over the period, `n x n` row-major.
+    pub monodromy: Vec<f64>,
+    /// `|P^k(x) - x|` at the point.
+    pub residual: f64,
+    /// Newton steps taken.
+    pub iterations: usize,
+    /// Whether the derivatives came from central differences of the map (rates that jump
+    /// with the states) rather than the variational equations.
+    pub from_differences: bool,
+    /// Stable, unstable (with the number of unstable directions) or neutral.
+    pub verdict: Verdict,
+    /// The multiplier nearest the unit circle and how stability would change there.
+    pub nearest: Option<Nearest>,
+}
+
+impl CycleReport {
+    /// Measures a refined point: multipliers, Floquet multipliers, verdict.
+    ///
+    /// For the cut map the linearised map `(I - f grad g^T / (grad g . f)) Phi` has the
+    /// trivial eigenvalue 0 along the flow; it is restricted to an orthonormal basis of the
+    /// cut's tangent plane, which leaves exactly the `n - 1` multipliers of the cut map.
+    ///
+    /// # Errors
+    /// [`CycleError::Eigenvalues`] for a non-finite linearisation; [`CycleError::Tangent`]
+    /// when the cut has no normal at the point.
+    pub fn measure(map: &mut FlowMap, refined: Refined) -> Result<Self, CycleError> {
+        let n = map.dim();
+        let Refined {
+            point,
+            image,
+            residual,
+            iterations,
+        } = refined;
+        let (choice, map_multipliers, floquet) = if map.is_cut() {
+            let normal = map
+                .unit_normal(point.t, &point.state)
+                .ok_or(CycleError::Tangent { t: point.t })?;
+            let basis = linalg::complement_basis(&normal);
+            let restricted = linalg::restrict(&image.jacobian, &basis, n, n - 1);
+            (
+                MapChoice::Cut,
+                multipliers(&restricted, n - 1)?,
+                Some(multipliers(&image.monodromy, n)?),
+            )
+        } else {
+            (MapChoice::Strobe, multipliers(&image.jacobian, n)?, None)
+        };
+        let mut orbit = Vec::with_capacity(image.orbit.len());
+        orbit.push(point.clone());
+        orbit.extend(
+            image
+                .orbit
+                .iter()
+                .take(image.orbit.len().saturating_sub(1))
+                .cloned(),
+        );
+        Ok(Self {
+            map: choice,
+            k: image.orbit.len(),
+            period: image.t - image.t_start,
+            point,
+            orbit,
+            verdict: Verdict::of(&map_multipliers),
+            nearest: Nearest::of(&map_multipliers),
+            multipliers: map_multipliers,
+            floquet,
+            monodromy: image.monodromy,
+            residual,
+            iterations,
+            from_differences: map.uses_differences(),
+        })
+    }
+
+    /// Whether the orbit is (asymptotically) stable.
+    pub fn is_stable(&self) -> bool {
+        self.verdict.is_stable()
+    }
+}
+
+/// Looks for a point of period `k` of `map` from each seed in turn (closest return first, as
+/// [`super::close_returns`] orders them) and reports the first orbit found.
+///
+/// # Errors
+/// [`CycleError::NoSeed`] without seeds; otherwise, when every seed fails, the failure of the
+/// first seed.
+pub fn find_cycle(
+    map: &mut FlowMap,
+    seeds: &[MapPoint],
+    k: usize,
+    settings: &NewtonSettings,
+) -> Result<CycleReport, CycleError> {
+    if k == 0 {
+        return Err(CycleError::ZeroReturns);
+    }
+    let mut first_error = None;
+    for seed in seeds {
+        match refine(map, seed, k, settings).and_then(|refined| CycleReport::measure(map, refined))
+        {
+            Ok(report) => return Ok(report),
+            Err(err) => {
+                first_error.get_or_insert(err);
+            }
+        }
+    }
+    Err(first_error.unwrap_or(CycleError::NoSeed))
+}

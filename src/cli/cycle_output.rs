@@ -1,0 +1,187 @@
+//! The output of `lamina cycle`: a readable report, or JSON with full round-trip precision.
+
+use std::io::Write;
+
+use anyhow::{Context, Result};
+use lamina_core::cycle::{CycleReport, MapChoice, Multiplier, Number};
+use serde::Serialize;
+use serde::ser::{SerializeMap, Serializer};
+
+use super::cycle::SeedOrigin;
+
+/// The JSON document of the product brief.
+#[derive(Serialize)]
+struct Json<'a> {
+    period: f64,
+    point: NamedState<'a>,
+    multipliers: Vec<JsonComplex>,
+    stable: bool,
+    residual: f64,
+    k: usize,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    floquet: Option<Vec<JsonComplex>>,
+}
+
+/// A state as an object of state names, in the model's order.
+struct NamedState<'a> {
+    names: &'a [String],
+    values: &'a [f64],
+}
+
+impl Serialize for NamedState<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut map = serializer.serialize_map(Some(self.names.len()))?;
+        for (name, value) in self.names.iter().zip(self.values) {
+            map.serialize_entry(name, value)?;
+        }
+        map.end()
+    }
+}
+
+#[derive(Serialize)]
+struct JsonComplex {
+    re: f64,
+    im: f64,
+}
+
+fn complex(values: &[Multiplier]) -> Vec<JsonComplex> {
+    values
+        .iter()
+        .map(|m| JsonComplex { re: m.re, im: m.im })
+        .collect()
+}
+
+/// Writes the report as one JSON line (serde_json writes the shortest text that reads back
+/// to the same f64).
+pub fn write_json(out: &mut impl Write, report: &CycleReport, names: &[String]) -> Result<()> {
+    let json = Json {
+        period: report.period,
+        point: NamedState {
+            names,
+            values: &report.point.state,
+        },
+        multipliers: complex(&report.multipliers),
+        stable: report.is_stable(),
+        residual: report.residual,
+        k: report.k,
+        floquet: report.floquet.as_deref().map(complex),
+    };
+    serde_json::to_writer(&mut *out, &json).context("writing JSON")?;
+    writeln!(out).context("writing to stdout")?;
+    Ok(())
+}
+
+/// Writes the report for a person to read.
+pub fn write_human(
+    out: &mut impl Write,
+    report: &CycleReport,
+    names: &[String],
+    origin: &SeedOrigin,
+) -> Result<()> {
+    let map = match report.map {
+        MapChoice::Cut => "cut map",
+        MapChoice::Strobe => "strobe map",
+    };
+    let returns = if report.k == 1 {
+        "1 return".to_string()
+    } else {
+        format!("{} returns", report.k)
+    };
+    let mut text = String::new();
+    let mut line = |s: String| {
+        text.push_str(&s);
+        text.push('\n');
+    };
+    line(format!(
+        "periodic orbit of the {map}, period {} ({returns})",
+        report.k
+    ));
+    line(format!(
+        "  period        {}  (total time of {returns})",
+        report.period
+    ));
+    line(format!(
+        "  point         {}  (t = {})",
+        named(names, &report.point.state),
+        report.point.t
+    ));
+    for (idx, other) in report.orbit.iter().enumerate().skip(1) {
+        line(format!(
+            "  point {}       {}  (t = {})",
+            idx + 1,
+            named(names, &other.state),
+            other.t
+        ));
+    }
+    line(format!(
+        "  multipliers of the {map} (applied {} time(s)), by modulus:",
+        report.k
+    ));
+    for m in &report.multipliers {
+        line(format!("      {m}    |m| = {}", Number(m.modulus())));
+    }
+    if let Some(floquet) = &report.floquet {
+        line("  Floquet multipliers (monodromy matrix over the period):".to_string());
+        let trivial = floquet
+            .iter()
+            .enumerate()
+            .min_by(|(_, a), (_, b)| distance_to_one(a).total_cmp(&distance_to_one(b)))
+            .map(|(idx, _)| idx);
+        for (idx, m) in floquet.iter().enumerate() {
+            let note = if Some(idx) == trivial {
+                "    (trivial: along the flow)"
+            } else {
+                ""
+            };
+            line(format!("      {m}{note}"));
+        }
+    }
+    line(format!(
+        "  residual      {:e} after {} Newton step(s)",
+        report.residual, report.iterations
+    ));
+    line(format!(
+        "  derivatives   {}",
+        if report.from_differences {
+            "central differences of the map (the rates jump with the states: sign, step, ...)"
+        } else {
+            "variational equations"
+        }
+    ));
+    line(format!("  verdict       {}", report.verdict));
+    if let Some(nearest) = &report.nearest {
+        line(format!(
+            "  nearest the unit circle: {} (|m| - 1 = {}); stability would change there {}",
+            nearest.multiplier,
+            Number(nearest.distance),
+            nearest.loss
+        ));
+    }
+    match origin {
+        SeedOrigin::Start => line("  seed          the start state".to_string()),
+        SeedOrigin::CloseReturn {
+            recurrence,
+            distance,
+            n_points,
+        } => line(format!(
+            "  seed          closest return of {n_points} settled points (distance {distance:.1e}); {recurrence}"
+        )),
+    }
+    out.write_all(text.as_bytes())
+        .context("writing to stdout")?;
+    Ok(())
+}
+
+fn distance_to_one(m: &Multiplier) -> f64 {
+    (m.re - 1.0).hypot(m.im)
+}
+
+/// `a = 1, b = 2` with full precision.
+fn named(names: &[String], values: &[f64]) -> String {
+    names
+        .iter()
+        .zip(values)
+        .map(|(n, v)| format!("{n} = {}", Number(*v)))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
