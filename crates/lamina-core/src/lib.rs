@@ -8,6 +8,7 @@
 
 pub mod expr;
 pub mod integrate;
+pub mod lyapunov;
 pub mod model;
 pub mod run;
 
