@@ -452,3 +452,21 @@ fn unusable_settings_are_refused() {
         .unwrap_or_default();
     assert!(message.contains("1 to 2"), "{message}");
 }
+
+#[test]
+fn rates_that_jump_with_the_state_are_flagged() {
+    // (rates chosen so that no trajectory slides along a jump, which would stall the steps)
+    let run = spec(Method::Dp853, 1e-9, 0.0, 1.0);
+    let flagged = |rate: &str| {
+        let m = model(&[("x", 0.5, rate), ("y", 0.0, "-y")], &[("k", 2.0)]);
+        compute(m, &run, &ExponentSettings::all()).rates_jump
+    };
+    // [analytic] a relay term, a staircase, a threshold and a remainder jump as x moves
+    assert!(flagged("-x + 0.1*sign(x + 2)"));
+    assert!(flagged("-floor(k*x + 5)/k"));
+    assert!(flagged("-x + 0.1*step(x - 3)"));
+    assert!(flagged("2 - (x % 0.3)"));
+    // [analytic] kinks are continuous; a jump in time alone moves every trajectory alike
+    assert!(!flagged("-abs(x) + max(x, 0)"));
+    assert!(!flagged("-x + step(t - 0.5) + sign(k)"));
+}

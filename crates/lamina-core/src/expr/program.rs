@@ -1,7 +1,7 @@
 //! The compiled evaluation program: one straight-line instruction list for all outputs.
 
 use super::compile::{Builder, compile_expression};
-use super::instr::Instr;
+use super::instr::{Func1, Instr};
 use super::kernel::{Compiled, Kernel};
 use super::lower::lower;
 use super::plan::{Registers, registers};
@@ -212,5 +212,29 @@ impl Program {
     /// Whether any output depends on a state.
     pub fn uses_states(&self) -> bool {
         self.uses_states
+    }
+
+    /// Whether an output can jump as the states change: it applies `sign`, `step`, `floor`,
+    /// `ceil` or `%` to a value that depends on a state. Derivatives (the Jacobian) do not
+    /// see such jumps. A jump in time alone (`step(t - 5)`) does not count.
+    pub fn jumps_with_states(&self) -> bool {
+        let mut on_states: Vec<bool> = Vec::with_capacity(self.instrs.len());
+        for instr in &self.instrs {
+            let depends = matches!(instr, Instr::State(_))
+                || instr
+                    .args()
+                    .iter()
+                    .any(|&a| on_states.get(a as usize).copied().unwrap_or(false));
+            let jumps = matches!(
+                instr,
+                Instr::F1(Func1::Sign | Func1::Step | Func1::Floor | Func1::Ceil, _)
+                    | Instr::Rem(..)
+            );
+            if depends && jumps {
+                return true;
+            }
+            on_states.push(depends);
+        }
+        false
     }
 }

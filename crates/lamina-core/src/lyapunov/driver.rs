@@ -29,9 +29,10 @@ const PROGRESS_EVERY_STEPS: u64 = 256;
 /// the integrator restarts from it, keeping its step size.
 ///
 /// For a model that uses `t`, the `n` exponents of the states are computed; the time
-/// direction's zero is not listed (`time_direction_omitted`). Rates with jumps (`sign`,
-/// `step`, `floor`, ...) have no derivative across the jump: the exponents then leave out
-/// the stretching that happens at the switching instants.
+/// direction's zero is not listed (`time_direction_omitted`). Rates that jump with the
+/// state (`sign`, `step`, `floor`, ...) have no derivative across the jump: the exponents
+/// then leave out the stretching at the switching instants, and the result says so
+/// (`rates_jump`).
 ///
 /// Cancellation: `interrupt` is checked once per step. Numerical trouble (a state beyond
 /// `run.bound`, a value not finite, a collapsing step) ends the run with its reason and
@@ -282,7 +283,9 @@ impl Work {
             self.trace.push(self.t, &self.estimates);
         }
         let spread = self.trace.spread(t_record, settings.tail_fraction);
-        let omitted = self.tangent.model_mut().uses_time();
+        let model = self.tangent.model_mut();
+        let omitted = model.uses_time();
+        let rates_jump = model.program().jumps_with_states();
         let n_states = self.n;
         let verdict = classify(&self.estimates, &spread, n_states, omitted);
         let complete = self.m == n_states;
@@ -304,6 +307,7 @@ impl Work {
             t_end: self.t,
             n_states,
             time_direction_omitted: omitted,
+            rates_jump,
             kaplan_yorke,
             verdict,
             trace: self.trace,

@@ -44,6 +44,12 @@ pub struct Spectrum {
     /// The model uses `t` (it is forced): its flow has one more direction, time, whose zero
     /// exponent is not listed in `exponents`.
     pub time_direction_omitted: bool,
+    /// The rates jump as the states change (`sign`, `step`, `floor`, `ceil` or `%` of a
+    /// state-dependent value, as in a relay). The tangent vectors follow the Jacobian, which
+    /// does not see the jumps, so the stretching at the switching instants is left out: the
+    /// exponents and the verdict may be wrong for such a model (a relay oscillation can come
+    /// out as a resting point). Kinks (`abs`, `min`, `max`) are fine.
+    pub rates_jump: bool,
     /// The Kaplan–Yorke dimension of the attractor in the state space (with time, for a
     /// forced model), read from the exponents with those zero within their error set to 0;
     /// `None` when too few exponents were computed to determine it or when nothing was
