@@ -32,6 +32,8 @@ enum Command {
     Cut(cli::PointsArgs),
     /// Compute strobe samples (time-T map) and write them as CSV.
     Strobe(cli::PointsArgs),
+    /// Compute Lyapunov exponents (the spectrum, its spread, Kaplan–Yorke dimension, verdict).
+    Lyapunov(cli::LyapunovArgs),
 }
 
 fn main() -> ExitCode {
@@ -42,6 +44,7 @@ fn main() -> ExitCode {
         Some(Command::Check { file }) => cli::check(&file),
         Some(Command::Cut(args)) => cli::points(cli::PointKind::Cut, &args),
         Some(Command::Strobe(args)) => cli::points(cli::PointKind::Strobe, &args),
+        Some(Command::Lyapunov(args)) => cli::lyapunov(&args),
     };
     match result {
         Ok(code) => code,

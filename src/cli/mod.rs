@@ -2,10 +2,12 @@
 
 mod check;
 mod explorer;
+mod lyapunov;
 mod points;
 mod prepare;
 mod progress;
 
 pub use check::check;
 pub use explorer::open_explorer;
+pub use lyapunov::{LyapunovArgs, lyapunov};
 pub use points::{PointKind, PointsArgs, points};
