@@ -38,6 +38,8 @@ enum Command {
     Render(cli::RenderArgs),
     /// Find a periodic orbit of the cut or strobe map: period, point, multipliers, verdict.
     Cycle(cli::CycleArgs),
+    /// Compute Lyapunov exponents (the spectrum, its spread, Kaplan–Yorke dimension, verdict).
+    Lyapunov(cli::LyapunovArgs),
 }
 
 fn main() -> ExitCode {
@@ -51,6 +53,7 @@ fn main() -> ExitCode {
         Some(Command::Sweep(args)) => cli::sweep(&args),
         Some(Command::Render(args)) => cli::render(&args),
         Some(Command::Cycle(args)) => cli::cycle(&args),
+        Some(Command::Lyapunov(args)) => cli::lyapunov(&args),
     };
     match result {
         Ok(code) => code,

@@ -1,0 +1,20 @@
+//! Lyapunov exponents: the largest one or the whole Lyapunov spectrum, by integrating the
+//! variational equations with QR re-orthonormalisation (Benettin's method), with a running
+//! estimate for a convergence plot, its spread as an error indication, the Kaplan–Yorke
+//! dimension and a plain verdict.
+//!
+//! Start with [`spectrum`]: it takes a compiled model, the run window and
+//! [`ExponentSettings`], reports running estimates and progress to an [`ExponentSink`] and
+//! returns a [`Spectrum`].
+
+mod driver;
+mod qr;
+mod result;
+mod settings;
+mod summary;
+mod tangent;
+
+pub use driver::spectrum;
+pub use result::{ExponentSink, Spectrum};
+pub use settings::{ExponentError, ExponentSettings};
+pub use summary::{Trace, Verdict, classify, kaplan_yorke, settled_spectrum, zero_band};

@@ -1,0 +1,73 @@
+//! The variational equations: the model's state together with tangent vectors that move with
+//! the linearised flow, `x' = f(t, x)`, `q_k' = J(t, x) q_k`, as one system of `Rates`.
+
+use crate::integrate::Rates;
+use crate::model::Model;
+
+/// The model extended by `m` tangent vectors: the state is `x` (n values) followed by the
+/// tangent vectors one after another (`n` values each), `n + n * m` values in all.
+#[derive(Clone, Debug)]
+pub(crate) struct Tangent {
+    model: Model,
+    n: usize,
+    m: usize,
+    /// Row-major Jacobian at the last evaluation.
+    jacobian: Vec<f64>,
+}
+
+impl Tangent {
+    /// The model with `m` tangent vectors.
+    pub(crate) fn new(model: Model, m: usize) -> Self {
+        let n = model.dim();
+        Self {
+            model,
+            n,
+            m,
+            jacobian: vec![0.0; n * n],
+        }
+    }
+
+    /// The model alone (for integrating without tangent vectors).
+    pub(crate) fn model_mut(&mut self) -> &mut Model {
+        &mut self.model
+    }
+}
+
+impl Rates for Tangent {
+    fn dim(&self) -> usize {
+        self.n + self.n * self.m
+    }
+
+    fn rates(&mut self, t: f64, y: &[f64], dy: &mut [f64]) {
+        let n = self.n;
+        let (x, vectors) = y.split_at(n);
+        let (dx, dvectors) = dy.split_at_mut(n);
+        self.model.rates(t, x, dx);
+        self.model.jacobian(t, x, &mut self.jacobian);
+        for (q, dq) in vectors.chunks_exact(n).zip(dvectors.chunks_exact_mut(n)) {
+            for (row, out) in self.jacobian.chunks_exact(n).zip(dq.iter_mut()) {
+                *out = row.iter().zip(q).map(|(a, b)| a * b).sum();
+            }
+        }
+    }
+}
+
+/// Writes `m` starting tangent vectors for `n` states into `out` (`n * m` values): the
+/// coordinate axes tilted by a fixed, irregular amount, not yet orthonormal.
+///
+/// The axes themselves are often special directions of a model (an invariant axis or plane,
+/// a direction the flow never mixes into), where a tangent vector could stay for a long time
+/// and bias the estimates; tilted axes have a part along every direction. The tilt is fixed,
+/// so runs are reproducible. Every entry off the axis is below `0.9 / n` in size, so the
+/// `n x n` matrix of all tilted axes is strictly diagonally dominant and any `m` of them are
+/// independent.
+pub(crate) fn tilted_axes(n: usize, m: usize, out: &mut [f64]) {
+    let tilt = 0.9 / n as f64;
+    for (k, column) in out.chunks_exact_mut(n).take(m).enumerate() {
+        for (i, value) in column.iter_mut().enumerate() {
+            // an irregular pattern in (-1, 1)
+            let wiggle = (1.0 + 1.7 * i as f64 + 2.9 * k as f64).sin();
+            *value = if i == k { 1.0 } else { tilt * wiggle };
+        }
+    }
+}

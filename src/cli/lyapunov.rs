@@ -1,0 +1,168 @@
+//! `lamina lyapunov`: the Lyapunov exponents of a scenario, as text or JSON, with the running
+//! estimates as CSV on request.
+
+use std::io::Write;
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use anyhow::{Context, Result};
+use lamina_core::Interrupt;
+use lamina_core::lyapunov::{ExponentSettings, ExponentSink, Spectrum, spectrum};
+use lamina_core::run::StopReason;
+use lamina_export::{AtomicFile, TrajectoryCsv, format_number};
+
+use super::prepare::prepare;
+use super::progress::Progress;
+
+/// Arguments of `lyapunov`.
+#[derive(clap::Args, Debug)]
+pub struct LyapunovArgs {
+    /// Scenario file (.ron); the exponents are averaged over its span, after its settle time.
+    file: PathBuf,
+    /// Print JSON instead of text.
+    #[arg(long)]
+    json: bool,
+    /// Write the running estimates as CSV (`t,l1,l2,...`) to this file (atomically).
+    #[arg(long, value_name = "FILE.csv")]
+    trace: Option<PathBuf>,
+    /// Compute only the N largest exponents (1 is the cheapest); default: all.
+    #[arg(long, value_name = "N")]
+    exponents: Option<usize>,
+}
+
+/// Progress on the terminal's bar.
+struct Bar(Progress);
+
+impl ExponentSink for Bar {
+    fn progress(&mut self, t: f64, fraction: f64) {
+        self.0.update(t, fraction);
+    }
+}
+
+/// Computes the exponents of the scenario and prints them (and writes the trace).
+pub fn lyapunov(args: &LyapunovArgs) -> Result<ExitCode> {
+    let prepared = prepare(&args.file)?;
+    let settings = ExponentSettings {
+        count: args.exponents,
+        ..ExponentSettings::all()
+    };
+    let mut bar = Bar(Progress::new("lyapunov"));
+    let result = spectrum(
+        prepared.model,
+        &prepared.spec,
+        &settings,
+        &mut bar,
+        &Interrupt::new(),
+    );
+    bar.0.finish();
+    let result = result.with_context(|| format!("{}", args.file.display()))?;
+    if let Some(path) = &args.trace {
+        write_trace(path, &result)?;
+    }
+    let text = if args.json {
+        json(&result)?
+    } else {
+        plain(&result, settings.tail_fraction)
+    };
+    let mut stdout = std::io::stdout().lock();
+    writeln!(stdout, "{text}")
+        .and_then(|()| stdout.flush())
+        .context("writing to stdout")?;
+    match result.reason {
+        StopReason::Finished => Ok(ExitCode::SUCCESS),
+        other => {
+            eprintln!(
+                "the run stopped early ({other}); the exponents are averaged up to t = {}",
+                result.t_end
+            );
+            Ok(ExitCode::FAILURE)
+        }
+    }
+}
+
+/// Column names of the exponents: `l1`, `l2`, ...
+fn exponent_names(m: usize) -> Vec<String> {
+    (1..=m).map(|i| format!("l{i}")).collect()
+}
+
+/// Writes the running estimates as `t,l1,l2,...`, replacing `path` only when complete.
+fn write_trace(path: &Path, result: &Spectrum) -> Result<()> {
+    let trace = &result.trace;
+    let file = AtomicFile::create(path)?;
+    let mut csv = TrajectoryCsv::new(file, &exponent_names(trace.exponents.len()))?;
+    for (k, &t) in trace.t.iter().enumerate() {
+        csv.write(t, &trace.sample(k))?;
+    }
+    csv.finish()?.commit()?;
+    Ok(())
+}
+
+/// The JSON of the product brief (`exponents`, `time`) with the rest of the result. Numbers
+/// are written in shortest round-trip form; a number that is not finite (an exponent when
+/// nothing was averaged, a spread with too few samples) is written as `null`.
+fn json(result: &Spectrum) -> Result<String> {
+    let value = serde_json::json!({
+        "exponents": result.exponents,
+        "time": result.time,
+        "spread": result.spread,
+        "sum": result.sum(),
+        "kaplan_yorke": result.kaplan_yorke,
+        "verdict": result.verdict.name(),
+        "verdict_text": result.verdict.to_string(),
+        "time_direction_omitted": result.time_direction_omitted,
+        "rates_jump": result.rates_jump,
+        "t_end": result.t_end,
+        "finished": result.reason == StopReason::Finished,
+        "stop_reason": result.reason.to_string(),
+        "reorthonormalisations": result.n_reorthonormalisations,
+        "rate_evaluations": result.stats.n_rates,
+    });
+    let text = serde_json::to_string(&value).context("writing JSON")?;
+    Ok(text)
+}
+
+/// The result as text for a person, numbers in full precision.
+fn plain(result: &Spectrum, tail_fraction: f64) -> String {
+    let mut lines = Vec::new();
+    let t_from = result.t_end - result.time;
+    lines.push(format!(
+        "Lyapunov exponents of {} state(s), averaged over {} time units (t = {} to {}):",
+        result.n_states,
+        format_number(result.time),
+        format_number(t_from),
+        format_number(result.t_end)
+    ));
+    for (i, (l, spread)) in result.exponents.iter().zip(&result.spread).enumerate() {
+        lines.push(format!(
+            "  l{} = {}   (spread {})",
+            i + 1,
+            format_number(*l),
+            format_number(*spread)
+        ));
+    }
+    lines.push(format!(
+        "spread: largest minus smallest running estimate over the last {} % of the time",
+        100.0 * tail_fraction
+    ));
+    lines.push(format!("sum: {}", format_number(result.sum())));
+    lines.push(match result.kaplan_yorke {
+        Some(d) => format!("Kaplan–Yorke dimension: {}", format_number(d)),
+        None => "Kaplan–Yorke dimension: not determined by these exponents".to_string(),
+    });
+    lines.push(format!("verdict: {}", result.verdict));
+    if result.rates_jump {
+        lines.push(
+            "caution: the rates jump with the state (sign, step, floor, ceil or %): the \
+             exponents leave out the stretching at the switching instants and may be wrong"
+                .to_string(),
+        );
+    }
+    if result.time_direction_omitted {
+        lines.push(
+            "note: the model uses t (it is forced): the zero exponent of the time direction is \
+             not listed"
+                .to_string(),
+        );
+    }
+    lines.join("\n")
+}
