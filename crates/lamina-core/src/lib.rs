@@ -1,6 +1,8 @@
 //! Lamina's numerical core: typed model equations compiled into an evaluation program,
-//! adaptive Runge–Kutta integrators with dense output, and the cut (Poincaré section) and
-//! strobe (time-T map) drivers built on them.
+//! adaptive integrators with dense output (explicit Runge–Kutta pairs, the Rosenbrock method
+//! Rodas4 for stiff models and the automatic choice between them), the location of the
+//! switches of piecewise-smooth models, and the cut (Poincaré section) and strobe (time-T
+//! map) drivers built on them.
 //!
 //! **Invariant:** this crate does no I/O, starts no threads, never reads the clock and knows
 //! nothing of serde or egui. Cancellation comes in as an [`Interrupt`] flag, progress goes out
@@ -10,5 +12,6 @@ pub mod expr;
 pub mod integrate;
 pub mod model;
 pub mod run;
+pub mod switching;
 
 pub use integrate::Interrupt;

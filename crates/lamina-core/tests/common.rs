@@ -98,5 +98,6 @@ pub fn rel(a: f64, b: f64) -> f64 {
     (a - b).abs() / b.abs().max(f64::MIN_POSITIVE)
 }
 
-/// Both explicit methods.
-pub const METHODS: [Method; 2] = [Method::Dp5, Method::Dp853];
+/// Both explicit methods and the automatic choice (which on a non-stiff model stays with
+/// DOP853).
+pub const METHODS: [Method; 3] = [Method::Dp5, Method::Dp853, Method::Auto];

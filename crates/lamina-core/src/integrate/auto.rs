@@ -95,9 +95,9 @@ impl Integrator {
 
     /// Replaces the last accepted step by one of size `h` from the same start, with the same
     /// method and the same rates, and with its dense output; the proposed size of the next
-    /// step is kept, but not above the size of the step replaced. For a driver that ends the
-    /// step where the model switches. The shortened step is not error-controlled: it is
-    /// shorter than an accepted step, so its error is smaller.
+    /// step is kept. For a driver that ends the step where the model switches. The
+    /// shortened step is not error-controlled: it is shorter than an accepted step, so its
+    /// error is smaller.
     ///
     /// # Errors
     /// As [`Integrator::step_fixed`] (then the integrator stands at the start of the step).
@@ -106,9 +106,16 @@ impl Integrator {
         rates: &mut R,
         h: f64,
     ) -> Result<(), StepError> {
-        self.h = self.h.min(self.segment.h);
         self.rewind();
         self.step_fixed(rates, h)
+    }
+
+    /// Limits the proposed size of the next step to `h` (a driver that ended a step early
+    /// keeps the proposal from growing past the step it replaced).
+    pub fn limit_next_step(&mut self, h: f64) {
+        if h > 0.0 {
+            self.h = self.h.min(h);
+        }
     }
 
     /// Continues from the current state with rates that have changed (a switch of the

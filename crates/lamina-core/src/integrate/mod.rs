@@ -34,6 +34,7 @@ mod stiffness;
 
 pub use dense::DenseSegment;
 pub use integrator::Integrator;
+pub(crate) use integrator::min_step as min_step_at;
 pub use stiffness::{ChangeReason, MethodChange};
 
 use std::sync::atomic::{AtomicBool, Ordering};

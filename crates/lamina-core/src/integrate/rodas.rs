@@ -71,7 +71,7 @@ impl Rodas {
             x_new: vec![0.0; dim],
             f_new: vec![0.0; dim],
             dense: vec![0.0; n_terms * dim],
-            probe: vec![1.0; dim],
+            probe: probe_start(dim),
             probe_next: vec![0.0; dim],
             spectral_radius: 0.0,
         }
@@ -235,8 +235,7 @@ impl Rodas {
         stats.n_jacobians += 1;
         if !rates.exact_jacobian(t, x, &mut self.jacobian) {
             self.y_stage.copy_from_slice(x);
-            for j in 0..n {
-                let xj = x[j];
+            for (j, &xj) in x.iter().enumerate() {
                 self.y_stage[j] = xj + (f64::EPSILON * xj.abs().max(DIFFERENCE_FLOOR)).sqrt();
                 let delta = self.y_stage[j] - xj;
                 rates.rates(t, &self.y_stage, &mut self.f_stage);
@@ -322,8 +321,8 @@ impl Rodas {
         let norm = |v: &[f64]| v.iter().map(|z| z * z).sum::<f64>().sqrt();
         let mut v_norm = norm(&self.probe);
         if !(v_norm > 0.0 && v_norm.is_finite()) {
-            self.probe.fill(1.0);
-            v_norm = (n as f64).sqrt();
+            self.probe = probe_start(n);
+            v_norm = norm(&self.probe);
         }
         let jac = &self.jacobian;
         let product = |v: &[f64], out: &mut [f64]| {
@@ -345,9 +344,19 @@ impl Rodas {
             }
         } else {
             self.spectral_radius = 0.0;
-            self.probe.fill(1.0);
+            self.probe = probe_start(n);
         }
     }
+}
+
+/// A start vector for the power method with no structure a model's Jacobian is likely to
+/// share (a vector of ones is an eigenvector of every symmetric coupling of equal states):
+/// `1 + frac(0.618... i)`.
+fn probe_start(dim: usize) -> Vec<f64> {
+    const GOLDEN_FRACTION: f64 = 0.618_033_988_749_894_9;
+    (0..dim)
+        .map(|i| 1.0 + (i as f64 * GOLDEN_FRACTION).fract())
+        .collect()
 }
 
 /// The right-hand side of a stage's linear system:

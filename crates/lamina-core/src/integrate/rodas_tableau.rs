@@ -58,6 +58,7 @@ pub(super) const D34: f64 = 0.2476722511418386e+02;
 pub(super) const D35: f64 = -0.6594389125716872e+01;
 
 #[cfg(test)]
+#[allow(clippy::needless_range_loop)] // matrix algebra reads best with indices
 mod tests {
     use super::*;
 
