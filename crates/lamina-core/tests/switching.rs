@@ -89,6 +89,16 @@ fn each_kind_of_switch_is_located() {
         0.5 * (-3.0f64).exp(),
         "min and max",
     );
+    // [analytic] a comparator on a ramp that restarts at every tick (pulse-width
+    // modulation): x' = step(0.3 - (t - floor(t))) from 0 is 1 for the first 0.3 of every
+    // unit of time: x(3.5) = 4 * 0.3; the ramp's jump at each tick switches the comparator
+    check_end(
+        "step(0.3 - (t - floor(t)))",
+        0.0,
+        3.5,
+        1.2,
+        "comparator on a ramp",
+    );
     // [analytic] x' = 2 + sign(x - 1) from 0: x = t up to 1, then x = 1 + 3 (t - 1): x(2) = 4
     check_end("2 + sign(x - 1)", 0.0, 2.0, 4.0, "sign of a state");
 }

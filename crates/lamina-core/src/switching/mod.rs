@@ -211,8 +211,26 @@ impl Switching {
         for &k in &self.crossing {
             branches[k] = self.switches[k].across(branches[k], self.values[k]);
         }
-        self.crossing.clear();
         self.hold(branches);
+        // the value of another switch may jump with this change (a clock tick restarts a
+        // ramp that a comparator watches): hold it on the branch it is on now, apart from
+        // the switches that just crossed (which are on their boundary)
+        for _ in 0..self.switches.len() {
+            self.evaluate_margins(t, x);
+            let mut branches = self.branches().to_vec();
+            let mut changed = false;
+            for (k, branch) in branches.iter_mut().enumerate() {
+                if self.margins[k] < 0.0 && !self.crossing.contains(&k) {
+                    *branch = self.switches[k].branch_of(self.values[k]);
+                    changed = true;
+                }
+            }
+            if !changed {
+                break;
+            }
+            self.hold(branches);
+        }
+        self.crossing.clear();
         self.update_start(t, x);
         integrator.restart();
         self.n_switches += 1;
