@@ -235,3 +235,107 @@ fn hold(instr: &Instr, branch: Branch, map: &[u32]) -> Option<Held> {
         _ => return None,
     })
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::expr::Names;
+
+    fn program(sources: &[&str]) -> Program {
+        let names = Names {
+            states: vec!["x".into(), "y".into()],
+            parameters: vec!["p".into()],
+        };
+        let labelled: Vec<(String, &str)> = sources
+            .iter()
+            .enumerate()
+            .map(|(i, s)| (format!("output {i}"), *s))
+            .collect();
+        Program::compile(&names, &labelled).unwrap_or_else(|e| panic!("{e}"))
+    }
+
+    const SOURCES: [&str; 3] = [
+        "abs(x - 1) + min(x, y)*sign(y) + step(x*y)",
+        "max(x^2, 2*y) - floor(3*x) + ceil(y - t)",
+        "sign(p)*x + abs(p)",
+    ];
+
+    #[test]
+    fn switches_are_the_functions_of_moving_arguments() {
+        let kinds: Vec<SwitchKind> = program(&SOURCES)
+            .switches()
+            .iter()
+            .map(|s| s.kind)
+            .collect();
+        // sign(p) and abs(p) depend on a parameter only and do not switch
+        assert_eq!(kinds.len(), 7);
+        for kind in [
+            SwitchKind::Abs,
+            SwitchKind::Min,
+            SwitchKind::Sign,
+            SwitchKind::Step,
+            SwitchKind::Max,
+            SwitchKind::Floor,
+            SwitchKind::Ceil,
+        ] {
+            assert!(kinds.contains(&kind), "{kind:?} in {kinds:?}");
+        }
+    }
+
+    #[test]
+    fn held_program_agrees_with_the_program_on_its_branches() {
+        let program = program(&SOURCES);
+        let switches = program.switches();
+        let free = program.switching_values(&switches, None);
+        let p = [-0.7];
+        for (x, y, t) in [(0.3, 0.8, 0.1), (1.7, -0.4, 2.5), (-1.2, 2.2, 0.9)] {
+            let state = [x, y];
+            let mut values = vec![0.0; switches.len()];
+            free.eval_reference(&mut free.scratch(), t, &state, &p, &mut values);
+            let branches: Vec<Branch> = switches
+                .iter()
+                .zip(&values)
+                .map(|(s, &v)| s.branch_of(v))
+                .collect();
+            let held = program.held(&switches, &branches);
+            let (mut a, mut b) = ([0.0; 3], [0.0; 3]);
+            program.eval_reference(&mut program.scratch(), t, &state, &p, &mut a);
+            held.eval_reference(&mut held.scratch(), t, &state, &p, &mut b);
+            // [analytic] on its branch a switching function is exactly its held form
+            assert_eq!(a, b, "at {state:?}, t = {t}");
+            let (mut ja, mut jb) = ([0.0; 6], [0.0; 6]);
+            program.jacobian(&mut program.scratch(), t, &state, &p, &mut ja);
+            held.jacobian(&mut held.scratch(), t, &state, &p, &mut jb);
+            assert_eq!(ja, jb, "at {state:?}, t = {t}");
+            // and every margin is not negative where the branches were chosen
+            let held_values = program.switching_values(&switches, Some(&branches));
+            held_values.eval_reference(&mut held_values.scratch(), t, &state, &p, &mut values);
+            for ((s, b), v) in switches.iter().zip(&branches).zip(&values) {
+                assert!(s.margin(*b, *v) >= 0.0, "{s:?} {b:?} {v}");
+            }
+        }
+    }
+
+    #[test]
+    fn margins_and_crossings_of_each_branch() {
+        let program = program(&["floor(x) + ceil(x) + sign(x)"]);
+        let switches = program.switches();
+        let [floor, ceil, sign] = [switches[0], switches[1], switches[2]];
+        // [analytic] floor held at 2 holds for 2 <= x <= 3, ceil held at 3 for 2 <= x <= 3
+        assert_eq!(floor.branch_of(2.5), Branch::Integer(2));
+        assert_eq!(ceil.branch_of(2.5), Branch::Integer(3));
+        assert!(floor.margin(Branch::Integer(2), 2.5) > 0.0);
+        assert!(floor.margin(Branch::Integer(2), 3.01) < 0.0);
+        assert!(floor.margin(Branch::Integer(2), 1.99) < 0.0);
+        assert!(ceil.margin(Branch::Integer(3), 2.01) > 0.0);
+        assert!(ceil.margin(Branch::Integer(3), 1.99) < 0.0);
+        assert_eq!(floor.across(Branch::Integer(2), 3.0), Branch::Integer(3));
+        assert_eq!(floor.across(Branch::Integer(2), 2.0), Branch::Integer(1));
+        assert_eq!(ceil.across(Branch::Integer(3), 3.0), Branch::Integer(4));
+        assert_eq!(ceil.across(Branch::Integer(3), 2.0), Branch::Integer(2));
+        assert_eq!(sign.branch_of(-1e-300), Branch::Negative);
+        assert_eq!(sign.branch_of(0.0), Branch::Positive);
+        assert_eq!(sign.margin(Branch::Negative, -2.0), 2.0);
+        assert_eq!(sign.across(Branch::Negative, 0.0), Branch::Positive);
+    }
+}
