@@ -685,12 +685,6 @@ const BAD: &[Bad] = &[
         needles: &["states[1].rate", "at character 10", "-c*v - w**x\n", "^"],
         located: true,
     },
-    Bad {
-        from: "method: Dp5",
-        to: "method: Stiff",
-        needles: &["integrator.method", "Stiff", "not available"],
-        located: true,
-    },
 ];
 
 #[test]

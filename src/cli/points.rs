@@ -160,6 +160,13 @@ fn execute<W: Write>(
     };
     let outcome = run.execute(&mut sink, interrupt);
     sink.progress.finish();
+    // the automatic method says when and why it changed (the first change, and how many)
+    if let Some(first) = outcome.method_changes.first() {
+        match outcome.method_changes.len() {
+            1 => eprintln!("note: {first}"),
+            n => eprintln!("note: {first} ({n} changes of method in all)"),
+        }
+    }
     if let Some(err) = sink.error {
         return Err(err.into());
     }

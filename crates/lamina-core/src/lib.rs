@@ -1,7 +1,9 @@
 //! Lamina's numerical core: typed model equations compiled into an evaluation program,
-//! adaptive Runge–Kutta integrators with dense output, and the cut (Poincaré section) and
-//! strobe (time-T map) drivers built on them, and periodic orbits found by Newton's method on
-//! the cut or strobe map with their Floquet multipliers.
+//! adaptive integrators with dense output (explicit Runge–Kutta pairs, the Rosenbrock method
+//! Rodas4 for stiff models and the automatic choice between them), the location of the
+//! switches of piecewise-smooth models, the cut (Poincaré section) and strobe (time-T map)
+//! drivers built on them, parameter sweeps, periodic orbits found by Newton's method on the
+//! cut or strobe map with their Floquet multipliers, and Lyapunov exponents.
 //!
 //! **Invariant:** this crate does no I/O, starts no threads, never reads the clock and knows
 //! nothing of serde or egui. Cancellation comes in as an [`Interrupt`] flag, progress goes out
@@ -14,5 +16,6 @@ pub mod lyapunov;
 pub mod model;
 pub mod run;
 pub mod sweep;
+pub mod switching;
 
 pub use integrate::Interrupt;

@@ -164,4 +164,21 @@ impl Rates for Model {
             None => self.rates_without_kernel(t, x, dx),
         }
     }
+
+    /// The compiled Jacobian (forward-mode derivatives of the rate program).
+    fn exact_jacobian(&mut self, t: f64, x: &[f64], jacobian: &mut [f64]) -> bool {
+        self.jacobian(t, x, jacobian);
+        true
+    }
+
+    /// The compiled time derivative (zero without evaluating when no rate uses `t`).
+    fn exact_time_derivative(&mut self, t: f64, x: &[f64], out: &mut [f64]) -> bool {
+        if self.program.uses_time() {
+            self.program
+                .time_derivative(&mut self.scratch, t, x, &self.parameters, out);
+        } else {
+            out.fill(0.0);
+        }
+        true
+    }
 }

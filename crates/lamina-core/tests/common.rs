@@ -101,8 +101,9 @@ pub fn rel(a: f64, b: f64) -> f64 {
     (a - b).abs() / b.abs().max(f64::MIN_POSITIVE)
 }
 
-/// Both explicit methods.
-pub const METHODS: [Method; 2] = [Method::Dp5, Method::Dp853];
+/// Both explicit methods and the automatic choice (which on a non-stiff model stays with
+/// DOP853).
+pub const METHODS: [Method; 3] = [Method::Dp5, Method::Dp853, Method::Auto];
 
 /// Run settings at tolerance `tol` with a settle and a recorded span.
 pub fn window(tol: f64, settle: f64, span: f64) -> RunSpec {

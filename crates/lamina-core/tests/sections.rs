@@ -229,21 +229,31 @@ fn henon_heiles_energy_is_kept_at_the_cut() {
         ],
         &[],
     );
-    let cut = plane(&m, &[("x", 1.0)], 0.0, Direction::Rising);
     let rtol = 1e-12;
-    let (points, _) = collect(m, spec(Method::Dp853, rtol, 0.0, 2200.0), Some(cut), None);
-    let p = &points.cut_points;
-    assert!(p.len() >= 300, "{}", p.len());
-    for q in p {
-        let [x, y, px, py] = [q.state[0], q.state[1], q.state[2], q.state[3]];
-        let h = 0.5 * (px * px + py * py) + 0.5 * (x * x + y * y) + x * x * y - y.powi(3) / 3.0;
-        // "about 10 x rtol": measured 10.0 x rtol after 300 crossings, so allow 15 x
+    for method in [Method::Dp853, Method::Auto] {
+        let cut = plane(&m, &[("x", 1.0)], 0.0, Direction::Rising);
+        let (points, outcome) =
+            collect(m.clone(), spec(method, rtol, 0.0, 2200.0), Some(cut), None);
+        // [common practice] Hénon–Heiles is not stiff: the automatic choice keeps DOP853
         assert!(
-            (h - energy).abs() <= 15.0 * rtol,
-            "H drift {:e}",
-            h - energy
+            outcome.method_changes.is_empty(),
+            "{:?}",
+            outcome.method_changes
         );
-        assert!(x.abs() < 1e-14);
+        let p = &points.cut_points;
+        assert!(p.len() >= 300, "{}", p.len());
+        for q in p {
+            let [x, y, px, py] = [q.state[0], q.state[1], q.state[2], q.state[3]];
+            let h = 0.5 * (px * px + py * py) + 0.5 * (x * x + y * y) + x * x * y - y.powi(3) / 3.0;
+            // REFERENCES case 16 [common practice] "about 10 x rtol": measured 10.0 x rtol
+            // after 300 crossings, so allow 15 x
+            assert!(
+                (h - energy).abs() <= 15.0 * rtol,
+                "{method:?} H drift {:e}",
+                h - energy
+            );
+            assert!(x.abs() < 1e-14);
+        }
     }
 }
 

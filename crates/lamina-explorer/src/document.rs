@@ -27,6 +27,14 @@ pub const DEMOS: &[(&str, &str)] = &[
         "Two coupled LC oscillators",
         include_str!("../../../demo_scenarios/coupled_oscillators.ron"),
     ),
+    (
+        "Op-amp astable multivibrator (stiff)",
+        include_str!("../../../demo_scenarios/astable_multivibrator.ron"),
+    ),
+    (
+        "Clocked buck converter (switching)",
+        include_str!("../../../demo_scenarios/clocked_buck_converter.ron"),
+    ),
 ];
 
 /// The scenario in the window.

@@ -13,7 +13,7 @@ use lamina_core::model::{Model, ModelSpec};
 use lamina_core::run::{Cut as CoreCut, CutSpec, SpecError, Strobe as CoreStrobe, SurfaceSpec};
 
 use crate::error::{Problem, Severity};
-use crate::scenario::{FORMAT, MethodChoice, Scenario, Surface, SweepSource};
+use crate::scenario::{FORMAT, Scenario, Surface, SweepSource};
 
 impl Scenario {
     /// Every problem of the scenario, errors and warnings, in file order of the checks.
@@ -317,13 +317,6 @@ impl<'a> Checker<'a> {
 
     fn integrator(&mut self) {
         let integrator = &self.scenario.integrator;
-        if integrator.method == MethodChoice::Stiff {
-            self.error(
-                "integrator.method",
-                "the Stiff method is not available in this version of Lamina; use Auto, Dp5 or Dp853"
-                    .to_owned(),
-            );
-        }
         if self.positive("integrator.rtol", integrator.rtol)
             && integrator.rtol < 100.0 * f64::EPSILON
         {

@@ -36,14 +36,15 @@ pub enum ViewAxis {
 }
 
 impl MethodChoice {
-    /// The core method this choice runs with; `None` for `Stiff`, which this version does
-    /// not have. `Auto` is Dormand–Prince 8(5,3).
+    /// The core method this choice runs with (every choice has one in this version; `None`
+    /// is kept for a choice a later file format might name that a build does not have).
     pub fn method(self) -> Option<Method> {
-        match self {
-            Self::Auto | Self::Dp853 => Some(Method::Dp853),
-            Self::Dp5 => Some(Method::Dp5),
-            Self::Stiff => None,
-        }
+        Some(match self {
+            Self::Auto => Method::Auto,
+            Self::Dp853 => Method::Dp853,
+            Self::Dp5 => Method::Dp5,
+            Self::Stiff => Method::Rodas4,
+        })
     }
 }
 
@@ -72,9 +73,8 @@ impl Scenario {
         }
     }
 
-    /// The run settings. `Auto` runs Dormand–Prince 8(5,3); so does `Stiff`, which
-    /// [`Scenario::check`] refuses in this version (use [`MethodChoice::method`] to tell).
-    /// The stored-steps budget is the core's default.
+    /// The run settings, with the method of [`MethodChoice::method`]. The stored-steps
+    /// budget is the core's default.
     pub fn run_spec(&self) -> RunSpec {
         let integrator = &self.integrator;
         RunSpec {

@@ -83,13 +83,14 @@ pub struct Parameter {
 /// Integration method as chosen in the file.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
 pub enum MethodChoice {
-    /// Let Lamina choose (currently Dormand–Prince 8(5,3)).
+    /// Let Lamina choose: Dormand–Prince 8(5,3), changing to the stiff method while the
+    /// model is stiff.
     Auto,
     /// Dormand–Prince 5(4).
     Dp5,
     /// Dormand–Prince 8(5,3).
     Dp853,
-    /// An implicit method for stiff models (not available in this version).
+    /// The stiff method (the Rosenbrock method Rodas4).
     Stiff,
 }
 

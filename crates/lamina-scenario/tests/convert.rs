@@ -28,7 +28,7 @@ fn the_model_spec_keeps_names_values_and_order() {
 #[test]
 fn the_run_spec() {
     let run = load(EXAMPLE).run_spec();
-    assert_eq!(run.method, Method::Dp853); // Auto
+    assert_eq!(run.method, Method::Auto);
     assert_eq!((run.control.rtol, run.control.atol), (1e-9, 1e-12));
     assert_eq!(run.control.max_step, None);
     assert_eq!((run.t_start, run.settle, run.span), (0.0, 200.0, 2000.0));
@@ -51,10 +51,10 @@ fn the_run_spec() {
 
 #[test]
 fn method_choices() {
-    assert_eq!(MethodChoice::Auto.method(), Some(Method::Dp853));
+    assert_eq!(MethodChoice::Auto.method(), Some(Method::Auto));
     assert_eq!(MethodChoice::Dp5.method(), Some(Method::Dp5));
     assert_eq!(MethodChoice::Dp853.method(), Some(Method::Dp853));
-    assert_eq!(MethodChoice::Stiff.method(), None);
+    assert_eq!(MethodChoice::Stiff.method(), Some(Method::Rodas4));
 }
 
 #[test]

@@ -1,6 +1,6 @@
 //! Typed expressions: parsing with `meval`, compiling a whole system of expressions into one
-//! evaluation program with shared subexpressions, compiling it into fast closures, and
-//! forward-mode derivatives from it.
+//! evaluation program with shared subexpressions, compiling it into fast closures,
+//! forward-mode derivatives from it, and its switching functions.
 
 mod compile;
 mod error;
@@ -12,6 +12,7 @@ mod lower;
 mod nodes;
 mod plan;
 mod program;
+mod switches;
 mod tangent;
 
 pub use error::{CompileError, ExprError, ExprErrorKind};
@@ -19,6 +20,7 @@ pub use functions::{CONSTANTS, FUNCTIONS, is_reserved};
 pub use kernel::Kernel;
 pub use plan::N_REGISTERS;
 pub use program::{Program, Scratch};
+pub use switches::{Branch, Switch, SwitchKind};
 
 /// The names an expression may use besides functions and constants: states (in order),
 /// parameters (in order), and always the time `t`.

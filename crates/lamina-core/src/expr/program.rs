@@ -51,11 +51,21 @@ impl Program {
         if !errors.is_empty() {
             return Err(CompileError { errors });
         }
-        Ok(Self::from_graph(builder.instrs, outputs, names))
+        Ok(Self::from_graph(
+            builder.instrs,
+            outputs,
+            names.states.len(),
+            names.parameters.len(),
+        ))
     }
 
     /// Keeps only the instructions the outputs need, renumbered in order.
-    fn from_graph(instrs: Vec<Instr>, outputs: Vec<u32>, names: &Names) -> Self {
+    pub(super) fn from_graph(
+        instrs: Vec<Instr>,
+        outputs: Vec<u32>,
+        n_states: usize,
+        n_parameters: usize,
+    ) -> Self {
         let mut needed = vec![false; instrs.len()];
         for &o in &outputs {
             needed[o as usize] = true;
@@ -85,8 +95,8 @@ impl Program {
             fast,
             instrs: kept,
             outputs,
-            n_states: names.states.len(),
-            n_parameters: names.parameters.len(),
+            n_states,
+            n_parameters,
             uses_time,
             uses_states,
         }

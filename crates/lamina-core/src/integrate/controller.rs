@@ -1,9 +1,11 @@
-//! Step-size control: the PI controller and the automatic initial step.
+//! Step-size control: the PI controller, the predictive controller, and the automatic
+//! initial step.
 //!
-//! The controller is the stabilised ("PI", Gustafsson) rule of Hairer, Nørsett & Wanner,
+//! The explicit pairs use the stabilised ("PI", Gustafsson) rule of Hairer, Nørsett & Wanner,
 //! Solving ODEs I, sec. IV.2, in the form of their DOPRI5 / DOP853 codes:
 //! `h_new = h * safety / (err^alpha / err_prev^beta)` with `alpha = 1/q - beta * k`,
-//! limited to `min_factor <= h_new / h <= max_factor`.
+//! limited to `min_factor <= h_new / h <= max_factor`. Rodas4 uses Gustafsson's predictive
+//! controller as in Hairer & Wanner's RODAS (Solving ODEs II, sec. IV.8).
 
 use super::{Method, Rates};
 
@@ -38,7 +40,9 @@ impl PiController {
     pub(crate) fn for_method(method: Method) -> Self {
         let (alpha0, beta, beta_weight, min_factor, max_factor) = match method {
             Method::Dp5 => (0.2, 0.04, 0.75, 0.2, 10.0),
-            Method::Dp853 => (1.0 / 8.0, DP853_BETA, 0.2, 0.333, 6.0),
+            Method::Dp853 | Method::Auto | Method::Rodas4 => {
+                (1.0 / 8.0, DP853_BETA, 0.2, 0.333, 6.0)
+            }
         };
         Self {
             alpha: alpha0 - beta * beta_weight,
@@ -85,6 +89,124 @@ impl PiController {
 
     /// Notes an attempt that failed for another reason (non-finite values); the caller
     /// chooses the smaller step itself.
+    pub(crate) fn failed(&mut self) {
+        self.after_rejection = true;
+    }
+}
+
+/// The step-size rule of the method in use.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(crate) enum StepRule {
+    /// The PI rule of the explicit pairs.
+    Pi(PiController),
+    /// The predictive rule of Rodas4.
+    Predictive(PredictiveController),
+}
+
+impl StepRule {
+    /// The rule used for `method` (`Auto` starts with DOP853's).
+    pub(crate) fn for_method(method: Method) -> Self {
+        match method {
+            Method::Rodas4 => Self::Predictive(PredictiveController::new()),
+            other => Self::Pi(PiController::for_method(other)),
+        }
+    }
+
+    /// Forgets the step history.
+    pub(crate) fn reset(&mut self) {
+        match self {
+            Self::Pi(c) => c.reset(),
+            Self::Predictive(c) => c.reset(),
+        }
+    }
+
+    /// Next step size after an accepted step of size `h` with scaled error `err <= 1`.
+    #[inline]
+    pub(crate) fn accepted(&mut self, h: f64, err: f64) -> f64 {
+        match self {
+            Self::Pi(c) => c.accepted(h, err),
+            Self::Predictive(c) => c.accepted(h, err),
+        }
+    }
+
+    /// Next step size after a rejected step of size `h` with scaled error `err > 1`.
+    #[inline]
+    pub(crate) fn rejected(&mut self, h: f64, err: f64) -> f64 {
+        match self {
+            Self::Pi(c) => c.rejected(h, err),
+            Self::Predictive(c) => c.rejected(h, err),
+        }
+    }
+
+    /// Notes an attempt that failed for another reason.
+    pub(crate) fn failed(&mut self) {
+        match self {
+            Self::Pi(c) => c.failed(),
+            Self::Predictive(c) => c.failed(),
+        }
+    }
+}
+
+/// Gustafsson's predictive step-size controller in the form of Hairer & Wanner's RODAS
+/// (Solving ODEs II, sec. IV.8): after an accepted step the factor is the larger of the
+/// plain `err^(1/4) / safety` and the predicted
+/// `(h_prev / h) (err^2 / err_prev)^(1/4) / safety`, with `h_new / h` limited to 1/5..6.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(crate) struct PredictiveController {
+    /// Size and error (at least 0.01) of the previous accepted step, if any.
+    previous: Option<(f64, f64)>,
+    /// Whether the last attempt was rejected (then the next accepted step may not grow `h`).
+    after_rejection: bool,
+}
+
+/// Limits of `h / h_new` of the predictive controller (RODAS's `FAC2` and `FAC1`).
+const PREDICTIVE_FACTOR_MIN: f64 = 1.0 / 6.0;
+const PREDICTIVE_FACTOR_MAX: f64 = 5.0;
+/// Exponent of the predictive controller: one over the order of the error estimate plus one.
+const PREDICTIVE_EXPONENT: f64 = 0.25;
+
+impl PredictiveController {
+    pub(crate) fn new() -> Self {
+        Self {
+            previous: None,
+            after_rejection: false,
+        }
+    }
+
+    pub(crate) fn reset(&mut self) {
+        *self = Self::new();
+    }
+
+    fn limited(factor: f64) -> f64 {
+        if factor.is_nan() {
+            return PREDICTIVE_FACTOR_MAX;
+        }
+        factor.clamp(PREDICTIVE_FACTOR_MIN, PREDICTIVE_FACTOR_MAX)
+    }
+
+    #[inline]
+    pub(crate) fn accepted(&mut self, h: f64, err: f64) -> f64 {
+        let mut factor = Self::limited(err.powf(PREDICTIVE_EXPONENT) / SAFETY);
+        if let Some((h_previous, err_previous)) = self.previous {
+            let predicted =
+                (h_previous / h) * (err * err / err_previous).powf(PREDICTIVE_EXPONENT) / SAFETY;
+            factor = factor.max(Self::limited(predicted));
+        }
+        self.previous = Some((h, err.max(0.01)));
+        let mut h_new = h / factor;
+        if self.after_rejection {
+            h_new = h_new.min(h);
+        }
+        self.after_rejection = false;
+        h_new
+    }
+
+    #[inline]
+    pub(crate) fn rejected(&mut self, h: f64, err: f64) -> f64 {
+        self.after_rejection = true;
+        h / Self::limited(err.powf(PREDICTIVE_EXPONENT) / SAFETY)
+    }
+
     pub(crate) fn failed(&mut self) {
         self.after_rejection = true;
     }

@@ -2,9 +2,10 @@
 
 /// The dense output of one accepted step from `t0` to `t0 + h`.
 ///
-/// Both methods' interpolants share one nested form: with `s = (t - t0) / h` and
+/// Every method's interpolant has one nested form: with `s = (t - t0) / h` and
 /// `r = 1 - s`, `y(t) = c0 + s (c1 + r (c2 + s (c3 + r (c4 + ...))))`, alternating `s` and `r`.
-/// Dormand–Prince 5(4) has 5 coefficient vectors, DOP853 has 8. `c0` is the state at `t0` and
+/// Dormand–Prince 5(4) has 5 coefficient vectors, DOP853 8, Rodas4 4 (8 under `Auto`, the
+/// last four zero). `c0` is the state at `t0` and
 /// `c0 + c1` the state at `t0 + h`.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct DenseSegment {
@@ -19,7 +20,7 @@ pub struct DenseSegment {
 }
 
 impl DenseSegment {
-    /// Number of coefficient vectors (5 or 8).
+    /// Number of coefficient vectors (4, 5 or 8).
     pub fn n_terms(&self) -> usize {
         self.coeffs.len().checked_div(self.dim).unwrap_or(0)
     }

@@ -26,6 +26,10 @@ pub(super) struct Dop853 {
     x_new: Vec<f64>,
     /// Interpolant coefficients of the last accepted attempt, `N_TERMS * dim`.
     dense: Vec<f64>,
+    /// Whether accepted steps measure `h lambda` for the stiffness test.
+    measure_stiffness: bool,
+    /// `h lambda` of the last accepted step (see [`Dop853::finish`]).
+    h_lambda: f64,
 }
 
 impl Dop853 {
@@ -36,7 +40,22 @@ impl Dop853 {
             y_stage: vec![0.0; dim],
             x_new: vec![0.0; dim],
             dense: vec![0.0; N_TERMS * dim],
+            measure_stiffness: false,
+            h_lambda: 0.0,
         }
+    }
+
+    /// Makes accepted steps measure `h lambda` for Hairer's stiffness test.
+    pub(super) fn measure_stiffness(&mut self) {
+        self.measure_stiffness = true;
+    }
+
+    /// `h lambda` of the last accepted step: `h |f(x1) - f(y12)| / |x1 - y12|`, the step size
+    /// times an estimate of the Jacobian's dominant eigenvalue from the last two evaluations
+    /// at `t + h` (Hairer's stiffness test in DOP853, Hairer & Wanner, Solving ODEs II,
+    /// sec. IV.2). Zero unless [`Dop853::measure_stiffness`] was called.
+    pub(super) fn h_lambda(&self) -> f64 {
+        self.h_lambda
     }
 
     /// `f(t, x)` at the current state.
@@ -58,6 +77,12 @@ impl Dop853 {
     /// Solution at the end of the last attempt.
     pub(super) fn x_new(&self) -> &[f64] {
         &self.x_new
+    }
+
+    /// Goes back to the start of the step completed last: its first stage (`f` there)
+    /// becomes current again.
+    pub(super) fn rewind(&mut self) {
+        self.k.swap(0, 12);
     }
 
     /// Interpolant coefficients of the last completed step (swapped out by the integrator).
@@ -175,6 +200,21 @@ impl Dop853 {
         *n_rates += 1;
         if !self.k[12].iter().all(|v| v.is_finite()) {
             return false;
+        }
+        if self.measure_stiffness {
+            // stage 12 was evaluated at t + h too, at the state left in `y_stage`
+            let (f12, f13) = (&self.k[11], &self.k[12]);
+            let mut numerator = 0.0;
+            let mut denominator = 0.0;
+            for i in 0..x.len() {
+                numerator += (f13[i] - f12[i]).powi(2);
+                denominator += (self.x_new[i] - self.y_stage[i]).powi(2);
+            }
+            self.h_lambda = if denominator > 0.0 {
+                h.abs() * (numerator / denominator).sqrt()
+            } else {
+                0.0
+            };
         }
         if dense {
             let mut coeffs = std::mem::take(&mut self.dense);

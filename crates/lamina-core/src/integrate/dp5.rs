@@ -100,6 +100,12 @@ impl Dp5 {
         &self.x_new
     }
 
+    /// Goes back to the start of the step completed last: its first stage (`f` there)
+    /// becomes current again.
+    pub(super) fn rewind(&mut self) {
+        self.k.swap(0, 6);
+    }
+
     /// Interpolant coefficients of the last completed step (swapped out by the integrator).
     pub(super) fn dense_mut(&mut self) -> &mut Vec<f64> {
         &mut self.dense

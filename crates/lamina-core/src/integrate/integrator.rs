@@ -1,7 +1,8 @@
 //! The adaptive stepper: one accepted step per call, with its dense output.
 
-use super::controller::{PiController, initial_step};
+use super::controller::{StepRule, initial_step};
 use super::stepper::Stepper;
+use super::stiffness::{MethodChange, StiffnessWatch};
 use super::{DenseSegment, Method, Rates, Stats, StepControl, StepError};
 
 /// Smallest step allowed regardless of `t` (a step below the floating-point resolution of `t`
@@ -12,7 +13,11 @@ const MAX_NON_FINITE_RETRIES: u32 = 12;
 /// Step reduction after an attempt that produced non-finite values.
 const NON_FINITE_SHRINK: f64 = 0.25;
 
-/// An adaptive integrator of either method, stepping one accepted step at a time.
+/// An adaptive integrator of any [`Method`], stepping one accepted step at a time.
+///
+/// With [`Method::Auto`] it holds both DOP853 and Rodas4, starts with DOP853 and changes
+/// between them after accepted steps (see [`Integrator::take_method_change`]); every step's
+/// dense output then has DOP853's eight terms.
 ///
 /// Time runs forward only. After every successful [`Integrator::step`] or
 /// [`Integrator::step_fixed`], [`Integrator::segment`] holds the dense output of that step.
@@ -23,23 +28,32 @@ const NON_FINITE_SHRINK: f64 = 0.25;
 /// the state length changes); stepping allocates nothing.
 #[derive(Clone, Debug)]
 pub struct Integrator {
-    method: Method,
-    control: StepControl,
-    t: f64,
-    x: Vec<f64>,
-    /// State at the start of the last step taken by `step_lazy`.
-    x_start: Vec<f64>,
+    pub(super) method: Method,
+    pub(super) control: StepControl,
+    pub(super) t: f64,
+    pub(super) x: Vec<f64>,
+    /// State at the start of the last step.
+    pub(super) x_start: Vec<f64>,
     /// Whether `segment` holds the complete dense output of the last step.
-    dense_ready: bool,
+    pub(super) dense_ready: bool,
     /// Proposed size of the next step; meaningful when `h_chosen`.
-    h: f64,
-    h_chosen: bool,
+    pub(super) h: f64,
+    pub(super) h_chosen: bool,
     /// Whether the stepper's first stage holds `f(t, x)`.
-    f0_valid: bool,
-    stepper: Stepper,
-    controller: PiController,
-    segment: DenseSegment,
-    stats: Stats,
+    pub(super) f0_valid: bool,
+    /// The stepper of the method in use.
+    pub(super) stepper: Stepper,
+    /// With `Auto`, the stepper of the other method.
+    pub(super) spare: Option<Stepper>,
+    pub(super) controller: StepRule,
+    /// With `Auto`, the counters that decide a change of method.
+    pub(super) watch: StiffnessWatch,
+    /// A change of method decided on the last step, made before the next one.
+    pub(super) pending: Option<MethodChange>,
+    /// The last change of method, until taken by [`Integrator::take_method_change`].
+    pub(super) change: Option<MethodChange>,
+    pub(super) segment: DenseSegment,
+    pub(super) stats: Stats,
 }
 
 impl Integrator {
@@ -57,7 +71,11 @@ impl Integrator {
             h_chosen: false,
             f0_valid: false,
             stepper: Stepper::new(method, dim),
-            controller: PiController::for_method(method),
+            spare: (method == Method::Auto).then(|| Stepper::stiff_partner(dim)),
+            controller: StepRule::for_method(method),
+            watch: StiffnessWatch::default(),
+            pending: None,
+            change: None,
             segment: Self::empty_segment(method, 0.0, dim),
             stats: Stats::default(),
         }
@@ -73,9 +91,15 @@ impl Integrator {
         }
     }
 
-    /// The Runge–Kutta pair in use.
+    /// The method the integrator was made with.
     pub fn method(&self) -> Method {
         self.method
+    }
+
+    /// The method taking the steps now: the one it was made with, or under `Auto` DOP853 or
+    /// Rodas4.
+    pub fn active_method(&self) -> Method {
+        self.stepper.method()
     }
 
     /// The step-size control settings.
@@ -91,14 +115,16 @@ impl Integrator {
     /// Evaluates the rates once at the new state. The step history of the controller is
     /// forgotten; the work counters keep counting. A state of a different length than before
     /// re-sizes the integrator to it. The segment becomes a zero-length one at `t0` whose
-    /// start state is `x0`.
+    /// start state is `x0`. `Auto` starts again with DOP853.
     pub fn reset<R: Rates + ?Sized>(&mut self, rates: &mut R, t0: f64, x0: &[f64]) {
         let dim = x0.len();
         if dim != self.x.len() {
             self.x = vec![0.0; dim];
             self.x_start = vec![0.0; dim];
             self.stepper = Stepper::new(self.method, dim);
+            self.spare = (self.method == Method::Auto).then(|| Stepper::stiff_partner(dim));
         }
+        self.restore_starting_method();
         self.dense_ready = true;
         self.x.copy_from_slice(x0);
         self.t = t0;
@@ -112,6 +138,7 @@ impl Integrator {
         segment.coeffs.fill(0.0);
         segment.coeffs[..dim].copy_from_slice(x0);
         self.controller.reset();
+        self.stepper.rates_changed();
         match self.control.initial_step {
             Some(h0) if h0 > 0.0 && h0.is_finite() => {
                 self.h = h0;
@@ -207,6 +234,12 @@ impl Integrator {
         self.dense_ready
     }
 
+    /// The change of method that `Auto` made after the last step, if any; each change is
+    /// returned once.
+    pub fn take_method_change(&mut self) -> Option<MethodChange> {
+        self.change.take()
+    }
+
     /// One accepted step; with `dense` its dense output too.
     fn advance<R: Rates + ?Sized>(
         &mut self,
@@ -218,6 +251,7 @@ impl Integrator {
         if t_limit.is_nan() || t_limit <= t {
             return Err(StepError::StepTooSmall { t, h: t_limit - t });
         }
+        self.make_pending_change();
         self.ensure_f0(rates)?;
         let h_max = self.control.max_step.unwrap_or(f64::INFINITY);
         if !self.h_chosen {
@@ -239,10 +273,10 @@ impl Integrator {
             let clipped = 1.01 * h_wanted >= remaining;
             let h = if clipped { remaining } else { h_wanted };
 
-            let n_rates = &mut self.stats.n_rates;
             let err = self
                 .stepper
-                .attempt(rates, t, &self.x, h, &self.control, n_rates);
+                .attempt(rates, t, &self.x, h, &self.control, &mut self.stats);
+            let n_rates = &mut self.stats.n_rates;
             let finite = err.is_finite()
                 && (err > 1.0 || self.stepper.finish(rates, t, &self.x, h, n_rates, dense));
             if !finite {
@@ -275,6 +309,9 @@ impl Integrator {
             } else {
                 self.commit_lazy(h, t_end);
             }
+            if self.method == Method::Auto {
+                self.watch_stiffness(h);
+            }
             return Ok(());
         }
     }
@@ -296,10 +333,10 @@ impl Integrator {
             return Err(StepError::StepTooSmall { t, h });
         }
         self.ensure_f0(rates)?;
-        let n_rates = &mut self.stats.n_rates;
         let err = self
             .stepper
-            .attempt(rates, t, &self.x, h, &self.control, n_rates);
+            .attempt(rates, t, &self.x, h, &self.control, &mut self.stats);
+        let n_rates = &mut self.stats.n_rates;
         if !(err.is_finite() && self.stepper.finish(rates, t, &self.x, h, n_rates, true)) {
             return Err(StepError::NotFinite { t });
         }
@@ -364,6 +401,7 @@ impl Integrator {
         self.segment.h = h;
         self.segment.dim = self.x.len();
         std::mem::swap(&mut self.segment.coeffs, self.stepper.dense_mut());
+        self.x_start.copy_from_slice(&self.x);
         self.x.copy_from_slice(self.stepper.x_new());
         self.t = t_end;
         self.stats.n_accepted += 1;
@@ -393,6 +431,6 @@ impl Integrator {
 
 /// Smallest step size distinguishable at time `t`.
 #[inline]
-fn min_step(t: f64) -> f64 {
+pub(crate) fn min_step(t: f64) -> f64 {
     (10.0 * f64::EPSILON * t.abs()).max(ABSOLUTE_MIN_STEP)
 }

@@ -1,6 +1,7 @@
-//! Adaptive explicit Runge–Kutta integrators (Dormand–Prince 5(4) and DOP853) as steppers:
-//! each call to [`Integrator::step`] takes one accepted step and leaves its dense output
-//! in [`Integrator::segment`].
+//! Adaptive integrators as steppers: the explicit Runge–Kutta pairs Dormand–Prince 5(4) and
+//! DOP853, the Rosenbrock method Rodas4 for stiff models, and the automatic choice between
+//! DOP853 and Rodas4. Each call to [`Integrator::step`] takes one accepted step and leaves
+//! its dense output in [`Integrator::segment`].
 
 /// One stage state in a single pass over the states:
 /// `combine!(out = y + h * (a1, k1; a2, k2; ...))` writes `out[i] = y[i] + h * (a1 k1[i] + ...)`.
@@ -18,16 +19,23 @@ macro_rules! combine {
     }};
 }
 
+mod auto;
 mod controller;
 pub mod dense;
 mod dop853;
 mod dop853_tableau;
 mod dp5;
 mod integrator;
+mod linear;
+mod rodas;
+mod rodas_tableau;
 mod stepper;
+mod stiffness;
 
 pub use dense::DenseSegment;
 pub use integrator::Integrator;
+pub(crate) use integrator::min_step as min_step_at;
+pub use stiffness::{ChangeReason, MethodChange};
 
 use std::sync::atomic::{AtomicBool, Ordering};
 
@@ -40,6 +48,22 @@ pub trait Rates {
     fn dim(&self) -> usize;
     /// Writes `f(t, x)` into `dx`. `x` and `dx` have length [`Rates::dim`].
     fn rates(&mut self, t: f64, x: &[f64], dx: &mut [f64]);
+
+    /// Writes the Jacobian `d f / d x` at `(t, x)` into `jacobian` (row-major,
+    /// `jacobian[i * dim + j] = d f_i / d x_j`) and returns true; or returns false when the
+    /// implementation has no exact Jacobian, and the stiff method then differences the rates.
+    fn exact_jacobian(&mut self, t: f64, x: &[f64], jacobian: &mut [f64]) -> bool {
+        let _ = (t, x, jacobian);
+        false
+    }
+
+    /// Writes `d f / d t` at `(t, x)` into `out` and returns true; or returns false when the
+    /// implementation has no exact time derivative, and the stiff method then differences the
+    /// rates in time.
+    fn exact_time_derivative(&mut self, t: f64, x: &[f64], out: &mut [f64]) -> bool {
+        let _ = (t, x, out);
+        false
+    }
 }
 
 /// A hand-written right-hand side as a closure, for tests and benchmarks.
@@ -65,13 +89,33 @@ impl<F: FnMut(f64, &[f64], &mut [f64])> Rates for FnRates<F> {
     }
 }
 
-/// Which Runge–Kutta pair to use.
+/// Which integration method to use.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Method {
     /// Dormand–Prince 5(4) with its fourth-order dense output.
     Dp5,
     /// Dormand–Prince 8(5,3) (Hairer's DOP853) with its seventh-order dense output.
     Dp853,
+    /// The Rosenbrock method Rodas4 of Hairer & Wanner (order 4, embedded order 3, L-stable,
+    /// third-order dense output), for stiff models. Uses the Jacobian of the rates
+    /// ([`Rates::exact_jacobian`], else finite differences).
+    Rodas4,
+    /// Starts with DOP853, changes to Rodas4 when the step size is held down by stability
+    /// (Hairer's stiffness test) and back when it no longer is; see
+    /// [`Integrator::take_method_change`].
+    Auto,
+}
+
+impl Method {
+    /// A short name for messages.
+    pub fn name(self) -> &'static str {
+        match self {
+            Self::Dp5 => "Dormand–Prince 5(4)",
+            Self::Dp853 => "DOP853",
+            Self::Rodas4 => "Rodas4",
+            Self::Auto => "automatic (DOP853 / Rodas4)",
+        }
+    }
 }
 
 /// Step-size control settings.
@@ -126,6 +170,10 @@ pub struct Stats {
     pub n_accepted: u64,
     /// Rejected step attempts.
     pub n_rejected: u64,
+    /// Jacobian evaluations (stiff method; each exact one or one set of differences).
+    pub n_jacobians: u64,
+    /// LU decompositions of the stiff method's iteration matrix.
+    pub n_decompositions: u64,
 }
 
 /// A cooperative cancel flag, checked by drivers once per step.

@@ -1,30 +1,58 @@
-//! The stage storage and steps of the chosen Runge–Kutta pair, behind one enum.
+//! The stage storage and steps of the method in use, behind one enum.
 
 use super::dop853::{self, Dop853};
 use super::dp5::{self, Dp5};
-use super::{Method, Rates, StepControl};
+use super::rodas::{self, Rodas};
+use super::{Method, Rates, Stats, StepControl};
 
-/// The stage storage of the chosen method (enum dispatch, no allocation per step).
-// one per integrator, so the size difference of the variants does not matter
+/// The stage storage of one method (enum dispatch, no allocation per step).
+// one or two per integrator, so the size difference of the variants does not matter
 #[allow(clippy::large_enum_variant)]
 #[derive(Clone, Debug)]
 pub(super) enum Stepper {
     Dp5(Dp5),
     Dp853(Dop853),
+    Rodas(Rodas),
 }
 
 impl Stepper {
+    /// The stepper that `method` starts with (`Auto` starts with DOP853, measuring
+    /// stiffness), writing `n_terms` interpolation terms (see [`Stepper::n_terms`]).
     pub(super) fn new(method: Method, dim: usize) -> Self {
         match method {
             Method::Dp5 => Self::Dp5(Dp5::new(dim)),
             Method::Dp853 => Self::Dp853(Dop853::new(dim)),
+            Method::Rodas4 => Self::Rodas(Rodas::new(dim, rodas::N_TERMS)),
+            Method::Auto => {
+                let mut explicit = Dop853::new(dim);
+                explicit.measure_stiffness();
+                Self::Dp853(explicit)
+            }
         }
     }
 
+    /// The stiff stepper that `Auto` changes to, writing as many terms as DOP853.
+    pub(super) fn stiff_partner(dim: usize) -> Self {
+        Self::Rodas(Rodas::new(dim, dop853::N_TERMS))
+    }
+
+    /// Interpolation terms per step of a run with `method`: with `Auto` every step has
+    /// DOP853's eight (Rodas4's four padded with zero terms), so that stored runs keep one
+    /// layout.
     pub(super) fn n_terms(method: Method) -> usize {
         match method {
             Method::Dp5 => dp5::N_TERMS,
-            Method::Dp853 => dop853::N_TERMS,
+            Method::Dp853 | Method::Auto => dop853::N_TERMS,
+            Method::Rodas4 => rodas::N_TERMS,
+        }
+    }
+
+    /// The method this stepper runs.
+    pub(super) fn method(&self) -> Method {
+        match self {
+            Self::Dp5(_) => Method::Dp5,
+            Self::Dp853(_) => Method::Dp853,
+            Self::Rodas(_) => Method::Rodas4,
         }
     }
 
@@ -32,6 +60,7 @@ impl Stepper {
         match self {
             Self::Dp5(_) => dp5::ORDER,
             Self::Dp853(_) => dop853::ORDER,
+            Self::Rodas(_) => rodas::ORDER,
         }
     }
 
@@ -39,6 +68,7 @@ impl Stepper {
         match self {
             Self::Dp5(s) => s.f0(),
             Self::Dp853(s) => s.f0(),
+            Self::Rodas(s) => s.f0(),
         }
     }
 
@@ -46,6 +76,7 @@ impl Stepper {
         match self {
             Self::Dp5(s) => s.f0_mut(),
             Self::Dp853(s) => s.f0_mut(),
+            Self::Rodas(s) => s.f0_mut(),
         }
     }
 
@@ -54,6 +85,7 @@ impl Stepper {
         match self {
             Self::Dp5(s) => s.f0_and_scratch(),
             Self::Dp853(s) => s.f0_and_scratch(),
+            Self::Rodas(s) => s.f0_and_scratch(),
         }
     }
 
@@ -61,6 +93,7 @@ impl Stepper {
         match self {
             Self::Dp5(s) => s.x_new(),
             Self::Dp853(s) => s.x_new(),
+            Self::Rodas(s) => s.x_new(),
         }
     }
 
@@ -68,6 +101,33 @@ impl Stepper {
         match self {
             Self::Dp5(s) => s.dense_mut(),
             Self::Dp853(s) => s.dense_mut(),
+            Self::Rodas(s) => s.dense_mut(),
+        }
+    }
+
+    /// Goes back to the start of the step completed last (its `f` becomes current again).
+    pub(super) fn rewind(&mut self) {
+        match self {
+            Self::Dp5(s) => s.rewind(),
+            Self::Dp853(s) => s.rewind(),
+            Self::Rodas(s) => s.rewind(),
+        }
+    }
+
+    /// Forgets what depends on the rates at the current state beyond `f0` (the Jacobian).
+    pub(super) fn rates_changed(&mut self) {
+        if let Self::Rodas(s) = self {
+            s.invalidate_jacobian();
+        }
+    }
+
+    /// The stiffness measure of the last accepted step: `h lambda` of Hairer's test for
+    /// DOP853 (when measured), the estimated spectral radius of the Jacobian for Rodas4.
+    pub(super) fn stiffness_measure(&self) -> f64 {
+        match self {
+            Self::Dp5(_) => 0.0,
+            Self::Dp853(s) => s.h_lambda(),
+            Self::Rodas(s) => s.spectral_radius(),
         }
     }
 
@@ -81,12 +141,14 @@ impl Stepper {
         x: &[f64],
         h: f64,
         control: &StepControl,
-        n_rates: &mut u64,
+        stats: &mut Stats,
     ) -> f64 {
         let (rtol, atol) = (control.rtol, control.atol);
+        let n_rates = &mut stats.n_rates;
         match self {
             Self::Dp5(s) => s.attempt(rates, t, x, h, rtol, atol, n_rates),
             Self::Dp853(s) => s.attempt(rates, t, x, h, rtol, atol, n_rates),
+            Self::Rodas(s) => s.attempt(rates, t, x, h, control, stats),
         }
     }
 
@@ -105,6 +167,7 @@ impl Stepper {
         match self {
             Self::Dp5(s) => s.finish(x, h, dense),
             Self::Dp853(s) => s.finish(rates, t, x, h, n_rates, dense),
+            Self::Rodas(s) => s.finish(rates, t, x, h, n_rates, dense),
         }
     }
 
@@ -123,6 +186,7 @@ impl Stepper {
         match self {
             Self::Dp5(s) => s.build_dense(start, h, coeffs),
             Self::Dp853(s) => s.build_dense(rates, t, start, h, n_rates, coeffs),
+            Self::Rodas(s) => s.build_dense(start, coeffs),
         }
     }
 }

@@ -1,11 +1,13 @@
-//! The run driver: steps the integrator over the time window, records cut points and strobe
-//! samples inside the window, stores the steps, and stops with a reason.
+//! The run driver: steps the integrator over the time window (through the switches of a
+//! piecewise-smooth model), records cut points and strobe samples inside the window, stores
+//! the steps, reports changes of method, and stops with a reason.
 
 use std::ops::ControlFlow;
 
 use super::{Cut, CutPoint, RunSpec, StoredRun, Strobe, StrobeSample};
-use crate::integrate::{Integrator, Interrupt, Rates, Stats, StepError};
+use crate::integrate::{Integrator, Interrupt, MethodChange, Rates, Stats, StepError};
 use crate::model::Model;
+use crate::switching::{Chattering, Switching};
 
 /// Receives what a run finds. Returning `ControlFlow::Break` stops the run at once.
 pub trait Sink {
@@ -27,6 +29,11 @@ pub trait Sink {
     /// trajectory).
     fn step(&mut self, t: f64, state: &[f64]) {
         let _ = (t, state);
+    }
+    /// The automatic method changed between the explicit and the stiff method (when and why:
+    /// its `Display` is a sentence for the run log).
+    fn method_changed(&mut self, change: &MethodChange) {
+        let _ = change;
     }
 }
 
@@ -85,14 +92,23 @@ pub enum StopReason {
         /// Time of the last point.
         t: f64,
     },
+    /// The model's switches piled up with vanishing time between them (a sliding mode).
+    Chattering {
+        /// Time of the last switch.
+        t: f64,
+    },
 }
 
 impl StopReason {
-    /// Whether the run ended because of numerical trouble (escape, non-finite, step collapse).
+    /// Whether the run ended because of numerical trouble (escape, non-finite, step
+    /// collapse, chattering).
     pub fn is_trouble(&self) -> bool {
         matches!(
             self,
-            Self::Escaped { .. } | Self::NotFinite { .. } | Self::StepTooSmall { .. }
+            Self::Escaped { .. }
+                | Self::NotFinite { .. }
+                | Self::StepTooSmall { .. }
+                | Self::Chattering { .. }
         )
     }
 }
@@ -110,6 +126,10 @@ impl std::fmt::Display for StopReason {
             ),
             Self::PointLimit { t } => write!(f, "point limit reached at t = {t}"),
             Self::SinkStopped { t } => write!(f, "stopped after the requested points at t = {t}"),
+            Self::Chattering { t } => write!(
+                f,
+                "the model chatters at t = {t}: its switches pile up with vanishing time between them (a sliding mode)"
+            ),
         }
     }
 }
@@ -129,6 +149,10 @@ pub struct RunOutcome {
     pub n_cut_points: usize,
     /// Strobe samples recorded.
     pub n_strobe_samples: usize,
+    /// Every change of the automatic method so far, in time order.
+    pub method_changes: Vec<MethodChange>,
+    /// Switches of the model's branches located and stepped through so far.
+    pub n_switches: u64,
 }
 
 /// A run: the model, its window, cut and strobe, the integrator state and the stored steps.
@@ -140,6 +164,9 @@ pub struct Run {
     cut: Option<Cut>,
     strobe: Option<Strobe>,
     integrator: Integrator,
+    /// The switching state of a piecewise-smooth model (made at the start of the run).
+    switching: Option<Switching>,
+    method_changes: Vec<MethodChange>,
     stored: StoredRun,
     store: bool,
     started: bool,
@@ -177,6 +204,8 @@ impl Run {
             cut,
             strobe,
             integrator,
+            switching: None,
+            method_changes: Vec::new(),
             stored,
             store,
             started: false,
@@ -294,7 +323,15 @@ impl Run {
             },
             n_cut_points: self.n_cut,
             n_strobe_samples: self.n_strobe,
+            method_changes: self.method_changes.clone(),
+            n_switches: self.switching.as_ref().map_or(0, Switching::n_switches),
         }
+    }
+
+    /// The switching state of a piecewise-smooth model (`None` before the run starts and for
+    /// a model without switches).
+    pub fn switching(&self) -> Option<&Switching> {
+        self.switching.as_ref()
     }
 
     fn advance(&mut self, sink: &mut dyn Sink, interrupt: &Interrupt) -> StopReason {
@@ -304,13 +341,16 @@ impl Run {
             if let Some(reason) = self.check_state(t_start, &start) {
                 return reason;
             }
-            self.integrator.reset(&mut self.model, t_start, &start);
+            self.switching = Switching::new(&self.model, t_start, &start);
+            match &mut self.switching {
+                Some(switching) => self.integrator.reset(switching, t_start, &start),
+                None => self.integrator.reset(&mut self.model, t_start, &start),
+            }
             if let Some(cut) = &mut self.cut {
                 self.g_prev = cut.value(t_start, &start, self.model.parameters());
             }
             self.started = true;
         }
-        let total = (self.t_end - t_start).max(f64::MIN_POSITIVE);
         loop {
             let t = self.integrator.t();
             if t >= self.t_end {
@@ -321,36 +361,74 @@ impl Run {
                 return StopReason::Cancelled { t };
             }
             // the dense output costs DOP853 three more evaluations: build it only for a stored
-            // step, a strobe sample inside the step, or a cut crossing (found from the end state)
-            if let Err(err) = self.integrator.step_lazy(&mut self.model, self.t_end) {
+            // step, a strobe sample inside the step, a cut crossing (found from the end state)
+            // or a switch of the model's branches
+            let stepped = match &mut self.switching {
+                Some(switching) => self.integrator.step_lazy(switching, self.t_end),
+                None => self.integrator.step_lazy(&mut self.model, self.t_end),
+            };
+            if let Err(err) = stepped {
                 return stop_reason(err);
             }
-            let t1 = self.integrator.t();
-            self.end_state.copy_from_slice(self.integrator.x());
-            if self.store && t1 > self.spec.t_record() {
-                if let Err(err) = self.integrator.ensure_dense(&mut self.model) {
-                    return stop_reason(err);
-                }
-                self.stored.push(self.integrator.segment(), &self.end_state);
+            if let Some(change) = self.integrator.take_method_change() {
+                self.method_changes.push(change);
+                sink.method_changed(&change);
             }
-            if t1 >= self.spec.t_record() {
-                sink.step(t1, &self.end_state);
-            }
-            if let Some(reason) = self.record(sink, t1) {
-                return reason;
-            }
-            if let Some(reason) = self.check_state(t1, &self.end_state) {
-                return reason;
-            }
-            if self
-                .integrator
-                .stats()
-                .n_accepted
-                .is_multiple_of(PROGRESS_EVERY_STEPS)
+            let crossing = match &mut self.switching {
+                Some(switching) => match switching.inspect(&mut self.integrator) {
+                    Ok(crossing) => crossing,
+                    Err(err) => return stop_reason(err),
+                },
+                None => None,
+            };
+            let stop = match crossing {
+                Some(c) if !c.step_kept => None,
+                _ => self.finish_step(sink),
+            };
+            // a located switch changes branch before anything returns, so that a continued
+            // run goes on from the other side
+            if crossing.is_some()
+                && let Some(switching) = &mut self.switching
+                && let Err(Chattering { t }) = switching.apply(&mut self.integrator)
             {
-                sink.progress(t1, ((t1 - t_start) / total).clamp(0.0, 1.0));
+                return stop.unwrap_or(StopReason::Chattering { t });
+            }
+            if let Some(reason) = stop {
+                return reason;
             }
         }
+    }
+
+    /// Stores, reports and records the step just taken; a reason to stop, if any.
+    fn finish_step(&mut self, sink: &mut dyn Sink) -> Option<StopReason> {
+        let t_start = self.spec.t_start;
+        let total = (self.t_end - t_start).max(f64::MIN_POSITIVE);
+        let t1 = self.integrator.t();
+        self.end_state.copy_from_slice(self.integrator.x());
+        if self.store && t1 > self.spec.t_record() {
+            if let Err(err) = dense(&mut self.integrator, &mut self.switching, &mut self.model) {
+                return Some(stop_reason(err));
+            }
+            self.stored.push(self.integrator.segment(), &self.end_state);
+        }
+        if t1 >= self.spec.t_record() {
+            sink.step(t1, &self.end_state);
+        }
+        if let Some(reason) = self.record(sink, t1) {
+            return Some(reason);
+        }
+        if let Some(reason) = self.check_state(t1, &self.end_state) {
+            return Some(reason);
+        }
+        if self
+            .integrator
+            .stats()
+            .n_accepted
+            .is_multiple_of(PROGRESS_EVERY_STEPS)
+        {
+            sink.progress(t1, ((t1 - t_start) / total).clamp(0.0, 1.0));
+        }
+        None
     }
 
     /// Escape and non-finite checks of a state.
@@ -370,8 +448,11 @@ impl Run {
         let t_record = self.spec.t_record();
         if let Some(cut) = &mut self.cut {
             let g1 = cut.value(t1, &self.end_state, self.model.parameters());
-            if cut.direction.crosses(self.g_prev, g1) {
-                if let Err(err) = self.integrator.ensure_dense(&mut self.model) {
+            // the next step starts from this one's end even if the sink stops the run here
+            let g0 = std::mem::replace(&mut self.g_prev, g1);
+            if cut.direction.crosses(g0, g1) {
+                if let Err(err) = dense(&mut self.integrator, &mut self.switching, &mut self.model)
+                {
                     return Some(stop_reason(err));
                 }
                 let segment = self.integrator.segment();
@@ -383,7 +464,7 @@ impl Run {
                     terms,
                     t0,
                     h,
-                    self.g_prev,
+                    g0,
                     g1,
                     parameters,
                     &mut self.cut_point.state,
@@ -401,7 +482,6 @@ impl Run {
                     }
                 }
             }
-            self.g_prev = g1;
         }
         if let Some(strobe) = &self.strobe {
             let last_step = t1 >= self.t_end;
@@ -409,7 +489,7 @@ impl Run {
             if !inside(strobe.time_of(self.next_strobe)) {
                 return None;
             }
-            if let Err(err) = self.integrator.ensure_dense(&mut self.model) {
+            if let Err(err) = dense(&mut self.integrator, &mut self.switching, &mut self.model) {
                 return Some(stop_reason(err));
             }
             let segment = self.integrator.segment();
@@ -435,6 +515,19 @@ impl Run {
             }
         }
         None
+    }
+}
+
+/// Builds the dense output of the last step with the rates it was taken with: the model's,
+/// or its held rates when it switches.
+fn dense(
+    integrator: &mut Integrator,
+    switching: &mut Option<Switching>,
+    model: &mut Model,
+) -> Result<(), StepError> {
+    match switching {
+        Some(switching) => integrator.ensure_dense(switching),
+        None => integrator.ensure_dense(model),
     }
 }
 
@@ -464,5 +557,11 @@ impl Rates for Run {
     }
     fn rates(&mut self, t: f64, x: &[f64], dx: &mut [f64]) {
         self.model.rates(t, x, dx);
+    }
+    fn exact_jacobian(&mut self, t: f64, x: &[f64], jacobian: &mut [f64]) -> bool {
+        self.model.exact_jacobian(t, x, jacobian)
+    }
+    fn exact_time_derivative(&mut self, t: f64, x: &[f64], out: &mut [f64]) -> bool {
+        self.model.exact_time_derivative(t, x, out)
     }
 }

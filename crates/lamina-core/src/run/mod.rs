@@ -4,7 +4,7 @@
 mod cut;
 mod driver;
 mod plane_scan;
-mod root;
+pub(crate) mod root;
 mod spec;
 mod stored;
 mod strobe;

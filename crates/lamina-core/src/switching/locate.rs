@@ -1,0 +1,201 @@
+//! Finding where a step crossed into another branch, on the step's dense output, and
+//! ending the step there.
+
+use super::{BOUNCE_FRACTION, Switching};
+use crate::integrate::dense::eval_split;
+use crate::integrate::{DenseSegment, Integrator, StepError};
+use crate::run::root::brent;
+
+/// A step that crossed into another branch.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Crossing {
+    /// Time of the crossing, where the integrator now stands.
+    pub t: f64,
+    /// Whether a step up to the crossing stands: false when the crossing was at the start
+    /// of the step, which was then taken back.
+    pub step_kept: bool,
+}
+
+impl Switching {
+    /// Checks the step that `integrator` just took (with these rates) for switching values
+    /// that crossed into another branch. If one did, locates the first crossing on the
+    /// step's dense output, and replaces the step by one that ends there (or takes it back
+    /// when the crossing is at its start); call [`Switching::apply`] next, after using the
+    /// step, to change branch.
+    ///
+    /// # Errors
+    /// As [`Integrator::ensure_dense`] and [`Integrator::shorten_last_step`].
+    pub fn inspect(&mut self, integrator: &mut Integrator) -> Result<Option<Crossing>, StepError> {
+        let mut state = std::mem::take(&mut self.state);
+        state.copy_from_slice(integrator.x());
+        self.evaluate_margins(integrator.t(), &state);
+        self.state = state;
+        if !self.margins.iter().any(|&m| m < 0.0) {
+            self.start_margins.copy_from_slice(&self.margins);
+            return Ok(None);
+        }
+        integrator.ensure_dense(self)?;
+        let segment = integrator.segment();
+        let (t0, h) = (segment.t0, segment.h);
+        let end_margins = self.margins.clone();
+        let mut found: Vec<(usize, f64)> = Vec::new();
+        for (k, &g1) in end_margins.iter().enumerate() {
+            if g1 < 0.0 {
+                let s = self.locate(k, segment, self.start_margins[k], g1);
+                found.push((k, s));
+            }
+        }
+        let first = found.iter().map(|&(_, s)| s).fold(1.0, f64::min);
+        self.crossing.clear();
+        self.crossing.extend(
+            found
+                .iter()
+                .filter(|&&(_, s)| s <= first + 4.0 * f64::EPSILON)
+                .map(|&(k, _)| k),
+        );
+        let h_cross = first * h;
+        let undo = h_cross <= 2.0 * crate::integrate::min_step_at(t0);
+        // a switch right at the start of the step after another switch: the value turned
+        // back at once
+        self.bounce = self.last_switch == Some(t0) && (undo || first <= BOUNCE_FRACTION);
+        if undo {
+            integrator.undo_last_step();
+            return Ok(Some(Crossing {
+                t: t0,
+                step_kept: false,
+            }));
+        }
+        integrator.shorten_last_step(self, h_cross)?;
+        self.end_past_the_crossing(integrator, h_cross, h)?;
+        integrator.limit_next_step(h);
+        Ok(Some(Crossing {
+            t: integrator.t(),
+            step_kept: true,
+        }))
+    }
+
+    /// Retakes the shortened step (of size `h_cross`, from a step of size `h_full` whose end
+    /// was past the crossing) a little longer while its end has not crossed yet, so that the
+    /// new branches start on their own side (a step that starts on the wrong side of a
+    /// switching value that is also a cut could hide a crossing of the cut). The interpolant
+    /// and the step differ by about the tolerance, so one retake usually suffices.
+    fn end_past_the_crossing(
+        &mut self,
+        integrator: &mut Integrator,
+        mut h_cross: f64,
+        h_full: f64,
+    ) -> Result<(), StepError> {
+        for _ in 0..MAX_RETAKES {
+            let worst = self.worst_crossing_margin(integrator.t(), integrator.x());
+            // (a NaN margin says nothing either way)
+            if worst.is_nan() || worst <= 0.0 || h_cross >= h_full {
+                return Ok(());
+            }
+            // how fast the margin falls at the end of the step, from its interpolant
+            let segment = integrator.segment();
+            let before = SLOPE_FRACTION;
+            let mut falling = 0.0_f64;
+            for idx in 0..self.crossing.len() {
+                let k = self.crossing[idx];
+                let g = self.margin_at(k, segment, 1.0) - self.margin_at(k, segment, 1.0 - before);
+                falling = falling.min(g / (before * h_cross));
+            }
+            let t = integrator.t();
+            let resolution = 4.0 * (t.abs() * f64::EPSILON).max(f64::MIN_POSITIVE);
+            let extra = if falling < 0.0 {
+                2.0 * worst / -falling
+            } else {
+                h_cross * 1e-12
+            };
+            h_cross = (h_cross + extra + resolution).min(h_full);
+            integrator.shorten_last_step(self, h_cross)?;
+        }
+        Ok(())
+    }
+
+    /// The largest margin, on their current branches, of the switches that cross, at
+    /// `(t, x)`.
+    fn worst_crossing_margin(&mut self, t: f64, x: &[f64]) -> f64 {
+        let mut state = std::mem::take(&mut self.state);
+        state.copy_from_slice(x);
+        self.evaluate_margins(t, &state);
+        self.state = state;
+        self.crossing
+            .iter()
+            .map(|&k| self.margins[k])
+            .fold(f64::NEG_INFINITY, f64::max)
+    }
+
+    /// Margin of switch `k` at the fraction `s` of `segment`.
+    fn margin_at(&mut self, k: usize, segment: &DenseSegment, s: f64) -> f64 {
+        let dim = segment.dim;
+        let (start, terms) = segment.coeffs.split_at(dim);
+        let mut state = std::mem::take(&mut self.state);
+        eval_split(start, terms, dim, s, &mut state);
+        self.evaluate_margins(segment.t0 + s * segment.h, &state);
+        self.state = state;
+        self.margins[k]
+    }
+
+    /// The first fraction of `segment` where switch `k`'s margin, `g0` at the start and
+    /// `g1 < 0` at the end, turns negative after being positive; 0 when it is nowhere
+    /// positive (the value turned back at once, as in a sliding mode).
+    ///
+    /// The margin is probed at fractions growing geometrically from `8^-12` to 1/8 and then
+    /// evenly to 1, so that an early crossing in a long step is found, and a start on the
+    /// boundary (`g0 <= 0`, just after a switch) is told apart from a return; Brent's method
+    /// then locates the crossing between the last positive and the first negative probe.
+    fn locate(&mut self, k: usize, segment: &DenseSegment, g0: f64, g1: f64) -> f64 {
+        let (mut a, mut ga) = (0.0, g0);
+        let mut positive = g0 > 0.0;
+        let (mut b, mut gb) = (1.0, g1);
+        for s in PROBES.iter().copied() {
+            let g = self.margin_at(k, segment, s);
+            if g > 0.0 {
+                positive = true;
+                (a, ga) = (s, g);
+            } else if g < 0.0 && positive {
+                (b, gb) = (s, g);
+                break;
+            }
+        }
+        if !positive {
+            return 0.0;
+        }
+        let s = brent(|s| self.margin_at(k, segment, s), a, b, ga, gb);
+        // the root finder may stop on either side; the crossing is where the branch ends
+        if self.margin_at(k, segment, s) < 0.0 {
+            s
+        } else {
+            s.next_up().min(b)
+        }
+    }
+}
+
+/// How often a shortened step is retaken longer to end past its crossing.
+const MAX_RETAKES: u32 = 4;
+/// Fraction of the step over which the slope of a margin at its end is measured.
+const SLOPE_FRACTION: f64 = 1e-3;
+
+/// The fractions of a step at which a margin is probed, increasing: `8^-12, ..., 8^-1`, then
+/// `2/8, ..., 7/8`.
+const PROBES: [f64; 18] = [
+    1.0 / 68_719_476_736.0,
+    1.0 / 8_589_934_592.0,
+    1.0 / 1_073_741_824.0,
+    1.0 / 134_217_728.0,
+    1.0 / 16_777_216.0,
+    1.0 / 2_097_152.0,
+    1.0 / 262_144.0,
+    1.0 / 32_768.0,
+    1.0 / 4_096.0,
+    1.0 / 512.0,
+    1.0 / 64.0,
+    1.0 / 8.0,
+    2.0 / 8.0,
+    3.0 / 8.0,
+    4.0 / 8.0,
+    5.0 / 8.0,
+    6.0 / 8.0,
+    7.0 / 8.0,
+];
