@@ -77,6 +77,8 @@ pub struct ExplorerApp {
     pub(crate) log: Vec<(Instant, String)>,
     pub(crate) pending_autostart: bool,
     pub(crate) sweep: crate::sweep_panel::SweepState,
+    pub(crate) analysis: crate::analysis::AnalysisState,
+    pub(crate) show_analysis: bool,
 }
 
 impl ExplorerApp {
@@ -95,6 +97,8 @@ impl ExplorerApp {
             log: Vec::new(),
             pending_autostart: options.autostart,
             sweep: Default::default(),
+            analysis: Default::default(),
+            show_analysis: false,
         };
         app.results = Results::new(app.state_names());
         match file {
@@ -212,6 +216,27 @@ impl ExplorerApp {
         self.sweep.worker.is_running()
     }
 
+    /// The periodic orbit found last: period, returns and the verdict's text.
+    pub fn orbit_summary(&self) -> Option<(f64, usize, String)> {
+        match &self.analysis.cycle {
+            Some(Ok(r)) => Some((r.period, r.k, r.verdict.to_string())),
+            _ => None,
+        }
+    }
+
+    /// The Lyapunov exponents computed last.
+    pub fn exponents(&self) -> Option<Vec<f64>> {
+        match &self.analysis.spectrum {
+            Some(Ok(s)) => Some(s.exponents.clone()),
+            _ => None,
+        }
+    }
+
+    /// Whether an orbit search or an exponent run is going.
+    pub fn is_analysing(&self) -> bool {
+        self.analysis.cycle_running() || self.analysis.exponents_running()
+    }
+
     /// Whether a run is going.
     pub fn is_running(&self) -> bool {
         self.execution.worker.is_running()
@@ -222,6 +247,7 @@ impl ExplorerApp {
         let ctx = ui.ctx().clone();
         self.drain_worker(&ctx);
         self.drain_sweep();
+        self.drain_analysis();
         if self.sweep.worker.is_running() {
             ctx.request_repaint_after(std::time::Duration::from_millis(100));
         }
@@ -237,6 +263,13 @@ impl ExplorerApp {
             .min_size(300.0)
             .show(ui, |ui| model_panel_ui(ui, &mut self.doc))
             .inner;
+        if self.show_analysis {
+            egui::Panel::right("analysis_panel")
+                .resizable(true)
+                .default_size(330.0)
+                .min_size(260.0)
+                .show(ui, |ui| self.analysis_panel_ui(ui));
+        }
         layout::lower_views(self, ui);
         layout::main_views(self, ui, &mut actions);
         help::about_window(&ctx, &mut self.show_about);

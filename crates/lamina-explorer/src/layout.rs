@@ -237,6 +237,11 @@ pub fn menu_bar(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
             });
             ui.separator();
             run_buttons(app, ui, actions);
+            ui.separator();
+            ui.toggle_value(&mut app.show_analysis, "Analysis")
+                .on_hover_text(
+                    "Periodic orbit (Floquet multipliers) and Lyapunov exponents of the scenario",
+                );
         });
     });
 }
@@ -622,6 +627,7 @@ fn tile_ui(
                 }
                 picked.unwrap_or(axes)
             });
+            let marks = orbit_marks(app, kind, axes);
             let (cloud, colour, view) = if kind == ViewKind::Cut {
                 (
                     &app.results.cut,
@@ -652,7 +658,7 @@ fn tile_ui(
             let mut clicked = None;
             ui.allocate_ui(vec2(ui.available_width(), height.max(40.0)), |ui| {
                 clicked = view
-                    .ui(ui, id, &app.results.names, cloud, axes, colour, &[])
+                    .ui(ui, id, &app.results.names, cloud, axes, colour, &marks)
                     .clicked;
             });
             let selected = clicked.or(view.selected).filter(|&s| s < cloud.len());
@@ -717,4 +723,38 @@ impl ExplorerApp {
             _ => self.layout.strobe_axes = Some(axes),
         }
     }
+}
+
+/// The found orbit's points, marked in the cloud view of its map.
+fn orbit_marks(
+    app: &ExplorerApp,
+    kind: ViewKind,
+    axes: Option<[CloudAxis; 2]>,
+) -> Vec<crate::views::cloud::Mark> {
+    let (Some(Ok(report)), Some(axes)) = (&app.analysis.cycle, axes) else {
+        return Vec::new();
+    };
+    let same_map = matches!(
+        (report.map, kind),
+        (lamina_core::cycle::MapChoice::Cut, ViewKind::Cut)
+            | (lamina_core::cycle::MapChoice::Strobe, ViewKind::Strobe)
+    );
+    if !same_map {
+        return Vec::new();
+    }
+    let coord = |p: &lamina_core::cycle::MapPoint, a: CloudAxis| match a {
+        CloudAxis::State(i) => p.state.get(i).copied(),
+        CloudAxis::Time => Some(p.t),
+        CloudAxis::ReturnTime => Some(report.period / report.k as f64),
+    };
+    report
+        .orbit
+        .iter()
+        .filter_map(|p| {
+            Some(crate::views::cloud::Mark {
+                at: [coord(p, axes[0])?, coord(p, axes[1])?],
+                colour: Color32::WHITE,
+            })
+        })
+        .collect()
 }

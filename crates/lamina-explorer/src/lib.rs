@@ -4,6 +4,7 @@
 //! **Boundary:** this crate only draws and routes; every number comes from `lamina-core`,
 //! every file format from `lamina-scenario` and `lamina-export`.
 
+mod analysis;
 mod app;
 mod document;
 mod execution;

@@ -330,13 +330,13 @@ fn integrator_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         ComboBox::from_id_salt("method")
             .selected_text(method_label(s.integrator.method))
             .show_ui(ui, |ui| {
-                for m in [MethodChoice::Auto, MethodChoice::Dp853, MethodChoice::Dp5] {
+                for m in [MethodChoice::Auto, MethodChoice::Dp853, MethodChoice::Dp5, MethodChoice::Stiff] {
                     ui.selectable_value(&mut s.integrator.method, m, method_label(m));
                 }
             })
             .response
             .labelled_by(label.id)
-            .on_hover_text("Auto picks Dormand–Prince 8(5,3); Dormand–Prince 5(4) is cheaper per step at loose tolerances");
+            .on_hover_text("Auto starts with Dormand–Prince 8(5,3) and changes to Rodas4 where the model turns stiff (and back); Stiff uses Rodas4 throughout");
         if s.integrator.method != before {
             changes.model = true;
         }
@@ -384,7 +384,7 @@ fn method_label(m: MethodChoice) -> &'static str {
         MethodChoice::Auto => "Auto",
         MethodChoice::Dp5 => "Dormand–Prince 5(4)",
         MethodChoice::Dp853 => "Dormand–Prince 8(5,3)",
-        MethodChoice::Stiff => "Stiff (not available)",
+        MethodChoice::Stiff => "Stiff (Rodas4)",
     }
 }
 

@@ -257,3 +257,111 @@ fn the_sweep_fills_the_orbit_diagram() {
         "a sweep does not start single runs"
     );
 }
+
+/// The window with a scenario replaced by the given states and parameters, a cut, no strobe.
+fn model_app(
+    states: &[(&str, f64, &str)],
+    parameters: &[(&str, f64)],
+    cut_state: &str,
+    span: f64,
+) -> ExplorerApp {
+    let mut app = app();
+    app.edit_scenario(|s| {
+        s.states = states
+            .iter()
+            .map(|(n, start, rate)| lamina_scenario::State {
+                name: n.to_string(),
+                start: *start,
+                rate: rate.to_string(),
+            })
+            .collect();
+        s.parameters = parameters
+            .iter()
+            .map(|(n, v)| lamina_scenario::Parameter {
+                name: n.to_string(),
+                value: *v,
+                range: (v - 1.0, v + 1.0),
+            })
+            .collect();
+        s.cut = Some(lamina_scenario::Cut {
+            surface: lamina_scenario::Surface::Plane {
+                normal: lamina_scenario::Weights(vec![(cut_state.to_string(), 1.0)]),
+                offset: 0.0,
+            },
+            direction: lamina_scenario::Direction::Falling,
+            axes: (states[0].0.to_string(), states[1].0.to_string()),
+        });
+        s.strobe = None;
+        s.sweep = None;
+        s.view = None;
+        s.integrator.rtol = 1e-10;
+        s.integrator.atol = 1e-12;
+        s.time.settle = 60.0;
+        s.time.span = span;
+    });
+    app
+}
+
+fn wait_for_analysis(h: &mut Harness<'static, ExplorerApp>) {
+    for _ in 0..24_000 {
+        h.step();
+        if !h.state().is_analysing() {
+            steps(h, 2);
+            return;
+        }
+        std::thread::sleep(Duration::from_millis(5));
+    }
+    panic!("the analysis did not finish");
+}
+
+#[test]
+#[allow(clippy::excessive_precision)] // the published digits, kept as printed
+fn the_orbit_panel_finds_the_van_der_pol_cycle() {
+    let mut h = harness(model_app(
+        &[("x", 2.0, "v"), ("v", 0.0, "mu*(1 - x^2)*v - x")],
+        &[("mu", 1.0)],
+        "v",
+        60.0,
+    ));
+    steps(&mut h, 2);
+    click_run(&mut h);
+    wait_for_run(&mut h);
+    h.get_by_label("Analysis").click();
+    steps(&mut h, 3);
+    h.get_by_label("Find periodic orbit").click();
+    steps(&mut h, 2);
+    wait_for_analysis(&mut h);
+    let (period, k, verdict) = h.state().orbit_summary().expect("an orbit");
+    // Hairer, Norsett & Wanner, Solving ODEs I, sec. I.16, ex. 1 (REFERENCES case 8)
+    assert!(
+        (period - 6.6632868593231301897).abs() < 1e-7,
+        "period {period}"
+    );
+    assert_eq!(k, 1);
+    assert_eq!(verdict, "stable");
+    h.get_by_label_contains("verdict: stable");
+}
+
+#[test]
+fn the_exponents_panel_gives_the_spectrum_of_a_linear_spiral() {
+    // x' = -x + 2y, y' = -2x - y: A = [[-1, 2], [-2, -1]]
+    let mut h = harness(model_app(
+        &[("x", 1.0, "-x + 2*y"), ("y", 0.0, "-2*x - y")],
+        &[("k", 1.0)],
+        "y",
+        300.0,
+    ));
+    steps(&mut h, 2);
+    h.get_by_label("Analysis").click();
+    steps(&mut h, 3);
+    h.get_by_label("Compute exponents").click();
+    steps(&mut h, 2);
+    wait_for_analysis(&mut h);
+    let exponents = h.state().exponents().expect("a spectrum");
+    assert_eq!(exponents.len(), 2);
+    for l in exponents {
+        // [analytic] REFERENCES case 6: both exponents equal the real part -1
+        assert!((l + 1.0).abs() < 1e-2, "exponent {l}");
+    }
+    h.get_by_label_contains("verdict:");
+}
