@@ -77,6 +77,15 @@ fn map_points(cloud: &PointCloud) -> Vec<MapPoint> {
         .collect()
 }
 
+/// A number for the tables: fixed digits, or an exponent for tiny and huge magnitudes.
+fn num(v: f64) -> String {
+    if v != 0.0 && !(1e-3..1e6).contains(&v.abs()) {
+        format!("{v:.6e}")
+    } else {
+        format!("{v:.9}")
+    }
+}
+
 fn multiplier_rows(ui: &mut Ui, id: &str, values: &[lamina_core::cycle::Multiplier]) {
     egui::Grid::new(id)
         .num_columns(3)
@@ -87,9 +96,9 @@ fn multiplier_rows(ui: &mut Ui, id: &str, values: &[lamina_core::cycle::Multipli
             ui.label(RichText::new("|m|").weak());
             ui.end_row();
             for m in values {
-                ui.label(RichText::new(format!("{:.9}", m.re)).monospace());
-                ui.label(RichText::new(format!("{:.9}", m.im)).monospace());
-                ui.label(RichText::new(format!("{:.6}", m.re.hypot(m.im))).monospace());
+                ui.label(RichText::new(num(m.re)).monospace());
+                ui.label(RichText::new(num(m.im)).monospace());
+                ui.label(RichText::new(num(m.re.hypot(m.im))).monospace());
                 ui.end_row();
             }
         });
@@ -308,8 +317,8 @@ impl ExplorerApp {
                 if let Some(n) = &r.nearest {
                     ui.label(
                         RichText::new(format!(
-                            "nearest the circle: |m| = {:.6}, would lose stability {}",
-                            n.multiplier.re.hypot(n.multiplier.im),
+                            "nearest the circle: |m| = {}, would lose stability {}",
+                            num(n.multiplier.re.hypot(n.multiplier.im)),
                             n.loss
                         ))
                         .small(),

@@ -9,6 +9,30 @@ use crate::results::PointCloud;
 /// Most points drawn in a small view; longer series are thinned evenly for drawing.
 const MAX_SERIES_POINTS: usize = 8_000;
 
+/// Invisible corner points that give a near-constant series a sensible vertical window, so
+/// that round-off noise does not fill the view.
+fn padded_corners(values: impl Iterator<Item = [f64; 2]>) -> Option<Vec<[f64; 2]>> {
+    let mut e = [
+        f64::INFINITY,
+        f64::INFINITY,
+        f64::NEG_INFINITY,
+        f64::NEG_INFINITY,
+    ];
+    for [x, y] in values {
+        e = [e[0].min(x), e[1].min(y), e[2].max(x), e[3].max(y)];
+    }
+    if e[0] > e[2] {
+        return None;
+    }
+    let scale = e[1].abs().max(e[3].abs()).max(1e-300);
+    let pad = if e[3] - e[1] < 1e-6 * scale {
+        1e-3 * scale
+    } else {
+        0.0
+    };
+    Some(vec![[e[0], e[1] - pad], [e[2], e[3] + pad]])
+}
+
 /// Return time against point number.
 pub fn return_times_ui(ui: &mut Ui, cloud: &PointCloud, label: &str) -> Rect {
     let stride = cloud.len().div_ceil(MAX_SERIES_POINTS).max(1);
@@ -24,6 +48,13 @@ pub fn return_times_ui(ui: &mut Ui, cloud: &PointCloud, label: &str) -> Rect {
         .x_axis_label("n")
         .y_axis_label(format!("return time ({label})"))
         .show(ui, |plot_ui| {
+            if let Some(corners) = padded_corners(points.iter().copied()) {
+                plot_ui.points(
+                    Points::new("window", PlotPoints::new(corners))
+                        .radius(0.0)
+                        .color(egui::Color32::TRANSPARENT),
+                );
+            }
             plot_ui.points(Points::new("return time", PlotPoints::new(points)).radius(1.5));
         });
     response.response.rect
@@ -88,6 +119,18 @@ pub fn first_return_map_ui(
                     Line::new("diagonal", PlotPoints::new(vec![[lo, lo], [hi, hi]]))
                         .width(0.5)
                         .color(egui::Color32::from_gray(110)),
+                );
+            }
+            if let Some(corners) = padded_corners(
+                pairs
+                    .iter()
+                    .map(|p| [p[0], p[1]])
+                    .chain(pairs.iter().map(|p| [p[1], p[0]])),
+            ) {
+                plot_ui.points(
+                    Points::new("window", PlotPoints::new(corners))
+                        .radius(0.0)
+                        .color(egui::Color32::TRANSPARENT),
                 );
             }
             plot_ui.points(Points::new("s(n+1)", PlotPoints::new(pairs)).radius(1.5));
