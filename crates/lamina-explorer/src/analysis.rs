@@ -29,6 +29,9 @@ pub enum OrbitMap {
     Strobe,
 }
 
+/// A periodic orbit and its path over one period.
+type FoundOrbit = (CycleReport, Vec<MapPoint>);
+
 /// A running exponent computation: its stop flag and where its result arrives.
 type ExponentJob = (Arc<Interrupt>, Receiver<Result<Spectrum, String>>);
 
@@ -36,7 +39,9 @@ type ExponentJob = (Arc<Interrupt>, Receiver<Result<Spectrum, String>>);
 pub struct AnalysisState {
     /// Map for the orbit search.
     pub map: OrbitMap,
-    cycle_job: Option<Receiver<Result<CycleReport, String>>>,
+    cycle_job: Option<Receiver<Result<FoundOrbit, String>>>,
+    /// The found orbit over one period, for the 3D view.
+    pub orbit_path: Vec<MapPoint>,
     /// The last orbit found (or why not).
     pub cycle: Option<Result<CycleReport, String>>,
     exponents_job: Option<ExponentJob>,
@@ -49,6 +54,7 @@ impl Default for AnalysisState {
         Self {
             map: OrbitMap::Cut,
             cycle_job: None,
+            orbit_path: Vec::new(),
             cycle: None,
             exponents_job: None,
             spectrum: None,
@@ -112,13 +118,17 @@ impl ExplorerApp {
         {
             self.analysis.cycle_job = None;
             match &result {
-                Ok(r) => self.note(format!(
+                Ok((r, _)) => self.note(format!(
                     "periodic orbit: period {} over {} return(s), {}",
                     r.period, r.k, r.verdict
                 )),
                 Err(e) => self.note(format!("no periodic orbit: {e}")),
             }
-            self.analysis.cycle = Some(result);
+            self.analysis.orbit_path = result
+                .as_ref()
+                .map(|(_, path)| path.clone())
+                .unwrap_or_default();
+            self.analysis.cycle = Some(result.map(|(r, _)| r));
         }
         if let Some((_, rx)) = &self.analysis.exponents_job
             && let Ok(result) = rx.try_recv()
@@ -188,13 +198,18 @@ impl ExplorerApp {
                     let mut map =
                         FlowMap::new(model, kind, MapSettings::from_run(&run, max_return))
                             .map_err(|e| e.to_string())?;
-                    find_cycle(
+                    let report = find_cycle(
                         &mut map,
                         &seeds,
                         k,
                         &NewtonSettings::for_rtol(run.control.rtol),
                     )
-                    .map_err(|e| e.to_string())
+                    .map_err(|e| e.to_string())?;
+                    // the orbit over one period for the 3D view (drawn without it if that fails)
+                    let path = map
+                        .trace(&report.point, report.period, 4)
+                        .unwrap_or_default();
+                    Ok((report, path))
                 })();
                 let _ = tx.send(result);
                 repaint.request_repaint();

@@ -97,6 +97,21 @@ impl ExplorerApp {
                         outcome.stats.n_rates,
                         elapsed.as_secs_f64()
                     );
+                    for change in outcome.method_changes.iter().take(20) {
+                        self.note(change.to_string());
+                    }
+                    if outcome.method_changes.len() > 20 {
+                        self.note(format!(
+                            "... {} changes of method in all",
+                            outcome.method_changes.len()
+                        ));
+                    }
+                    if outcome.n_switches > 0 {
+                        self.note(format!(
+                            "{} switches of the model's branches located and stepped through",
+                            outcome.n_switches
+                        ));
+                    }
                     if let Some(t) = run.stored().truncated_at() {
                         self.note(format!("the stored run reached its memory budget at t = {t}: moving the cut re-slices only up to there"));
                     }

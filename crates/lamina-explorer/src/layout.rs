@@ -584,6 +584,12 @@ fn tile_ui(
                 surface: Color32::from_rgba_unmultiplied(236, 150, 70, 48),
                 cut_points: Color32::from_rgb(250, 210, 120),
             };
+            let orbit: Vec<(f64, Vec<f64>)> = app
+                .analysis
+                .orbit_path
+                .iter()
+                .map(|p| (p.t, p.state.clone()))
+                .collect();
             let scene = SpaceScene {
                 names: &app.results.names,
                 trajectory: &app.results.trajectory,
@@ -591,6 +597,7 @@ fn tile_ui(
                 plane: plane.as_ref().map(|(p, _)| p),
                 colours: &colours,
                 period: app.results.strobe_period,
+                orbit: &orbit,
             };
             let response = app.settings.space.ui(ui, &scene);
             if let (Some(new_offset), Some((_, hidden))) = (response.new_offset, plane)

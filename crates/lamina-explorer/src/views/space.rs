@@ -170,6 +170,8 @@ pub struct SpaceScene<'a> {
     pub colours: &'a SpaceColours,
     /// The strobe period, for the drive-phase axis.
     pub period: Option<f64>,
+    /// A periodic orbit to draw over the trajectory: times and states.
+    pub orbit: &'a [(f64, Vec<f64>)],
 }
 
 /// What the user did in the view.
@@ -189,6 +191,7 @@ impl SpaceView {
             plane,
             colours,
             period,
+            orbit,
         } = *scene;
         let mut out = SpaceResponse::default();
         let dim = names.len();
@@ -320,6 +323,23 @@ impl SpaceView {
                 points,
                 colours.surface,
                 Stroke::new(1.0, colours.surface.gamma_multiply(2.5)),
+            ));
+        }
+        // the periodic orbit found in the analysis panel, bright and on top
+        let orbit_points: Vec<Pos2> = orbit
+            .iter()
+            .map(|(t, s)| {
+                projection
+                    .screen_from_unit(
+                        data_box.unit(self.axes.map(|a| axis_value(a, s, *t, period))),
+                    )
+                    .0
+            })
+            .collect();
+        if orbit_points.len() > 1 {
+            painter.add(Shape::line(
+                orbit_points,
+                Stroke::new(2.5, Color32::from_rgb(255, 255, 255)),
             ));
         }
         // cut points as one mesh of small squares, thinned past MAX_DRAWN_SAMPLES / 3
