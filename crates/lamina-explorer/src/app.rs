@@ -348,7 +348,7 @@ impl ExplorerApp {
             Action::Save => self.save(false),
             Action::SaveAs => self.save(true),
             Action::ExportCsv(set) => self.request_csv_export(set),
-            Action::ExportPng(view) => self.request_png_export(ctx, view),
+            Action::ExportPng(view) => self.request_png_export(view),
             Action::LoadDemo(name) => self.request_demo(name),
         }
     }

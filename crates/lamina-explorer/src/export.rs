@@ -44,17 +44,20 @@ pub struct PngRequest {
 }
 
 impl ExplorerApp {
-    pub(crate) fn request_csv_export(&mut self, set: PointSet) {
+    /// A file beside the scenario (or in the working folder) to suggest for an export.
+    fn suggested_export(&self, file_name: String) -> PathBuf {
         let dir = self
             .doc
             .path
             .as_ref()
             .and_then(|p| p.parent().map(Path::to_path_buf))
             .unwrap_or_default();
-        self.files.ask_path(
-            Purpose::Csv(set),
-            Some(dir.join(format!("{}.csv", set.file_stem()))),
-        );
+        dir.join(file_name)
+    }
+
+    pub(crate) fn request_csv_export(&mut self, set: PointSet) {
+        let suggested = self.suggested_export(format!("{}.csv", set.file_stem()));
+        self.files.ask_path(Purpose::Csv(set), Some(suggested));
     }
 
     /// Writes `set` to `path` atomically.
@@ -80,13 +83,7 @@ impl ExplorerApp {
                     self.results.strobe.len()
                 }
                 PointSet::Sweep => {
-                    let parameter = self
-                        .doc
-                        .scenario
-                        .parameters
-                        .get(self.sweep.axes.0)
-                        .map(|p| p.name.clone())
-                        .unwrap_or_default();
+                    let parameter = self.swept_parameter_name();
                     let mut csv = lamina_export::SweepCsv::new(&mut file, &parameter, &names)?;
                     for (c, _) in &self.sweep.columns {
                         csv.write_column(c.value, &c.points)?;
@@ -117,17 +114,9 @@ impl ExplorerApp {
         }
     }
 
-    pub(crate) fn request_png_export(&mut self, _ctx: &Context, view: ViewKind) {
-        let dir = self
-            .doc
-            .path
-            .as_ref()
-            .and_then(|p| p.parent().map(Path::to_path_buf))
-            .unwrap_or_default();
-        self.files.ask_path(
-            Purpose::Png(view),
-            Some(dir.join(format!("{}.png", view.file_stem()))),
-        );
+    pub(crate) fn request_png_export(&mut self, view: ViewKind) {
+        let suggested = self.suggested_export(format!("{}.png", view.file_stem()));
+        self.files.ask_path(Purpose::Png(view), Some(suggested));
     }
 
     /// Asks for a screenshot; the PNG is written when it arrives.

@@ -118,6 +118,16 @@ pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChan
 }
 
 impl ExplorerApp {
+    /// Name of the parameter of the last (or running) sweep.
+    pub(crate) fn swept_parameter_name(&self) -> String {
+        self.doc
+            .scenario
+            .parameters
+            .get(self.sweep.axes.0)
+            .map(|p| p.name.clone())
+            .unwrap_or_default()
+    }
+
     /// Starts the scenario's sweep.
     pub(crate) fn start_sweep(&mut self, ctx: &egui::Context) {
         if self.sweep.worker.is_running() {
@@ -190,13 +200,7 @@ impl ExplorerApp {
                             self.sweep.total,
                             changes.len()
                         ));
-                        let name = self
-                            .doc
-                            .scenario
-                            .parameters
-                            .get(self.sweep.axes.0)
-                            .map(|p| p.name.clone())
-                            .unwrap_or_default();
+                        let name = self.swept_parameter_name();
                         for c in changes.iter().take(12) {
                             let show = |p: Option<usize>| {
                                 p.map_or("no repeat".to_string(), |k| format!("period {k}"))
@@ -257,13 +261,7 @@ impl ExplorerApp {
             self.sweep.axes = (p, c);
         }
         let (parameter, coordinate) = self.sweep.axes;
-        let pname = self
-            .doc
-            .scenario
-            .parameters
-            .get(parameter)
-            .map(|p| p.name.clone())
-            .unwrap_or_default();
+        let pname = self.swept_parameter_name();
         let cname = self
             .doc
             .scenario
