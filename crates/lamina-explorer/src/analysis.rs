@@ -47,6 +47,8 @@ pub struct AnalysisState {
     exponents_job: Option<ExponentJob>,
     /// The last spectrum (or why not).
     pub spectrum: Option<Result<Spectrum, String>>,
+    /// Recurrence summary of the shown cloud, with the (map, revision, length) it belongs to.
+    summary: Option<((OrbitMap, u64, usize), String)>,
 }
 
 impl Default for AnalysisState {
@@ -58,6 +60,7 @@ impl Default for AnalysisState {
             cycle: None,
             exponents_job: None,
             spectrum: None,
+            summary: None,
         }
     }
 }
@@ -276,17 +279,29 @@ impl ExplorerApp {
             OrbitMap::Cut => &self.results.cut,
             OrbitMap::Strobe => &self.results.strobe,
         };
-        let summary = if cloud.len() < 2 {
-            "run first: the search starts from the points of the run".to_string()
-        } else {
-            let points = map_points(cloud);
-            format!(
-                "{} points: {}",
-                points.len(),
-                find_recurrence(&points, &RecurrenceSettings::default())
-            )
-        };
-        ui.label(RichText::new(summary).small());
+        // the recurrence search reads every point: redo it only when the cloud or map changes
+        let key = (self.analysis.map, cloud.revision, cloud.len());
+        if self
+            .analysis
+            .summary
+            .as_ref()
+            .is_none_or(|(k, _)| *k != key)
+        {
+            let text = if cloud.len() < 2 {
+                "run first: the search starts from the points of the run".to_string()
+            } else {
+                let points = map_points(cloud);
+                format!(
+                    "{} points: {}",
+                    points.len(),
+                    find_recurrence(&points, &RecurrenceSettings::default())
+                )
+            };
+            self.analysis.summary = Some((key, text));
+        }
+        if let Some((_, text)) = &self.analysis.summary {
+            ui.label(RichText::new(text).small());
+        }
         let busy = self.analysis.cycle_running();
         let can =
             !busy && cloud.len() >= 2 && self.doc.first_error().is_none() && !self.is_running();
