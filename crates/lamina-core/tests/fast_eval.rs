@@ -3,7 +3,9 @@
 //! results must be the same numbers, bit for bit.
 
 use lamina_core::expr::{N_REGISTERS, Names, Program};
-use lamina_core::model::{Model, ModelSpec, ParameterSpec, StateSpec};
+mod common;
+
+use lamina_core::model::Model;
 use proptest::prelude::*;
 
 fn names(states: &[&str], parameters: &[&str]) -> Names {
@@ -156,25 +158,13 @@ fn fixed_parameters_fold_with_their_constants() {
     assert_eq!(out, [-15.0]);
 }
 
+/// A model whose states all start at 0.
 fn model_of(rates: &[(&str, &str)], parameters: &[(&str, f64)]) -> Model {
-    Model::compile(&ModelSpec {
-        states: rates
-            .iter()
-            .map(|(name, rate)| StateSpec {
-                name: name.to_string(),
-                start: 0.0,
-                rate: rate.to_string(),
-            })
-            .collect(),
-        parameters: parameters
-            .iter()
-            .map(|(name, value)| ParameterSpec {
-                name: name.to_string(),
-                value: *value,
-            })
-            .collect(),
-    })
-    .unwrap_or_else(|e| panic!("{e}"))
+    let states: Vec<(&str, f64, &str)> = rates
+        .iter()
+        .map(|(name, rate)| (*name, 0.0, *rate))
+        .collect();
+    common::model(&states, parameters)
 }
 
 #[test]

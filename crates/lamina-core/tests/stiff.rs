@@ -2,7 +2,10 @@
 //! stability on stiff linear models, the difference Jacobian, and its work counts.
 
 use lamina_core::integrate::{FnRates, Integrator, Method, Rates, StepControl};
-use lamina_core::model::{Model, ModelSpec, ParameterSpec, StateSpec};
+mod common;
+
+use common::model;
+use lamina_core::model::Model;
 
 fn control(rtol: f64, atol: f64) -> StepControl {
     StepControl {
@@ -11,27 +14,6 @@ fn control(rtol: f64, atol: f64) -> StepControl {
         max_step: None,
         initial_step: None,
     }
-}
-
-fn model(states: &[(&str, f64, &str)], parameters: &[(&str, f64)]) -> Model {
-    let spec = ModelSpec {
-        states: states
-            .iter()
-            .map(|(name, start, rate)| StateSpec {
-                name: name.to_string(),
-                start: *start,
-                rate: rate.to_string(),
-            })
-            .collect(),
-        parameters: parameters
-            .iter()
-            .map(|(name, value)| ParameterSpec {
-                name: name.to_string(),
-                value: *value,
-            })
-            .collect(),
-    };
-    Model::compile(&spec).unwrap_or_else(|e| panic!("{e}"))
 }
 
 /// Integrates from 0 to `t_end`; returns the integrator and the largest error of the end
