@@ -1,7 +1,8 @@
-//! Throughput benchmark: Lorenz cut points with typed equations against a hand-written Rust
+//! Throughput benchmark: Lorenz cut points with typed equations (the machine code a model
+//! runs, and the closure evaluator used where there is none) against a hand-written Rust
 //! closure on the same integrator (interleaved in one process), the same for a 20-state chain
 //! of coupled van der Pol oscillators, and the re-slice of a stored run of 10^6 steps. The last
-//! two lines are `typed/native: R` (Lorenz) and `reslice: M ms`.
+//! two lines are `typed/native: R` (Lorenz, machine code) and `reslice: M ms`.
 //!
 //! Setting (REFERENCES.md, performance anchor): Lorenz (10, 28, 8/3) from (1, 1, 1),
 //! settle 50, cut z = 27 falling, rtol = atol = 1e-9, DOP853. The dense output is built only
@@ -13,6 +14,7 @@ use std::hint::black_box;
 use std::time::Instant;
 
 use cpu_time::ProcessTime;
+use lamina_core::expr::{Kernel, Program};
 use lamina_core::integrate::{FnRates, Integrator, Method, Rates, StepControl};
 use lamina_core::model::{Model, ModelSpec, ParameterSpec, StateSpec};
 use lamina_core::run::{Cut, Direction, StoredRun};
@@ -35,6 +37,11 @@ fn frequency_squared(i: usize) -> f64 {
 /// The chain typed: `x_i' = v_i`, `v_i' = mu (1 - x_i^2) v_i - w_i^2 x_i + k (x_{i-1} - 2 x_i
 /// + x_{i+1})`, free ends.
 fn typed_chain() -> Model {
+    Model::compile(&chain_spec()).expect("chain compiles")
+}
+
+/// The chain's states and parameters as typed.
+fn chain_spec() -> ModelSpec {
     let mut states = Vec::new();
     for i in 0..N_OSCILLATORS {
         let coupling = if i == 0 {
@@ -58,7 +65,7 @@ fn typed_chain() -> Model {
             ),
         });
     }
-    Model::compile(&ModelSpec {
+    ModelSpec {
         states,
         parameters: vec![
             ParameterSpec {
@@ -70,8 +77,7 @@ fn typed_chain() -> Model {
                 value: COUPLING,
             },
         ],
-    })
-    .expect("chain compiles")
+    }
 }
 
 /// The same chain as a closure, with the same arithmetic in the same order.
@@ -186,33 +192,125 @@ fn chain_cut() -> Cut {
     Cut::plane(normal, 0.0, Direction::Rising)
 }
 
-/// Median CPU seconds of typed and native runs, interleaved; and evaluations per crossing.
-fn compare<T: Rates, N: Rates>(
-    mut typed: impl FnMut() -> T,
+/// A model's rates run by its closure evaluator rather than its machine code.
+struct Closures {
+    kernel: Kernel,
+    dim: usize,
+}
+
+impl Closures {
+    fn of(model: &Model) -> Self {
+        Self {
+            kernel: model
+                .program()
+                .specialise_closures(model.parameters())
+                .expect("small enough for the registers"),
+            dim: model.start().len(),
+        }
+    }
+}
+
+impl Rates for Closures {
+    fn dim(&self) -> usize {
+        self.dim
+    }
+
+    fn rates(&mut self, t: f64, x: &[f64], dx: &mut [f64]) {
+        self.kernel.eval(t, x, dx);
+    }
+}
+
+/// Median CPU seconds of runs of the typed model (machine code), its closures and the native
+/// rates, interleaved; and evaluations per crossing.
+struct Timings {
+    typed: f64,
+    closures: f64,
+    native: f64,
+    evals_per_crossing: f64,
+}
+
+fn compare<N: Rates>(
+    mut typed: impl FnMut() -> Model,
     mut native: impl FnMut() -> N,
     start: &[f64],
     cut: impl Fn() -> Cut,
     n_crossings: usize,
-) -> (f64, f64, f64) {
+) -> Timings {
     let mut typed_secs = Vec::new();
+    let mut closure_secs = Vec::new();
     let mut native_secs = Vec::new();
     let mut evals = 0;
     for _ in 0..ROUNDS {
         let (secs, n, sum_typed) = crossings(&mut typed(), start, cut(), n_crossings);
         typed_secs.push(secs);
         evals = n;
+        let (secs, _, sum_closures) =
+            crossings(&mut Closures::of(&typed()), start, cut(), n_crossings);
+        closure_secs.push(secs);
         let (secs, _, sum_native) = crossings(&mut native(), start, cut(), n_crossings);
         native_secs.push(secs);
         assert!(
-            (sum_typed - sum_native).abs() <= 1e-6 * sum_native.abs(),
+            (sum_typed - sum_native).abs() <= 1e-6 * sum_native.abs()
+                && (sum_closures - sum_native).abs() <= 1e-6 * sum_native.abs(),
             "same trajectory"
         );
     }
-    (
-        median(typed_secs),
-        median(native_secs),
-        evals as f64 / n_crossings as f64,
-    )
+    Timings {
+        typed: median(typed_secs),
+        closures: median(closure_secs),
+        native: median(native_secs),
+        evals_per_crossing: evals as f64 / n_crossings as f64,
+    }
+}
+
+/// Prints the rates of `t` for `n_crossings`.
+fn report(t: &Timings, n_crossings: usize) {
+    let rate = |secs: f64| n_crossings as f64 / secs;
+    println!(
+        "  typed (machine code): {:.0} crossings per CPU-second",
+        rate(t.typed)
+    );
+    println!(
+        "  typed (closures):     {:.0} crossings per CPU-second",
+        rate(t.closures)
+    );
+    println!(
+        "  native:               {:.0} crossings per CPU-second",
+        rate(t.native)
+    );
+    println!(
+        "  right-hand-side evaluations per crossing: {:.1}",
+        t.evals_per_crossing
+    );
+    println!("  closures/native: {:.3}", t.closures / t.native);
+}
+
+/// Prints how long making a model's machine code takes (compiling the chain from its text,
+/// with and without the machine code).
+fn report_code_generation() {
+    let spec = chain_spec();
+    let sources: Vec<(String, &str)> = spec
+        .states
+        .iter()
+        .map(|s| (s.name.clone(), s.rate.as_str()))
+        .collect();
+    let parameters = [MU, COUPLING];
+    let mut text = Vec::new();
+    let mut code = Vec::new();
+    for _ in 0..ROUNDS {
+        let started = ProcessTime::now();
+        let program = Program::compile(&spec.names(), &sources).expect("chain compiles");
+        text.push(started.elapsed().as_secs_f64());
+        let started = ProcessTime::now();
+        let kernel = program.specialise(&parameters);
+        code.push(started.elapsed().as_secs_f64());
+        assert!(kernel.is_some_and(|k| k.is_native()));
+    }
+    println!(
+        "  compiling the chain's text: {:.2} ms; making its machine code: {:.2} ms",
+        median(text) * 1e3,
+        median(code) * 1e3
+    );
 }
 
 fn median(mut v: Vec<f64>) -> f64 {
@@ -221,7 +319,7 @@ fn median(mut v: Vec<f64>) -> f64 {
 }
 
 fn main() {
-    let (typed, native, evals) = compare(
+    let lorenz = compare(
         typed_lorenz,
         native_lorenz,
         &[1.0; 3],
@@ -229,18 +327,10 @@ fn main() {
         CROSSINGS,
     );
     println!("lorenz cut, DOP853, rtol = atol = 1e-9, {CROSSINGS} crossings, median of {ROUNDS}");
-    println!(
-        "  typed:  {:.0} crossings per CPU-second",
-        CROSSINGS as f64 / typed
-    );
-    println!(
-        "  native: {:.0} crossings per CPU-second",
-        CROSSINGS as f64 / native
-    );
-    println!("  right-hand-side evaluations per crossing: {evals:.1}");
+    report(&lorenz, CROSSINGS);
 
     let chain_start = typed_chain().start().to_vec();
-    let (chain_typed, chain_native, chain_evals) = compare(
+    let chain = compare(
         typed_chain,
         native_chain,
         &chain_start,
@@ -251,16 +341,9 @@ fn main() {
         "chain of {N_OSCILLATORS} van der Pol oscillators (20 states), cut x0 = 0 rising, \
          {CHAIN_CROSSINGS} crossings"
     );
-    println!(
-        "  typed:  {:.0} crossings per CPU-second",
-        CHAIN_CROSSINGS as f64 / chain_typed
-    );
-    println!(
-        "  native: {:.0} crossings per CPU-second",
-        CHAIN_CROSSINGS as f64 / chain_native
-    );
-    println!("  right-hand-side evaluations per crossing: {chain_evals:.1}");
-    println!("  chain typed/native: {:.3}", chain_typed / chain_native);
+    report(&chain, CHAIN_CROSSINGS);
+    println!("  chain typed/native: {:.3}", chain.typed / chain.native);
+    report_code_generation();
 
     // A stored run of 10^6 steps, re-sliced by a moved plane.
     let mut model = typed_lorenz();
@@ -285,6 +368,6 @@ fn main() {
         stored.n_steps(),
         stored.bytes() >> 20
     );
-    println!("typed/native: {:.3}", typed / native);
+    println!("typed/native: {:.3}", lorenz.typed / lorenz.native);
     println!("reslice: {:.1} ms", median(times));
 }

@@ -1,6 +1,6 @@
-//! The fast evaluators (the register tape behind `Program::eval`, and a kernel with fixed
-//! parameters) against the straight-line reference evaluator on random expressions: the
-//! results must be the same numbers, bit for bit.
+//! The fast evaluators (the closures behind `Program::eval`, and kernels with fixed parameters:
+//! machine code and closures) against the straight-line reference evaluator on random
+//! expressions: the results must be the same numbers, bit for bit.
 
 use lamina_core::expr::{N_REGISTERS, Names, Program};
 mod common;
@@ -117,11 +117,18 @@ proptest! {
         let mut tape = [0.0; 3];
         program.eval(&mut scratch, t, &state, &parameters, &mut tape);
         let mut kernel = program.specialise(&parameters).expect("small enough");
+        // machine code on the hosts the tests run on (x86-64 and aarch64 Linux)
+        prop_assert!(kernel.is_native());
+        let mut native = [0.0; 3];
+        kernel.eval(t, &state, &mut native);
+        let mut closures = program.specialise_closures(&parameters).expect("small enough");
+        prop_assert!(!closures.is_native());
         let mut fixed = [0.0; 3];
-        kernel.eval(t, &state, &mut fixed);
+        closures.eval(t, &state, &mut fixed);
         for i in 0..3 {
             prop_assert!(same(tape[i], reference[i]), "tape {i}: {} vs {}", tape[i], reference[i]);
-            prop_assert!(same(fixed[i], reference[i]), "kernel {i}: {} vs {}", fixed[i], reference[i]);
+            prop_assert!(same(native[i], reference[i]), "native {i}: {} vs {}", native[i], reference[i]);
+            prop_assert!(same(fixed[i], reference[i]), "closures {i}: {} vs {}", fixed[i], reference[i]);
         }
         // the one-output path
         let single = Program::compile(&n, &[("f".into(), f.as_str())]).expect("compiles");
@@ -141,17 +148,19 @@ fn products_fuse_into_their_sums() {
     let program = Program::compile(&n, &sources).expect("Lorenz compiles");
     // (y - x)*s, (r - z)*x - y and x*y - b*z: one fused operation per rate
     assert_eq!(program.n_fast_operations(), Some(3));
-    let kernel = program.specialise(&[10.0, 28.0, 8.0 / 3.0]).expect("small");
-    assert_eq!(kernel.n_operations(), 3);
+    let kernel = program
+        .specialise_closures(&[10.0, 28.0, 8.0 / 3.0])
+        .expect("small");
+    assert_eq!(kernel.n_operations(), Some(3));
 }
 
 #[test]
 fn fixed_parameters_fold_with_their_constants() {
     let n = names(&["x"], &["w"]);
     let program = Program::compile(&n, &[("f".into(), "-(w^2 + 1)*x")]).expect("compiles");
-    let mut kernel = program.specialise(&[2.0]).expect("small");
+    let mut kernel = program.specialise_closures(&[2.0]).expect("small");
     // -(w^2 + 1) is one constant once w is fixed: one multiplication is left
-    assert_eq!(kernel.n_operations(), 1);
+    assert_eq!(kernel.n_operations(), Some(1));
     let mut out = [0.0];
     kernel.eval(0.0, &[3.0], &mut out);
     // [analytic] -(2^2 + 1) * 3
@@ -213,4 +222,43 @@ fn compiled_models_can_move_between_threads() {
     send_and_share::<Model>();
     send_and_share::<Program>();
     send_and_share::<lamina_core::expr::Kernel>();
+}
+
+#[test]
+fn kernels_given_too_few_values_give_nan_rather_than_read_past_them() {
+    let program = Program::compile(&names(&["x", "y"], &["a"]), &[("f".into(), "a*x + y")])
+        .expect("compiles");
+    let mut out = [0.0];
+    // one state of two
+    let mut kernel = program.specialise(&[2.0]).expect("small");
+    kernel.eval(0.0, &[1.0], &mut out);
+    assert!(out[0].is_nan());
+    // no parameter value
+    let mut kernel = program.specialise(&[]).expect("small");
+    kernel.eval(0.0, &[1.0, 2.0], &mut out);
+    assert!(out[0].is_nan());
+    // everything there: [analytic] 2*1 + 2
+    let mut kernel = program.specialise(&[2.0]).expect("small");
+    kernel.eval(0.0, &[1.0, 2.0], &mut out);
+    assert_eq!(out, [4.0]);
+}
+
+#[test]
+fn kernels_of_one_program_evaluate_on_many_threads_at_once() {
+    use rayon::prelude::*;
+    let program =
+        Program::compile(&names(&["x"], &["k"]), &[("f".into(), "-k*sin(x)")]).expect("compiles");
+    let results: Vec<f64> = (0..64)
+        .into_par_iter()
+        .map(|i| {
+            let mut kernel = program.specialise(&[f64::from(i)]).expect("small");
+            let mut out = [0.0];
+            kernel.eval(0.0, &[1.0], &mut out);
+            out[0]
+        })
+        .collect();
+    for (i, r) in results.iter().enumerate() {
+        // [analytic] -k sin(1)
+        assert_eq!(*r, -(i as f64) * 1.0f64.sin());
+    }
 }

@@ -1,6 +1,9 @@
-//! The fast evaluator: a [`Plan`] whose trees are compiled into closures, and the
-//! [`Kernel`], a program with fixed parameter values that owns its registers.
+//! The closure evaluator, a [`Plan`] whose trees are compiled into closures, and the
+//! [`Kernel`], a program with fixed parameter values: machine code or closures.
 
+use std::sync::Arc;
+
+use super::native::NativeCode;
 use super::nodes::{Node, Root, compile};
 use super::plan::{Plan, Registers, Tree, registers};
 
@@ -139,13 +142,29 @@ fn count_operations(tree: &Tree) -> usize {
 }
 
 /// A program with its parameter values fixed, made by
-/// [`Program::specialise`](super::Program::specialise): parameters and everything that
-/// depends only on them are folded into constants. The fastest way to evaluate a program; it
-/// owns its registers, so it needs no [`Scratch`](super::Scratch).
-#[derive(Clone)]
+/// [`Program::specialise`](super::Program::specialise): the program's machine code with the
+/// parameter values it reads, or (where there is no machine code, or when asked for by
+/// [`Program::specialise_closures`](super::Program::specialise_closures)) compiled closures in
+/// which the parameters and everything that depends only on them are folded into constants.
+/// The fastest way to evaluate a program; it owns what it needs, so it needs no
+/// [`Scratch`](super::Scratch).
+#[derive(Clone, Debug)]
 pub struct Kernel {
-    compiled: Compiled,
-    registers: Box<Registers>,
+    form: Form,
+}
+
+#[derive(Clone, Debug)]
+enum Form {
+    /// Machine code (shared between the kernels of one program) and the parameter values.
+    Native {
+        code: Arc<NativeCode>,
+        parameters: Box<[f64]>,
+    },
+    /// Closures over their own registers.
+    Closures {
+        compiled: Compiled,
+        registers: Box<Registers>,
+    },
 }
 
 impl Kernel {
@@ -154,27 +173,51 @@ impl Kernel {
         let mut registers = registers();
         compiled.load_constants(&mut registers);
         Self {
-            compiled,
-            registers,
+            form: Form::Closures {
+                compiled,
+                registers,
+            },
         }
     }
 
-    /// Evaluates every output at `(t, x)` into `out`.
+    /// A kernel running `code` with `parameters`.
+    pub(super) fn native(code: Arc<NativeCode>, parameters: &[f64]) -> Self {
+        Self {
+            form: Form::Native {
+                code,
+                parameters: parameters.into(),
+            },
+        }
+    }
+
+    /// Evaluates every output at `(t, x)` into `out` (NaN in every output when `x` or `out` is
+    /// shorter than the program needs).
     #[inline]
     pub fn eval(&mut self, t: f64, x: &[f64], out: &mut [f64]) {
-        self.compiled.eval(&mut self.registers, t, x, &[], out);
+        match &mut self.form {
+            Form::Native { code, parameters } => {
+                if !code.eval(t, x, parameters, out) {
+                    out.fill(f64::NAN);
+                }
+            }
+            Form::Closures {
+                compiled,
+                registers,
+            } => compiled.eval(registers, t, x, &[], out),
+        }
     }
 
-    /// Operations per evaluation (after folding and fusing).
-    pub fn n_operations(&self) -> usize {
-        self.compiled.n_operations()
+    /// Whether this kernel runs machine code (rather than closures).
+    pub fn is_native(&self) -> bool {
+        matches!(self.form, Form::Native { .. })
     }
-}
 
-impl std::fmt::Debug for Kernel {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.debug_struct("Kernel")
-            .field("compiled", &self.compiled)
-            .finish_non_exhaustive()
+    /// Operations per evaluation of the closures (after folding and fusing), or `None` for
+    /// machine code.
+    pub fn n_operations(&self) -> Option<usize> {
+        match &self.form {
+            Form::Native { .. } => None,
+            Form::Closures { compiled, .. } => Some(compiled.n_operations()),
+        }
     }
 }

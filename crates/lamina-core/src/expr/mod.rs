@@ -1,5 +1,6 @@
 //! Typed expressions: parsing with `meval`, compiling a whole system of expressions into one
-//! evaluation program with shared subexpressions, compiling it into fast closures,
+//! evaluation program with shared subexpressions, compiling it into machine code (or fast
+//! closures where there is none),
 //! forward-mode derivatives from it, and its switching functions.
 
 mod compile;
@@ -9,6 +10,7 @@ mod fuse;
 mod instr;
 mod kernel;
 mod lower;
+mod native;
 mod nodes;
 mod plan;
 mod program;

@@ -1,9 +1,12 @@
 //! The compiled evaluation program: one straight-line instruction list for all outputs.
 
+use std::sync::{Arc, OnceLock};
+
 use super::compile::{Builder, compile_expression};
 use super::instr::{Func1, Instr};
 use super::kernel::{Compiled, Kernel};
 use super::lower::lower;
+use super::native::NativeCode;
 use super::plan::{Registers, registers};
 use super::{CompileError, Names};
 
@@ -29,6 +32,9 @@ pub struct Program {
     pub(super) outputs: Vec<u32>,
     /// The fast form (boxed: it is large, and a program sits in other types).
     fast: Option<Box<Compiled>>,
+    /// Machine code, made on first use by [`Program::specialise`] and shared by clones made
+    /// after that.
+    native: OnceLock<Option<Arc<NativeCode>>>,
     n_states: usize,
     n_parameters: usize,
     uses_time: bool,
@@ -93,6 +99,7 @@ impl Program {
             .map(Box::new);
         Self {
             fast,
+            native: OnceLock::new(),
             instrs: kept,
             outputs,
             n_states,
@@ -131,14 +138,41 @@ impl Program {
         }
     }
 
-    /// This program with the parameter values fixed to `parameters`: they are folded into
-    /// constants (with everything that depends only on them) and the kernel keeps its own
-    /// registers, so evaluating it is the fastest form. Make a new kernel when a parameter
-    /// changes. `None` when the program is too large for the register file (evaluate it with
-    /// [`Program::eval`] then).
+    /// This program with the parameter values fixed to `parameters`: the fastest form to
+    /// evaluate. It runs the program's machine code (made on the first call, then shared) with
+    /// these parameter values; where there is no machine code (see [`Kernel::is_native`]) it is
+    /// [`Program::specialise_closures`]. Make a new kernel when a parameter changes (cheap: the
+    /// code is not made again). `None` only when neither form can be made (no machine code and
+    /// a program too large for the register file: evaluate it with [`Program::eval`] then).
     pub fn specialise(&self, parameters: &[f64]) -> Option<Kernel> {
+        match self.native_code() {
+            Some(code) => Some(Kernel::native(code, parameters)),
+            None => self.specialise_closures(parameters),
+        }
+    }
+
+    /// This program with the parameter values fixed and folded into constants (with everything
+    /// that depends only on them), evaluated by compiled closures that own their registers: the
+    /// form used where no machine code can be made, and the one the machine code is measured
+    /// against. `None` when the program is too large for the register file.
+    pub fn specialise_closures(&self, parameters: &[f64]) -> Option<Kernel> {
         let plan = lower(&self.instrs, &self.outputs, Some(parameters))?;
         Compiled::new(plan).map(Kernel::new)
+    }
+
+    /// The program's machine code, made on the first call; `None` if the host has none.
+    fn native_code(&self) -> Option<Arc<NativeCode>> {
+        self.native
+            .get_or_init(|| {
+                NativeCode::compile(
+                    &self.instrs,
+                    &self.outputs,
+                    self.n_states,
+                    self.n_parameters,
+                )
+                .map(Arc::new)
+            })
+            .clone()
     }
 
     /// Evaluates every instruction into `scratch` (values only).

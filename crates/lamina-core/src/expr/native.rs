@@ -1,0 +1,430 @@
+//! Machine code for a program: its instruction list translated by the Cranelift code generator
+//! into one native function of the states, the parameters and the time.
+//!
+//! This is the fastest form of a program (a chain of coupled oscillators runs close to a
+//! hand-written closure; the closure evaluator of [`super::nodes`] pays a call per operation).
+//! The arithmetic is that of the reference evaluator operation for operation: additions,
+//! products, quotients, negation, `sqrt` and `abs` are single machine instructions (IEEE
+//! results, never fused into multiply-adds), and every other function calls the same Rust
+//! function the reference evaluator calls. So results agree with [`Program::eval_reference`]
+//! bit for bit (checked by property tests on random expressions).
+//!
+//! The code is made once per program, with the parameters read from memory on each call, so a
+//! parameter change (a sweep, a slider) costs no new code. If the host has no code generator
+//! (an architecture Cranelift does not support) or generation fails, there is no native code and
+//! the closure evaluator is used instead.
+//!
+//! [`Program::eval_reference`]: super::Program::eval_reference
+
+use std::sync::Mutex;
+
+use cranelift_codegen::ir::types::{F64, I32};
+use cranelift_codegen::ir::{
+    AbiParam, FuncRef, InstBuilder, MemFlagsData, Signature, UserFuncName, Value,
+};
+use cranelift_codegen::settings::{self, Configurable};
+use cranelift_frontend::{FunctionBuilder, FunctionBuilderContext};
+use cranelift_jit::{JITBuilder, JITModule};
+use cranelift_module::{Linkage, Module, default_libcall_names};
+
+use super::instr::{Func1, Func2, Instr, sign, step};
+
+/// The generated function: `(states, parameters, time, outputs)`.
+type Entry = extern "C" fn(*const f64, *const f64, f64, *mut f64);
+
+/// A program compiled to machine code. Shared between kernels (it is immutable once made).
+pub(super) struct NativeCode {
+    entry: Entry,
+    n_states: usize,
+    n_parameters: usize,
+    n_outputs: usize,
+    /// The module owning the code's memory; freed when this is dropped. Only touched then (the
+    /// mutex makes the holder shareable between threads).
+    module: Mutex<Option<JITModule>>,
+}
+
+impl NativeCode {
+    /// Machine code for `instrs` with the given outputs; `None` if the host has no code
+    /// generator or generation fails.
+    pub(super) fn compile(
+        instrs: &[Instr],
+        outputs: &[u32],
+        n_states: usize,
+        n_parameters: usize,
+    ) -> Option<Self> {
+        let mut module = new_module()?;
+        let entry_id = match generate(&mut module, instrs, outputs) {
+            Some(id) => id,
+            None => {
+                free(module);
+                return None;
+            }
+        };
+        if module.finalize_definitions().is_err() {
+            free(module);
+            return None;
+        }
+        let address = module.get_finalized_function(entry_id);
+        // SAFETY: `address` is the start of the function just generated with the signature
+        // `(pointer, pointer, f64, pointer)` in the host's default calling convention, which is
+        // the C convention of `Entry`. The function reads `states[0..n_states]` and
+        // `parameters[0..n_parameters]` and writes `outputs[0..n_outputs]` only (every index it
+        // uses comes from the program, whose states, parameters and outputs are within those
+        // counts, checked in `generate`), and `eval` checks the slice lengths before each call.
+        // The code stays mapped as long as `module` lives, which is as long as `self`, the only
+        // holder of the pointer.
+        #[allow(unsafe_code)]
+        let entry = unsafe { std::mem::transmute::<*const u8, Entry>(address) };
+        let max_state = instrs.iter().filter_map(|i| match *i {
+            Instr::State(k) => Some(k as usize + 1),
+            _ => None,
+        });
+        let max_param = instrs.iter().filter_map(|i| match *i {
+            Instr::Param(k) => Some(k as usize + 1),
+            _ => None,
+        });
+        Some(Self {
+            entry,
+            n_states: max_state.max().unwrap_or(0).max(n_states),
+            n_parameters: max_param.max().unwrap_or(0).max(n_parameters),
+            n_outputs: outputs.len(),
+            module: Mutex::new(Some(module)),
+        })
+    }
+
+    /// Evaluates every output into `out`. Returns `false` (and evaluates nothing) when a slice
+    /// is shorter than the program needs.
+    #[inline]
+    pub(super) fn eval(&self, t: f64, x: &[f64], p: &[f64], out: &mut [f64]) -> bool {
+        if x.len() < self.n_states || p.len() < self.n_parameters || out.len() < self.n_outputs {
+            return false;
+        }
+        (self.entry)(x.as_ptr(), p.as_ptr(), t, out.as_mut_ptr());
+        true
+    }
+}
+
+impl Drop for NativeCode {
+    fn drop(&mut self) {
+        if let Some(module) = self.module.get_mut().ok().and_then(Option::take) {
+            free(module);
+        }
+    }
+}
+
+impl std::fmt::Debug for NativeCode {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("NativeCode")
+            .field("n_states", &self.n_states)
+            .field("n_parameters", &self.n_parameters)
+            .field("n_outputs", &self.n_outputs)
+            .finish_non_exhaustive()
+    }
+}
+
+/// Releases the memory of `module`.
+fn free(module: JITModule) {
+    // SAFETY: called only when no pointer into the module's code survives: on a failed
+    // generation (no pointer was taken) or when the one `NativeCode` holding the pointer is
+    // dropped (so no call can be running: a call borrows the `NativeCode`).
+    #[allow(unsafe_code)]
+    unsafe {
+        module.free_memory();
+    }
+}
+
+/// A module for the host, optimising for speed; `None` if the host is not supported.
+fn new_module() -> Option<JITModule> {
+    let mut flags = settings::builder();
+    flags.set("opt_level", "speed").ok()?;
+    // long-range calls and absolute addresses, as the JIT needs (see `JITBuilder::with_flags`)
+    flags.set("use_colocated_libcalls", "false").ok()?;
+    flags.set("is_pic", "false").ok()?;
+    let isa = cranelift_native::builder()
+        .ok()?
+        .finish(settings::Flags::new(flags))
+        .ok()?;
+    let mut builder = JITBuilder::with_isa(isa, default_libcall_names());
+    for (name, address) in calls() {
+        builder.symbol(name, address);
+    }
+    Some(JITModule::new(builder))
+}
+
+/// Declares and defines the entry function; `None` if something does not fit.
+fn generate(
+    module: &mut JITModule,
+    instrs: &[Instr],
+    outputs: &[u32],
+) -> Option<cranelift_module::FuncId> {
+    let config = module.target_config();
+    let pointer = config.pointer_type();
+    let mut signature = module.make_signature();
+    signature.params.push(AbiParam::new(pointer));
+    signature.params.push(AbiParam::new(pointer));
+    signature.params.push(AbiParam::new(F64));
+    signature.params.push(AbiParam::new(pointer));
+    let id = module
+        .declare_function("lamina_rates", Linkage::Local, &signature)
+        .ok()?;
+    let mut context = module.make_context();
+    context.func.signature = signature;
+    context.func.name = UserFuncName::user(0, id.as_u32());
+    let mut builder_context = FunctionBuilderContext::new();
+    {
+        let mut b = FunctionBuilder::new(&mut context.func, &mut builder_context);
+        let block = b.create_block();
+        b.append_block_params_for_function_params(block);
+        b.switch_to_block(block);
+        b.seal_block(block);
+        let params = b.block_params(block).to_vec();
+        let [x, p, t, out] = params[..] else {
+            return None;
+        };
+        let mut calls = Calls::default();
+        let flags = MemFlagsData::trusted();
+        let mut values: Vec<Value> = Vec::with_capacity(instrs.len());
+        for instr in instrs {
+            let arg = |a: u32| values.get(a as usize).copied();
+            let v = match *instr {
+                Instr::Const(c) => b.ins().f64const(c),
+                Instr::State(i) => b.ins().load(F64, flags, x, offset(i)?),
+                Instr::Param(i) => b.ins().load(F64, flags, p, offset(i)?),
+                Instr::Time => t,
+                Instr::Neg(a) => b.ins().fneg(arg(a)?),
+                Instr::Add(a, c) => b.ins().fadd(arg(a)?, arg(c)?),
+                Instr::Sub(a, c) => b.ins().fsub(arg(a)?, arg(c)?),
+                Instr::Mul(a, c) => b.ins().fmul(arg(a)?, arg(c)?),
+                Instr::Div(a, c) => b.ins().fdiv(arg(a)?, arg(c)?),
+                Instr::Rem(a, c) => {
+                    let f = calls.get(module, &mut b, Call::Rem)?;
+                    call(&mut b, f, &[arg(a)?, arg(c)?])?
+                }
+                Instr::Pow(a, c) => {
+                    let f = calls.get(module, &mut b, Call::Pow)?;
+                    call(&mut b, f, &[arg(a)?, arg(c)?])?
+                }
+                Instr::PowI(a, n) => match n {
+                    // what `powi` computes for these exponents, exactly
+                    1 => arg(a)?,
+                    2 => {
+                        let a = arg(a)?;
+                        b.ins().fmul(a, a)
+                    }
+                    _ => {
+                        let f = calls.get(module, &mut b, Call::PowI)?;
+                        let n = b.ins().iconst(I32, i64::from(n));
+                        call(&mut b, f, &[arg(a)?, n])?
+                    }
+                },
+                Instr::F1(Func1::Sqrt, a) => b.ins().sqrt(arg(a)?),
+                Instr::F1(Func1::Abs, a) => b.ins().fabs(arg(a)?),
+                Instr::F1(func, a) => {
+                    let f = calls.get(module, &mut b, Call::F1(func))?;
+                    call(&mut b, f, &[arg(a)?])?
+                }
+                Instr::F2(func, a, c) => {
+                    let f = calls.get(module, &mut b, Call::F2(func))?;
+                    call(&mut b, f, &[arg(a)?, arg(c)?])?
+                }
+            };
+            values.push(v);
+        }
+        for (k, &o) in outputs.iter().enumerate() {
+            let v = values.get(o as usize).copied()?;
+            b.ins()
+                .store(flags, v, out, offset(u32::try_from(k).ok()?)?);
+        }
+        b.ins().return_(&[]);
+        b.finalize(config);
+    }
+    module.define_function(id, &mut context).ok()?;
+    module.clear_context(&mut context);
+    Some(id)
+}
+
+/// Byte offset of element `i` of an `f64` array.
+fn offset(i: u32) -> Option<i32> {
+    i32::try_from(u64::from(i) * 8).ok()
+}
+
+/// Emits a call and returns its result.
+fn call(b: &mut FunctionBuilder, f: FuncRef, args: &[Value]) -> Option<Value> {
+    let inst = b.ins().call(f, args);
+    b.inst_results(inst).first().copied()
+}
+
+/// A Rust function the generated code calls.
+#[derive(Clone, Copy, PartialEq)]
+enum Call {
+    Rem,
+    Pow,
+    PowI,
+    F1(Func1),
+    F2(Func2),
+}
+
+impl Call {
+    /// The symbol name under which the function is registered in [`calls`].
+    fn symbol(self) -> &'static str {
+        match self {
+            Self::Rem => "lamina_rem",
+            Self::Pow => "lamina_pow",
+            Self::PowI => "lamina_powi",
+            Self::F2(Func2::Atan2) => "lamina_atan2",
+            Self::F2(Func2::Min) => "lamina_min",
+            Self::F2(Func2::Max) => "lamina_max",
+            Self::F1(f) => match f {
+                Func1::Sin => "lamina_sin",
+                Func1::Cos => "lamina_cos",
+                Func1::Tan => "lamina_tan",
+                Func1::Asin => "lamina_asin",
+                Func1::Acos => "lamina_acos",
+                Func1::Atan => "lamina_atan",
+                Func1::Sinh => "lamina_sinh",
+                Func1::Cosh => "lamina_cosh",
+                Func1::Tanh => "lamina_tanh",
+                Func1::Exp => "lamina_exp",
+                Func1::Ln => "lamina_ln",
+                Func1::Log10 => "lamina_log10",
+                Func1::Sqrt => "lamina_sqrt",
+                Func1::Abs => "lamina_abs",
+                Func1::Sign => "lamina_sign",
+                Func1::Floor => "lamina_floor",
+                Func1::Ceil => "lamina_ceil",
+                Func1::Step => "lamina_step",
+            },
+        }
+    }
+
+    /// The function's signature: `f64` arguments (an `i32` exponent for `PowI`), one `f64`
+    /// result.
+    fn signature(self, module: &JITModule) -> Signature {
+        let mut s = module.make_signature();
+        s.params.push(AbiParam::new(F64));
+        match self {
+            Self::F1(_) => {}
+            Self::PowI => s.params.push(AbiParam::new(I32)),
+            Self::Rem | Self::Pow | Self::F2(_) => s.params.push(AbiParam::new(F64)),
+        }
+        s.returns.push(AbiParam::new(F64));
+        s
+    }
+}
+
+/// The called functions imported into the function being generated so far.
+#[derive(Default)]
+struct Calls {
+    imported: Vec<(Call, FuncRef)>,
+}
+
+impl Calls {
+    /// The reference to `call` in the function being built, importing it on first use.
+    fn get(
+        &mut self,
+        module: &mut JITModule,
+        b: &mut FunctionBuilder,
+        call: Call,
+    ) -> Option<FuncRef> {
+        if let Some(&(_, f)) = self.imported.iter().find(|(c, _)| *c == call) {
+            return Some(f);
+        }
+        let signature = call.signature(module);
+        let id = module
+            .declare_function(call.symbol(), Linkage::Import, &signature)
+            .ok()?;
+        let f = module.declare_func_in_func(id, b.func);
+        self.imported.push((call, f));
+        Some(f)
+    }
+}
+
+macro_rules! unary_calls {
+    ($($name:ident => $body:expr),* $(,)?) => {
+        $(extern "C" fn $name(a: f64) -> f64 {
+            let f: fn(f64) -> f64 = $body;
+            f(a)
+        })*
+    };
+}
+
+unary_calls! {
+    lamina_sin => f64::sin,
+    lamina_cos => f64::cos,
+    lamina_tan => f64::tan,
+    lamina_asin => f64::asin,
+    lamina_acos => f64::acos,
+    lamina_atan => f64::atan,
+    lamina_sinh => f64::sinh,
+    lamina_cosh => f64::cosh,
+    lamina_tanh => f64::tanh,
+    lamina_exp => f64::exp,
+    lamina_ln => f64::ln,
+    lamina_log10 => f64::log10,
+    lamina_sqrt => f64::sqrt,
+    lamina_abs => f64::abs,
+    lamina_sign => sign,
+    lamina_floor => f64::floor,
+    lamina_ceil => f64::ceil,
+    lamina_step => step,
+}
+
+extern "C" fn lamina_rem(a: f64, b: f64) -> f64 {
+    a % b
+}
+
+extern "C" fn lamina_pow(a: f64, b: f64) -> f64 {
+    a.powf(b)
+}
+
+extern "C" fn lamina_powi(a: f64, n: i32) -> f64 {
+    super::instr::powi(a, n)
+}
+
+extern "C" fn lamina_atan2(a: f64, b: f64) -> f64 {
+    Func2::Atan2.apply(a, b)
+}
+
+extern "C" fn lamina_min(a: f64, b: f64) -> f64 {
+    Func2::Min.apply(a, b)
+}
+
+extern "C" fn lamina_max(a: f64, b: f64) -> f64 {
+    Func2::Max.apply(a, b)
+}
+
+type Unary = extern "C" fn(f64) -> f64;
+type Binary = extern "C" fn(f64, f64) -> f64;
+
+/// The functions generated code may call, by symbol name.
+fn calls() -> [(&'static str, *const u8); 24] {
+    [
+        ("lamina_sin", lamina_sin as Unary as *const u8),
+        ("lamina_cos", lamina_cos as Unary as *const u8),
+        ("lamina_tan", lamina_tan as Unary as *const u8),
+        ("lamina_asin", lamina_asin as Unary as *const u8),
+        ("lamina_acos", lamina_acos as Unary as *const u8),
+        ("lamina_atan", lamina_atan as Unary as *const u8),
+        ("lamina_sinh", lamina_sinh as Unary as *const u8),
+        ("lamina_cosh", lamina_cosh as Unary as *const u8),
+        ("lamina_tanh", lamina_tanh as Unary as *const u8),
+        ("lamina_exp", lamina_exp as Unary as *const u8),
+        ("lamina_ln", lamina_ln as Unary as *const u8),
+        ("lamina_log10", lamina_log10 as Unary as *const u8),
+        ("lamina_sqrt", lamina_sqrt as Unary as *const u8),
+        ("lamina_abs", lamina_abs as Unary as *const u8),
+        ("lamina_sign", lamina_sign as Unary as *const u8),
+        ("lamina_floor", lamina_floor as Unary as *const u8),
+        ("lamina_ceil", lamina_ceil as Unary as *const u8),
+        ("lamina_step", lamina_step as Unary as *const u8),
+        ("lamina_rem", lamina_rem as Binary as *const u8),
+        ("lamina_pow", lamina_pow as Binary as *const u8),
+        (
+            "lamina_powi",
+            lamina_powi as extern "C" fn(f64, i32) -> f64 as *const u8,
+        ),
+        ("lamina_atan2", lamina_atan2 as Binary as *const u8),
+        ("lamina_min", lamina_min as Binary as *const u8),
+        ("lamina_max", lamina_max as Binary as *const u8),
+    ]
+}
