@@ -242,6 +242,11 @@ impl ExplorerApp {
         self.execution.worker.is_running()
     }
 
+    /// Opens or closes the analysis panel (orbits and exponents).
+    pub fn show_analysis_panel(&mut self, on: bool) {
+        self.show_analysis = on;
+    }
+
     /// One frame of the whole window.
     pub fn show(&mut self, ui: &mut Ui) {
         let ctx = ui.ctx().clone();

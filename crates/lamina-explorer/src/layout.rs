@@ -440,8 +440,7 @@ fn plane_in_view(app: &ExplorerApp) -> Option<(PlaneGeometry, f64)> {
             .find(|(m, _)| m == name)
             .map_or(0.0, |(_, w)| *w);
         if w != 0.0 && !traj.is_empty() {
-            let mean = (0..traj.len()).map(|i| traj.state(i)[idx]).sum::<f64>() / traj.len() as f64;
-            hidden += w * mean;
+            hidden += w * traj.mean(idx);
         }
     }
     Some((
@@ -453,7 +452,12 @@ fn plane_in_view(app: &ExplorerApp) -> Option<(PlaneGeometry, f64)> {
     ))
 }
 
-/// The three main views side by side, resizable, each with a maximise button.
+/// Narrowest a main view is laid out side by side with the others; below this the four views
+/// of a sweep go into two rows of two.
+const MIN_TILE_WIDTH: f32 = 330.0;
+
+/// The main views side by side (or, when four would be too narrow, in two rows of two),
+/// resizable, each with an enlarge button.
 pub fn main_views(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
     egui::CentralPanel::default().show(ui, |ui| {
         let full = ui.available_rect_before_wrap();
@@ -465,51 +469,18 @@ pub fn main_views(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>)
             _ => vec![0, 1, 2],
         };
         let gap = 8.0;
-        let total_weight: f32 = shown
-            .iter()
-            .map(|&i| app.settings.tile_weights[i].max(0.05))
-            .sum();
-        let usable = full.width() - gap * (shown.len() as f32 - 1.0);
-        let mut x = full.left();
+        let rows: Vec<&[usize]> = if shown.len() == 4 && full.width() / 4.0 < MIN_TILE_WIDTH {
+            vec![&shown[..2], &shown[2..]]
+        } else {
+            vec![&shown[..]]
+        };
+        let row_height = (full.height() - gap * (rows.len() as f32 - 1.0)) / rows.len() as f32;
         let mut rects = Vec::new();
-        for &i in &shown {
-            let w = usable * app.settings.tile_weights[i].max(0.05) / total_weight;
-            rects.push((
-                i,
-                Rect::from_min_size(egui::pos2(x, full.top()), vec2(w, full.height())),
-            ));
-            x += w + gap;
-        }
-        // splitters between tiles
-        for pair in rects.windows(2) {
-            let (a, ra) = pair[0];
-            let (b, _) = pair[1];
-            let handle = Rect::from_min_max(
-                egui::pos2(ra.right(), full.top()),
-                egui::pos2(ra.right() + gap, full.bottom()),
-            );
-            let response = ui.interact(handle, ui.scope_id().with(("splitter", a)), Sense::drag());
-            if response.hovered() || response.dragged() {
-                ui.ctx().set_cursor_icon(egui::CursorIcon::ResizeHorizontal);
-            }
-            ui.painter().line_segment(
-                [handle.center_top(), handle.center_bottom()],
-                egui::Stroke::new(
-                    if response.dragged() { 2.0 } else { 1.0 },
-                    Color32::from_gray(70),
-                ),
-            );
-            if response.dragged() {
-                let dx = response.drag_delta().x / usable * total_weight;
-                let (wa, wb) = (
-                    app.settings.tile_weights[a] + dx,
-                    app.settings.tile_weights[b] - dx,
-                );
-                if wa > 0.15 && wb > 0.15 {
-                    app.settings.tile_weights[a] = wa;
-                    app.settings.tile_weights[b] = wb;
-                }
-            }
+        for (r, row) in rows.iter().enumerate() {
+            let top = full.top() + r as f32 * (row_height + gap);
+            let band =
+                Rect::from_min_size(egui::pos2(full.left(), top), vec2(full.width(), row_height));
+            rects.extend(row_ui(app, ui, row, band, gap));
         }
         for (i, rect) in rects {
             let mut tile = ui.new_child(egui::UiBuilder::new().max_rect(rect).id_salt(("tile", i)));
@@ -519,6 +490,63 @@ pub fn main_views(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>)
     });
     let ctx = ui.ctx().clone();
     app.receive_screenshot(&ctx);
+}
+
+/// Lays the views `row` out across `band` by their weights, with a draggable splitter between
+/// neighbours; returns each view's rectangle.
+fn row_ui(
+    app: &mut ExplorerApp,
+    ui: &mut Ui,
+    row: &[usize],
+    band: Rect,
+    gap: f32,
+) -> Vec<(usize, Rect)> {
+    let total_weight: f32 = row
+        .iter()
+        .map(|&i| app.settings.tile_weights[i].max(0.05))
+        .sum();
+    let usable = band.width() - gap * (row.len() as f32 - 1.0);
+    let mut x = band.left();
+    let mut rects = Vec::new();
+    for &i in row {
+        let w = usable * app.settings.tile_weights[i].max(0.05) / total_weight;
+        rects.push((
+            i,
+            Rect::from_min_size(egui::pos2(x, band.top()), vec2(w, band.height())),
+        ));
+        x += w + gap;
+    }
+    for pair in rects.windows(2) {
+        let (a, ra) = pair[0];
+        let (b, _) = pair[1];
+        let handle = Rect::from_min_max(
+            egui::pos2(ra.right(), band.top()),
+            egui::pos2(ra.right() + gap, band.bottom()),
+        );
+        let response = ui.interact(handle, ui.scope_id().with(("splitter", a)), Sense::drag());
+        if response.hovered() || response.dragged() {
+            ui.ctx().set_cursor_icon(egui::CursorIcon::ResizeHorizontal);
+        }
+        ui.painter().line_segment(
+            [handle.center_top(), handle.center_bottom()],
+            egui::Stroke::new(
+                if response.dragged() { 2.0 } else { 1.0 },
+                Color32::from_gray(70),
+            ),
+        );
+        if response.dragged() {
+            let dx = response.drag_delta().x / usable * total_weight;
+            let (wa, wb) = (
+                app.settings.tile_weights[a] + dx,
+                app.settings.tile_weights[b] - dx,
+            );
+            if wa > 0.15 && wb > 0.15 {
+                app.settings.tile_weights[a] = wa;
+                app.settings.tile_weights[b] = wb;
+            }
+        }
+    }
+    rects
 }
 
 fn tile_ui(
@@ -535,7 +563,7 @@ fn tile_ui(
             if ui
                 .small_button(if maximised { "restore" } else { "enlarge" })
                 .on_hover_text(if maximised {
-                    "Back to three views"
+                    "Back to all the views"
                 } else {
                     "Fill the window with this view"
                 })

@@ -40,11 +40,19 @@ pub struct PointCloud {
     pub revision: u64,
 }
 
+/// A first revision no other cloud or trajectory of this process has started from, so a view's
+/// cache keyed by a revision never mistakes a new run's data for an old run's.
+fn first_revision() -> u64 {
+    static EPOCHS: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(1);
+    EPOCHS.fetch_add(1, std::sync::atomic::Ordering::Relaxed) << 40
+}
+
 impl PointCloud {
     /// An empty cloud of `dim`-state points.
     pub fn new(dim: usize) -> Self {
         Self {
             dim,
+            revision: first_revision(),
             ..Self::default()
         }
     }
@@ -143,7 +151,9 @@ pub struct Trajectory {
     /// Time of each sample.
     pub t: Vec<f64>,
     states: Vec<f64>,
-    /// Bumped on every change.
+    /// Sum of each state over the samples kept (for [`Trajectory::mean`]).
+    sums: Vec<f64>,
+    /// Bumped on every change, so views can cache what they derive.
     pub revision: u64,
 }
 
@@ -156,6 +166,7 @@ impl Trajectory {
     pub fn new(dim: usize) -> Self {
         Self {
             dim,
+            revision: first_revision(),
             ..Self::default()
         }
     }
@@ -187,7 +198,19 @@ impl Trajectory {
         }
         self.t.push(t);
         self.states.extend_from_slice(state);
+        self.sums.resize(self.dim, 0.0);
+        for (sum, v) in self.sums.iter_mut().zip(state) {
+            *sum += v;
+        }
         self.revision += 1;
+    }
+
+    /// Mean of state `idx` over the samples kept (NaN when there are none).
+    pub fn mean(&self, idx: usize) -> f64 {
+        match self.sums.get(idx) {
+            Some(sum) if !self.t.is_empty() => sum / self.t.len() as f64,
+            _ => f64::NAN,
+        }
     }
 
     fn thin(&mut self) {
@@ -201,6 +224,12 @@ impl Trajectory {
         }
         self.t.truncate(w);
         self.states.truncate(w * dim);
+        self.sums = vec![0.0; dim];
+        for state in self.states.chunks_exact(dim.max(1)) {
+            for (sum, v) in self.sums.iter_mut().zip(state) {
+                *sum += v;
+            }
+        }
     }
 }
 
@@ -262,5 +291,40 @@ impl Results {
             run: None,
             strobe_period: None,
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_running_mean_follows_pushes_and_thinning() {
+        let mut trajectory = Trajectory::new(2);
+        assert!(trajectory.mean(0).is_nan());
+        let n = MAX_TRAJECTORY_SAMPLES + 10;
+        for i in 0..n {
+            let v = i as f64;
+            trajectory.push(v, &[v, 1.0]);
+        }
+        // after one thinning the even samples 0, 2, ..., up to the limit are kept, then the
+        // last ten pushes: the mean is that of the values kept [analytic]
+        let kept: Vec<f64> = (0..trajectory.len())
+            .map(|i| trajectory.state(i)[0])
+            .collect();
+        let direct = kept.iter().sum::<f64>() / kept.len() as f64;
+        assert!((trajectory.mean(0) - direct).abs() <= 1e-9 * direct);
+        assert_eq!(trajectory.mean(1), 1.0);
+        assert!(trajectory.mean(2).is_nan());
+    }
+
+    #[test]
+    fn new_clouds_and_trajectories_never_share_a_revision() {
+        // [common practice] cache keys must not repeat across runs
+        let a = PointCloud::new(2);
+        let b = PointCloud::new(2);
+        let c = Trajectory::new(2);
+        assert_ne!(a.revision, b.revision);
+        assert_ne!(b.revision, c.revision);
     }
 }

@@ -365,3 +365,34 @@ fn the_exponents_panel_gives_the_spectrum_of_a_linear_spiral() {
     }
     h.get_by_label_contains("verdict:");
 }
+
+/// Where the title of main view `title` is.
+fn title_rect(h: &Harness<'static, ExplorerApp>, title: &str) -> egui::Rect {
+    h.get_by_label(title).rect()
+}
+
+#[test]
+fn four_views_too_narrow_for_one_row_go_into_two() {
+    // the demo has a sweep, so it shows four main views; with the analysis panel open, a
+    // window 1200 wide leaves each under the narrowest width that stays readable
+    let mut app = app();
+    app.show_analysis_panel(true);
+    let mut h = Harness::builder()
+        .with_size(egui::vec2(1200.0, 900.0))
+        .with_max_steps(20)
+        .build_ui_state(|ui, app: &mut ExplorerApp| app.show(ui), app);
+    steps(&mut h, 3);
+    let trajectory = title_rect(&h, "Trajectory (3D)");
+    let cut = title_rect(&h, "Cut points");
+    let strobe = title_rect(&h, "Strobe samples");
+    let orbit = title_rect(&h, "Orbit diagram");
+    assert!((trajectory.top() - cut.top()).abs() < 1.0, "first row");
+    assert!((strobe.top() - orbit.top()).abs() < 1.0, "second row");
+    assert!(strobe.top() > trajectory.bottom() + 100.0, "rows stacked");
+    // wide enough: one row of four
+    h.set_size(egui::vec2(2600.0, 900.0));
+    steps(&mut h, 3);
+    let trajectory = title_rect(&h, "Trajectory (3D)");
+    let orbit = title_rect(&h, "Orbit diagram");
+    assert!((trajectory.top() - orbit.top()).abs() < 1.0, "one row");
+}
