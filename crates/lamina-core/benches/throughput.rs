@@ -313,6 +313,42 @@ fn report_code_generation() {
     );
 }
 
+/// Prints the time of one Jacobian of the chain (20 x 20): machine code and the tangents
+/// pushed through the instruction list.
+fn report_jacobian() {
+    let model = typed_chain();
+    let program = model.program();
+    let parameters = model.parameters();
+    let mut scratch = program.scratch();
+    let x: Vec<f64> = (0..20).map(|i| 0.1 * i as f64 - 0.7).collect();
+    let mut out = vec![0.0; 400];
+    const N: usize = 20_000;
+    let mut time = |reference: bool| {
+        let started = ProcessTime::now();
+        for k in 0..N {
+            let t = k as f64 * 1e-3;
+            if reference {
+                program.jacobian_reference(&mut scratch, t, &x, parameters, &mut out);
+            } else {
+                program.jacobian(&mut scratch, t, &x, parameters, &mut out);
+            }
+            black_box(&out);
+        }
+        started.elapsed().as_secs_f64() / N as f64
+    };
+    let mut code = Vec::new();
+    let mut reference = Vec::new();
+    for _ in 0..ROUNDS {
+        code.push(time(false));
+        reference.push(time(true));
+    }
+    println!(
+        "  chain Jacobian (20 x 20): machine code {:.2} us, tangents through the list {:.2} us",
+        median(code) * 1e6,
+        median(reference) * 1e6
+    );
+}
+
 fn median(mut v: Vec<f64>) -> f64 {
     v.sort_by(f64::total_cmp);
     v[v.len() / 2]
@@ -344,6 +380,7 @@ fn main() {
     report(&chain, CHAIN_CROSSINGS);
     println!("  chain typed/native: {:.3}", chain.typed / chain.native);
     report_code_generation();
+    report_jacobian();
 
     // A stored run of 10^6 steps, re-sliced by a moved plane.
     let mut model = typed_lorenz();

@@ -130,6 +130,17 @@ proptest! {
             prop_assert!(same(native[i], reference[i]), "native {i}: {} vs {}", native[i], reference[i]);
             prop_assert!(same(fixed[i], reference[i]), "closures {i}: {} vs {}", fixed[i], reference[i]);
         }
+        // the Jacobian: machine code against tangents pushed through the list
+        let mut jacobian = [0.0; 6];
+        program.jacobian(&mut scratch, t, &state, &parameters, &mut jacobian);
+        let mut jacobian_reference = [0.0; 6];
+        program.jacobian_reference(&mut scratch, t, &state, &parameters, &mut jacobian_reference);
+        for i in 0..6 {
+            prop_assert!(
+                same(jacobian[i], jacobian_reference[i]),
+                "jacobian {i}: {} vs {}", jacobian[i], jacobian_reference[i]
+            );
+        }
         // the one-output path
         let single = Program::compile(&n, &[("f".into(), f.as_str())]).expect("compiles");
         let one = single.eval_one(&mut single.scratch(), t, &state, &parameters);

@@ -52,8 +52,52 @@ impl NativeCode {
         n_states: usize,
         n_parameters: usize,
     ) -> Option<Self> {
+        Self::build(instrs, outputs.len(), n_states, n_parameters, |g| {
+            let values = g.values(instrs)?;
+            for (k, &o) in outputs.iter().enumerate() {
+                let v = values.get(o as usize).copied()?;
+                g.store(v, k)?;
+            }
+            Some(())
+        })
+    }
+
+    /// Machine code for the Jacobian of the outputs with respect to the states, row-major
+    /// (`n_states` entries per output): forward-mode tangents pushed through the instructions
+    /// exactly as [`super::tangent`] does (same coefficients, same skipping of zero
+    /// tangents), but only along the states each value depends on.
+    pub(super) fn compile_jacobian(
+        instrs: &[Instr],
+        outputs: &[u32],
+        n_states: usize,
+        n_parameters: usize,
+    ) -> Option<Self> {
+        let n_outputs = outputs.len().checked_mul(n_states)?;
+        Self::build(instrs, n_outputs, n_states, n_parameters, |g| {
+            let values = g.values(instrs)?;
+            let tangents = super::native_tangent::tangents(g, instrs, &values)?;
+            let zero = g.b.ins().f64const(0.0);
+            for (row, &o) in outputs.iter().enumerate() {
+                let tangent = tangents.get(o as usize)?;
+                for j in 0..n_states {
+                    let v = tangent.get(j).unwrap_or(zero);
+                    g.store(v, row * n_states + j)?;
+                }
+            }
+            Some(())
+        })
+    }
+
+    /// Generates one function with `body` and makes it callable.
+    fn build(
+        instrs: &[Instr],
+        n_outputs: usize,
+        n_states: usize,
+        n_parameters: usize,
+        body: impl FnOnce(&mut Gen<'_, '_>) -> Option<()>,
+    ) -> Option<Self> {
         let mut module = new_module()?;
-        let entry_id = match generate(&mut module, instrs, outputs) {
+        let entry_id = match generate(&mut module, body) {
             Some(id) => id,
             None => {
                 free(module);
@@ -68,11 +112,11 @@ impl NativeCode {
         // SAFETY: `address` is the start of the function just generated with the signature
         // `(pointer, pointer, f64, pointer)` in the host's default calling convention, which is
         // the C convention of `Entry`. The function reads `states[0..n_states]` and
-        // `parameters[0..n_parameters]` and writes `outputs[0..n_outputs]` only (every index it
-        // uses comes from the program, whose states, parameters and outputs are within those
-        // counts, checked in `generate`), and `eval` checks the slice lengths before each call.
-        // The code stays mapped as long as `module` lives, which is as long as `self`, the only
-        // holder of the pointer.
+        // `parameters[0..n_parameters]` and writes `outputs[0..n_outputs]` only (the counts
+        // below cover every index in the instructions, and `Gen::store` is given indices below
+        // `n_outputs`), and `eval` checks the slice lengths before each call. The code stays
+        // mapped as long as `module` lives, which is as long as `self`, the only holder of the
+        // pointer.
         #[allow(unsafe_code)]
         let entry = unsafe { std::mem::transmute::<*const u8, Entry>(address) };
         let max_state = instrs.iter().filter_map(|i| match *i {
@@ -87,7 +131,7 @@ impl NativeCode {
             entry,
             n_states: max_state.max().unwrap_or(0).max(n_states),
             n_parameters: max_param.max().unwrap_or(0).max(n_parameters),
-            n_outputs: outputs.len(),
+            n_outputs,
             module: Mutex::new(Some(module)),
         })
     }
@@ -151,11 +195,11 @@ fn new_module() -> Option<JITModule> {
     Some(JITModule::new(builder))
 }
 
-/// Declares and defines the entry function; `None` if something does not fit.
+/// Declares and defines the entry function, its body written by `body`; `None` if something
+/// does not fit.
 fn generate(
     module: &mut JITModule,
-    instrs: &[Instr],
-    outputs: &[u32],
+    body: impl FnOnce(&mut Gen<'_, '_>) -> Option<()>,
 ) -> Option<cranelift_module::FuncId> {
     let config = module.target_config();
     let pointer = config.pointer_type();
@@ -181,60 +225,17 @@ fn generate(
         let [x, p, t, out] = params[..] else {
             return None;
         };
-        let mut calls = Calls::default();
-        let flags = MemFlagsData::trusted();
-        let mut values: Vec<Value> = Vec::with_capacity(instrs.len());
-        for instr in instrs {
-            let arg = |a: u32| values.get(a as usize).copied();
-            let v = match *instr {
-                Instr::Const(c) => b.ins().f64const(c),
-                Instr::State(i) => b.ins().load(F64, flags, x, offset(i)?),
-                Instr::Param(i) => b.ins().load(F64, flags, p, offset(i)?),
-                Instr::Time => t,
-                Instr::Neg(a) => b.ins().fneg(arg(a)?),
-                Instr::Add(a, c) => b.ins().fadd(arg(a)?, arg(c)?),
-                Instr::Sub(a, c) => b.ins().fsub(arg(a)?, arg(c)?),
-                Instr::Mul(a, c) => b.ins().fmul(arg(a)?, arg(c)?),
-                Instr::Div(a, c) => b.ins().fdiv(arg(a)?, arg(c)?),
-                Instr::Rem(a, c) => {
-                    let f = calls.get(module, &mut b, Call::Rem)?;
-                    call(&mut b, f, &[arg(a)?, arg(c)?])?
-                }
-                Instr::Pow(a, c) => {
-                    let f = calls.get(module, &mut b, Call::Pow)?;
-                    call(&mut b, f, &[arg(a)?, arg(c)?])?
-                }
-                Instr::PowI(a, n) => match n {
-                    // what `powi` computes for these exponents, exactly
-                    1 => arg(a)?,
-                    2 => {
-                        let a = arg(a)?;
-                        b.ins().fmul(a, a)
-                    }
-                    _ => {
-                        let f = calls.get(module, &mut b, Call::PowI)?;
-                        let n = b.ins().iconst(I32, i64::from(n));
-                        call(&mut b, f, &[arg(a)?, n])?
-                    }
-                },
-                Instr::F1(Func1::Sqrt, a) => b.ins().sqrt(arg(a)?),
-                Instr::F1(Func1::Abs, a) => b.ins().fabs(arg(a)?),
-                Instr::F1(func, a) => {
-                    let f = calls.get(module, &mut b, Call::F1(func))?;
-                    call(&mut b, f, &[arg(a)?])?
-                }
-                Instr::F2(func, a, c) => {
-                    let f = calls.get(module, &mut b, Call::F2(func))?;
-                    call(&mut b, f, &[arg(a)?, arg(c)?])?
-                }
-            };
-            values.push(v);
-        }
-        for (k, &o) in outputs.iter().enumerate() {
-            let v = values.get(o as usize).copied()?;
-            b.ins()
-                .store(flags, v, out, offset(u32::try_from(k).ok()?)?);
-        }
+        let mut g = Gen {
+            module: &mut *module,
+            b,
+            calls: Vec::new(),
+            x,
+            p,
+            t,
+            out,
+        };
+        body(&mut g)?;
+        let mut b = g.b;
         b.ins().return_(&[]);
         b.finalize(config);
     }
@@ -243,25 +244,107 @@ fn generate(
     Some(id)
 }
 
+/// The function being generated: its builder, its arguments and the functions it calls.
+pub(super) struct Gen<'m, 'f> {
+    module: &'m mut JITModule,
+    /// The instruction builder.
+    pub(super) b: FunctionBuilder<'f>,
+    calls: Vec<(Call, FuncRef)>,
+    x: Value,
+    p: Value,
+    t: Value,
+    out: Value,
+}
+
+impl Gen<'_, '_> {
+    /// Emits every instruction's value, in order.
+    fn values(&mut self, instrs: &[Instr]) -> Option<Vec<Value>> {
+        let flags = MemFlagsData::trusted();
+        let mut values: Vec<Value> = Vec::with_capacity(instrs.len());
+        for instr in instrs {
+            let arg = |a: u32| values.get(a as usize).copied();
+            let v = match *instr {
+                Instr::Const(c) => self.b.ins().f64const(c),
+                Instr::State(i) => self.b.ins().load(F64, flags, self.x, offset(i)?),
+                Instr::Param(i) => self.b.ins().load(F64, flags, self.p, offset(i)?),
+                Instr::Time => self.t,
+                Instr::Neg(a) => self.b.ins().fneg(arg(a)?),
+                Instr::Add(a, c) => self.b.ins().fadd(arg(a)?, arg(c)?),
+                Instr::Sub(a, c) => self.b.ins().fsub(arg(a)?, arg(c)?),
+                Instr::Mul(a, c) => self.b.ins().fmul(arg(a)?, arg(c)?),
+                Instr::Div(a, c) => self.b.ins().fdiv(arg(a)?, arg(c)?),
+                Instr::Rem(a, c) => self.call(Call::Rem, &[arg(a)?, arg(c)?])?,
+                Instr::Pow(a, c) => self.call(Call::Pow, &[arg(a)?, arg(c)?])?,
+                Instr::PowI(a, n) => self.powi(arg(a)?, n)?,
+                Instr::F1(Func1::Sqrt, a) => self.b.ins().sqrt(arg(a)?),
+                Instr::F1(Func1::Abs, a) => self.b.ins().fabs(arg(a)?),
+                Instr::F1(func, a) => self.call(Call::F1(func), &[arg(a)?])?,
+                Instr::F2(func, a, c) => self.call(Call::F2(func), &[arg(a)?, arg(c)?])?,
+            };
+            values.push(v);
+        }
+        Some(values)
+    }
+
+    /// `a^n` as the reference computes it (`f64::powi`).
+    pub(super) fn powi(&mut self, a: Value, n: i32) -> Option<Value> {
+        Some(match n {
+            // what `powi` computes for these exponents, exactly
+            1 => a,
+            2 => self.b.ins().fmul(a, a),
+            _ => {
+                let n = self.b.ins().iconst(I32, i64::from(n));
+                self.call(Call::PowI, &[a, n])?
+            }
+        })
+    }
+
+    /// Stores `v` as output `k`.
+    fn store(&mut self, v: Value, k: usize) -> Option<()> {
+        let at = offset(u32::try_from(k).ok()?)?;
+        self.b.ins().store(MemFlagsData::trusted(), v, self.out, at);
+        Some(())
+    }
+
+    /// Emits a call of `call` and returns its result, importing the function on first use.
+    pub(super) fn call(&mut self, call: Call, args: &[Value]) -> Option<Value> {
+        let f = match self.calls.iter().find(|(c, _)| *c == call) {
+            Some(&(_, f)) => f,
+            None => {
+                let signature = call.signature(self.module);
+                let id = self
+                    .module
+                    .declare_function(call.symbol(), Linkage::Import, &signature)
+                    .ok()?;
+                let f = self.module.declare_func_in_func(id, self.b.func);
+                self.calls.push((call, f));
+                f
+            }
+        };
+        let inst = self.b.ins().call(f, args);
+        self.b.inst_results(inst).first().copied()
+    }
+}
+
 /// Byte offset of element `i` of an `f64` array.
 fn offset(i: u32) -> Option<i32> {
     i32::try_from(u64::from(i) * 8).ok()
 }
 
-/// Emits a call and returns its result.
-fn call(b: &mut FunctionBuilder, f: FuncRef, args: &[Value]) -> Option<Value> {
-    let inst = b.ins().call(f, args);
-    b.inst_results(inst).first().copied()
-}
-
 /// A Rust function the generated code calls.
 #[derive(Clone, Copy, PartialEq)]
-enum Call {
+pub(super) enum Call {
     Rem,
     Pow,
     PowI,
     F1(Func1),
     F2(Func2),
+    /// `Func1::derivative(a, v)` of the function numbered by the first (integer) argument.
+    D1,
+    /// The first of `Func2::derivatives(a, b)`, function numbered by the first argument.
+    D2a,
+    /// The second of `Func2::derivatives(a, b)`.
+    D2b,
 }
 
 impl Call {
@@ -269,6 +352,9 @@ impl Call {
     fn symbol(self) -> &'static str {
         match self {
             Self::Rem => "lamina_rem",
+            Self::D1 => "lamina_d1",
+            Self::D2a => "lamina_d2a",
+            Self::D2b => "lamina_d2b",
             Self::Pow => "lamina_pow",
             Self::PowI => "lamina_powi",
             Self::F2(Func2::Atan2) => "lamina_atan2",
@@ -297,45 +383,21 @@ impl Call {
         }
     }
 
-    /// The function's signature: `f64` arguments (an `i32` exponent for `PowI`), one `f64`
-    /// result.
+    /// The function's signature: `f64` arguments (an `i32` exponent for `PowI`, an `i32`
+    /// function number first for the derivatives), one `f64` result.
     fn signature(self, module: &JITModule) -> Signature {
         let mut s = module.make_signature();
-        s.params.push(AbiParam::new(F64));
-        match self {
-            Self::F1(_) => {}
-            Self::PowI => s.params.push(AbiParam::new(I32)),
-            Self::Rem | Self::Pow | Self::F2(_) => s.params.push(AbiParam::new(F64)),
+        let params: &[_] = match self {
+            Self::F1(_) => &[F64],
+            Self::PowI => &[F64, I32],
+            Self::Rem | Self::Pow | Self::F2(_) => &[F64, F64],
+            Self::D1 | Self::D2a | Self::D2b => &[I32, F64, F64],
+        };
+        for &ty in params {
+            s.params.push(AbiParam::new(ty));
         }
         s.returns.push(AbiParam::new(F64));
         s
-    }
-}
-
-/// The called functions imported into the function being generated so far.
-#[derive(Default)]
-struct Calls {
-    imported: Vec<(Call, FuncRef)>,
-}
-
-impl Calls {
-    /// The reference to `call` in the function being built, importing it on first use.
-    fn get(
-        &mut self,
-        module: &mut JITModule,
-        b: &mut FunctionBuilder,
-        call: Call,
-    ) -> Option<FuncRef> {
-        if let Some(&(_, f)) = self.imported.iter().find(|(c, _)| *c == call) {
-            return Some(f);
-        }
-        let signature = call.signature(module);
-        let id = module
-            .declare_function(call.symbol(), Linkage::Import, &signature)
-            .ok()?;
-        let f = module.declare_func_in_func(id, b.func);
-        self.imported.push((call, f));
-        Some(f)
     }
 }
 
@@ -393,11 +455,58 @@ extern "C" fn lamina_max(a: f64, b: f64) -> f64 {
     Func2::Max.apply(a, b)
 }
 
+/// The one-argument functions in the order of their numbers in derivative calls.
+pub(super) const FUNC1: [Func1; 18] = [
+    Func1::Sin,
+    Func1::Cos,
+    Func1::Tan,
+    Func1::Asin,
+    Func1::Acos,
+    Func1::Atan,
+    Func1::Sinh,
+    Func1::Cosh,
+    Func1::Tanh,
+    Func1::Exp,
+    Func1::Ln,
+    Func1::Log10,
+    Func1::Sqrt,
+    Func1::Abs,
+    Func1::Sign,
+    Func1::Floor,
+    Func1::Ceil,
+    Func1::Step,
+];
+
+/// The two-argument functions in the order of their numbers in derivative calls.
+pub(super) const FUNC2: [Func2; 3] = [Func2::Atan2, Func2::Min, Func2::Max];
+
+extern "C" fn lamina_d1(f: i32, a: f64, v: f64) -> f64 {
+    usize::try_from(f)
+        .ok()
+        .and_then(|f| FUNC1.get(f))
+        .map_or(f64::NAN, |f| f.derivative(a, v))
+}
+
+extern "C" fn lamina_d2a(f: i32, a: f64, b: f64) -> f64 {
+    usize::try_from(f)
+        .ok()
+        .and_then(|f| FUNC2.get(f))
+        .map_or(f64::NAN, |f| f.derivatives(a, b).0)
+}
+
+extern "C" fn lamina_d2b(f: i32, a: f64, b: f64) -> f64 {
+    usize::try_from(f)
+        .ok()
+        .and_then(|f| FUNC2.get(f))
+        .map_or(f64::NAN, |f| f.derivatives(a, b).1)
+}
+
 type Unary = extern "C" fn(f64) -> f64;
+type Derivative = extern "C" fn(i32, f64, f64) -> f64;
 type Binary = extern "C" fn(f64, f64) -> f64;
 
 /// The functions generated code may call, by symbol name.
-fn calls() -> [(&'static str, *const u8); 24] {
+fn calls() -> [(&'static str, *const u8); 27] {
     [
         ("lamina_sin", lamina_sin as Unary as *const u8),
         ("lamina_cos", lamina_cos as Unary as *const u8),
@@ -426,5 +535,8 @@ fn calls() -> [(&'static str, *const u8); 24] {
         ("lamina_atan2", lamina_atan2 as Binary as *const u8),
         ("lamina_min", lamina_min as Binary as *const u8),
         ("lamina_max", lamina_max as Binary as *const u8),
+        ("lamina_d1", lamina_d1 as Derivative as *const u8),
+        ("lamina_d2a", lamina_d2a as Derivative as *const u8),
+        ("lamina_d2b", lamina_d2b as Derivative as *const u8),
     ]
 }

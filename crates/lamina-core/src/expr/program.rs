@@ -35,6 +35,9 @@ pub struct Program {
     /// Machine code, made on first use by [`Program::specialise`] and shared by clones made
     /// after that.
     native: OnceLock<Option<Arc<NativeCode>>>,
+    /// Machine code of the Jacobian with respect to the states, made on the first
+    /// [`Program::jacobian`].
+    native_jacobian: OnceLock<Option<Arc<NativeCode>>>,
     n_states: usize,
     n_parameters: usize,
     uses_time: bool,
@@ -100,6 +103,7 @@ impl Program {
         Self {
             fast,
             native: OnceLock::new(),
+            native_jacobian: OnceLock::new(),
             instrs: kept,
             outputs,
             n_states,
@@ -173,6 +177,21 @@ impl Program {
                 .map(Arc::new)
             })
             .clone()
+    }
+
+    /// The machine code of the Jacobian, made on the first call; `None` if the host has none.
+    pub(super) fn native_jacobian_code(&self) -> Option<&NativeCode> {
+        self.native_jacobian
+            .get_or_init(|| {
+                NativeCode::compile_jacobian(
+                    &self.instrs,
+                    &self.outputs,
+                    self.n_states,
+                    self.n_parameters,
+                )
+                .map(Arc::new)
+            })
+            .as_deref()
     }
 
     /// Evaluates every instruction into `scratch` (values only).

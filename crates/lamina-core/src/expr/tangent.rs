@@ -95,8 +95,28 @@ impl Program {
     }
 
     /// Jacobian of the outputs with respect to the states at `(t, x)`, row-major:
-    /// `out[i * n + j] = d output_i / d x_j`.
+    /// `out[i * n + j] = d output_i / d x_j`. Runs machine code (made on the first call) where
+    /// the host has a code generator, else [`Program::jacobian_reference`]; both give the same
+    /// numbers bit for bit.
     pub fn jacobian(&self, scratch: &mut Scratch, t: f64, x: &[f64], p: &[f64], out: &mut [f64]) {
+        if let Some(code) = self.native_jacobian_code()
+            && code.eval(t, x, p, out)
+        {
+            return;
+        }
+        self.jacobian_reference(scratch, t, x, p, out);
+    }
+
+    /// [`Program::jacobian`] by tangents pushed through the instruction list itself: the
+    /// reference the machine code reproduces.
+    pub fn jacobian_reference(
+        &self,
+        scratch: &mut Scratch,
+        t: f64,
+        x: &[f64],
+        p: &[f64],
+        out: &mut [f64],
+    ) {
         let n = self.propagate(scratch, t, x, p, Seed::States);
         for (row, &slot) in self.outputs.iter().enumerate() {
             let s = slot as usize;

@@ -1,0 +1,189 @@
+//! Forward-mode tangents in machine code: the Jacobian with respect to the states, generated
+//! instruction by instruction with the coefficients and zero-skipping of [`super::tangent`],
+//! but only along the states each value depends on (a sparse tangent per value).
+
+use cranelift_codegen::ir::condcodes::FloatCC;
+use cranelift_codegen::ir::{InstBuilder, Value};
+
+use super::instr::{Func1, Func2, Instr};
+use super::native::{Call, FUNC1, FUNC2, Gen};
+
+/// The tangent of one value: `(state index, entry)` for the states it may depend on, in
+/// increasing order; every other entry is zero.
+#[derive(Clone, Default)]
+pub(super) struct Sparse(Vec<(u32, Value)>);
+
+impl Sparse {
+    /// Entry `j`, if it may be nonzero.
+    pub(super) fn get(&self, j: usize) -> Option<Value> {
+        self.0
+            .iter()
+            .find(|(k, _)| *k as usize == j)
+            .map(|&(_, v)| v)
+    }
+}
+
+/// Emits the tangent of every instruction given their `values`.
+pub(super) fn tangents(
+    g: &mut Gen<'_, '_>,
+    instrs: &[Instr],
+    values: &[Value],
+) -> Option<Vec<Sparse>> {
+    let mut tangents: Vec<Sparse> = Vec::with_capacity(instrs.len());
+    for (idx, instr) in instrs.iter().enumerate() {
+        let val = |slot: u32| values.get(slot as usize).copied();
+        let tan = |slot: u32| tangents.get(slot as usize).cloned();
+        let this = values.get(idx).copied()?;
+        let out = match *instr {
+            Instr::Const(_) | Instr::Param(_) | Instr::Time => Sparse::default(),
+            Instr::State(i) => {
+                let one = g.b.ins().f64const(1.0);
+                Sparse(vec![(i, one)])
+            }
+            Instr::Neg(a) => {
+                let c = g.b.ins().f64const(-1.0);
+                combine1(g, &tan(a)?, c)
+            }
+            Instr::Add(a, b) | Instr::Sub(a, b) => {
+                let one = g.b.ins().f64const(1.0);
+                let cb = if matches!(instr, Instr::Add(..)) {
+                    one
+                } else {
+                    g.b.ins().f64const(-1.0)
+                };
+                combine2(g, &tan(a)?, one, &tan(b)?, cb)
+            }
+            Instr::Mul(a, b) => combine2(g, &tan(a)?, val(b)?, &tan(b)?, val(a)?),
+            Instr::Div(a, b) => {
+                let one = g.b.ins().f64const(1.0);
+                let inv = g.b.ins().fdiv(one, val(b)?);
+                let q = g.b.ins().fmul(this, inv);
+                let cb = g.b.ins().fneg(q);
+                combine2(g, &tan(a)?, inv, &tan(b)?, cb)
+            }
+            Instr::Rem(a, b) => {
+                let one = g.b.ins().f64const(1.0);
+                let q = g.b.ins().fdiv(val(a)?, val(b)?);
+                let q = g.b.ins().trunc(q);
+                let cb = g.b.ins().fneg(q);
+                combine2(g, &tan(a)?, one, &tan(b)?, cb)
+            }
+            Instr::Pow(a, b) => {
+                let (base, exponent) = (val(a)?, val(b)?);
+                let one = g.b.ins().f64const(1.0);
+                let e1 = g.b.ins().fsub(exponent, one);
+                let pw = g.call(Call::Pow, &[base, e1])?;
+                let da = g.b.ins().fmul(exponent, pw);
+                let tb = tan(b)?;
+                // the log term only where the exponent varies, so a^c stays defined for a <= 0
+                let db = if tb.0.is_empty() {
+                    g.b.ins().f64const(0.0)
+                } else {
+                    let zero = g.b.ins().f64const(0.0);
+                    let mut varies = None;
+                    for &(_, e) in &tb.0 {
+                        let ne = g.b.ins().fcmp(FloatCC::NotEqual, e, zero);
+                        varies = Some(match varies {
+                            None => ne,
+                            Some(v) => g.b.ins().bor(v, ne),
+                        });
+                    }
+                    let ln = g.call(Call::F1(Func1::Ln), &[base])?;
+                    let term = g.b.ins().fmul(this, ln);
+                    g.b.ins().select(varies?, term, zero)
+                };
+                combine2(g, &tan(a)?, da, &tb, db)
+            }
+            Instr::PowI(a, n) => {
+                let d = if n == 0 {
+                    g.b.ins().f64const(0.0)
+                } else {
+                    let p = g.powi(val(a)?, n - 1)?;
+                    let nf = g.b.ins().f64const(f64::from(n));
+                    g.b.ins().fmul(nf, p)
+                };
+                combine1(g, &tan(a)?, d)
+            }
+            Instr::F1(f, a) => {
+                let number = FUNC1.iter().position(|&k| k == f)?;
+                let number =
+                    g.b.ins()
+                        .iconst(cranelift_codegen::ir::types::I32, number as i64);
+                let d = g.call(Call::D1, &[number, val(a)?, this])?;
+                combine1(g, &tan(a)?, d)
+            }
+            Instr::F2(f, a, b) => {
+                let number = FUNC2.iter().position(|&k: &Func2| k == f)?;
+                let number =
+                    g.b.ins()
+                        .iconst(cranelift_codegen::ir::types::I32, number as i64);
+                let da = g.call(Call::D2a, &[number, val(a)?, val(b)?])?;
+                let db = g.call(Call::D2b, &[number, val(a)?, val(b)?])?;
+                combine2(g, &tan(a)?, da, &tan(b)?, db)
+            }
+        };
+        tangents.push(out);
+    }
+    Some(tangents)
+}
+
+/// `ca * a` where `a` is not zero, else 0 (as `tangent::combine1`).
+fn combine1(g: &mut Gen<'_, '_>, ta: &Sparse, ca: Value) -> Sparse {
+    let zero = g.b.ins().f64const(0.0);
+    let mut out = Vec::with_capacity(ta.0.len());
+    for &(j, a) in &ta.0 {
+        let product = g.b.ins().fmul(ca, a);
+        let nonzero = g.b.ins().fcmp(FloatCC::NotEqual, a, zero);
+        out.push((j, g.b.ins().select(nonzero, product, zero)));
+    }
+    Sparse(out)
+}
+
+/// `0 (+ ca * a where a is not zero) (+ cb * b where b is not zero)`, in that order (as
+/// `tangent::combine2`), over the union of both tangents' states.
+fn combine2(g: &mut Gen<'_, '_>, ta: &Sparse, ca: Value, tb: &Sparse, cb: Value) -> Sparse {
+    let zero = g.b.ins().f64const(0.0);
+    let mut out = Vec::with_capacity(ta.0.len() + tb.0.len());
+    let (mut i, mut k) = (0, 0);
+    while i < ta.0.len() || k < tb.0.len() {
+        let ja = ta.0.get(i).map(|&(j, _)| j);
+        let jb = tb.0.get(k).map(|&(j, _)| j);
+        let (j, a, b) = match (ja, jb) {
+            (Some(x), Some(y)) if x == y => {
+                i += 1;
+                k += 1;
+                (x, Some(ta.0[i - 1].1), Some(tb.0[k - 1].1))
+            }
+            (Some(x), Some(y)) if x < y => {
+                i += 1;
+                (x, Some(ta.0[i - 1].1), None)
+            }
+            (Some(x), None) => {
+                i += 1;
+                (x, Some(ta.0[i - 1].1), None)
+            }
+            (_, Some(y)) => {
+                k += 1;
+                (y, None, Some(tb.0[k - 1].1))
+            }
+            (None, None) => break,
+        };
+        let mut v = zero;
+        if let Some(a) = a {
+            v = term(g, v, a, ca, zero);
+        }
+        if let Some(b) = b {
+            v = term(g, v, b, cb, zero);
+        }
+        out.push((j, v));
+    }
+    Sparse(out)
+}
+
+/// `acc + c * e` where `e` is not zero (NaN counts as not zero), else `acc`.
+fn term(g: &mut Gen<'_, '_>, acc: Value, e: Value, c: Value, zero: Value) -> Value {
+    let product = g.b.ins().fmul(c, e);
+    let sum = g.b.ins().fadd(acc, product);
+    let nonzero = g.b.ins().fcmp(FloatCC::NotEqual, e, zero);
+    g.b.ins().select(nonzero, sum, acc)
+}
