@@ -16,11 +16,51 @@ fn numbers_round_trip_exactly() {
         f64::MIN_POSITIVE,
         -0.0,
         123456789.0,
+        -9.237_126_235_162_041e-5,
+        1e16,
+        1.5e21,
+        5e-324,
     ] {
         let text = format_number(v);
         let back: f64 = text.parse().expect("parses");
         // [common practice] shortest round-trip formatting gives back the same bits
         assert_eq!(back.to_bits(), v.to_bits(), "{v} -> {text}");
+    }
+}
+
+#[test]
+fn csv_rows_carry_every_number_exactly() {
+    let values = [
+        1.0 / 3.0,
+        -9.237_126_235_162_041e-5,
+        4.545_758_347_126_625e-5,
+        1e-300,
+        -2.5e300,
+        1e16,
+        -0.0,
+        27.0,
+    ];
+    let names: Vec<String> = (0..values.len()).map(|i| format!("s{i}")).collect();
+    let mut csv = StrobeCsv::new(Vec::new(), &names).expect("header");
+    csv.write(&StrobeSample {
+        index: 0,
+        t: 0.1,
+        state: values.to_vec(),
+    })
+    .expect("row");
+    let text = String::from_utf8(csv.finish().expect("flush")).expect("utf8");
+    let row = text.lines().nth(1).expect("a row");
+    let cells: Vec<&str> = row.split(',').skip(2).collect();
+    assert_eq!(cells.len(), values.len());
+    for (cell, v) in cells.iter().zip(values) {
+        let back: f64 = cell.parse().expect("parses");
+        // [common practice] the shortest round-trip form gives back the same bits
+        assert_eq!(back.to_bits(), v.to_bits(), "{v} -> {cell}");
+        assert_eq!(
+            *cell,
+            format_number(v),
+            "a cell is written as format_number"
+        );
     }
 }
 
