@@ -1,11 +1,13 @@
-//! How `lamina cut` and `lamina strobe` end when their output or their user goes away, and
-//! the messages for a scenario that repeats a state's name.
+//! How `lamina cut` and `lamina strobe` end when their output or their user goes away: a
+//! reader that closes the pipe (`| head`); and the messages for a scenario that repeats a
+//! state's name.
 
 #![cfg(unix)]
 
 use std::fs;
+use std::io::{BufRead, BufReader};
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
+use std::process::{Command, Output, Stdio};
 
 use tempfile::TempDir;
 
@@ -47,6 +49,33 @@ fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
 
 fn stderr_text(output: &Output) -> String {
     String::from_utf8(output.stderr.clone()).expect("stderr is UTF-8")
+}
+
+#[test]
+fn a_closed_pipe_ends_the_command_quietly_with_success() {
+    let dir = TempDir::new().unwrap();
+    // far more rows than a pipe and the writer's buffer hold, so lamina is still writing
+    // when the reader goes
+    let path = write(dir.path(), "long.ron", &oscillator("1000000.0"));
+    for command in ["cut", "strobe"] {
+        let mut child = lamina()
+            .arg(command)
+            .arg(&path)
+            .stdout(Stdio::piped())
+            .stderr(Stdio::piped())
+            .spawn()
+            .expect("lamina starts");
+        let mut reader = BufReader::new(child.stdout.take().expect("stdout"));
+        let mut header = String::new();
+        reader.read_line(&mut header).expect("header read");
+        assert!(header.starts_with("k,t,"), "{command}: {header}");
+        drop(reader); // what `head -1` does after its line
+        let output = child.wait_with_output().expect("lamina ends");
+        let stderr = stderr_text(&output);
+        // [common practice] a Unix filter whose reader has gone ends quietly and successfully
+        assert_eq!(output.status.code(), Some(0), "{command}: {stderr}");
+        assert_eq!(stderr, "", "{command}");
+    }
 }
 
 #[test]

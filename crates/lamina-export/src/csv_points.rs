@@ -14,6 +14,22 @@ pub fn format_number(v: f64) -> String {
     ryu::Buffer::new().format(v).to_string()
 }
 
+/// A CSV error as an export error; a failed write stays an I/O error with its kind, so a
+/// caller can tell a closed pipe from a full disk.
+fn output_error(err: csv::Error) -> ExportError {
+    if !err.is_io_error() {
+        return ExportError::Csv(err);
+    }
+    let source = match err.into_kind() {
+        csv::ErrorKind::Io(source) => source,
+        other => std::io::Error::other(format!("{other:?}")),
+    };
+    ExportError::Io {
+        path: "CSV output".into(),
+        source,
+    }
+}
+
 /// Bytes the CSV writer gathers before it hands them to the output in one write.
 const BUFFER_BYTES: usize = 64 * 1024;
 
@@ -46,7 +62,7 @@ impl<W: Write> Rows<W> {
             .iter()
             .copied()
             .chain(state_names.iter().map(String::as_str));
-        out.write_record(header)?;
+        out.write_record(header).map_err(output_error)?;
         Ok(Self {
             out,
             integers: itoa::Buffer::new(),
@@ -62,16 +78,18 @@ impl<W: Write> Rows<W> {
     ) -> Result<(), ExportError> {
         for field in fields {
             match field {
-                Field::Count(k) => self.out.write_field(self.integers.format(k))?,
-                Field::Number(v) => self.out.write_field(self.floats.format(v))?,
-                Field::Empty => self.out.write_field([])?,
+                Field::Count(k) => self.out.write_field(self.integers.format(k)),
+                Field::Number(v) => self.out.write_field(self.floats.format(v)),
+                Field::Empty => self.out.write_field([]),
             }
+            .map_err(output_error)?;
         }
         for &v in state {
-            self.out.write_field(self.floats.format(v))?;
+            self.out
+                .write_field(self.floats.format(v))
+                .map_err(output_error)?;
         }
-        self.out.write_record(None::<&[u8]>)?;
-        Ok(())
+        self.out.write_record(None::<&[u8]>).map_err(output_error)
     }
 
     /// Flushes and returns the inner writer.
