@@ -1,12 +1,16 @@
 #!/usr/bin/env python3
 """Side-by-side speed of `lamina cut` and SciPy's DOP853 with an event on the Lorenz cut
-benchmark (REFERENCES.md, performance anchor): crossings per CPU-second of each, measured in one
-run on the same machine, and their ratio.
+benchmark (REFERENCES.md, performance anchor): crossings per CPU-second of each, measured on the
+same machine, and their ratio. Each side runs REPEATS times and its best rate counts, so that
+another busy process on the machine disturbs the ratio less.
 
 SciPy is needed only for this comparison, never for the tests:
     python3 -m venv /tmp/venv-scipy && /tmp/venv-scipy/bin/pip install scipy
     cargo build --release
-    /tmp/venv-scipy/bin/python benches/compare_scipy.py
+    /tmp/venv-scipy/bin/python benches/compare_scipy.py [REPEATS]
+
+The binary is target/release/lamina of this checkout, or under $CARGO_TARGET_DIR when that is
+set (as for the cargo build), or the file named by $LAMINA_BIN.
 """
 
 import os
@@ -21,7 +25,8 @@ from scipy.integrate import solve_ivp
 HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.dirname(HERE)
 SCENARIO = os.path.join(HERE, "lorenz_cut.ron")
-LAMINA = os.path.join(ROOT, "target", "release", "lamina")
+TARGET = os.environ.get("CARGO_TARGET_DIR") or os.path.join(ROOT, "target")
+LAMINA = os.environ.get("LAMINA_BIN") or os.path.join(TARGET, "release", "lamina")
 SIGMA, RHO, BETA = 10.0, 28.0, 8.0 / 3.0
 SCIPY_SPAN = 300.0  # SciPy is slow: a shorter span gives enough crossings for a rate
 
@@ -59,10 +64,12 @@ def lamina_rate():
 
 def main():
     if not os.path.exists(LAMINA):
-        sys.exit("build first: cargo build --release")
-    n_l, cpu_l = lamina_rate()
-    n_s, cpu_s, evals = scipy_rate()
+        sys.exit(f"build first: cargo build --release (looked for {LAMINA})")
+    repeats = int(sys.argv[1]) if len(sys.argv) > 1 else 3
+    n_l, cpu_l = min((lamina_rate() for _ in range(repeats)), key=lambda r: r[1] / r[0])
+    n_s, cpu_s, evals = min((scipy_rate() for _ in range(repeats)), key=lambda r: r[1] / r[0])
     rate_l, rate_s = n_l / cpu_l, n_s / cpu_s
+    print(f"best of {repeats} runs each")
     print(f"lamina cut:    {n_l} crossings in {cpu_l:.3f} CPU-s: {rate_l:.0f} per CPU-second (process start and CSV output included)")
     print(f"scipy DOP853:  {n_s} crossings in {cpu_s:.3f} CPU-s: {rate_s:.0f} per CPU-second, {evals:.0f} evaluations per crossing")
     print(f"lamina/scipy: {rate_l / rate_s:.0f}")

@@ -57,6 +57,8 @@ fn main() -> ExitCode {
     };
     match result {
         Ok(code) => code,
+        // the reader of our output has what it wanted (`lamina cut ... | head`)
+        Err(err) if cli::output_closed(&err) => ExitCode::SUCCESS,
         Err(err) => {
             eprintln!("error: {}", error_chain(&err));
             ExitCode::FAILURE

@@ -9,6 +9,7 @@ mod points;
 mod prepare;
 mod progress;
 mod render;
+mod signals;
 mod sweep;
 
 pub use check::check;
@@ -17,4 +18,5 @@ pub use explorer::open_explorer;
 pub use lyapunov::{LyapunovArgs, lyapunov};
 pub use points::{PointKind, PointsArgs, points};
 pub use render::{RenderArgs, render};
+pub use signals::output_closed;
 pub use sweep::{SweepArgs, sweep};

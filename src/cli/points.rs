@@ -12,6 +12,7 @@ use lamina_export::{AtomicFile, CutCsv, ExportError, StrobeCsv};
 
 use super::prepare::prepare;
 use super::progress::Progress;
+use super::signals::{INTERRUPTED, interrupt_on_signal};
 
 /// Arguments shared by `cut` and `strobe`.
 #[derive(clap::Args, Debug)]
@@ -117,14 +118,22 @@ pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
         PointKind::Cut => "cut",
         PointKind::Strobe => "strobe",
     };
-    let interrupt = Interrupt::new();
+    // Ctrl-C stops the run at its next step instead of ending the process, so the output is
+    // left in order; installed before the temporary output file exists.
+    let interrupt = interrupt_on_signal()?;
     match &args.out {
         Some(path) => {
             let file = AtomicFile::create(path)?;
             let (reason, written, file) =
                 execute(kind, args.count, &names, file, &mut run, &interrupt, label)?;
-            // A run stopped by numerical trouble still keeps the valid points it found.
-            file.commit()?;
+            if let StopReason::Cancelled { .. } = reason {
+                // an interrupted run is not a result: the temporary file goes, the target
+                // stays as it was
+                drop(file);
+            } else {
+                // A run stopped by numerical trouble still keeps the valid points it found.
+                file.commit()?;
+            }
             report(reason, written, label, Some(path))
         }
         None => {
@@ -132,6 +141,7 @@ pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
             let (reason, written, mut out) = execute(
                 kind, args.count, &names, stdout, &mut run, &interrupt, label,
             )?;
+            // the rows so far, also of an interrupted run: each is a whole, valid row
             out.flush().context("writing to stdout")?;
             report(reason, written, label, None)
         }
@@ -187,6 +197,16 @@ fn report(
         .map(|p| format!(" to {}", p.display()))
         .unwrap_or_default();
     match reason {
+        StopReason::Cancelled { t } => {
+            match path {
+                Some(path) => eprintln!(
+                    "interrupted at t = {t}; nothing was written to {}",
+                    path.display()
+                ),
+                None => eprintln!("interrupted at t = {t}; wrote {written} {label} point(s)"),
+            }
+            Ok(ExitCode::from(INTERRUPTED))
+        }
         StopReason::Finished | StopReason::SinkStopped { .. } => {
             if path.is_some() {
                 eprintln!("wrote {written} {label} point(s){target}");

@@ -7,16 +7,48 @@ use lamina_core::run::{CutPoint, StrobeSample};
 
 use crate::ExportError;
 
-/// Formats `v` so that parsing it gives back exactly `v` (Rust's shortest round-trip form,
-/// with an exponent for very large or small magnitudes).
+/// Formats `v` so that parsing it gives back exactly `v`: the shortest digits that round-trip
+/// (Ryū), with `.0` on whole numbers and an exponent below `1e-5` and from `1e16` up. Rust's
+/// `f64` parser and Python's `float()` both read it.
 pub fn format_number(v: f64) -> String {
-    format!("{v:?}")
+    ryu::Buffer::new().format(v).to_string()
 }
 
-/// The part every writer shares: the CSV writer, the header, and one reused row buffer.
+/// A CSV error as an export error; a failed write stays an I/O error with its kind, so a
+/// caller can tell a closed pipe from a full disk.
+fn output_error(err: csv::Error) -> ExportError {
+    if !err.is_io_error() {
+        return ExportError::Csv(err);
+    }
+    let source = match err.into_kind() {
+        csv::ErrorKind::Io(source) => source,
+        other => std::io::Error::other(format!("{other:?}")),
+    };
+    ExportError::Io {
+        path: "CSV output".into(),
+        source,
+    }
+}
+
+/// Bytes the CSV writer gathers before it hands them to the output in one write.
+const BUFFER_BYTES: usize = 64 * 1024;
+
+/// The part every writer shares: the CSV writer with a large buffer, the header, and the
+/// number formatters, which write each field straight into that buffer (no string per field).
 struct Rows<W: Write> {
     out: csv::Writer<W>,
-    row: Vec<String>,
+    integers: itoa::Buffer,
+    floats: ryu::Buffer,
+}
+
+/// One field of a row.
+enum Field {
+    /// A row or point count.
+    Count(u64),
+    /// A number, in the form of [`format_number`].
+    Number(f64),
+    /// An empty cell.
+    Empty,
 }
 
 impl<W: Write> Rows<W> {
@@ -24,30 +56,40 @@ impl<W: Write> Rows<W> {
     fn new(out: W, leading: &[&str], state_names: &[String]) -> Result<Self, ExportError> {
         let mut out = csv::WriterBuilder::new()
             .has_headers(false)
+            .buffer_capacity(BUFFER_BYTES)
             .from_writer(out);
-        let header: Vec<String> = leading
+        let header = leading
             .iter()
-            .map(|c| c.to_string())
-            .chain(state_names.iter().cloned())
-            .collect();
-        out.write_record(&header)?;
+            .copied()
+            .chain(state_names.iter().map(String::as_str));
+        out.write_record(header).map_err(output_error)?;
         Ok(Self {
             out,
-            row: Vec::new(),
+            integers: itoa::Buffer::new(),
+            floats: ryu::Buffer::new(),
         })
     }
 
-    /// Writes `fields` followed by the numbers of `state`.
-    fn write(
+    /// Writes `fields` followed by the numbers of `state`, then ends the row.
+    fn write<const N: usize>(
         &mut self,
-        fields: impl IntoIterator<Item = String>,
+        fields: [Field; N],
         state: &[f64],
     ) -> Result<(), ExportError> {
-        self.row.clear();
-        self.row.extend(fields);
-        self.row.extend(state.iter().map(|&v| format_number(v)));
-        self.out.write_record(&self.row)?;
-        Ok(())
+        for field in fields {
+            match field {
+                Field::Count(k) => self.out.write_field(self.integers.format(k)),
+                Field::Number(v) => self.out.write_field(self.floats.format(v)),
+                Field::Empty => self.out.write_field([]),
+            }
+            .map_err(output_error)?;
+        }
+        for &v in state {
+            self.out
+                .write_field(self.floats.format(v))
+                .map_err(output_error)?;
+        }
+        self.out.write_record(None::<&[u8]>).map_err(output_error)
     }
 
     /// Flushes and returns the inner writer.
@@ -76,13 +118,12 @@ impl<W: Write> CutCsv<W> {
 
     /// Writes one point as row `k` (counting from 0).
     pub fn write(&mut self, point: &CutPoint) -> Result<(), ExportError> {
-        let return_time = if self.k == 0 {
-            String::new()
-        } else {
-            point.return_time.map(format_number).unwrap_or_default()
+        let return_time = match point.return_time {
+            Some(r) if self.k > 0 => Field::Number(r),
+            _ => Field::Empty,
         };
         self.rows.write(
-            [self.k.to_string(), format_number(point.t), return_time],
+            [Field::Count(self.k), Field::Number(point.t), return_time],
             &point.state,
         )?;
         self.k += 1;
@@ -112,8 +153,10 @@ impl<W: Write> StrobeCsv<W> {
 
     /// Writes one sample as row `k` (counting from 0).
     pub fn write(&mut self, sample: &StrobeSample) -> Result<(), ExportError> {
-        self.rows
-            .write([self.k.to_string(), format_number(sample.t)], &sample.state)?;
+        self.rows.write(
+            [Field::Count(self.k), Field::Number(sample.t)],
+            &sample.state,
+        )?;
         self.k += 1;
         Ok(())
     }
@@ -139,7 +182,7 @@ impl<W: Write> TrajectoryCsv<W> {
 
     /// Writes the state at time `t`.
     pub fn write(&mut self, t: f64, state: &[f64]) -> Result<(), ExportError> {
-        self.rows.write([format_number(t)], state)
+        self.rows.write([Field::Number(t)], state)
     }
 
     /// Flushes and returns the inner writer.
@@ -166,7 +209,7 @@ impl<W: Write> SweepCsv<W> {
     pub fn write_column(&mut self, value: f64, points: &[Vec<f64>]) -> Result<(), ExportError> {
         for (k, state) in points.iter().enumerate() {
             self.rows
-                .write([format_number(value), k.to_string()], state)?;
+                .write([Field::Number(value), Field::Count(k as u64)], state)?;
         }
         Ok(())
     }

@@ -1,6 +1,6 @@
 //! CSV layout, round-trip number formatting and atomic replacement.
 
-use std::io::Write;
+use std::io::{self, ErrorKind, Write};
 
 use lamina_core::run::{CutPoint, StrobeSample};
 use lamina_export::{AtomicFile, CutCsv, ExportError, StrobeCsv, format_number, write_atomically};
@@ -16,11 +16,51 @@ fn numbers_round_trip_exactly() {
         f64::MIN_POSITIVE,
         -0.0,
         123456789.0,
+        -9.237_126_235_162_041e-5,
+        1e16,
+        1.5e21,
+        5e-324,
     ] {
         let text = format_number(v);
         let back: f64 = text.parse().expect("parses");
         // [common practice] shortest round-trip formatting gives back the same bits
         assert_eq!(back.to_bits(), v.to_bits(), "{v} -> {text}");
+    }
+}
+
+#[test]
+fn csv_rows_carry_every_number_exactly() {
+    let values = [
+        1.0 / 3.0,
+        -9.237_126_235_162_041e-5,
+        4.545_758_347_126_625e-5,
+        1e-300,
+        -2.5e300,
+        1e16,
+        -0.0,
+        27.0,
+    ];
+    let names: Vec<String> = (0..values.len()).map(|i| format!("s{i}")).collect();
+    let mut csv = StrobeCsv::new(Vec::new(), &names).expect("header");
+    csv.write(&StrobeSample {
+        index: 0,
+        t: 0.1,
+        state: values.to_vec(),
+    })
+    .expect("row");
+    let text = String::from_utf8(csv.finish().expect("flush")).expect("utf8");
+    let row = text.lines().nth(1).expect("a row");
+    let cells: Vec<&str> = row.split(',').skip(2).collect();
+    assert_eq!(cells.len(), values.len());
+    for (cell, v) in cells.iter().zip(values) {
+        let back: f64 = cell.parse().expect("parses");
+        // [common practice] the shortest round-trip form gives back the same bits
+        assert_eq!(back.to_bits(), v.to_bits(), "{v} -> {cell}");
+        assert_eq!(
+            *cell,
+            format_number(v),
+            "a cell is written as format_number"
+        );
     }
 }
 
@@ -59,6 +99,44 @@ fn strobe_csv_has_the_product_columns() {
     .expect("row");
     let text = String::from_utf8(csv.finish().expect("flush")).expect("utf8");
     assert_eq!(text, "k,t,x\n0,14.0,0.1\n");
+}
+
+/// An output whose reader has gone: every write fails as a closed pipe does.
+struct ClosedPipe;
+
+impl Write for ClosedPipe {
+    fn write(&mut self, _buf: &[u8]) -> io::Result<usize> {
+        Err(io::Error::from(ErrorKind::BrokenPipe))
+    }
+    fn flush(&mut self) -> io::Result<()> {
+        Ok(())
+    }
+}
+
+#[test]
+fn a_failed_write_is_an_io_error_of_its_kind() {
+    let names = vec!["x".to_string()];
+    let mut csv = CutCsv::new(ClosedPipe, &names).expect("the header is only buffered");
+    let point = CutPoint {
+        t: 1.0,
+        return_time: Some(1.0),
+        state: vec![0.5],
+    };
+    // the rows fill the writer's buffer until it has to write
+    let err = (0..1_000_000)
+        .find_map(|_| csv.write(&point).err())
+        .expect("a write fails once the buffer is full");
+    match err {
+        ExportError::Io { source, .. } => assert_eq!(source.kind(), ErrorKind::BrokenPipe),
+        other => panic!("expected an I/O error, got {other:?}"),
+    }
+    let mut csv = CutCsv::new(ClosedPipe, &names).expect("header");
+    csv.write(&point).expect("buffered");
+    match csv.finish() {
+        Err(ExportError::Io { source, .. }) => assert_eq!(source.kind(), ErrorKind::BrokenPipe),
+        Err(other) => panic!("expected an I/O error, got {other:?}"),
+        Ok(_) => panic!("finishing into a closed pipe succeeded"),
+    }
 }
 
 #[test]

@@ -181,13 +181,7 @@ impl<'a> Checker<'a> {
     }
 
     fn state_names(&self) -> String {
-        let names: Vec<&str> = self
-            .scenario
-            .states
-            .iter()
-            .map(|s| s.name.as_str())
-            .collect();
-        names.join(", ")
+        name_list(self.scenario.states.iter().map(|s| s.name.as_str()))
     }
 
     fn is_state(&self, name: &str) -> bool {
@@ -427,12 +421,7 @@ impl<'a> Checker<'a> {
             .iter()
             .any(|p| p.name == sweep.parameter)
         {
-            let known: Vec<&str> = scenario
-                .parameters
-                .iter()
-                .map(|p| p.name.as_str())
-                .collect();
-            let message = if known.is_empty() {
+            let message = if scenario.parameters.is_empty() {
                 format!(
                     "'{}' is not a parameter; the scenario has no parameters",
                     sweep.parameter
@@ -441,7 +430,7 @@ impl<'a> Checker<'a> {
                 format!(
                     "'{}' is not a parameter (parameters: {})",
                     sweep.parameter,
-                    known.join(", ")
+                    name_list(scenario.parameters.iter().map(|p| p.name.as_str()))
                 )
             };
             self.error("sweep.parameter", message);
@@ -539,6 +528,33 @@ impl<'a> Checker<'a> {
 }
 
 /// What is wrong with a state or parameter name, if anything.
+/// The names in order, each once, for a message that lists what is known; a name that is
+/// given more than once is said so after the list (`x, v; 'x' is given twice`), so the list
+/// never reads `x, x`.
+fn name_list<'n>(names: impl Iterator<Item = &'n str>) -> String {
+    let mut distinct: Vec<(&str, usize)> = Vec::new();
+    for name in names {
+        match distinct.iter_mut().find(|(seen, _)| *seen == name) {
+            Some((_, count)) => *count += 1,
+            None => distinct.push((name, 1)),
+        }
+    }
+    let list: Vec<&str> = distinct.iter().map(|(name, _)| *name).collect();
+    let repeats: Vec<String> = distinct
+        .iter()
+        .filter(|(_, count)| *count > 1)
+        .map(|(name, count)| match count {
+            2 => format!("'{name}' is given twice"),
+            n => format!("'{name}' is given {n} times"),
+        })
+        .collect();
+    if repeats.is_empty() {
+        list.join(", ")
+    } else {
+        format!("{}; {}", list.join(", "), repeats.join(", "))
+    }
+}
+
 fn name_problem(name: &str) -> Option<String> {
     if name.is_empty() {
         return Some("the name is empty".to_owned());

@@ -459,6 +459,39 @@ fn rates_are_not_compiled_against_broken_names() {
 }
 
 #[test]
+fn a_repeated_name_is_named_and_lists_of_names_do_not_repeat_it() {
+    // the second state is also called `x`: the cut and the sweep then refer to `v`, which is
+    // gone, and a parameter repeats too
+    let text = edit(EXAMPLE, "(name: \"v\", start", "(name: \"x\", start");
+    let text = edit(&text, "(name: \"w\", ", "(name: \"a\", ");
+    let text = edit(&text, "parameter: \"a\"", "parameter: \"b\"");
+    let problems = load(&text).check();
+    assert!(
+        problem_on(&problems, "states[1].name")
+            .message
+            .contains("'x' is already the name of states[0]"),
+        "{problems:#?}"
+    );
+    assert!(
+        problem_on(&problems, "parameters[3].name")
+            .message
+            .contains("'a' is already the name of parameters[2]"),
+        "{problems:#?}"
+    );
+    assert_eq!(
+        problem_on(&problems, "cut.axes.1").message,
+        "'v' is not a state (states: x; 'x' is given twice)"
+    );
+    assert_eq!(
+        problem_on(&problems, "sweep.parameter").message,
+        "'b' is not a parameter (parameters: zeta, k3, a; 'a' is given twice)"
+    );
+    for problem in &problems {
+        assert!(!problem.message.contains("x, x"), "{problem:#?}");
+    }
+}
+
+#[test]
 fn a_level_surface_with_a_syntax_error() {
     let text = edit(
         EXAMPLE,
