@@ -1,8 +1,6 @@
 //! The closure evaluator, a [`Plan`] whose trees are compiled into closures, and the
 //! [`Kernel`], a program with fixed parameter values: machine code or closures.
 
-use std::sync::Arc;
-
 use super::native::NativeCode;
 use super::nodes::{Node, Root, compile};
 use super::plan::{Plan, Registers, Tree, registers};
@@ -155,9 +153,10 @@ pub struct Kernel {
 
 #[derive(Clone, Debug)]
 enum Form {
-    /// Machine code (shared between the kernels of one program) and the parameter values.
+    /// Machine code (its memory shared between the kernels of one program) and the parameter
+    /// values.
     Native {
-        code: Arc<NativeCode>,
+        code: NativeCode,
         parameters: Box<[f64]>,
     },
     /// Closures over their own registers.
@@ -181,7 +180,7 @@ impl Kernel {
     }
 
     /// A kernel running `code` with `parameters`.
-    pub(super) fn native(code: Arc<NativeCode>, parameters: &[f64]) -> Self {
+    pub(super) fn native(code: NativeCode, parameters: &[f64]) -> Self {
         Self {
             form: Form::Native {
                 code,
@@ -192,7 +191,7 @@ impl Kernel {
 
     /// Evaluates every output at `(t, x)` into `out` (NaN in every output when `x` or `out` is
     /// shorter than the program needs).
-    #[inline]
+    #[inline(always)]
     pub fn eval(&mut self, t: f64, x: &[f64], out: &mut [f64]) {
         match &mut self.form {
             Form::Native { code, parameters } => {

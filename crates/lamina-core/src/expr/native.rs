@@ -16,7 +16,7 @@
 //!
 //! [`Program::eval_reference`]: super::Program::eval_reference
 
-use std::sync::Mutex;
+use std::sync::{Arc, Mutex};
 
 use cranelift_codegen::ir::types::{F64, I32};
 use cranelift_codegen::ir::{
@@ -32,15 +32,30 @@ use super::instr::{Func1, Func2, Instr, sign, step};
 /// The generated function: `(states, parameters, time, outputs)`.
 type Entry = extern "C" fn(*const f64, *const f64, f64, *mut f64);
 
-/// A program compiled to machine code. Shared between kernels (it is immutable once made).
+/// A program compiled to machine code: the function's address, the counts it reads and
+/// writes, and a share in the memory holding the code. Cheap to clone (kernels keep a copy
+/// inline, so a call is one load and an indirect call).
+#[derive(Clone)]
 pub(super) struct NativeCode {
     entry: Entry,
     n_states: usize,
     n_parameters: usize,
     n_outputs: usize,
-    /// The module owning the code's memory; freed when this is dropped. Only touched then (the
-    /// mutex makes the holder shareable between threads).
-    module: Mutex<Option<JITModule>>,
+    /// Keeps the code mapped while any copy of `entry` exists (held, never read).
+    #[allow(dead_code)]
+    owner: Arc<Owner>,
+}
+
+/// The module owning the code's memory; frees it when the last [`NativeCode`] sharing it is
+/// dropped. Only touched then (the mutex makes it shareable between threads).
+struct Owner(Mutex<Option<JITModule>>);
+
+impl Drop for Owner {
+    fn drop(&mut self) {
+        if let Some(module) = self.0.get_mut().ok().and_then(Option::take) {
+            free(module);
+        }
+    }
 }
 
 impl NativeCode {
@@ -115,8 +130,8 @@ impl NativeCode {
         // `parameters[0..n_parameters]` and writes `outputs[0..n_outputs]` only (the counts
         // below cover every index in the instructions, and `Gen::store` is given indices below
         // `n_outputs`), and `eval` checks the slice lengths before each call. The code stays
-        // mapped as long as `module` lives, which is as long as `self`, the only holder of the
-        // pointer.
+        // mapped as long as `module` lives: it goes into an `Owner` that every copy of the
+        // pointer (every clone of the `NativeCode`) holds a share of.
         #[allow(unsafe_code)]
         let entry = unsafe { std::mem::transmute::<*const u8, Entry>(address) };
         let max_state = instrs.iter().filter_map(|i| match *i {
@@ -132,27 +147,19 @@ impl NativeCode {
             n_states: max_state.max().unwrap_or(0).max(n_states),
             n_parameters: max_param.max().unwrap_or(0).max(n_parameters),
             n_outputs,
-            module: Mutex::new(Some(module)),
+            owner: Arc::new(Owner(Mutex::new(Some(module)))),
         })
     }
 
     /// Evaluates every output into `out`. Returns `false` (and evaluates nothing) when a slice
     /// is shorter than the program needs.
-    #[inline]
+    #[inline(always)]
     pub(super) fn eval(&self, t: f64, x: &[f64], p: &[f64], out: &mut [f64]) -> bool {
         if x.len() < self.n_states || p.len() < self.n_parameters || out.len() < self.n_outputs {
             return false;
         }
         (self.entry)(x.as_ptr(), p.as_ptr(), t, out.as_mut_ptr());
         true
-    }
-}
-
-impl Drop for NativeCode {
-    fn drop(&mut self) {
-        if let Some(module) = self.module.get_mut().ok().and_then(Option::take) {
-            free(module);
-        }
     }
 }
 
@@ -169,8 +176,8 @@ impl std::fmt::Debug for NativeCode {
 /// Releases the memory of `module`.
 fn free(module: JITModule) {
     // SAFETY: called only when no pointer into the module's code survives: on a failed
-    // generation (no pointer was taken) or when the one `NativeCode` holding the pointer is
-    // dropped (so no call can be running: a call borrows the `NativeCode`).
+    // generation (no pointer was taken) or when the last `NativeCode` sharing the `Owner` is
+    // dropped (so no call can be running: a call borrows a `NativeCode`).
     #[allow(unsafe_code)]
     unsafe {
         module.free_memory();

@@ -1,6 +1,6 @@
 //! The compiled evaluation program: one straight-line instruction list for all outputs.
 
-use std::sync::{Arc, OnceLock};
+use std::sync::OnceLock;
 
 use super::compile::{Builder, compile_expression};
 use super::instr::{Func1, Instr};
@@ -34,10 +34,11 @@ pub struct Program {
     fast: Option<Box<Compiled>>,
     /// Machine code, made on first use by [`Program::specialise`] and shared by clones made
     /// after that.
-    native: OnceLock<Option<Arc<NativeCode>>>,
+    /// (Boxed, as the fast form: a program sits in other types.)
+    native: OnceLock<Option<Box<NativeCode>>>,
     /// Machine code of the Jacobian with respect to the states, made on the first
     /// [`Program::jacobian`].
-    native_jacobian: OnceLock<Option<Arc<NativeCode>>>,
+    native_jacobian: OnceLock<Option<Box<NativeCode>>>,
     n_states: usize,
     n_parameters: usize,
     uses_time: bool,
@@ -165,7 +166,7 @@ impl Program {
     }
 
     /// The program's machine code, made on the first call; `None` if the host has none.
-    fn native_code(&self) -> Option<Arc<NativeCode>> {
+    fn native_code(&self) -> Option<NativeCode> {
         self.native
             .get_or_init(|| {
                 NativeCode::compile(
@@ -174,9 +175,10 @@ impl Program {
                     self.n_states,
                     self.n_parameters,
                 )
-                .map(Arc::new)
+                .map(Box::new)
             })
-            .clone()
+            .as_deref()
+            .cloned()
     }
 
     /// The machine code of the Jacobian, made on the first call; `None` if the host has none.
@@ -189,7 +191,7 @@ impl Program {
                     self.n_states,
                     self.n_parameters,
                 )
-                .map(Arc::new)
+                .map(Box::new)
             })
             .as_deref()
     }
