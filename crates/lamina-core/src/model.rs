@@ -157,7 +157,7 @@ impl Rates for Model {
     fn dim(&self) -> usize {
         self.start.len()
     }
-    #[inline]
+    #[inline(always)]
     fn rates(&mut self, t: f64, x: &[f64], dx: &mut [f64]) {
         match &mut self.kernel {
             Some(kernel) => kernel.eval(t, x, dx),
