@@ -9,6 +9,9 @@ use assert_cmd::Command;
 use predicates::prelude::*;
 use tempfile::TempDir;
 
+mod common;
+use common::{demo, listing, write};
+
 fn lamina() -> Command {
     Command::new(env!("CARGO_BIN_EXE_lamina"))
 }
@@ -26,37 +29,11 @@ fn demos() -> Vec<PathBuf> {
     files
 }
 
-fn demo(name: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("demo_scenarios")
-        .join(name)
-}
-
 /// The state names of a scenario, in order, and whether it has a cut and a strobe.
 fn outline(path: &Path) -> (Vec<String>, bool, bool) {
     let scenario = lamina_scenario::load_file(path).expect("demo scenario loads");
     let names = scenario.states.iter().map(|s| s.name.clone()).collect();
     (names, scenario.cut.is_some(), scenario.strobe.is_some())
-}
-
-/// Writes `text` to `name` in `dir` and returns the path.
-fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
-    let path = dir.join(name);
-    fs::write(&path, text).expect("scenario written");
-    path
-}
-
-/// The sorted file names in `dir`.
-fn listing(dir: &Path) -> Vec<String> {
-    let mut names: Vec<String> = fs::read_dir(dir)
-        .expect("directory is readable")
-        .map(|entry| {
-            let entry = entry.expect("directory entry");
-            entry.file_name().to_string_lossy().into_owned()
-        })
-        .collect();
-    names.sort();
-    names
 }
 
 fn stdout_of(output: &std::process::Output) -> String {

@@ -3,27 +3,18 @@
 //! there is no orbit to find.
 
 use std::fs;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
 use assert_cmd::Command;
 use predicates::prelude::*;
 use serde_json::Value;
 use tempfile::TempDir;
 
+mod common;
+use common::{demo, write};
+
 fn lamina() -> Command {
     Command::new(env!("CARGO_BIN_EXE_lamina"))
-}
-
-fn demo(name: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("demo_scenarios")
-        .join(name)
-}
-
-fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
-    let path = dir.join(name);
-    fs::write(&path, text).expect("scenario written");
-    path
 }
 
 /// Runs `lamina cycle` with `args` and parses the JSON it prints.

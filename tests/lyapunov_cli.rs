@@ -10,6 +10,9 @@ use predicates::prelude::*;
 use serde_json::Value;
 use tempfile::TempDir;
 
+mod common;
+use common::write;
+
 fn lamina() -> Command {
     Command::new(env!("CARGO_BIN_EXE_lamina"))
 }
@@ -27,12 +30,6 @@ fn demo_copy(dir: &Path, name: &str, from: &str, to: &str) -> PathBuf {
     );
     let path = dir.join(name);
     fs::write(&path, text.replacen(from, to, 1)).expect("copy written");
-    path
-}
-
-fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
-    let path = dir.join(name);
-    fs::write(&path, text).expect("scenario written");
     path
 }
 

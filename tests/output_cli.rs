@@ -6,12 +6,14 @@
 
 use std::fs;
 use std::io::{BufRead, BufReader, Read};
-use std::path::{Path, PathBuf};
 use std::process::{Child, Command, Output, Stdio};
 use std::thread::sleep;
 use std::time::Duration;
 
 use tempfile::TempDir;
+
+mod common;
+use common::{listing, write};
 
 fn lamina() -> Command {
     Command::new(env!("CARGO_BIN_EXE_lamina"))
@@ -41,25 +43,6 @@ fn oscillator(span: &str) -> String {
 )
 "#
     )
-}
-
-fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
-    let path = dir.join(name);
-    fs::write(&path, text).expect("scenario written");
-    path
-}
-
-/// The sorted file names in `dir`, hidden ones included.
-fn listing(dir: &Path) -> Vec<String> {
-    let mut names: Vec<String> = fs::read_dir(dir)
-        .expect("directory is readable")
-        .map(|entry| {
-            let entry = entry.expect("directory entry");
-            entry.file_name().to_string_lossy().into_owned()
-        })
-        .collect();
-    names.sort();
-    names
 }
 
 /// Sends SIGINT (what Ctrl-C sends) to `child`.

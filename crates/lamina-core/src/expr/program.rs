@@ -167,33 +167,30 @@ impl Program {
 
     /// The program's machine code, made on the first call; `None` if the host has none.
     fn native_code(&self) -> Option<NativeCode> {
-        self.native
-            .get_or_init(|| {
-                NativeCode::compile(
-                    &self.instrs,
-                    &self.outputs,
-                    self.n_states,
-                    self.n_parameters,
-                )
-                .map(Box::new)
-            })
-            .as_deref()
-            .cloned()
+        self.made_once(&self.native, NativeCode::compile).cloned()
     }
 
     /// The machine code of the Jacobian, made on the first call; `None` if the host has none.
     pub(super) fn native_jacobian_code(&self) -> Option<&NativeCode> {
-        self.native_jacobian
-            .get_or_init(|| {
-                NativeCode::compile_jacobian(
-                    &self.instrs,
-                    &self.outputs,
-                    self.n_states,
-                    self.n_parameters,
-                )
-                .map(Box::new)
-            })
-            .as_deref()
+        self.made_once(&self.native_jacobian, NativeCode::compile_jacobian)
+    }
+
+    /// The code in `cell`, made by `make` from this program on the first call.
+    fn made_once<'a>(
+        &self,
+        cell: &'a OnceLock<Option<Box<NativeCode>>>,
+        make: fn(&[Instr], &[u32], usize, usize) -> Option<NativeCode>,
+    ) -> Option<&'a NativeCode> {
+        cell.get_or_init(|| {
+            make(
+                &self.instrs,
+                &self.outputs,
+                self.n_states,
+                self.n_parameters,
+            )
+            .map(Box::new)
+        })
+        .as_deref()
     }
 
     /// Evaluates every instruction into `scratch` (values only).
