@@ -103,8 +103,25 @@ impl NativeCode {
         })
     }
 
-    /// Generates one function with `body` and makes it callable.
+    /// Generates one function with `body` and makes it callable. A panic inside the code
+    /// generator (a bug there, never expected) means no machine code rather than a crash: the
+    /// closures evaluate the program instead.
     fn build(
+        instrs: &[Instr],
+        n_outputs: usize,
+        n_states: usize,
+        n_parameters: usize,
+        body: impl FnOnce(&mut Gen<'_, '_>) -> Option<()>,
+    ) -> Option<Self> {
+        std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+            Self::build_unguarded(instrs, n_outputs, n_states, n_parameters, body)
+        }))
+        .ok()
+        .flatten()
+    }
+
+    /// [`NativeCode::build`] without the guard.
+    fn build_unguarded(
         instrs: &[Instr],
         n_outputs: usize,
         n_states: usize,
