@@ -100,6 +100,12 @@ impl Model {
         &self.parameters
     }
 
+    /// Whether the rates run as machine code (else by the slower closure evaluator: the host
+    /// has no code generator).
+    pub fn runs_machine_code(&self) -> bool {
+        self.kernel.as_ref().is_some_and(Kernel::is_native)
+    }
+
     /// Sets parameter `idx` to `value` (and specialises the rates to the new values).
     pub fn set_parameter(&mut self, idx: usize, value: f64) {
         if self.parameters[idx].to_bits() != value.to_bits() {

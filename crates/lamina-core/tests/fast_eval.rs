@@ -199,6 +199,8 @@ fn a_model_follows_its_parameter_changes() {
     model.rates(0.0, &[1.0], &mut dx);
     // [analytic] -3*1 + 9
     assert_eq!(dx, [6.0]);
+    // the test hosts (x86-64 and aarch64 Linux) have a code generator
+    assert!(model.runs_machine_code());
 }
 
 #[test]

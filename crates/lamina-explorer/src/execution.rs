@@ -162,10 +162,15 @@ impl ExplorerApp {
             .strobe_spec()
             .and_then(|spec| Strobe::compile(&spec, &model).ok());
         let period = strobe.map(|s| s.period);
+        let message = if model.runs_machine_code() {
+            "run started"
+        } else {
+            "run started (no machine code on this computer: the rates run by the slower evaluator)"
+        };
         let run = Box::new(Run::new(model, scenario.run_spec(), cut, strobe, true));
         self.results = Results::new(self.state_names());
         self.results.strobe_period = period;
-        self.launch(ctx, run, "run started");
+        self.launch(ctx, run, message);
         self.execution.stale = false;
     }
 
