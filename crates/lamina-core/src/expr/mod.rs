@@ -11,6 +11,7 @@ mod instr;
 mod kernel;
 mod lower;
 mod native;
+mod native_calls;
 mod native_tangent;
 mod nodes;
 mod plan;

@@ -6,7 +6,8 @@ use cranelift_codegen::ir::condcodes::FloatCC;
 use cranelift_codegen::ir::{InstBuilder, Value};
 
 use super::instr::{Func1, Func2, Instr};
-use super::native::{Call, FUNC1, FUNC2, Gen};
+use super::native::Gen;
+use super::native_calls::{Call, FUNC1, FUNC2};
 
 /// The tangent of one value: `(state index, entry)` for the states it may depend on, in
 /// increasing order; every other entry is zero.
