@@ -1,10 +1,9 @@
 //! Exports from the window: CSV of cut points, strobe samples and the trajectory (the same
-//! columns as the command line), and PNG of any view at a chosen size (a screenshot of the
-//! view, resampled to the size asked for).
+//! columns as the command line), and PNG of any view at a chosen size (drawn again at that
+//! size, see [`crate::png_export`]).
 
 use std::path::{Path, PathBuf};
 
-use egui::Context;
 use lamina_export::{AtomicFile, CutCsv, StrobeCsv, TrajectoryCsv};
 
 use crate::app::ExplorerApp;
@@ -33,14 +32,6 @@ impl PointSet {
             Self::Sweep => "sweep",
         }
     }
-}
-
-/// A PNG export waiting for its screenshot.
-pub struct PngRequest {
-    /// Which view.
-    pub view: ViewKind,
-    /// Where to write.
-    pub path: PathBuf,
 }
 
 impl ExplorerApp {
@@ -119,98 +110,52 @@ impl ExplorerApp {
         self.files.ask_path(Purpose::Png(view), Some(suggested));
     }
 
-    /// Asks for a screenshot; the PNG is written when it arrives.
-    pub(crate) fn start_png_export(&mut self, ctx: &Context, view: ViewKind, path: PathBuf) {
-        self.layout.png_request = Some(PngRequest { view, path });
-        let slot = std::sync::Arc::clone(&self.layout.screenshot);
-        let repaint = ctx.clone();
-        ctx.send_viewport_cmd(egui::ViewportCommand::Screenshot(
-            egui::ScreenshotCallback::new(move |image| {
-                if let Ok(mut s) = slot.lock() {
-                    *s = Some(image);
-                }
-                repaint.request_repaint();
-            }),
-        ));
-        ctx.request_repaint();
+    /// Draws `view` again at the chosen size and writes it to `path`, on a helper thread.
+    pub(crate) fn start_png_export(&mut self, view: ViewKind, path: PathBuf) {
+        match self.png_job(view, path) {
+            Ok(job) => {
+                self.layout.png_export = Some(job.spawn());
+                self.note(format!("drawing the {} picture", view.title()));
+            }
+            Err(why) => self.files.alert = Some(format!("PNG export: {why}")),
+        }
     }
 
-    /// Handles a screenshot event: crops the requested view and writes it at the chosen size.
-    pub(crate) fn receive_screenshot(&mut self, ctx: &Context) {
-        if self.layout.png_request.is_none() {
-            return;
-        }
-        // the screenshot arrives a frame or two after it was asked for
-        let Some(image) = self
-            .layout
-            .screenshot
-            .lock()
-            .ok()
-            .and_then(|mut s| s.take())
-        else {
+    /// Takes the outcome of a PNG export when it has arrived.
+    pub(crate) fn drain_png_export(&mut self) {
+        let Some(receiver) = &self.layout.png_export else {
             return;
         };
-        let Some(request) = self.layout.png_request.take() else {
-            return;
-        };
-        let Some(rect) = self.layout.view_rects.get(&request.view).copied() else {
-            self.note("that view is not on screen: show it, then export");
-            return;
-        };
-        let ppp = ctx.pixels_per_point();
-        let [w, h] = image.size;
-        let x0 = ((rect.min.x * ppp).max(0.0) as usize).min(w);
-        let y0 = ((rect.min.y * ppp).max(0.0) as usize).min(h);
-        let x1 = ((rect.max.x * ppp) as usize).clamp(x0, w);
-        let y1 = ((rect.max.y * ppp) as usize).clamp(y0, h);
-        let mut buffer = image::RgbaImage::new((x1 - x0).max(1) as u32, (y1 - y0).max(1) as u32);
-        for y in y0..y1 {
-            for x in x0..x1 {
-                let c = image.pixels[y * w + x];
-                buffer.put_pixel(
-                    (x - x0) as u32,
-                    (y - y0) as u32,
-                    image::Rgba([c.r(), c.g(), c.b(), 255]),
-                );
+        match receiver.try_recv() {
+            Ok(Ok(message)) => {
+                self.layout.png_export = None;
+                self.note(message);
+            }
+            Ok(Err(e)) => {
+                self.layout.png_export = None;
+                self.files.alert = Some(format!("PNG export failed: {e}"));
+            }
+            Err(std::sync::mpsc::TryRecvError::Empty) => {}
+            Err(std::sync::mpsc::TryRecvError::Disconnected) => {
+                self.layout.png_export = None;
+                self.files.alert = Some("PNG export failed: the drawing stopped".into());
             }
         }
-        let [tw, th] = self.settings.png_size;
-        // fit the view into the chosen size without distorting it, on the window's background
-        let (w, h) = (buffer.width().max(1), buffer.height().max(1));
-        let (tw, th) = (tw.max(16), th.max(16));
-        let scale = (f64::from(tw) / f64::from(w)).min(f64::from(th) / f64::from(h));
-        let (fw, fh) = (
-            ((f64::from(w) * scale).round() as u32).clamp(1, tw),
-            ((f64::from(h) * scale).round() as u32).clamp(1, th),
-        );
-        let fitted =
-            image::imageops::resize(&buffer, fw, fh, image::imageops::FilterType::Lanczos3);
-        let mut resized = image::RgbaImage::from_pixel(tw, th, image::Rgba([27, 27, 27, 255]));
-        image::imageops::overlay(
-            &mut resized,
-            &fitted,
-            i64::from((tw - fw) / 2),
-            i64::from((th - fh) / 2),
-        );
-        let mut bytes = Vec::new();
-        let encoded = resized.write_to(
-            &mut std::io::Cursor::new(&mut bytes),
-            image::ImageFormat::Png,
-        );
-        let written = encoded.map_err(|e| e.to_string()).and_then(|()| {
-            lamina_export::write_atomically(&request.path, |f| {
-                use std::io::Write;
-                f.write_all(&bytes)
-                    .map_err(|e| lamina_export::ExportError::Io {
-                        path: request.path.display().to_string(),
-                        source: e,
-                    })
-            })
-            .map_err(|e| e.to_string())
-        });
-        match written {
-            Ok(()) => self.note(format!("wrote {} ({tw}×{th})", request.path.display())),
-            Err(e) => self.files.alert = Some(format!("PNG export failed: {e}")),
-        }
+    }
+
+    /// Exports `view` as a PNG to `path` at the chosen size, as File ▸ Export does once the
+    /// path is chosen.
+    pub fn export_png(&mut self, view: ViewKind, path: PathBuf) {
+        self.start_png_export(view, path);
+    }
+
+    /// Sets the size of PNG exports.
+    pub fn set_png_size(&mut self, width: u32, height: u32) {
+        self.settings.png_size = [width, height];
+    }
+
+    /// Whether a PNG export is being drawn.
+    pub fn is_exporting_png(&self) -> bool {
+        self.layout.png_export.is_some()
     }
 }

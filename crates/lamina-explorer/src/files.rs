@@ -257,7 +257,7 @@ impl ExplorerApp {
                 }
             }
             Purpose::Csv(set) => self.export_csv(set, &path),
-            Purpose::Png(view) => self.start_png_export(ctx, view, path),
+            Purpose::Png(view) => self.start_png_export(view, path),
         }
     }
 

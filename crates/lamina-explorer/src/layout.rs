@@ -8,7 +8,7 @@ use lamina_scenario::Surface;
 
 use crate::app::{Action, ExplorerApp};
 use crate::document::DEMOS;
-use crate::export::{PngRequest, PointSet};
+use crate::export::PointSet;
 use crate::results::{CloudAxis, RunState};
 use crate::views::cloud::{CloudView, ColourBy};
 use crate::views::series;
@@ -69,10 +69,8 @@ const MAIN_VIEWS: [ViewKind; 4] = [
 pub struct Layout {
     /// Where each view was drawn last frame (for PNG export).
     pub view_rects: HashMap<ViewKind, Rect>,
-    /// A PNG export waiting for its screenshot.
-    pub png_request: Option<PngRequest>,
-    /// Where the screenshot arrives (from the renderer's callback).
-    pub screenshot: std::sync::Arc<std::sync::Mutex<Option<std::sync::Arc<egui::ColorImage>>>>,
+    /// A PNG export being drawn and written on a helper thread: its outcome.
+    pub png_export: Option<std::sync::mpsc::Receiver<Result<String, String>>>,
     /// The cut view's state.
     pub cut_view: CloudView,
     /// The strobe view's state.
@@ -488,8 +486,7 @@ pub fn main_views(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>)
             tile_ui(app, &mut tile, MAIN_VIEWS[i], i, actions);
         }
     });
-    let ctx = ui.ctx().clone();
-    app.receive_screenshot(&ctx);
+    app.drain_png_export();
 }
 
 /// Lays the views `row` out across `band` by their weights, with a draggable splitter between
@@ -639,14 +636,9 @@ fn tile_ui(
         }
         ViewKind::Cut | ViewKind::Strobe => {
             let scenario_axes = if kind == ViewKind::Cut {
-                app.layout.cut_axes.or_else(|| default_cut_axes(app))
+                app.cut_axes()
             } else {
-                app.layout.strobe_axes.or_else(|| {
-                    app.doc
-                        .scenario
-                        .strobe_axes()
-                        .map(|[a, b]| [CloudAxis::State(a), CloudAxis::State(b)])
-                })
+                app.strobe_axes()
             };
             let picker_id = if kind == ViewKind::Cut {
                 "cut_axes_pick"
@@ -733,6 +725,21 @@ fn tile_ui(
 }
 
 impl ExplorerApp {
+    /// The axes of the cut view: as picked, else from the scenario.
+    pub(crate) fn cut_axes(&self) -> Option<[CloudAxis; 2]> {
+        self.layout.cut_axes.or_else(|| default_cut_axes(self))
+    }
+
+    /// The axes of the strobe view: as picked, else from the scenario.
+    pub(crate) fn strobe_axes(&self) -> Option<[CloudAxis; 2]> {
+        self.layout.strobe_axes.or_else(|| {
+            self.doc
+                .scenario
+                .strobe_axes()
+                .map(|[a, b]| [CloudAxis::State(a), CloudAxis::State(b)])
+        })
+    }
+
     /// Takes the axes picked in a cloud view; a pair of states is also written to the
     /// scenario (so it is saved), time and return time stay a choice of the view.
     fn choose_cloud_axes(&mut self, kind: ViewKind, axes: [CloudAxis; 2]) {

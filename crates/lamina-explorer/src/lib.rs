@@ -13,6 +13,7 @@ mod files;
 mod help;
 mod layout;
 mod model_panel;
+mod png_export;
 mod results;
 mod settings;
 mod sweep_panel;
@@ -26,6 +27,7 @@ use std::path::PathBuf;
 pub use app::{ExplorerApp, Options};
 pub use document::DEMO_SCENARIO;
 pub use help::CAUTION;
+pub use layout::ViewKind;
 pub use results::RunState;
 
 /// Opens the explorer window on `file`, or on the built-in demo scenario, and blocks until

@@ -396,3 +396,46 @@ fn four_views_too_narrow_for_one_row_go_into_two() {
     let orbit = title_rect(&h, "Orbit diagram");
     assert!((trajectory.top() - orbit.top()).abs() < 1.0, "one row");
 }
+
+#[test]
+fn a_view_exported_as_png_is_drawn_at_the_chosen_size() {
+    let dir = tempfile::TempDir::new().expect("temporary folder");
+    let mut app = app();
+    app.set_png_size(640, 480);
+    let mut h = harness(app);
+    steps(&mut h, 2);
+    click_run(&mut h);
+    wait_for_run(&mut h);
+    for (view, name) in [
+        (lamina_explorer::ViewKind::Cut, "cut.png"),
+        (lamina_explorer::ViewKind::Strobe, "strobe.png"),
+        (lamina_explorer::ViewKind::Trajectory, "trajectory.png"),
+        (lamina_explorer::ViewKind::ReturnMap, "map.png"),
+    ] {
+        let path = dir.path().join(name);
+        h.state_mut().export_png(view, path.clone());
+        for _ in 0..6000 {
+            h.step();
+            if !h.state().is_exporting_png() {
+                break;
+            }
+            std::thread::sleep(Duration::from_millis(5));
+        }
+        let bytes = std::fs::read(&path).expect("the picture is written");
+        // [common practice] PNG: 8-byte signature, then IHDR with width and height (big-endian)
+        assert_eq!(&bytes[..8], b"\x89PNG\r\n\x1a\n", "{name}");
+        let width = u32::from_be_bytes([bytes[16], bytes[17], bytes[18], bytes[19]]);
+        let height = u32::from_be_bytes([bytes[20], bytes[21], bytes[22], bytes[23]]);
+        assert_eq!((width, height), (640, 480), "{name}");
+    }
+    // no temporary files are left beside them
+    let mut names: Vec<String> = std::fs::read_dir(dir.path())
+        .expect("listing")
+        .map(|e| e.expect("entry").file_name().to_string_lossy().into_owned())
+        .collect();
+    names.sort();
+    assert_eq!(
+        names,
+        ["cut.png", "map.png", "strobe.png", "trajectory.png"]
+    );
+}

@@ -1,0 +1,267 @@
+//! PNG export of a view: the view's data (with its axes and colouring as chosen on screen) is
+//! drawn again by `lamina-render` at the size asked for, on a helper thread, and written
+//! atomically. The picture is the report form (white background, labelled axes, title and a
+//! caption with the parameter values), the same as `lamina render` draws.
+
+use std::path::PathBuf;
+use std::sync::mpsc::{Receiver, channel};
+
+use lamina_render::{Figure, orbit_diagram_png, scatter_png, trajectory_png};
+
+use crate::app::ExplorerApp;
+use crate::layout::ViewKind;
+use crate::results::PointCloud;
+use crate::views::cloud::ColourBy;
+use crate::views::series::MapCoordinate;
+use crate::views::space::{axis_name, axis_value};
+
+/// What a picture draws.
+enum Drawing {
+    /// Points, coloured by the keys if given.
+    Scatter {
+        points: Vec<(f64, f64)>,
+        keys: Option<Vec<f64>>,
+    },
+    /// Pieces of a 3D line.
+    Trajectory {
+        z_label: String,
+        pieces: Vec<Vec<(f64, f64, f64)>>,
+    },
+    /// Columns of an orbit diagram with their repeat periods.
+    Orbit {
+        columns: Vec<(f64, Vec<f64>)>,
+        periods: Vec<usize>,
+    },
+}
+
+/// A picture to draw and where to write it.
+pub(crate) struct PngJob {
+    path: PathBuf,
+    figure: Figure,
+    drawing: Drawing,
+}
+
+impl PngJob {
+    /// Draws the picture and writes it; the message for the log, or why it failed.
+    fn run(self) -> Result<String, String> {
+        let bytes = match &self.drawing {
+            Drawing::Scatter { points, keys } => scatter_png(&self.figure, points, keys.as_deref()),
+            Drawing::Trajectory { z_label, pieces } => {
+                trajectory_png(&self.figure, z_label, pieces)
+            }
+            Drawing::Orbit { columns, periods } => {
+                orbit_diagram_png(&self.figure, columns, Some(periods))
+            }
+        }
+        .map_err(|e| e.to_string())?;
+        lamina_export::write_atomically(&self.path, |f| {
+            use std::io::Write;
+            f.write_all(&bytes)
+                .map_err(|e| lamina_export::ExportError::Io {
+                    path: self.path.display().to_string(),
+                    source: e,
+                })
+        })
+        .map_err(|e| e.to_string())?;
+        let (w, h) = self.figure.size;
+        Ok(format!("wrote {} ({w}×{h})", self.path.display()))
+    }
+
+    /// Draws and writes on a helper thread; the outcome arrives on the receiver.
+    pub(crate) fn spawn(self) -> Receiver<Result<String, String>> {
+        let (send, receive) = channel();
+        std::thread::spawn(move || {
+            let _ = send.send(self.run());
+        });
+        receive
+    }
+}
+
+impl ExplorerApp {
+    /// The picture of `view` as it is on screen, at the chosen export size; why not, if the
+    /// view has nothing to draw.
+    pub(crate) fn png_job(&self, view: ViewKind, path: PathBuf) -> Result<PngJob, String> {
+        let names = &self.results.names;
+        let [w, h] = self.settings.png_size;
+        let figure = |title: String, x_label: String, y_label: String| Figure {
+            size: (w, h),
+            title,
+            caption: self.caption(),
+            x_label,
+            y_label,
+        };
+        let (figure, drawing) = match view {
+            ViewKind::Cut | ViewKind::Strobe => {
+                let (cloud, axes, colour) = if view == ViewKind::Cut {
+                    (&self.results.cut, self.cut_axes(), self.settings.cut_colour)
+                } else {
+                    (
+                        &self.results.strobe,
+                        self.strobe_axes(),
+                        self.settings.strobe_colour,
+                    )
+                };
+                let [a, b] = axes.ok_or("the view has no axes: switch the cut or strobe on")?;
+                nonempty(cloud)?;
+                let points = (0..cloud.len())
+                    .map(|i| (cloud.value(i, a), cloud.value(i, b)))
+                    .collect();
+                let keys = match colour {
+                    ColourBy::Arrival => (0..cloud.len()).map(|i| i as f64).collect(),
+                    ColourBy::ReturnTime => cloud.return_time.clone(),
+                };
+                (
+                    figure(
+                        format!("{} — {}", view.title(), self.doc.scenario.title),
+                        a.label(names),
+                        b.label(names),
+                    ),
+                    Drawing::Scatter {
+                        points,
+                        keys: Some(keys),
+                    },
+                )
+            }
+            ViewKind::ReturnTimes | ViewKind::ReturnMap => {
+                let cloud = if self.results.cut.is_empty() {
+                    &self.results.strobe
+                } else {
+                    &self.results.cut
+                };
+                nonempty(cloud)?;
+                if view == ViewKind::ReturnTimes {
+                    let points = (0..cloud.len())
+                        .map(|i| (i as f64, cloud.return_time[i]))
+                        .collect();
+                    (
+                        figure(view.title().into(), "n".into(), "return time".into()),
+                        Drawing::Scatter { points, keys: None },
+                    )
+                } else {
+                    let coordinate = self.settings.map_coordinate;
+                    let value = |i: usize| match coordinate {
+                        MapCoordinate::State(k) if k < cloud.dim() => cloud.coord(i, k),
+                        MapCoordinate::State(_) => f64::NAN,
+                        MapCoordinate::ReturnTime => cloud.return_time[i],
+                    };
+                    let name = match coordinate {
+                        MapCoordinate::State(k) => names.get(k).cloned().unwrap_or_default(),
+                        MapCoordinate::ReturnTime => "return time".into(),
+                    };
+                    let points = (1..cloud.len()).map(|i| (value(i - 1), value(i))).collect();
+                    (
+                        figure(
+                            view.title().into(),
+                            format!("{name}(n)"),
+                            format!("{name}(n+1)"),
+                        ),
+                        Drawing::Scatter { points, keys: None },
+                    )
+                }
+            }
+            ViewKind::Trajectory => {
+                let traj = &self.results.trajectory;
+                if traj.is_empty() {
+                    return Err("nothing to draw yet: run the model first".into());
+                }
+                let axes = self.settings.space.axes;
+                let period = self.results.strobe_period;
+                let mut pieces: Vec<Vec<(f64, f64, f64)>> = vec![Vec::new()];
+                let mut last_phase = f64::NEG_INFINITY;
+                for i in 0..traj.len() {
+                    let (s, t) = (traj.state(i), traj.t[i]);
+                    let p = [0, 1, 2].map(|k| axis_value(axes[k], s, t, period));
+                    // a wrapping drive phase starts a new piece
+                    let phase = axes.iter().position(|&a| a == s.len() + 1).map(|k| p[k]);
+                    if let Some(phase) = phase {
+                        if phase < last_phase
+                            && let Some(last) = pieces.last()
+                            && !last.is_empty()
+                        {
+                            pieces.push(Vec::new());
+                        }
+                        last_phase = phase;
+                    }
+                    if let Some(piece) = pieces.last_mut() {
+                        piece.push((p[0], p[1], p[2]));
+                    }
+                }
+                (
+                    figure(
+                        format!("{} — {}", view.title(), self.doc.scenario.title),
+                        axis_name(axes[0], names),
+                        axis_name(axes[1], names),
+                    ),
+                    Drawing::Trajectory {
+                        z_label: axis_name(axes[2], names),
+                        pieces,
+                    },
+                )
+            }
+            ViewKind::Orbit => {
+                if self.sweep.columns.is_empty() {
+                    return Err("nothing to draw yet: run the sweep first".into());
+                }
+                let coordinate = self.sweep.axes.1;
+                let columns: Vec<(f64, Vec<f64>)> = self
+                    .sweep
+                    .columns
+                    .iter()
+                    .map(|(c, _)| {
+                        let values = c
+                            .points
+                            .iter()
+                            .filter_map(|p| p.get(coordinate).copied())
+                            .collect();
+                        (c.value, values)
+                    })
+                    .collect();
+                let periods = self
+                    .sweep
+                    .columns
+                    .iter()
+                    .map(|(_, p)| p.unwrap_or(0))
+                    .collect();
+                (
+                    figure(
+                        format!("Orbit diagram — {}", self.doc.scenario.title),
+                        self.swept_parameter_name(),
+                        names.get(coordinate).cloned().unwrap_or_default(),
+                    ),
+                    Drawing::Orbit { columns, periods },
+                )
+            }
+        };
+        Ok(PngJob {
+            path,
+            figure,
+            drawing,
+        })
+    }
+
+    /// The parameter values and the run's window, for a picture's caption.
+    fn caption(&self) -> String {
+        let s = &self.doc.scenario;
+        let parameters: Vec<String> = s
+            .parameters
+            .iter()
+            .map(|p| format!("{} = {}", p.name, p.value))
+            .collect();
+        format!(
+            "{}; t from {} (settle {}, span {})",
+            parameters.join(", "),
+            s.time.start,
+            s.time.settle,
+            s.time.span
+        )
+    }
+}
+
+/// An error if `cloud` has no points.
+fn nonempty(cloud: &PointCloud) -> Result<(), String> {
+    if cloud.is_empty() {
+        Err("nothing to draw yet: run the model first".into())
+    } else {
+        Ok(())
+    }
+}
