@@ -26,37 +26,45 @@ pub(super) enum Call {
 }
 
 impl Call {
-    /// The symbol name under which the function is registered in [`calls`].
+    /// The symbol name under which the function is registered (see [`calls`]).
     pub(super) fn symbol(self) -> &'static str {
+        self.entry().0
+    }
+
+    /// The symbol name and the address of the function.
+    fn entry(self) -> (&'static str, *const u8) {
+        let unary = |f: Unary| f as *const u8;
+        let binary = |f: Binary| f as *const u8;
+        let derivative = |f: Derivative| f as *const u8;
         match self {
-            Self::Rem => "lamina_rem",
-            Self::D1 => "lamina_d1",
-            Self::D2a => "lamina_d2a",
-            Self::D2b => "lamina_d2b",
-            Self::Pow => "lamina_pow",
-            Self::PowI => "lamina_powi",
-            Self::F2(Func2::Atan2) => "lamina_atan2",
-            Self::F2(Func2::Min) => "lamina_min",
-            Self::F2(Func2::Max) => "lamina_max",
+            Self::Rem => ("lamina_rem", binary(lamina_rem)),
+            Self::Pow => ("lamina_pow", binary(lamina_pow)),
+            Self::PowI => ("lamina_powi", lamina_powi as PowI as *const u8),
+            Self::D1 => ("lamina_d1", derivative(lamina_d1)),
+            Self::D2a => ("lamina_d2a", derivative(lamina_d2a)),
+            Self::D2b => ("lamina_d2b", derivative(lamina_d2b)),
+            Self::F2(Func2::Atan2) => ("lamina_atan2", binary(lamina_atan2)),
+            Self::F2(Func2::Min) => ("lamina_min", binary(lamina_min)),
+            Self::F2(Func2::Max) => ("lamina_max", binary(lamina_max)),
             Self::F1(f) => match f {
-                Func1::Sin => "lamina_sin",
-                Func1::Cos => "lamina_cos",
-                Func1::Tan => "lamina_tan",
-                Func1::Asin => "lamina_asin",
-                Func1::Acos => "lamina_acos",
-                Func1::Atan => "lamina_atan",
-                Func1::Sinh => "lamina_sinh",
-                Func1::Cosh => "lamina_cosh",
-                Func1::Tanh => "lamina_tanh",
-                Func1::Exp => "lamina_exp",
-                Func1::Ln => "lamina_ln",
-                Func1::Log10 => "lamina_log10",
-                Func1::Sqrt => "lamina_sqrt",
-                Func1::Abs => "lamina_abs",
-                Func1::Sign => "lamina_sign",
-                Func1::Floor => "lamina_floor",
-                Func1::Ceil => "lamina_ceil",
-                Func1::Step => "lamina_step",
+                Func1::Sin => ("lamina_sin", unary(lamina_sin)),
+                Func1::Cos => ("lamina_cos", unary(lamina_cos)),
+                Func1::Tan => ("lamina_tan", unary(lamina_tan)),
+                Func1::Asin => ("lamina_asin", unary(lamina_asin)),
+                Func1::Acos => ("lamina_acos", unary(lamina_acos)),
+                Func1::Atan => ("lamina_atan", unary(lamina_atan)),
+                Func1::Sinh => ("lamina_sinh", unary(lamina_sinh)),
+                Func1::Cosh => ("lamina_cosh", unary(lamina_cosh)),
+                Func1::Tanh => ("lamina_tanh", unary(lamina_tanh)),
+                Func1::Exp => ("lamina_exp", unary(lamina_exp)),
+                Func1::Ln => ("lamina_ln", unary(lamina_ln)),
+                Func1::Log10 => ("lamina_log10", unary(lamina_log10)),
+                Func1::Sqrt => ("lamina_sqrt", unary(lamina_sqrt)),
+                Func1::Abs => ("lamina_abs", unary(lamina_abs)),
+                Func1::Sign => ("lamina_sign", unary(lamina_sign)),
+                Func1::Floor => ("lamina_floor", unary(lamina_floor)),
+                Func1::Ceil => ("lamina_ceil", unary(lamina_ceil)),
+                Func1::Step => ("lamina_step", unary(lamina_step)),
             },
         }
     }
@@ -180,41 +188,22 @@ extern "C" fn lamina_d2b(f: i32, a: f64, b: f64) -> f64 {
 }
 
 type Unary = extern "C" fn(f64) -> f64;
-type Derivative = extern "C" fn(i32, f64, f64) -> f64;
 type Binary = extern "C" fn(f64, f64) -> f64;
+type PowI = extern "C" fn(f64, i32) -> f64;
+type Derivative = extern "C" fn(i32, f64, f64) -> f64;
 
-/// The functions generated code may call, by symbol name.
-pub(super) fn calls() -> [(&'static str, *const u8); 27] {
+/// The functions generated code may call, by symbol name: every [`Call`].
+pub(super) fn calls() -> impl Iterator<Item = (&'static str, *const u8)> {
     [
-        ("lamina_sin", lamina_sin as Unary as *const u8),
-        ("lamina_cos", lamina_cos as Unary as *const u8),
-        ("lamina_tan", lamina_tan as Unary as *const u8),
-        ("lamina_asin", lamina_asin as Unary as *const u8),
-        ("lamina_acos", lamina_acos as Unary as *const u8),
-        ("lamina_atan", lamina_atan as Unary as *const u8),
-        ("lamina_sinh", lamina_sinh as Unary as *const u8),
-        ("lamina_cosh", lamina_cosh as Unary as *const u8),
-        ("lamina_tanh", lamina_tanh as Unary as *const u8),
-        ("lamina_exp", lamina_exp as Unary as *const u8),
-        ("lamina_ln", lamina_ln as Unary as *const u8),
-        ("lamina_log10", lamina_log10 as Unary as *const u8),
-        ("lamina_sqrt", lamina_sqrt as Unary as *const u8),
-        ("lamina_abs", lamina_abs as Unary as *const u8),
-        ("lamina_sign", lamina_sign as Unary as *const u8),
-        ("lamina_floor", lamina_floor as Unary as *const u8),
-        ("lamina_ceil", lamina_ceil as Unary as *const u8),
-        ("lamina_step", lamina_step as Unary as *const u8),
-        ("lamina_rem", lamina_rem as Binary as *const u8),
-        ("lamina_pow", lamina_pow as Binary as *const u8),
-        (
-            "lamina_powi",
-            lamina_powi as extern "C" fn(f64, i32) -> f64 as *const u8,
-        ),
-        ("lamina_atan2", lamina_atan2 as Binary as *const u8),
-        ("lamina_min", lamina_min as Binary as *const u8),
-        ("lamina_max", lamina_max as Binary as *const u8),
-        ("lamina_d1", lamina_d1 as Derivative as *const u8),
-        ("lamina_d2a", lamina_d2a as Derivative as *const u8),
-        ("lamina_d2b", lamina_d2b as Derivative as *const u8),
+        Call::Rem,
+        Call::Pow,
+        Call::PowI,
+        Call::D1,
+        Call::D2a,
+        Call::D2b,
     ]
+    .into_iter()
+    .chain(FUNC1.map(Call::F1))
+    .chain(FUNC2.map(Call::F2))
+    .map(Call::entry)
 }
