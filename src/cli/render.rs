@@ -1,6 +1,5 @@
 //! `lamina render`: the explorer's views drawn headless into PNG files for reports.
 
-use std::io::Write;
 use std::ops::ControlFlow;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -9,7 +8,7 @@ use anyhow::{Context, Result, bail};
 use lamina_core::Interrupt;
 use lamina_core::run::{CutPoint, Run, Sink, StrobeSample};
 use lamina_core::sweep::{SweepColumn, SweepSpec};
-use lamina_export::AtomicFile;
+use lamina_export::write_bytes_atomically;
 use lamina_render::Figure;
 use lamina_scenario::Scenario;
 
@@ -81,11 +80,7 @@ fn caption(scenario: &Scenario) -> String {
 }
 
 fn write_png(path: &Path, bytes: &[u8]) -> Result<()> {
-    let mut file = AtomicFile::create(path)?;
-    file.write_all(bytes)
-        .with_context(|| format!("writing {}", path.display()))?;
-    file.commit()?;
-    Ok(())
+    Ok(write_bytes_atomically(path, bytes)?)
 }
 
 #[derive(Default)]

@@ -223,14 +223,7 @@ impl ExplorerApp {
             .unwrap_or_default();
         let _ = std::fs::create_dir_all(ron_path.parent().unwrap_or(&ron_path));
         let write = |path: &PathBuf, contents: &str| {
-            lamina_export::write_atomically(path, |f| {
-                use std::io::Write;
-                f.write_all(contents.as_bytes())
-                    .map_err(|e| lamina_export::ExportError::Io {
-                        path: path.display().to_string(),
-                        source: e,
-                    })
-            })
+            lamina_export::write_bytes_atomically(path, contents.as_bytes())
         };
         if write(&ron_path, &text).is_ok() {
             let _ = write(&path_path, &original);

@@ -54,15 +54,7 @@ impl PngJob {
             }
         }
         .map_err(|e| e.to_string())?;
-        lamina_export::write_atomically(&self.path, |f| {
-            use std::io::Write;
-            f.write_all(&bytes)
-                .map_err(|e| lamina_export::ExportError::Io {
-                    path: self.path.display().to_string(),
-                    source: e,
-                })
-        })
-        .map_err(|e| e.to_string())?;
+        lamina_export::write_bytes_atomically(&self.path, &bytes).map_err(|e| e.to_string())?;
         let (w, h) = self.figure.size;
         Ok(format!("wrote {} ({w}×{h})", self.path.display()))
     }

@@ -84,3 +84,11 @@ where
     file.commit()?;
     Ok(())
 }
+
+/// Writes `bytes` to `target` atomically; on any error the target is left as it was.
+pub fn write_bytes_atomically(target: impl AsRef<Path>, bytes: &[u8]) -> Result<(), ExportError> {
+    let target = target.as_ref();
+    write_atomically(target, |f| {
+        f.write_all(bytes).map_err(|e| io_error(target, e))
+    })
+}

@@ -3,7 +3,10 @@
 use std::io::{self, ErrorKind, Write};
 
 use lamina_core::run::{CutPoint, StrobeSample};
-use lamina_export::{AtomicFile, CutCsv, ExportError, StrobeCsv, format_number, write_atomically};
+use lamina_export::{
+    AtomicFile, CutCsv, ExportError, StrobeCsv, format_number, write_atomically,
+    write_bytes_atomically,
+};
 
 #[test]
 fn numbers_round_trip_exactly() {
@@ -167,4 +170,18 @@ fn atomic_file_into_missing_directory_fails_cleanly() {
     let dir = tempfile::tempdir().expect("tempdir");
     let target = dir.path().join("missing").join("out.csv");
     assert!(AtomicFile::create(&target).is_err());
+}
+
+#[test]
+fn bytes_written_atomically_replace_the_target_whole() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let target = dir.path().join("picture.png");
+    std::fs::write(&target, "old").expect("seed");
+    write_bytes_atomically(&target, b"new bytes").expect("written");
+    // [common practice] the target holds exactly the new bytes and no temporary file is left
+    assert_eq!(std::fs::read(&target).expect("read"), b"new bytes");
+    assert_eq!(std::fs::read_dir(dir.path()).expect("list").count(), 1);
+    let missing = dir.path().join("missing").join("picture.png");
+    let err = write_bytes_atomically(&missing, b"x").expect_err("no such folder");
+    assert!(err.to_string().contains("picture.png"), "{err}");
 }
