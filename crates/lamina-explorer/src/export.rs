@@ -110,8 +110,9 @@ impl ExplorerApp {
         self.files.ask_path(Purpose::Png(view), Some(suggested));
     }
 
-    /// Draws `view` again at the chosen size and writes it to `path`, on a helper thread.
-    pub(crate) fn start_png_export(&mut self, view: ViewKind, path: PathBuf) {
+    /// Exports `view` as a PNG to `path`: draws it again at the chosen size and writes it, on a
+    /// helper thread (File ▸ Export calls this once the path is chosen).
+    pub fn export_png(&mut self, view: ViewKind, path: PathBuf) {
         match self.png_job(view, path) {
             Ok(job) => {
                 self.layout.png_export = Some(job.spawn());
@@ -141,12 +142,6 @@ impl ExplorerApp {
                 self.files.alert = Some("PNG export failed: the drawing stopped".into());
             }
         }
-    }
-
-    /// Exports `view` as a PNG to `path` at the chosen size, as File ▸ Export does once the
-    /// path is chosen.
-    pub fn export_png(&mut self, view: ViewKind, path: PathBuf) {
-        self.start_png_export(view, path);
     }
 
     /// Sets the size of PNG exports.

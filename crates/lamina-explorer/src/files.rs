@@ -250,7 +250,7 @@ impl ExplorerApp {
                 }
             }
             Purpose::Csv(set) => self.export_csv(set, &path),
-            Purpose::Png(view) => self.start_png_export(view, path),
+            Purpose::Png(view) => self.export_png(view, path),
         }
     }
 

@@ -1,7 +1,5 @@
-//! The window's layout: menu bar with the run buttons, status line, the three main views side
-//! by side (resizable, each can be maximised), and the small views below them.
-
-use std::collections::HashMap;
+//! The window's layout: menu bar with the run buttons, status line, the main views side by
+//! side or in two rows (resizable, each can be enlarged), and the small views below them.
 
 use egui::{Color32, Rect, RichText, Sense, Ui, vec2};
 use lamina_scenario::Surface;
@@ -67,8 +65,6 @@ const MAIN_VIEWS: [ViewKind; 4] = [
 /// Per-frame layout state that is not persisted.
 #[derive(Default)]
 pub struct Layout {
-    /// Where each view was drawn last frame (for PNG export).
-    pub view_rects: HashMap<ViewKind, Rect>,
     /// A PNG export being drawn and written on a helper thread: its outcome.
     pub png_export: Option<std::sync::mpsc::Receiver<Result<String, String>>>,
     /// The cut view's state.
@@ -356,12 +352,11 @@ pub fn lower_views(app: &mut ExplorerApp, ui: &mut Ui) {
                         } else {
                             &app.results.strobe
                         };
-                        let r = series::return_times_ui(
+                        series::return_times_ui(
                             ui,
                             cloud,
                             if source_is_cut { "cut" } else { "strobe" },
                         );
-                        app.layout.view_rects.insert(ViewKind::ReturnTimes, r);
                     },
                 );
                 ui.separator();
@@ -375,13 +370,12 @@ pub fn lower_views(app: &mut ExplorerApp, ui: &mut Ui) {
                         } else {
                             &app.results.strobe
                         };
-                        let r = series::first_return_map_ui(
+                        series::first_return_map_ui(
                             ui,
                             cloud,
                             &app.results.names,
                             &mut app.settings.map_coordinate,
                         );
-                        app.layout.view_rects.insert(ViewKind::ReturnMap, r);
                     },
                 );
                 ui.separator();
@@ -598,8 +592,6 @@ fn tile_ui(
             }
         });
     });
-    let rect = ui.available_rect_before_wrap();
-    app.layout.view_rects.insert(kind, rect);
     match kind {
         ViewKind::Trajectory => {
             let plane = plane_in_view(app);
@@ -717,8 +709,7 @@ fn tile_ui(
             });
         }
         ViewKind::Orbit => {
-            let rect = app.orbit_tile_ui(ui);
-            app.layout.view_rects.insert(kind, rect);
+            app.orbit_tile_ui(ui);
         }
         ViewKind::ReturnTimes | ViewKind::ReturnMap => {}
     }

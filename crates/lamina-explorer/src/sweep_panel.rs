@@ -220,7 +220,7 @@ impl ExplorerApp {
     }
 
     /// The orbit-diagram tile.
-    pub(crate) fn orbit_tile_ui(&mut self, ui: &mut Ui) -> egui::Rect {
+    pub(crate) fn orbit_tile_ui(&mut self, ui: &mut Ui) {
         let running = self.sweep.worker.is_running();
         let mut start = false;
         ui.horizontal(|ui| {
@@ -270,7 +270,7 @@ impl ExplorerApp {
             .map(|s| s.name.clone())
             .unwrap_or_default();
         let current = self.doc.scenario.parameters.get(parameter).map(|p| p.value);
-        let (clicked, rect) = orbit_diagram_ui(
+        let clicked = orbit_diagram_ui(
             ui,
             &self.sweep.columns,
             coordinate,
@@ -286,6 +286,5 @@ impl ExplorerApp {
             let ctx = ui.ctx().clone();
             self.start_run(&ctx);
         }
-        rect
     }
 }

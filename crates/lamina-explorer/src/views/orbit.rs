@@ -16,14 +16,14 @@ pub fn period_colour(period: Option<usize>) -> Color32 {
     }
 }
 
-/// Draws the diagram; returns the parameter value clicked, if any, and the plot's rectangle.
+/// Draws the diagram; returns the parameter value clicked, if any.
 pub fn orbit_diagram_ui(
     ui: &mut Ui,
     columns: &[(SweepColumn, Option<usize>)],
     coordinate: usize,
     labels: (&str, &str),
     current: Option<f64>,
-) -> (Option<f64>, Rect) {
+) -> Option<f64> {
     let mut extent = [
         f64::INFINITY,
         f64::INFINITY,
@@ -92,5 +92,5 @@ pub fn orbit_diagram_ui(
             .map(|(c, _)| c.value)
             .min_by(|a, b| (a - value).abs().total_cmp(&(b - value).abs()));
     }
-    (clicked, response.response.rect)
+    clicked
 }

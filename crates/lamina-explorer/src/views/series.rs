@@ -1,7 +1,7 @@
 //! The small views under the main ones: the return-time sequence and the first-return map
 //! (s_n against s_n+1 for a chosen coordinate).
 
-use egui::{Rect, Ui};
+use egui::Ui;
 use egui_plot::{Line, Plot, PlotPoints, Points};
 
 use crate::results::PointCloud;
@@ -34,7 +34,7 @@ fn padded_corners(values: impl Iterator<Item = [f64; 2]>) -> Option<Vec<[f64; 2]
 }
 
 /// Return time against point number.
-pub fn return_times_ui(ui: &mut Ui, cloud: &PointCloud, label: &str) -> Rect {
+pub fn return_times_ui(ui: &mut Ui, cloud: &PointCloud, label: &str) {
     let stride = cloud.len().div_ceil(MAX_SERIES_POINTS).max(1);
     let points: Vec<[f64; 2]> = cloud
         .return_time
@@ -44,7 +44,7 @@ pub fn return_times_ui(ui: &mut Ui, cloud: &PointCloud, label: &str) -> Rect {
         .filter(|(_, r)| r.is_finite())
         .map(|(k, r)| [k as f64, *r])
         .collect();
-    let response = Plot::new("return_times")
+    Plot::new("return_times")
         .x_axis_label("n")
         .y_axis_label(format!("return time ({label})"))
         .show(ui, |plot_ui| {
@@ -57,7 +57,6 @@ pub fn return_times_ui(ui: &mut Ui, cloud: &PointCloud, label: &str) -> Rect {
             }
             plot_ui.points(Points::new("return time", PlotPoints::new(points)).radius(1.5));
         });
-    response.response.rect
 }
 
 /// The coordinate of the first-return map: a state, or the return time.
@@ -75,7 +74,7 @@ pub fn first_return_map_ui(
     cloud: &PointCloud,
     names: &[String],
     coordinate: &mut MapCoordinate,
-) -> Rect {
+) {
     ui.horizontal(|ui| {
         ui.label("s =");
         let current = match *coordinate {
@@ -109,7 +108,7 @@ pub fn first_return_map_ui(
         .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), p| {
             (lo.min(p[0]).min(p[1]), hi.max(p[0]).max(p[1]))
         });
-    let response = Plot::new("first_return_map")
+    Plot::new("first_return_map")
         .x_axis_label("s(n)")
         .y_axis_label("s(n+1)")
         .data_aspect(1.0)
@@ -135,5 +134,4 @@ pub fn first_return_map_ui(
             }
             plot_ui.points(Points::new("s(n+1)", PlotPoints::new(pairs)).radius(1.5));
         });
-    response.response.rect
 }
