@@ -72,11 +72,13 @@ fn font_size(figure: &Figure, fraction: f64, min: f64) -> f64 {
     (f64::from(figure.size.1) * fraction).max(min)
 }
 
-/// A 2D scatter of `points`, coloured by `colour_keys` (order or return time) if given.
-pub fn scatter_png(
+/// The PNG of `figure`: a white canvas of its size with the caption at the bottom, on which
+/// `draw` puts the rest.
+fn picture(
     figure: &Figure,
-    points: &[(f64, f64)],
-    colour_keys: Option<&[f64]>,
+    draw: impl FnOnce(
+        &DrawingArea<BitMapBackend<'_>, plotters::coord::Shift>,
+    ) -> Result<(), RenderError>,
 ) -> Result<Vec<u8>, RenderError> {
     figure.check()?;
     register_font();
@@ -86,6 +88,20 @@ pub fn scatter_png(
         let root = BitMapBackend::with_buffer(&mut buffer, (w, h)).into_drawing_area();
         root.fill(&BACKGROUND).map_err(draw_error)?;
         caption_area(&root, figure)?;
+        draw(&root)?;
+        root.present().map_err(draw_error)?;
+    }
+    encode_png(buffer, figure.size)
+}
+
+/// A 2D scatter of `points`, coloured by `colour_keys` (order or return time) if given.
+pub fn scatter_png(
+    figure: &Figure,
+    points: &[(f64, f64)],
+    colour_keys: Option<&[f64]>,
+) -> Result<Vec<u8>, RenderError> {
+    picture(figure, |root| {
+        let (w, h) = figure.size;
         let body = root.margin(8, (font_size(figure, 0.05, 20.0)) as u32, 8, 16);
         let (x0, x1) = range_of(points.iter().map(|p| p.0));
         let (y0, y1) = range_of(points.iter().map(|p| p.1));
@@ -128,9 +144,8 @@ pub fn scatter_png(
                 Circle::new((x, y), radius, colour.filled())
             }))
             .map_err(draw_error)?;
-        root.present().map_err(draw_error)?;
-    }
-    encode_png(buffer, figure.size)
+        Ok(())
+    })
 }
 
 /// A 3D trajectory in orthographic projection: pieces of line (each a list of (across, depth,
@@ -141,14 +156,7 @@ pub fn trajectory_png(
     pieces: &[Vec<(f64, f64, f64)>],
 ) -> Result<Vec<u8>, RenderError> {
     let points: Vec<(f64, f64, f64)> = pieces.iter().flatten().copied().collect();
-    figure.check()?;
-    register_font();
-    let (w, h) = figure.size;
-    let mut buffer = vec![0u8; (w * h * 3) as usize];
-    {
-        let root = BitMapBackend::with_buffer(&mut buffer, (w, h)).into_drawing_area();
-        root.fill(&BACKGROUND).map_err(draw_error)?;
-        caption_area(&root, figure)?;
+    picture(figure, |root| {
         let body = root.margin(8, (font_size(figure, 0.05, 20.0)) as u32, 8, 8);
         let (x0, x1) = range_of(points.iter().map(|p| p.0));
         let (y0, y1) = range_of(points.iter().map(|p| p.1));
@@ -198,10 +206,8 @@ pub fn trajectory_png(
                 .into_font()
                 .color(&INK),
         ))
-        .map_err(draw_error)?;
-        root.present().map_err(draw_error)?;
-    }
-    encode_png(buffer, figure.size)
+        .map_err(draw_error)
+    })
 }
 
 /// An orbit diagram: for each parameter value, its kept points of one coordinate;
