@@ -166,6 +166,7 @@ impl Trajectory {
     pub fn new(dim: usize) -> Self {
         Self {
             dim,
+            sums: vec![0.0; dim],
             revision: first_revision(),
             ..Self::default()
         }
@@ -198,10 +199,7 @@ impl Trajectory {
         }
         self.t.push(t);
         self.states.extend_from_slice(state);
-        self.sums.resize(self.dim, 0.0);
-        for (sum, v) in self.sums.iter_mut().zip(state) {
-            *sum += v;
-        }
+        add_to(&mut self.sums, state);
         self.revision += 1;
     }
 
@@ -226,10 +224,15 @@ impl Trajectory {
         self.states.truncate(w * dim);
         self.sums = vec![0.0; dim];
         for state in self.states.chunks_exact(dim.max(1)) {
-            for (sum, v) in self.sums.iter_mut().zip(state) {
-                *sum += v;
-            }
+            add_to(&mut self.sums, state);
         }
+    }
+}
+
+/// Adds `state` to the running `sums`, component by component.
+fn add_to(sums: &mut [f64], state: &[f64]) {
+    for (sum, v) in sums.iter_mut().zip(state) {
+        *sum += v;
     }
 }
 
