@@ -61,24 +61,6 @@ fn parse_size(text: &str) -> Result<(u32, u32), String> {
     Ok((w, h))
 }
 
-/// The parameter values and run window, for the caption.
-fn caption(scenario: &Scenario) -> String {
-    let params: Vec<String> = scenario
-        .parameters
-        .iter()
-        .map(|p| format!("{} = {}", p.name, p.value))
-        .collect();
-    let t0 = scenario.time.start + scenario.time.settle;
-    format!(
-        "{}   |   t from {} to {}, rtol {:e}, atol {:e}",
-        params.join(", "),
-        t0,
-        t0 + scenario.time.span,
-        scenario.integrator.rtol,
-        scenario.integrator.atol
-    )
-}
-
 fn write_png(path: &Path, bytes: &[u8]) -> Result<()> {
     Ok(write_bytes_atomically(path, bytes)?)
 }
@@ -122,7 +104,7 @@ pub fn write_orbit_diagram(
     let figure = Figure {
         size,
         title: format!("{} — orbit diagram", scenario.title),
-        caption: caption(scenario),
+        caption: scenario.caption(),
         x_label: parameter.clone(),
         y_label: coordinate_name.clone(),
     };
@@ -153,7 +135,7 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
     let figure = |x: String, y: String, what: &str| Figure {
         size: args.size,
         title: format!("{} — {what}", scenario.title),
-        caption: caption(&scenario),
+        caption: scenario.caption(),
         x_label: x,
         y_label: y,
     };
@@ -176,20 +158,7 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
             });
             // a new piece of line wherever the drive phase wraps around
             let phase_axis = axes.iter().position(|&a| a == n + 1);
-            let mut pieces: Vec<Vec<(f64, f64, f64)>> = vec![Vec::new()];
-            for p in points {
-                let coord = |q: (f64, f64, f64), k: usize| [q.0, q.1, q.2][k];
-                let wrapped = match (phase_axis, pieces.last().and_then(|piece| piece.last())) {
-                    (Some(k), Some(&last)) => coord(p, k) < coord(last, k),
-                    _ => false,
-                };
-                if wrapped {
-                    pieces.push(Vec::new());
-                }
-                if let Some(piece) = pieces.last_mut() {
-                    piece.push(p);
-                }
-            }
+            let pieces = lamina_render::split_where_it_wraps(points, phase_axis);
             lamina_render::trajectory_png(
                 &figure(label(axes[0]), label(axes[1]), "trajectory"),
                 &label(axes[2]),

@@ -6,7 +6,7 @@
 use std::path::PathBuf;
 use std::sync::mpsc::{Receiver, channel};
 
-use lamina_render::{Figure, orbit_diagram_png, scatter_png, trajectory_png};
+use lamina_render::{Figure, orbit_diagram_png, scatter_png, split_where_it_wraps, trajectory_png};
 
 use crate::app::ExplorerApp;
 use crate::layout::ViewKind;
@@ -78,7 +78,7 @@ impl ExplorerApp {
         let figure = |title: String, x_label: String, y_label: String| Figure {
             size: (w, h),
             title,
-            caption: self.caption(),
+            caption: self.doc.scenario.caption(),
             x_label,
             y_label,
         };
@@ -158,26 +158,14 @@ impl ExplorerApp {
                 }
                 let axes = self.settings.space.axes;
                 let period = self.results.strobe_period;
-                let mut pieces: Vec<Vec<(f64, f64, f64)>> = vec![Vec::new()];
-                let mut last_phase = f64::NEG_INFINITY;
-                for i in 0..traj.len() {
+                let points = (0..traj.len()).map(|i| {
                     let (s, t) = (traj.state(i), traj.t[i]);
-                    let p = [0, 1, 2].map(|k| axis_value(axes[k], s, t, period));
-                    // a wrapping drive phase starts a new piece
-                    let phase = axes.iter().position(|&a| a == s.len() + 1).map(|k| p[k]);
-                    if let Some(phase) = phase {
-                        if phase < last_phase
-                            && let Some(last) = pieces.last()
-                            && !last.is_empty()
-                        {
-                            pieces.push(Vec::new());
-                        }
-                        last_phase = phase;
-                    }
-                    if let Some(piece) = pieces.last_mut() {
-                        piece.push((p[0], p[1], p[2]));
-                    }
-                }
+                    let [a, b, c] = axes.map(|axis| axis_value(axis, s, t, period));
+                    (a, b, c)
+                });
+                // a new piece of line wherever the drive phase wraps around
+                let phase_axis = axes.iter().position(|&a| a == traj.dim() + 1);
+                let pieces = split_where_it_wraps(points, phase_axis);
                 (
                     figure(
                         format!("{} — {}", view.title(), self.doc.scenario.title),
@@ -229,23 +217,6 @@ impl ExplorerApp {
             figure,
             drawing,
         })
-    }
-
-    /// The parameter values and the run's window, for a picture's caption.
-    fn caption(&self) -> String {
-        let s = &self.doc.scenario;
-        let parameters: Vec<String> = s
-            .parameters
-            .iter()
-            .map(|p| format!("{} = {}", p.name, p.value))
-            .collect();
-        format!(
-            "{}; t from {} (settle {}, span {})",
-            parameters.join(", "),
-            s.time.start,
-            s.time.settle,
-            s.time.span
-        )
     }
 }
 

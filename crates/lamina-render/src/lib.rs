@@ -7,4 +7,4 @@ mod figure;
 mod plots;
 
 pub use figure::{Figure, RenderError};
-pub use plots::{orbit_diagram_png, scatter_png, trajectory_png};
+pub use plots::{orbit_diagram_png, scatter_png, split_where_it_wraps, trajectory_png};

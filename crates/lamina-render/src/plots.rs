@@ -210,6 +210,30 @@ pub fn trajectory_png(
     })
 }
 
+/// Splits a line of 3D points into pieces wherever coordinate `axis` (0, 1 or 2) falls
+/// from one point to the next, as a drive phase does when it wraps around; with no axis, one
+/// piece.
+pub fn split_where_it_wraps(
+    points: impl IntoIterator<Item = (f64, f64, f64)>,
+    axis: Option<usize>,
+) -> Vec<Vec<(f64, f64, f64)>> {
+    let coord = |q: (f64, f64, f64), k: usize| [q.0, q.1, q.2].get(k).copied();
+    let mut pieces: Vec<Vec<(f64, f64, f64)>> = vec![Vec::new()];
+    for p in points {
+        let wrapped = match (axis, pieces.last().and_then(|piece| piece.last())) {
+            (Some(k), Some(&last)) => coord(p, k) < coord(last, k),
+            _ => false,
+        };
+        if wrapped {
+            pieces.push(Vec::new());
+        }
+        if let Some(piece) = pieces.last_mut() {
+            piece.push(p);
+        }
+    }
+    pieces
+}
+
 /// An orbit diagram: for each parameter value, its kept points of one coordinate;
 /// `periods` (one per column, 0 for none found) colour the columns.
 pub fn orbit_diagram_png(
@@ -232,4 +256,21 @@ pub fn orbit_diagram_png(
         }
     }
     scatter_png(figure, &points, periods.map(|_| keys.as_slice()))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_line_splits_where_its_phase_wraps() {
+        // [analytic] phase 0.5, 0.9, then 0.1 (wrapped), 0.4: two pieces of two points
+        let points = [0.5, 0.9, 0.1, 0.4].map(|phase| (1.0, 2.0, phase));
+        let pieces = split_where_it_wraps(points, Some(2));
+        assert_eq!(pieces.len(), 2);
+        assert_eq!(pieces[0], vec![(1.0, 2.0, 0.5), (1.0, 2.0, 0.9)]);
+        assert_eq!(pieces[1], vec![(1.0, 2.0, 0.1), (1.0, 2.0, 0.4)]);
+        // no wrapping axis: one piece
+        assert_eq!(split_where_it_wraps(points, None).len(), 1);
+    }
 }

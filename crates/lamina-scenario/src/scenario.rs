@@ -333,6 +333,25 @@ impl Scenario {
         }
     }
 
+    /// One line for a picture's caption: the parameter values, the recorded time window and
+    /// the tolerances.
+    pub fn caption(&self) -> String {
+        let params: Vec<String> = self
+            .parameters
+            .iter()
+            .map(|p| format!("{} = {}", p.name, p.value))
+            .collect();
+        let t0 = self.time.start + self.time.settle;
+        format!(
+            "{}   |   t from {} to {}, rtol {:e}, atol {:e}",
+            params.join(", "),
+            t0,
+            t0 + self.time.span,
+            self.integrator.rtol,
+            self.integrator.atol
+        )
+    }
+
     /// Forgets where the fields were in the loaded text (for example after editing, when the
     /// old lines no longer match).
     pub fn forget_source(&mut self) {
