@@ -146,26 +146,25 @@ fn combine2(g: &mut Gen<'_, '_>, ta: &Sparse, ca: Value, tb: &Sparse, cb: Value)
     let zero = g.b.ins().f64const(0.0);
     let mut out = Vec::with_capacity(ta.0.len() + tb.0.len());
     let (mut i, mut k) = (0, 0);
-    while i < ta.0.len() || k < tb.0.len() {
-        let ja = ta.0.get(i).map(|&(j, _)| j);
-        let jb = tb.0.get(k).map(|&(j, _)| j);
-        let (j, a, b) = match (ja, jb) {
-            (Some(x), Some(y)) if x == y => {
+    loop {
+        // the next state in either tangent, with its entry from each (if there)
+        let (j, a, b) = match (ta.0.get(i).copied(), tb.0.get(k).copied()) {
+            (Some((x, a)), Some((y, b))) if x == y => {
                 i += 1;
                 k += 1;
-                (x, Some(ta.0[i - 1].1), Some(tb.0[k - 1].1))
+                (x, Some(a), Some(b))
             }
-            (Some(x), Some(y)) if x < y => {
+            (Some((x, a)), Some((y, _))) if x < y => {
                 i += 1;
-                (x, Some(ta.0[i - 1].1), None)
+                (x, Some(a), None)
             }
-            (Some(x), None) => {
+            (Some((x, a)), None) => {
                 i += 1;
-                (x, Some(ta.0[i - 1].1), None)
+                (x, Some(a), None)
             }
-            (_, Some(y)) => {
+            (_, Some((y, b))) => {
                 k += 1;
-                (y, None, Some(tb.0[k - 1].1))
+                (y, None, Some(b))
             }
             (None, None) => break,
         };
