@@ -33,8 +33,7 @@ pub struct Program {
     /// The fast form (boxed: it is large, and a program sits in other types).
     fast: Option<Box<Compiled>>,
     /// Machine code, made on first use by [`Program::specialise`] and shared by clones made
-    /// after that.
-    /// (Boxed, as the fast form: a program sits in other types.)
+    /// after that (boxed, as the fast form is).
     native: OnceLock<Option<Box<NativeCode>>>,
     /// Machine code of the Jacobian with respect to the states, made on the first
     /// [`Program::jacobian`].
