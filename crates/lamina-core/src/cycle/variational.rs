@@ -1,7 +1,7 @@
 //! The variational equations: the state `x` and the `n x n` matrix `Phi` integrated together,
 //! `x' = f(t, x)`, `Phi' = J(t, x) Phi`, as one system of `n + n^2` states.
 
-use crate::integrate::Rates;
+use crate::integrate::{Rates, TangentLayout};
 use crate::model::Model;
 
 /// The model with its variational equations, as one right-hand side of dimension `n + n^2`.
@@ -74,5 +74,16 @@ impl Rates for Variational<'_> {
                 }
             }
         }
+    }
+
+    /// The columns of `Phi` are the tangent vectors, so the stiff method factorises the
+    /// model's `n x n` matrices only.
+    fn tangent_layout(&self) -> Option<TangentLayout> {
+        self.with_matrix
+            .then(|| TangentLayout::matrix_columns(self.n, self.n))
+    }
+
+    fn model_jacobian(&mut self, t: f64, x: &[f64], jacobian: &mut [f64]) {
+        self.model.jacobian(t, x, jacobian);
     }
 }

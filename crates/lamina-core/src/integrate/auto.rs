@@ -1,12 +1,17 @@
 //! The automatic method and going back inside a step: `Auto` changes between DOP853 and
 //! Rodas4 after accepted steps; [`Integrator::shorten_last_step`],
 //! [`Integrator::undo_last_step`] and [`Integrator::restart`] let a driver end a step at a
-//! switching time of the model and go on with other rates from there.
+//! switching time of the model and go on with other rates from there;
+//! [`Integrator::ensure_accurate_dense`] shortens a stiff step whose interpolant is too coarse.
 
 use super::controller::StepRule;
 use super::integrator::min_step;
 use super::stiffness::MethodChange;
 use super::{Integrator, Method, Rates, StepError};
+
+/// How often [`Integrator::ensure_accurate_dense`] shortens one step at most (each time by
+/// a factor of 2 to 10).
+const MAX_DENSE_SHORTENINGS: usize = 8;
 
 impl Integrator {
     /// Under `Auto`, feeds the stiffness measure of the step of size `h` just accepted to the
@@ -108,6 +113,38 @@ impl Integrator {
     ) -> Result<(), StepError> {
         self.rewind();
         self.step_fixed(rates, h)
+    }
+
+    /// Builds the dense output of the last step ([`Integrator::ensure_dense`]) and makes sure
+    /// it resolves the solution: where the stiff method's interpolant of a long stiff step
+    /// is not accurate to the tolerance (the error control of a stiffly forced model lets the
+    /// steps grow far beyond what any polynomial over the step can follow, because the step
+    /// ends stay accurate), the step is taken again shorter until it is, and the next steps
+    /// are kept that short. Returns whether the step was shortened (its time, state and
+    /// segment are then those of the shorter step). For a driver that samples the dense
+    /// output (strobe samples, cut crossings, stored steps).
+    ///
+    /// # Errors
+    /// As [`Integrator::ensure_dense`] and [`Integrator::shorten_last_step`].
+    pub fn ensure_accurate_dense<R: Rates + ?Sized>(
+        &mut self,
+        rates: &mut R,
+    ) -> Result<bool, StepError> {
+        self.ensure_dense(rates)?;
+        let mut shortened = false;
+        for _ in 0..MAX_DENSE_SHORTENINGS {
+            let error = self.stepper.dense_error();
+            if !(error > 1.0) {
+                break;
+            }
+            // the estimate falls with the fourth power of the step
+            let factor = (0.8 * error.powf(-0.25)).clamp(0.1, 0.5);
+            let h = self.segment.h * factor;
+            self.shorten_last_step(rates, h)?;
+            self.limit_next_step(h);
+            shortened = true;
+        }
+        Ok(shortened)
     }
 
     /// Limits the proposed size of the next step to `h` (a driver that ended a step early

@@ -15,6 +15,10 @@ pub(super) const EVALS_PER_ATTEMPT: u64 = 11;
 /// `f` at the new state, is needed anyway as the first stage of the next step.
 pub(super) const EVALS_FOR_DENSE: u64 = 3;
 
+/// Vectors of the system's length that the stepper holds besides its interpolant (the fields
+/// below: 16 stages, the stage state and the new state), for estimates of a run's memory.
+pub(super) const VECTORS: usize = 18;
+
 /// Stage vectors and scratch of the DOP853 stepper, allocated once.
 #[derive(Clone, Debug)]
 pub(super) struct Dop853 {

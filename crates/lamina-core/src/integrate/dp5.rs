@@ -55,6 +55,10 @@ pub(super) const ORDER: i32 = 5;
 /// Right-hand-side evaluations of one step attempt (stages 2 to 7).
 pub(super) const EVALS_PER_ATTEMPT: u64 = 6;
 
+/// Vectors of the system's length that the stepper holds besides its interpolant (the fields
+/// below: 7 stages, the stage state and the new state), for estimates of a run's memory.
+pub(super) const VECTORS: usize = 9;
+
 /// Stage vectors and scratch of the Dormand–Prince 5(4) stepper, allocated once.
 #[derive(Clone, Debug)]
 pub(super) struct Dp5 {

@@ -24,8 +24,10 @@ const NON_FINITE_SHRINK: f64 = 0.25;
 /// [`Integrator::step_lazy`] takes the same step without building the dense output (for
 /// DOP853 that saves three of its fifteen right-hand-side evaluations per step);
 /// [`Integrator::ensure_dense`] builds it afterwards, for that step, when it is wanted.
-/// All storage is allocated in [`Integrator::new`] (and again in [`Integrator::reset`] only if
-/// the state length changes); stepping allocates nothing.
+/// All vectors are allocated in [`Integrator::new`] (and again in [`Integrator::reset`] only
+/// if the state length changes); the stiff method's matrices are allocated at its first
+/// Jacobian (their size depends on the rates: see [`Rates::tangent_layout`]); stepping
+/// allocates nothing else.
 #[derive(Clone, Debug)]
 pub struct Integrator {
     pub(super) method: Method,
@@ -79,6 +81,15 @@ impl Integrator {
             segment: Self::empty_segment(method, 0.0, dim),
             stats: Stats::default(),
         }
+    }
+
+    /// Bytes of working memory an integrator of `method` needs for a system of `dim` states,
+    /// whose stiff method works with `matrix_size x matrix_size` matrices: `dim` for most
+    /// systems, the model's `n` for variational equations ([`Rates::tangent_layout`]). For
+    /// refusing a run that cannot fit before it allocates.
+    pub fn workspace_bytes(method: Method, dim: usize, matrix_size: usize) -> u64 {
+        let own = (2 + Stepper::n_terms(method)) as u64 * dim as u64 * 8;
+        own + Stepper::bytes(method, dim, matrix_size)
     }
 
     /// A zero-length segment at `t0` (coefficients all zero, sized for `dim` states).
@@ -206,7 +217,7 @@ impl Integrator {
             segment.t0,
             &self.x_start,
             segment.h,
-            &mut self.stats.n_rates,
+            &mut self.stats,
             &mut segment.coeffs,
         );
         if !finite {
@@ -276,9 +287,9 @@ impl Integrator {
             let err = self
                 .stepper
                 .attempt(rates, t, &self.x, h, &self.control, &mut self.stats);
-            let n_rates = &mut self.stats.n_rates;
+            let stats = &mut self.stats;
             let finite = err.is_finite()
-                && (err > 1.0 || self.stepper.finish(rates, t, &self.x, h, n_rates, dense));
+                && (err > 1.0 || self.stepper.finish(rates, t, &self.x, h, stats, dense));
             if !finite {
                 self.stats.n_rejected += 1;
                 n_non_finite += 1;
@@ -336,8 +347,8 @@ impl Integrator {
         let err = self
             .stepper
             .attempt(rates, t, &self.x, h, &self.control, &mut self.stats);
-        let n_rates = &mut self.stats.n_rates;
-        if !(err.is_finite() && self.stepper.finish(rates, t, &self.x, h, n_rates, true)) {
+        let stats = &mut self.stats;
+        if !(err.is_finite() && self.stepper.finish(rates, t, &self.x, h, stats, true)) {
             return Err(StepError::NotFinite { t });
         }
         self.commit(h, t + h);

@@ -28,6 +28,7 @@ mod dp5;
 mod integrator;
 mod linear;
 mod rodas;
+mod rodas_matrix;
 mod rodas_tableau;
 mod stepper;
 mod stiffness;
@@ -63,6 +64,73 @@ pub trait Rates {
     fn exact_time_derivative(&mut self, t: f64, x: &[f64], out: &mut [f64]) -> bool {
         let _ = (t, x, out);
         false
+    }
+
+    /// For variational equations (a model `x' = f(t, x)` carried together with tangent
+    /// vectors `q' = J(t, x) q`): where the model's state and the tangent vectors lie in the
+    /// state of the whole system. The stiff method then works with the model's `n x n`
+    /// Jacobian ([`Rates::model_jacobian`]) instead of one matrix of the whole system, whose
+    /// size would grow as the fourth power of `n`. `None` (the default) for any other system.
+    fn tangent_layout(&self) -> Option<TangentLayout> {
+        None
+    }
+
+    /// For a system with a [`Rates::tangent_layout`]: writes the model's Jacobian
+    /// `d f / d x` (`n x n`, row-major) at `(t, x)`, where `x` holds the model's `n` states
+    /// only. Not called for other systems.
+    fn model_jacobian(&mut self, t: f64, x: &[f64], jacobian: &mut [f64]) {
+        let _ = (t, x);
+        jacobian.fill(0.0);
+    }
+}
+
+/// Where a system of variational equations keeps its parts: the model's `n` states first,
+/// then `m` tangent vectors of `n` entries each, entry `i` of vector `k` at
+/// `n + k * vector_stride + i * entry_stride`. Vectors one after another have
+/// `vector_stride = n, entry_stride = 1`; the columns of a row-major `n x m` matrix have
+/// `vector_stride = 1, entry_stride = m`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct TangentLayout {
+    /// States of the model.
+    pub n: usize,
+    /// Tangent vectors.
+    pub m: usize,
+    /// Distance between the first entries of two neighbouring vectors.
+    pub vector_stride: usize,
+    /// Distance between two neighbouring entries of one vector.
+    pub entry_stride: usize,
+}
+
+impl TangentLayout {
+    /// Tangent vectors stored one after another.
+    pub fn vectors(n: usize, m: usize) -> Self {
+        Self {
+            n,
+            m,
+            vector_stride: n,
+            entry_stride: 1,
+        }
+    }
+
+    /// Tangent vectors as the columns of a row-major `n x m` matrix.
+    pub fn matrix_columns(n: usize, m: usize) -> Self {
+        Self {
+            n,
+            m,
+            vector_stride: 1,
+            entry_stride: m,
+        }
+    }
+
+    /// Length of the whole system's state: `n + n m`.
+    pub fn dim(&self) -> usize {
+        self.n + self.n * self.m
+    }
+
+    /// Index of entry `i` of tangent vector `k` in the whole state.
+    #[inline]
+    pub fn index(&self, k: usize, i: usize) -> usize {
+        self.n + k * self.vector_stride + i * self.entry_stride
     }
 }
 

@@ -47,6 +47,25 @@ impl Stepper {
         }
     }
 
+    /// Bytes that the steppers of `method` hold for a system of `dim` states whose stiff
+    /// method works with `matrix_size x matrix_size` matrices (`dim`, or the model's `n` for
+    /// variational equations).
+    pub(super) fn bytes(method: Method, dim: usize, matrix_size: usize) -> u64 {
+        let n_terms = Self::n_terms(method);
+        let (vectors, stiff) = match method {
+            Method::Dp5 => (dp5::VECTORS + n_terms, false),
+            Method::Dp853 => (dop853::VECTORS + n_terms, false),
+            Method::Rodas4 => (rodas::VECTORS + n_terms, true),
+            Method::Auto => (dop853::VECTORS + rodas::VECTORS + 2 * n_terms, true),
+        };
+        let matrices = if stiff {
+            Rodas::matrix_bytes(dim, matrix_size)
+        } else {
+            0
+        };
+        (vectors as u64) * (dim as u64) * 8 + matrices
+    }
+
     /// The method this stepper runs.
     pub(super) fn method(&self) -> Method {
         match self {
@@ -121,6 +140,16 @@ impl Stepper {
         }
     }
 
+    /// The error estimate of the last interpolant built, in tolerances: above 1 when the
+    /// stiff method's interpolant of a long stiff step does not resolve the solution (0 for
+    /// the explicit methods, whose interpolants are as accurate as their steps).
+    pub(super) fn dense_error(&self) -> f64 {
+        match self {
+            Self::Rodas(s) => s.dense_error(),
+            _ => 0.0,
+        }
+    }
+
     /// The stiffness measure of the last accepted step: `h lambda` of Hairer's test for
     /// DOP853 (when measured), the estimated spectral radius of the Jacobian for Rodas4.
     pub(super) fn stiffness_measure(&self) -> f64 {
@@ -161,13 +190,13 @@ impl Stepper {
         t: f64,
         x: &[f64],
         h: f64,
-        n_rates: &mut u64,
+        stats: &mut Stats,
         dense: bool,
     ) -> bool {
         match self {
             Self::Dp5(s) => s.finish(x, h, dense),
-            Self::Dp853(s) => s.finish(rates, t, x, h, n_rates, dense),
-            Self::Rodas(s) => s.finish(rates, t, x, h, n_rates, dense),
+            Self::Dp853(s) => s.finish(rates, t, x, h, &mut stats.n_rates, dense),
+            Self::Rodas(s) => s.finish(rates, t, x, h, stats, dense),
         }
     }
 
@@ -180,13 +209,13 @@ impl Stepper {
         t: f64,
         start: &[f64],
         h: f64,
-        n_rates: &mut u64,
+        stats: &mut Stats,
         coeffs: &mut [f64],
     ) -> bool {
         match self {
             Self::Dp5(s) => s.build_dense(start, h, coeffs),
-            Self::Dp853(s) => s.build_dense(rates, t, start, h, n_rates, coeffs),
-            Self::Rodas(s) => s.build_dense(start, coeffs),
+            Self::Dp853(s) => s.build_dense(rates, t, start, h, &mut stats.n_rates, coeffs),
+            Self::Rodas(s) => s.build_dense(rates, t, start, h, stats, coeffs),
         }
     }
 }

@@ -1,7 +1,7 @@
 //! The variational equations: the model's state together with tangent vectors that move with
 //! the linearised flow, `x' = f(t, x)`, `q_k' = J(t, x) q_k`, as one system of `Rates`.
 
-use crate::integrate::Rates;
+use crate::integrate::{Rates, TangentLayout};
 use crate::model::Model;
 
 /// The model extended by `m` tangent vectors: the state is `x` (n values) followed by the
@@ -49,6 +49,16 @@ impl Rates for Tangent {
                 *out = row.iter().zip(q).map(|(a, b)| a * b).sum();
             }
         }
+    }
+
+    /// The tangent vectors one after another, so the stiff method factorises the model's
+    /// `n x n` matrices only.
+    fn tangent_layout(&self) -> Option<TangentLayout> {
+        Some(TangentLayout::vectors(self.n, self.m))
+    }
+
+    fn model_jacobian(&mut self, t: f64, x: &[f64], jacobian: &mut [f64]) {
+        self.model.jacobian(t, x, jacobian);
     }
 }
 

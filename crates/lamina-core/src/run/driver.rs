@@ -5,7 +5,7 @@
 use std::ops::ControlFlow;
 
 use super::{Cut, CutPoint, RunSpec, StoredRun, Strobe, StrobeSample};
-use crate::integrate::{Integrator, Interrupt, MethodChange, Rates, Stats, StepError};
+use crate::integrate::{Integrator, Interrupt, Method, MethodChange, Rates, Stats, StepError};
 use crate::model::Model;
 use crate::switching::{Chattering, Switching};
 
@@ -374,6 +374,17 @@ impl Run {
                 self.method_changes.push(change);
                 sink.method_changed(&change);
             }
+            // a stiff step that will be sampled must have an interpolant that resolves the
+            // solution; a long one is taken again shorter until it does
+            if self.integrator.active_method() == Method::Rodas4 && self.wants_dense() {
+                let refined = match &mut self.switching {
+                    Some(switching) => self.integrator.ensure_accurate_dense(switching),
+                    None => self.integrator.ensure_accurate_dense(&mut self.model),
+                };
+                if let Err(err) = refined {
+                    return stop_reason(err);
+                }
+            }
             let crossing = match &mut self.switching {
                 Some(switching) => match switching.inspect(&mut self.integrator) {
                     Ok(crossing) => crossing,
@@ -397,6 +408,26 @@ impl Run {
                 return reason;
             }
         }
+    }
+
+    /// Whether the step just taken will be sampled on its dense output: stored, or with a
+    /// strobe time or a crossing of the cut inside.
+    fn wants_dense(&mut self) -> bool {
+        let t1 = self.integrator.t();
+        if self.store && t1 > self.spec.t_record() {
+            return true;
+        }
+        if let Some(strobe) = &self.strobe {
+            let t = strobe.time_of(self.next_strobe);
+            if t < t1 || (t1 >= self.t_end && t <= self.t_end) {
+                return true;
+            }
+        }
+        if let Some(cut) = &mut self.cut {
+            let g1 = cut.value(t1, self.integrator.x(), self.model.parameters());
+            return cut.direction.crosses(self.g_prev, g1);
+        }
+        false
     }
 
     /// Stores, reports and records the step just taken; a reason to stop, if any.
