@@ -13,6 +13,7 @@ pub mod cycle;
 pub mod expr;
 pub mod integrate;
 pub mod lyapunov;
+pub mod memory;
 pub mod model;
 pub mod run;
 pub mod sweep;

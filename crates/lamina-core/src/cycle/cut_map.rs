@@ -13,7 +13,6 @@ impl FlowMap {
         seed: &MapPoint,
         k: usize,
     ) -> Result<MapImage, CycleError> {
-        let n = self.n;
         let max_return_time = self.settings.max_return_time;
         let mut g_prev = self.cut_value(seed.t, &seed.state);
         let on_cut =
@@ -35,15 +34,14 @@ impl FlowMap {
                 });
             }
             self.step(t_limit)?;
-            let t1 = self.integrator.t();
-            self.x_start.copy_from_slice(&self.integrator.x()[..n]);
-            let x1 = std::mem::take(&mut self.x_start);
-            let g1 = self.cut_value(t1, &x1);
-            self.x_start = x1;
-            let crosses = match &self.kind {
-                MapKind::Cut(cut) => cut.direction.crosses(g_prev, g1),
-                MapKind::Strobe(_) => false,
-            };
+            let mut g1 = self.end_value();
+            let mut crosses = self.crosses(g_prev, g1);
+            // the crossing is located on the dense output; a stiff step too long for its
+            // interpolant is shortened first, and the crossing may then lie beyond it
+            if crosses && self.accurate_dense()? {
+                g1 = self.end_value();
+                crosses = self.crosses(g_prev, g1);
+            }
             if crosses {
                 let tc = self.locate_crossing(g_prev, g1);
                 self.check_transversal(tc)?;
@@ -57,6 +55,25 @@ impl FlowMap {
                 }
             }
             g_prev = g1;
+        }
+    }
+
+    /// The cut's value at the end of the last step.
+    fn end_value(&mut self) -> f64 {
+        let n = self.n;
+        let t1 = self.integrator.t();
+        self.x_start.copy_from_slice(&self.integrator.x()[..n]);
+        let x1 = std::mem::take(&mut self.x_start);
+        let g1 = self.cut_value(t1, &x1);
+        self.x_start = x1;
+        g1
+    }
+
+    /// Whether the cut's value going from `g0` to `g1` is a crossing of the cut's direction.
+    fn crosses(&self, g0: f64, g1: f64) -> bool {
+        match &self.kind {
+            MapKind::Cut(cut) => cut.direction.crosses(g0, g1),
+            MapKind::Strobe(_) => false,
         }
     }
 

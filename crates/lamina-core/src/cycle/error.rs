@@ -58,7 +58,8 @@ pub enum CycleError {
     /// Newton's method closed in on a rest point (an equilibrium) on the cut: a "periodic
     /// orbit" too small to tell from a point at the tolerance used.
     #[error(
-        "the orbit shrank onto a rest point (an equilibrium) on the cut: its size {size:e} is          below what the tolerance resolves, so there is no periodic orbit here"
+        "the orbit shrank onto a rest point (an equilibrium) on the cut: its size {size:e} is \
+         below what the tolerance resolves, so there is no periodic orbit here"
     )]
     RestPoint {
         /// Estimated size of the orbit (speed at the point times the period over 2 pi).
@@ -97,6 +98,18 @@ pub enum CycleError {
         residual: f64,
         /// The tolerance it had to reach.
         tolerance: f64,
+    },
+    /// The working memory of the variational equations cannot be had.
+    #[error(
+        "the variational equations of a model with {n_states} states need about {} of working \
+         memory ({n_states} + {n_states}^2 values per vector), more than can be had",
+        crate::memory::bytes_text(*bytes)
+    )]
+    TooLarge {
+        /// Bytes needed.
+        bytes: u64,
+        /// States of the model.
+        n_states: usize,
     },
     /// The eigenvalue computation did not converge (non-finite matrix entries).
     #[error("the multipliers could not be computed: {detail}")]

@@ -5,6 +5,7 @@
 use super::CycleError;
 use super::variational::Variational;
 use crate::integrate::{Integrator, Method, Rates, StepControl};
+use crate::memory;
 use crate::model::Model;
 use crate::run::{Cut, RunSpec, Strobe};
 
@@ -127,6 +128,10 @@ impl FlowMap {
                 detail: "is empty: the model has no states".to_string(),
             });
         }
+        let bytes = Self::workspace_bytes(n, settings.method);
+        if !memory::can_allocate(bytes) {
+            return Err(CycleError::TooLarge { bytes, n_states: n });
+        }
         let model_jumps = model.jumps_with_states();
         Ok(Self {
             integrator: Integrator::new(settings.method, settings.control, n + n * n),
@@ -143,6 +148,17 @@ impl FlowMap {
             with_matrix: true,
             differences: model_jumps,
         })
+    }
+
+    /// Bytes of working memory a map of a model with `n_states` states needs with `method`:
+    /// the integrator of the variational equations (`n + n^2` values per vector; the stiff
+    /// method's matrices are the model's `n x n`), the state at a crossing and a few
+    /// `n x n` matrices (Jacobian, monodromy, the map's linearisation).
+    pub fn workspace_bytes(n_states: usize, method: Method) -> u64 {
+        let n = n_states as u64;
+        let dim = n_states.saturating_add(n_states.saturating_mul(n_states));
+        let integrator = Integrator::workspace_bytes(method, dim, n_states);
+        integrator.saturating_add((dim as u64 + 4 * n * n) * 8)
     }
 
     /// Number of states.
@@ -287,6 +303,7 @@ impl FlowMap {
         let per_step = samples_per_step.max(1);
         while self.integrator.t() < t_end {
             self.step(t_end)?;
+            self.accurate_dense()?;
             let segment = self.integrator.segment();
             for j in 1..=per_step {
                 let t = segment.t0 + segment.h * j as f64 / per_step as f64;
@@ -387,10 +404,11 @@ impl FlowMap {
         Ok(())
     }
 
-    /// One step no further than `t_limit`, with the bound check.
+    /// One step no further than `t_limit`, with the bound check; its dense output only on
+    /// [`FlowMap::accurate_dense`].
     pub(super) fn step(&mut self, t_limit: f64) -> Result<(), CycleError> {
         let mut rates = Variational::new(&mut self.model, self.with_matrix);
-        self.integrator.step(&mut rates, t_limit)?;
+        self.integrator.step_lazy(&mut rates, t_limit)?;
         let bound = self.settings.bound;
         if self.integrator.x()[..self.n]
             .iter()
@@ -402,6 +420,16 @@ impl FlowMap {
             });
         }
         Ok(())
+    }
+}
+
+impl FlowMap {
+    /// Builds the dense output of the last step, shortening a stiff step whose interpolant
+    /// does not resolve the orbit ([`Integrator::ensure_accurate_dense`]); whether the step
+    /// was shortened.
+    pub(super) fn accurate_dense(&mut self) -> Result<bool, CycleError> {
+        let mut rates = Variational::new(&mut self.model, self.with_matrix);
+        Ok(self.integrator.ensure_accurate_dense(&mut rates)?)
     }
 }
 

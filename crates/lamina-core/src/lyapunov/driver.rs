@@ -9,7 +9,8 @@ use super::result::{ExponentSink, Spectrum};
 use super::summary::{Trace, classify, kaplan_yorke, settled_spectrum};
 use super::tangent::{Tangent, tilted_axes};
 use super::{ExponentError, ExponentSettings};
-use crate::integrate::{Integrator, Interrupt, Rates, Stats, StepControl, StepError};
+use crate::integrate::{Integrator, Interrupt, Method, Rates, Stats, StepControl, StepError};
+use crate::memory;
 use crate::model::Model;
 use crate::run::{RunSpec, StopReason};
 
@@ -50,11 +51,35 @@ pub fn spectrum(
     let n = model.dim();
     let m = settings.count.unwrap_or(n);
     check(n, m, run, settings)?;
+    let bytes = workspace_bytes(n, m, run.method);
+    if !memory::can_allocate(bytes) {
+        return Err(ExponentError::TooLarge {
+            bytes,
+            n_states: n,
+            n_exponents: m,
+        });
+    }
     let mut work = Work::new(model, m, run, settings);
     let reason = work
         .settle(sink, interrupt)
         .unwrap_or_else(|| work.average(sink, interrupt));
     Ok(work.finish(reason, settings))
+}
+
+/// Bytes of working memory an exponent run of `n_states` states with `n_exponents` tangent
+/// vectors needs with `method`: the integrator of the variational equations
+/// (`n + n m` values per vector; the stiff method's matrices are the model's `n x n`), the
+/// state and its orthonormalised copy, and the model's Jacobian. The settle time's integrator
+/// of the model alone is freed before.
+pub fn workspace_bytes(n_states: usize, n_exponents: usize, method: Method) -> u64 {
+    let (n, m) = (n_states as u64, n_exponents as u64);
+    let dim = n_states.saturating_add(n_states.saturating_mul(n_exponents));
+    let integrator = Integrator::workspace_bytes(method, dim, n_states);
+    let vectors = (n + 2 * n * m) * 8;
+    let jacobian = n * n * 8;
+    integrator
+        .saturating_add(vectors)
+        .saturating_add(jacobian)
 }
 
 /// Refuses settings that cannot run.
@@ -206,7 +231,8 @@ impl Work {
             if interrupt.is_raised() {
                 break StopReason::Cancelled { t };
             }
-            if let Err(err) = integrator.step(&mut self.tangent, t_end) {
+            // the estimates use the step ends only: no dense output
+            if let Err(err) = integrator.step_lazy(&mut self.tangent, t_end) {
                 break stop_reason(err);
             }
             self.n_steps += 1;
@@ -266,6 +292,8 @@ impl Work {
     fn restart(&mut self, old: Integrator, y: &[f64]) -> Integrator {
         add_stats(&mut self.stats, old.stats());
         let h = old.h_next();
+        // freed before the new one is made: the two together would double the memory
+        drop(old);
         let control = StepControl {
             initial_step: (h > 0.0 && h.is_finite()).then_some(h),
             ..self.run.control

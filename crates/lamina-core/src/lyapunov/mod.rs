@@ -14,7 +14,7 @@ mod settings;
 mod summary;
 mod tangent;
 
-pub use driver::spectrum;
+pub use driver::{spectrum, workspace_bytes};
 pub use result::{ExponentSink, Spectrum};
 pub use settings::{ExponentError, ExponentSettings};
 pub use summary::{Trace, Verdict, classify, kaplan_yorke, settled_spectrum, zero_band};

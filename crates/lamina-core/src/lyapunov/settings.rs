@@ -74,6 +74,21 @@ pub enum ExponentError {
         /// Span.
         span: f64,
     },
+    /// The working memory the run needs cannot be had.
+    #[error(
+        "{n_exponents} exponent(s) of a model with {n_states} state(s) need about {} of working \
+         memory (the variational equations carry {n_states} + {n_states} x {n_exponents} values), \
+         more than can be had: compute fewer exponents",
+        crate::memory::bytes_text(*bytes)
+    )]
+    TooLarge {
+        /// Bytes needed.
+        bytes: u64,
+        /// States of the model.
+        n_states: usize,
+        /// Exponents asked for.
+        n_exponents: usize,
+    },
     /// The growth limit is not a finite number above 1.
     #[error("the growth limit {0} must be a finite number above 1")]
     GrowthLimit(f64),
