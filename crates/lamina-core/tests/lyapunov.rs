@@ -451,6 +451,22 @@ fn unusable_settings_are_refused() {
         .map(|e| e.to_string())
         .unwrap_or_default();
     assert!(message.contains("1 to 2"), "{message}");
+    // [analytic] a start at 1e20 is finite, the settle time 0 and the span 10 positive, but
+    // times there are 16384 apart: the span rounds to nothing, and that is what is said
+    let far = RunSpec {
+        t_start: 1e20,
+        ..run.clone()
+    };
+    let err = with(ExponentSettings::all(), &far).expect("refused");
+    assert!(
+        matches!(err, ExponentError::TimeTooCoarse(_)),
+        "{err}"
+    );
+    let message = err.to_string();
+    assert!(
+        message.contains("16384") && message.contains("nearer 0"),
+        "{message}"
+    );
 }
 
 #[test]

@@ -7,7 +7,9 @@ use std::ops::ControlFlow;
 use common::*;
 use lamina_core::Interrupt;
 use lamina_core::integrate::Method;
-use lamina_core::run::{Collect, CutPoint, Direction, Run, Sink, StopReason};
+use lamina_core::run::{
+    Collect, CutPoint, Direction, Run, RunOutcome, Sink, StopReason, TimeResolution,
+};
 
 fn lorenz() -> lamina_core::model::Model {
     model(
@@ -246,4 +248,71 @@ fn storage_stops_at_its_memory_budget() {
     assert_eq!(outcome.reason, StopReason::Finished);
     assert_eq!(run.stored().n_steps(), 100);
     assert!(run.stored().truncated_at().is_some());
+}
+
+/// The oscillator x' = v, v' = -x started at `t_start`, cut at v = 0 and strobed with
+/// period 1 from `first_at`, over a span of 100.
+fn far_run(t_start: f64, settle: f64, first_at: f64) -> RunOutcome {
+    let m = model(&[("x", 1.0, "v"), ("v", 0.0, "-x")], &[]);
+    let cut = plane(&m, &[("v", 1.0)], 0.0, Direction::Falling);
+    let s = strobe(&m, "1", first_at);
+    let mut run_spec = spec(Method::Dp5, 1e-6, settle, 100.0);
+    run_spec.t_start = t_start;
+    let (_, outcome) = collect(m, run_spec, Some(cut), Some(s));
+    outcome
+}
+
+#[test]
+fn a_window_lost_in_rounding_stops_at_once_and_says_where() {
+    // [analytic] near 1e20 floating-point times are 2^14 = 16384 apart: a span of 100 after
+    // t = 1e20 (or after a settle time of 1e20) rounds to nothing
+    for (t_start, settle) in [(1e20, 0.0), (0.0, 1e20), (1e18, 0.0)] {
+        let outcome = far_run(t_start, settle, 0.0);
+        let StopReason::TimeTooCoarse(problem) = outcome.reason else {
+            panic!("{t_start:e} {settle:e}: {:?}", outcome.reason);
+        };
+        assert!(
+            matches!(problem, TimeResolution::WindowLost { .. }),
+            "{problem}"
+        );
+        let text = outcome.reason.to_string();
+        assert!(text.contains("span") && text.contains("nearer 0"), "{text}");
+        assert_eq!(outcome.stats.n_accepted, 0);
+    }
+}
+
+#[test]
+fn strobe_times_that_cannot_be_formed_stop_the_run_instead_of_hanging() {
+    // [analytic] first_at = 1e20 with period 1: every sample time near t = 0 is
+    // 1e20 + k with k ~ -1e20, which rounds by thousands of periods
+    let outcome = far_run(0.0, 0.0, 1e20);
+    assert!(
+        matches!(
+            outcome.reason,
+            StopReason::TimeTooCoarse(TimeResolution::StrobeTimes { .. })
+        ),
+        "{:?}",
+        outcome.reason
+    );
+}
+
+#[test]
+fn steps_lost_to_a_start_far_from_zero_are_put_on_the_time_not_the_model() {
+    // [analytic] at t = 1e15 a step below 10 ulp = 2.2 cannot change t, and the oscillator
+    // of period 2 pi needs smaller steps; started at 0 it would not
+    for t_start in [1e15, 1e16] {
+        let m = model(&[("x", 1.0, "v"), ("v", 0.0, "-x")], &[]);
+        let mut run_spec = spec(Method::Dp5, 1e-6, 0.0, 100.0);
+        run_spec.t_start = t_start;
+        let (_, outcome) = collect(m, run_spec, None, None);
+        let StopReason::TimeTooCoarse(TimeResolution::StepLost { t, step, .. }) = outcome.reason
+        else {
+            panic!("{t_start:e}: {:?}", outcome.reason);
+        };
+        assert_eq!(t, t_start);
+        assert!(step > 1.0, "{step}");
+        assert!(outcome.reason.to_string().contains("nearer 0"));
+    }
+    let outcome = far_run(0.0, 0.0, 0.0);
+    assert_eq!(outcome.reason, StopReason::Finished);
 }

@@ -9,10 +9,10 @@ use super::result::{ExponentSink, Spectrum};
 use super::summary::{Trace, classify, kaplan_yorke, settled_spectrum};
 use super::tangent::{Tangent, tilted_axes};
 use super::{ExponentError, ExponentSettings};
-use crate::integrate::{Integrator, Interrupt, Method, Rates, Stats, StepControl, StepError};
+use crate::integrate::{Integrator, Interrupt, Method, Rates, Stats, StepControl};
 use crate::memory;
 use crate::model::Model;
-use crate::run::{RunSpec, StopReason};
+use crate::run::{RunSpec, StopReason, check_time_resolution, stop_reason};
 
 /// How often progress is reported, in accepted steps.
 const PROGRESS_EVERY_STEPS: u64 = 256;
@@ -100,8 +100,7 @@ fn check(
         && run.settle >= 0.0
         && run.span.is_finite()
         && run.span > 0.0
-        && run.t_end().is_finite()
-        && run.t_end() > run.t_record();
+        && run.t_end().is_finite();
     if !window_ok {
         return Err(ExponentError::Window {
             t_start: run.t_start,
@@ -109,6 +108,7 @@ fn check(
             span: run.span,
         });
     }
+    check_time_resolution(run, None).map_err(ExponentError::TimeTooCoarse)?;
     if !(settings.growth_limit.is_finite() && settings.growth_limit > 1.0) {
         return Err(ExponentError::GrowthLimit(settings.growth_limit));
     }
@@ -192,7 +192,7 @@ impl Work {
                 break Some(StopReason::Cancelled { t });
             }
             if let Err(err) = integrator.step_lazy(model, t_record) {
-                break Some(stop_reason(err));
+                break Some(stop_reason(&self.run, err));
             }
             self.n_steps += 1;
             let t1 = integrator.t();
@@ -233,7 +233,7 @@ impl Work {
             }
             // the estimates use the step ends only: no dense output
             if let Err(err) = integrator.step_lazy(&mut self.tangent, t_end) {
-                break stop_reason(err);
+                break stop_reason(&self.run, err);
             }
             self.n_steps += 1;
             let t1 = integrator.t();
@@ -369,10 +369,4 @@ fn add_stats(total: &mut Stats, more: Stats) {
     total.n_rejected += more.n_rejected;
 }
 
-/// The stop reason of a failed step.
-fn stop_reason(err: StepError) -> StopReason {
-    match err {
-        StepError::NotFinite { t } => StopReason::NotFinite { t },
-        StepError::StepTooSmall { t, .. } => StopReason::StepTooSmall { t },
-    }
-}
+

@@ -74,6 +74,9 @@ pub enum ExponentError {
         /// Span.
         span: f64,
     },
+    /// The time window lies too far from 0 for its length: it would be lost in rounding.
+    #[error("{0}")]
+    TimeTooCoarse(crate::run::TimeResolution),
     /// The working memory the run needs cannot be had.
     #[error(
         "{n_exponents} exponent(s) of a model with {n_states} state(s) need about {} of working \

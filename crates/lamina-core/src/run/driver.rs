@@ -4,6 +4,9 @@
 
 use std::ops::ControlFlow;
 
+use super::time_resolution::{
+    TimeResolution, check_time_resolution, step_lost_to_time, time_spacing,
+};
 use super::{Cut, CutPoint, RunSpec, StoredRun, Strobe, StrobeSample};
 use crate::integrate::{Integrator, Interrupt, Method, MethodChange, Rates, Stats, StepError};
 use crate::model::Model;
@@ -97,6 +100,9 @@ pub enum StopReason {
         /// Time of the last switch.
         t: f64,
     },
+    /// The time is too far from 0 for the run: a part of the window, the strobe times or
+    /// the steps the model needs are lost in rounding there (the run would stand still).
+    TimeTooCoarse(TimeResolution),
 }
 
 impl StopReason {
@@ -109,6 +115,7 @@ impl StopReason {
                 | Self::NotFinite { .. }
                 | Self::StepTooSmall { .. }
                 | Self::Chattering { .. }
+                | Self::TimeTooCoarse(_)
         )
     }
 }
@@ -130,6 +137,7 @@ impl std::fmt::Display for StopReason {
                 f,
                 "the model chatters at t = {t}: its switches pile up with vanishing time between them (a sliding mode)"
             ),
+            Self::TimeTooCoarse(problem) => write!(f, "{problem}"),
         }
     }
 }
@@ -337,6 +345,9 @@ impl Run {
     fn advance(&mut self, sink: &mut dyn Sink, interrupt: &Interrupt) -> StopReason {
         let t_start = self.spec.t_start;
         if !self.started {
+            if let Err(problem) = check_time_resolution(&self.spec, self.strobe.as_ref()) {
+                return StopReason::TimeTooCoarse(problem);
+            }
             let start = self.model.start().to_vec();
             if let Some(reason) = self.check_state(t_start, &start) {
                 return reason;
@@ -368,7 +379,7 @@ impl Run {
                 None => self.integrator.step_lazy(&mut self.model, self.t_end),
             };
             if let Err(err) = stepped {
-                return stop_reason(err);
+                return stop_reason(&self.spec, err);
             }
             if let Some(change) = self.integrator.take_method_change() {
                 self.method_changes.push(change);
@@ -382,13 +393,13 @@ impl Run {
                     None => self.integrator.ensure_accurate_dense(&mut self.model),
                 };
                 if let Err(err) = refined {
-                    return stop_reason(err);
+                    return stop_reason(&self.spec, err);
                 }
             }
             let crossing = match &mut self.switching {
                 Some(switching) => match switching.inspect(&mut self.integrator) {
                     Ok(crossing) => crossing,
-                    Err(err) => return stop_reason(err),
+                    Err(err) => return stop_reason(&self.spec, err),
                 },
                 None => None,
             };
@@ -438,7 +449,7 @@ impl Run {
         self.end_state.copy_from_slice(self.integrator.x());
         if self.store && t1 > self.spec.t_record() {
             if let Err(err) = dense(&mut self.integrator, &mut self.switching, &mut self.model) {
-                return Some(stop_reason(err));
+                return Some(stop_reason(&self.spec, err));
             }
             self.stored.push(self.integrator.segment(), &self.end_state);
         }
@@ -484,7 +495,7 @@ impl Run {
             if cut.direction.crosses(g0, g1) {
                 if let Err(err) = dense(&mut self.integrator, &mut self.switching, &mut self.model)
                 {
-                    return Some(stop_reason(err));
+                    return Some(stop_reason(&self.spec, err));
                 }
                 let segment = self.integrator.segment();
                 let (t0, h, dim) = (segment.t0, segment.h, segment.dim);
@@ -521,7 +532,7 @@ impl Run {
                 return None;
             }
             if let Err(err) = dense(&mut self.integrator, &mut self.switching, &mut self.model) {
-                return Some(stop_reason(err));
+                return Some(stop_reason(&self.spec, err));
             }
             let segment = self.integrator.segment();
             loop {
@@ -536,6 +547,15 @@ impl Run {
                 };
                 segment.eval(t, &mut sample.state);
                 self.next_strobe += 1;
+                if strobe.time_of(self.next_strobe) <= t {
+                    // the next sample time rounds onto this one
+                    return Some(StopReason::TimeTooCoarse(TimeResolution::StrobeTimes {
+                        first_at: strobe.phase,
+                        period: strobe.period,
+                        t,
+                        spacing: time_spacing(t),
+                    }));
+                }
                 self.n_strobe += 1;
                 if sink.strobe_sample(&sample).is_break() {
                     return Some(StopReason::SinkStopped { t });
@@ -562,11 +582,15 @@ fn dense(
     }
 }
 
-/// The stop reason of a failed step.
-fn stop_reason(err: StepError) -> StopReason {
+/// The stop reason of a failed step of a run over `spec`'s window: a step that collapsed
+/// because the time is too far from 0 for the model says so.
+pub(crate) fn stop_reason(spec: &RunSpec, err: StepError) -> StopReason {
     match err {
         StepError::NotFinite { t } => StopReason::NotFinite { t },
-        StepError::StepTooSmall { t, .. } => StopReason::StepTooSmall { t },
+        StepError::StepTooSmall { t, h } => match step_lost_to_time(spec, t, h) {
+            Some(problem) => StopReason::TimeTooCoarse(problem),
+            None => StopReason::StepTooSmall { t },
+        },
     }
 }
 

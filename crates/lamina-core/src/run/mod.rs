@@ -8,9 +8,15 @@ pub(crate) mod root;
 mod spec;
 mod stored;
 mod strobe;
+mod time_resolution;
 
 pub use cut::{Cut, CutPoint, Direction, Surface};
 pub use driver::{Collect, Run, RunOutcome, Sink, StopReason, run_once};
+pub(crate) use driver::stop_reason;
 pub use spec::{CutSpec, RunSpec, SpecError, StrobeSpec, SurfaceSpec};
 pub use stored::StoredRun;
 pub use strobe::{Strobe, StrobeSample};
+pub use time_resolution::{
+    TimeResolution, WindowPart, check_time_resolution, smallest_step_at, step_lost_to_time,
+    time_spacing,
+};

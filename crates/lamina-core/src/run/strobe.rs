@@ -45,14 +45,31 @@ impl Strobe {
         self.phase + index as f64 * self.period
     }
 
-    /// The first sample index whose time is at or after `t`.
+    /// The first sample index whose time is at or after `t`. Where the times are too coarse
+    /// to tell neighbouring samples apart (far from 0 for the period; see
+    /// [`super::check_time_resolution`]) the index is only near it, and an index beyond
+    /// `2^53` in size is held there; this never loops long nor overflows.
     pub fn first_index_from(&self, t: f64) -> i64 {
-        let mut k = ((t - self.phase) / self.period).ceil() as i64;
-        while self.time_of(k - 1) >= t {
-            k -= 1;
+        const LIMIT: f64 = 9_007_199_254_740_992.0; // 2^53
+        let guess = ((t - self.phase) / self.period).ceil();
+        if guess.is_nan() {
+            return 0;
         }
-        while self.time_of(k) < t {
-            k += 1;
+        let mut k = guess.clamp(-LIMIT, LIMIT) as i64;
+        // rounding of the division leaves the guess at most a step or two off
+        for _ in 0..4 {
+            if self.time_of(k - 1) >= t {
+                k -= 1;
+            } else {
+                break;
+            }
+        }
+        for _ in 0..4 {
+            if self.time_of(k) < t {
+                k += 1;
+            } else {
+                break;
+            }
         }
         k
     }
