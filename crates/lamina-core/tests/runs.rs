@@ -316,3 +316,35 @@ fn steps_lost_to_a_start_far_from_zero_are_put_on_the_time_not_the_model() {
     let outcome = far_run(0.0, 0.0, 0.0);
     assert_eq!(outcome.reason, StopReason::Finished);
 }
+
+#[test]
+fn no_sample_beyond_the_escape_size_is_recorded() {
+    // x' = 3 x from 1 grows past 1e6 near t = ln(1e6) / 3 = 4.6 [analytic]; with a tolerance
+    // that means nothing (rtol = atol = 10) the steps are long, so a step ends far beyond the
+    // escape size with strobe samples and crossings inside it
+    let m = model(&[("x", 1.0, "3*x"), ("y", 0.0, "1")], &[]);
+    let s = strobe(&m, "0.05", 0.0);
+    let cut = level(&m, "x - 2e6*floor(y)", Direction::Both);
+    for method in [Method::Dp5, Method::Dp853, Method::Rodas4] {
+        let mut run_spec = spec(method, 10.0, 0.0, 20.0);
+        run_spec.bound = 1e6;
+        let (points, outcome) = collect(m.clone(), run_spec, Some(cut.clone()), Some(s));
+        assert!(
+            matches!(outcome.reason, StopReason::Escaped { .. }),
+            "{method:?}: {:?}",
+            outcome.reason
+        );
+        for sample in &points.strobe_samples {
+            assert!(
+                sample.state.iter().all(|v| v.abs() <= 1e6),
+                "{method:?}: {sample:?}"
+            );
+        }
+        for point in &points.cut_points {
+            assert!(
+                point.state.iter().all(|v| v.abs() <= 1e6),
+                "{method:?}: {point:?}"
+            );
+        }
+    }
+}

@@ -512,6 +512,11 @@ impl Run {
                     &mut self.cut_point.state,
                 );
                 if t >= t_record && t <= self.t_end {
+                    // a point past the escape size (or not finite) is not a valid point: the
+                    // run stops where it is instead
+                    if let Some(reason) = self.check_state(t, &self.cut_point.state) {
+                        return Some(reason);
+                    }
                     self.cut_point.t = t;
                     self.cut_point.return_time = self.last_crossing.map(|last| t - last);
                     self.last_crossing = Some(t);
@@ -546,6 +551,9 @@ impl Run {
                     state: vec![0.0; segment.dim],
                 };
                 segment.eval(t, &mut sample.state);
+                if let Some(reason) = self.check_state(t, &sample.state) {
+                    return Some(reason);
+                }
                 self.next_strobe += 1;
                 if strobe.time_of(self.next_strobe) <= t {
                     // the next sample time rounds onto this one
