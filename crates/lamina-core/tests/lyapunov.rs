@@ -373,7 +373,9 @@ fn numerical_trouble_ends_the_run_with_its_time() {
         s.reason
     );
     assert_eq!(s.time, 0.0);
-    assert_eq!(s.verdict, Verdict::Undecided);
+    // [analytic] it grew without bound: no reading of a steady state
+    assert_eq!(s.verdict, Verdict::Unbounded);
+    assert_eq!(s.kaplan_yorke, None);
     // ...and in the averaging time, where the estimates up to the last good step remain.
     let s = compute(
         blow_up(),
@@ -386,6 +388,32 @@ fn numerical_trouble_ends_the_run_with_its_time() {
     assert!(t > 0.99 && t < 1.0, "t = {t}");
     assert!(s.time > 0.4 && s.time < 0.5);
     assert!(s.exponents[0].is_finite());
+    assert_eq!(s.verdict, Verdict::Unbounded);
+    assert_eq!(s.kaplan_yorke, None);
+    // [analytic] x' = 0.3 x, y' = -3 y from (1, 1) passes 1e6 at t = ln(1e6) / 0.3 = 46: its
+    // exponents (0.3, -3) look chaotic and give a dimension of 1.1, but the motion is an
+    // escape, and a run that stopped early is not read at all
+    let saddle = || model(&[("x", 1.0, "0.3*x"), ("y", 1.0, "-3*y")], &[]);
+    let s = compute(
+        saddle(),
+        &spec(Method::Dp853, 1e-9, 0.0, 100.0),
+        &ExponentSettings::all(),
+    );
+    assert!(matches!(s.reason, StopReason::Escaped { .. }), "{:?}", s.reason);
+    assert_eq!(s.verdict, Verdict::Unbounded);
+    assert_eq!(s.kaplan_yorke, None);
+    let interrupt = Interrupt::new();
+    interrupt.raise();
+    let s = spectrum(
+        saddle(),
+        &spec(Method::Dp853, 1e-9, 0.0, 10.0),
+        &ExponentSettings::all(),
+        &mut (),
+        &interrupt,
+    )
+    .expect("runs");
+    assert_eq!(s.verdict, Verdict::Undecided);
+    assert_eq!(s.kaplan_yorke, None);
     // [analytic] a NaN start is refused at the start time
     let s = compute(
         model(&[("x", f64::NAN, "-x")], &[]),
@@ -485,4 +513,25 @@ fn rates_that_jump_with_the_state_are_flagged() {
     // [analytic] kinks are continuous; a jump in time alone moves every trajectory alike
     assert!(!flagged("-abs(x) + max(x, 0)"));
     assert!(!flagged("-x + step(t - 0.5) + sign(k)"));
+}
+
+#[test]
+fn a_sliding_mode_is_reported_as_chattering_where_it_starts() {
+    // [analytic] x' = -sign(x) from x = 1 reaches the surface x = 0 at t = 1 and slides on
+    // it: the field points into it from both sides
+    for (settle, method) in [(0.0, Method::Dp853), (5.0, Method::Dp853), (0.0, Method::Auto)] {
+        let m = model(&[("x", 1.0, "-sign(x)"), ("y", 0.5, "-y")], &[]);
+        let s = compute(m, &spec(method, 1e-9, settle, 10.0), &ExponentSettings::all());
+        let StopReason::Chattering { t } = s.reason else {
+            panic!("settle {settle}: {:?}", s.reason);
+        };
+        assert!((t - 1.0).abs() < 1e-6, "t = {t}");
+        assert_eq!(s.verdict, Verdict::Undecided);
+        assert_eq!(s.kaplan_yorke, None);
+    }
+    // [analytic] the relay oscillator x'' = -sign(x) switches every so often but never
+    // slides: its run finishes
+    let relay = model(&[("x", 1.0, "v"), ("v", 0.0, "-sign(x)")], &[]);
+    let s = compute(relay, &spec(Method::Dp853, 1e-9, 0.0, 30.0), &ExponentSettings::all());
+    assert_eq!(s.reason, StopReason::Finished);
 }

@@ -4,9 +4,10 @@
 
 use std::ops::ControlFlow;
 
+use super::chatter::ChatterWatch;
 use super::qr::{longest_column, orthonormalise};
 use super::result::{ExponentSink, Spectrum};
-use super::summary::{Trace, classify, kaplan_yorke, settled_spectrum};
+use super::summary::{Trace, Verdict, classify, kaplan_yorke, settled_spectrum};
 use super::tangent::{Tangent, tilted_axes};
 use super::{ExponentError, ExponentSettings};
 use crate::integrate::{Integrator, Interrupt, Method, Rates, Stats, StepControl};
@@ -139,6 +140,8 @@ struct Work {
     stats: Stats,
     n_steps: u64,
     n_qr: u64,
+    /// The model's switches, watched for a sliding mode (`None` without switches).
+    chatter: Option<ChatterWatch>,
 }
 
 impl Work {
@@ -146,7 +149,9 @@ impl Work {
         let n = model.dim();
         let x = model.start().to_vec();
         let samples = settings.trace_samples.max(1) as f64;
+        let chatter = ChatterWatch::new(&model);
         Self {
+            chatter,
             tangent: Tangent::new(model, m),
             n,
             m,
@@ -199,6 +204,13 @@ impl Work {
             if let Some(reason) = check_state(bound, t1, integrator.x()) {
                 break Some(reason);
             }
+            if let Some(t) = self
+                .chatter
+                .as_mut()
+                .and_then(|watch| watch.observe(model, &self.run, t1, integrator.x()))
+            {
+                break Some(StopReason::Chattering { t });
+            }
             if self.n_steps.is_multiple_of(PROGRESS_EVERY_STEPS) {
                 sink.progress(t1, fraction_done(&self.run, t1));
             }
@@ -240,6 +252,12 @@ impl Work {
             let (x, vectors) = integrator.x().split_at(n);
             if let Some(reason) = check_state(self.run.bound, t1, x) {
                 break reason;
+            }
+            let model = self.tangent.model();
+            if let Some(t) = (self.chatter.as_mut())
+                .and_then(|watch| watch.observe(model, &self.run, t1, x))
+            {
+                break StopReason::Chattering { t };
             }
             side.copy_from_slice(vectors);
             let longest = longest_column(&side, n);
@@ -315,9 +333,16 @@ impl Work {
         let omitted = model.uses_time();
         let rates_jump = model.program().jumps_with_states();
         let n_states = self.n;
-        let verdict = classify(&self.estimates, &spread, n_states, omitted);
+        // only a run that finished its span is read: one that escaped grew without bound,
+        // any other that stopped early is undecided (its estimates are kept, unread)
+        let finished = reason == StopReason::Finished;
+        let verdict = match reason {
+            StopReason::Finished => classify(&self.estimates, &spread, n_states, omitted),
+            StopReason::Escaped { .. } => Verdict::Unbounded,
+            _ => Verdict::Undecided,
+        };
         let complete = self.m == n_states;
-        let kaplan_yorke = if averaged {
+        let kaplan_yorke = if averaged && finished {
             let settled = settled_spectrum(&self.estimates, &spread, omitted);
             match kaplan_yorke(&settled) {
                 None if complete && settled.iter().all(|l| l.is_finite()) => {

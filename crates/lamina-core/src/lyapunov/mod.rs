@@ -7,6 +7,7 @@
 //! [`ExponentSettings`], reports running estimates and progress to an [`ExponentSink`] and
 //! returns a [`Spectrum`].
 
+mod chatter;
 mod driver;
 mod qr;
 mod result;

@@ -52,10 +52,11 @@ pub struct Spectrum {
     pub rates_jump: bool,
     /// The Kaplan–Yorke dimension of the attractor in the state space (with time, for a
     /// forced model), read from the exponents with those zero within their error set to 0;
-    /// `None` when too few exponents were computed to determine it or when nothing was
-    /// averaged.
+    /// `None` when too few exponents were computed to determine it, when nothing was averaged
+    /// or when the run did not finish its span.
     pub kaplan_yorke: Option<f64>,
-    /// What the exponents say the steady state is.
+    /// What the exponents say the steady state is (`Unbounded` for a run that escaped,
+    /// `Undecided` for one that stopped early otherwise).
     pub verdict: Verdict,
     /// The running estimates, thinned (for a convergence plot).
     pub trace: Trace,

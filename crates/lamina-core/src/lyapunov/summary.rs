@@ -115,8 +115,13 @@ pub enum Verdict {
     /// Not chaotic and not at rest, but too few exponents were computed to tell a periodic
     /// orbit from a torus.
     Regular,
-    /// The run was too short to judge (fewer than two samples in the tail of the trace).
+    /// The run was too short to judge (fewer than two samples in the tail of the trace), or
+    /// it stopped before the end of its span (cancelled, chattering, a value not finite, a
+    /// collapsing step): exponents of an unfinished run say nothing about the steady state.
     Undecided,
+    /// A state passed the escape size: the motion grows without bound, and the exponents
+    /// measure the escape, not a steady state.
+    Unbounded,
 }
 
 impl std::fmt::Display for Verdict {
@@ -135,14 +140,21 @@ impl std::fmt::Display for Verdict {
                 f,
                 "periodic or quasi-periodic (compute more exponents to tell which)"
             ),
-            Self::Undecided => write!(f, "undecided (the run is too short to judge)"),
+            Self::Undecided => write!(
+                f,
+                "undecided (the run is too short to judge, or it stopped before the end of its span)"
+            ),
+            Self::Unbounded => write!(
+                f,
+                "unbounded (a state passed the escape size: the exponents measure the escape, not a steady state)"
+            ),
         }
     }
 }
 
 impl Verdict {
     /// A one-word name (`chaotic`, `quasi-periodic`, `periodic`, `equilibrium`, `regular`,
-    /// `undecided`), for machine-readable output.
+    /// `undecided`, `unbounded`), for machine-readable output.
     pub fn name(&self) -> &'static str {
         match self {
             Self::Chaotic { .. } => "chaotic",
@@ -151,6 +163,7 @@ impl Verdict {
             Self::Equilibrium => "equilibrium",
             Self::Regular => "regular",
             Self::Undecided => "undecided",
+            Self::Unbounded => "unbounded",
         }
     }
 }

@@ -27,6 +27,11 @@ impl Tangent {
         }
     }
 
+    /// The model.
+    pub(crate) fn model(&self) -> &Model {
+        &self.model
+    }
+
     /// The model alone (for integrating without tangent vectors).
     pub(crate) fn model_mut(&mut self) -> &mut Model {
         &mut self.model
