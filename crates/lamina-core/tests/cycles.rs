@@ -337,3 +337,47 @@ fn brusselator_period_near_onset() {
     assert!((report.period - 2.0 * PI * (1.0 + e * e / 18.0)).abs() < e.powi(4));
     assert!(report.is_stable());
 }
+
+#[test]
+fn a_strobe_map_fixed_point_at_rest_is_called_a_resting_point() {
+    // [analytic] x' = v, v' = -x - 0.5 v (damped) and x' = -x + 0.5 x cos t (forced, but 0
+    // for every t at x = 0) both settle at rest at the origin; the strobe map fixes it, and
+    // that is a resting point, not a periodic orbit
+    let damped = model(&[("x", 1.0, "v"), ("v", 0.0, "-x - 0.5*v")], &[]);
+    let forced = model(&[("x", 1.0, "-x + 0.5*x*cos(t)"), ("y", 0.0, "-y")], &[]);
+    for m in [damped, forced] {
+        let strobe = strobe(&m, "2*pi", 0.0);
+        let run = window(1e-10, 100.0, 30.0);
+        let cloud = strobe_cloud(&m, strobe, &run);
+        let mut map = FlowMap::new(
+            m,
+            MapKind::Strobe(strobe),
+            MapSettings::from_run(&run, 10.0),
+        )
+        .expect("map");
+        let err = find_cycle(&mut map, &cloud[..1], 1, &NewtonSettings::for_rtol(1e-10))
+            .expect_err("no periodic orbit");
+        let lamina_core::cycle::CycleError::RestingPoint { state, .. } = &err else {
+            panic!("expected a resting point, got {err}");
+        };
+        // [analytic] the origin, to the Newton tolerance (100 rtol)
+        assert!(state.iter().all(|v| v.abs() < 1e-7), "{state:?}");
+        assert!(err.to_string().contains("resting point"), "{err}");
+    }
+    // [analytic] x' = -x + cos t has the periodic response (cos t + sin t) / 2, which turns
+    // round (x' = 0) at t = pi/4 + k pi: a strobe at that phase still finds the orbit
+    let m = model(&[("x", 0.0, "-x + cos(t)")], &[]);
+    let strobe = strobe(&m, "2*pi", PI / 4.0);
+    let run = window(1e-10, 30.0, 30.0);
+    let cloud = strobe_cloud(&m, strobe, &run);
+    let mut map = FlowMap::new(
+        m,
+        MapKind::Strobe(strobe),
+        MapSettings::from_run(&run, 10.0),
+    )
+    .expect("map");
+    let report = find_cycle(&mut map, &cloud[..1], 1, &NewtonSettings::for_rtol(1e-10))
+        .unwrap_or_else(|e| panic!("{e}"));
+    // [analytic] x(pi/4) = (cos + sin)(pi/4) / 2 = 1 / sqrt 2
+    assert!((report.point.state[0] - 0.5f64.sqrt()).abs() < 1e-8);
+}

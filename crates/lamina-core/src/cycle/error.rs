@@ -65,6 +65,21 @@ pub enum CycleError {
         /// Estimated size of the orbit (speed at the point times the period over 2 pi).
         size: f64,
     },
+    /// The strobe map's fixed point is a resting point (an equilibrium) of the model: its
+    /// rates vanish there at every time of the period, so it is no periodic orbit.
+    #[error(
+        "the strobe map's fixed point is a resting point (an equilibrium), not a periodic orbit: \
+         the rates vanish there (the motion over the period, {size:e}, is below what the \
+         tolerance resolves); the point is {}",
+        state_text(state)
+    )]
+    RestingPoint {
+        /// Estimated size of the motion (largest speed over the period times the period over
+        /// 2 pi).
+        size: f64,
+        /// The resting point.
+        state: Vec<f64>,
+    },
     /// A state left the bound of the scenario while following the orbit.
     #[error("a state left the bound {bound} at t = {t} while following the orbit")]
     Escaped {
@@ -99,6 +114,12 @@ pub enum CycleError {
         /// The tolerance it had to reach.
         tolerance: f64,
     },
+    /// The interrupt was raised while an orbit was followed.
+    #[error("cancelled at t = {t} while following the orbit")]
+    Cancelled {
+        /// Time reached.
+        t: f64,
+    },
     /// The working memory of the variational equations cannot be had.
     #[error(
         "the variational equations of a model with {n_states} states need about {} of working \
@@ -117,4 +138,10 @@ pub enum CycleError {
         /// What went wrong.
         detail: String,
     },
+}
+
+/// A state as `(a, b, ...)` with the shortest text that reads back to each number.
+fn state_text(state: &[f64]) -> String {
+    let values: Vec<String> = state.iter().map(|v| format!("{v:?}")).collect();
+    format!("({})", values.join(", "))
 }

@@ -4,7 +4,9 @@
 
 use super::CycleError;
 use super::variational::Variational;
-use crate::integrate::{Integrator, Method, Rates, StepControl};
+use std::sync::Arc;
+
+use crate::integrate::{Integrator, Interrupt, Method, Rates, StepControl};
 use crate::memory;
 use crate::model::Model;
 use crate::run::{Cut, RunSpec, Strobe};
@@ -103,6 +105,8 @@ pub struct FlowMap {
     with_matrix: bool,
     /// Whether derivatives come from central differences (rates that jump with the states).
     differences: bool,
+    /// Raised to stop following the orbit at the next step.
+    interrupt: Option<Arc<Interrupt>>,
 }
 
 impl FlowMap {
@@ -147,6 +151,7 @@ impl FlowMap {
             z_cross: vec![0.0; n + n * n],
             with_matrix: true,
             differences: model_jumps,
+            interrupt: None,
         })
     }
 
@@ -159,6 +164,12 @@ impl FlowMap {
         let dim = n_states.saturating_add(n_states.saturating_mul(n_states));
         let integrator = Integrator::workspace_bytes(method, dim, n_states);
         integrator.saturating_add((dim as u64 + 4 * n * n) * 8)
+    }
+
+    /// Lets `interrupt` stop the map: once it is raised, following an orbit fails at its next
+    /// step with [`CycleError::Cancelled`].
+    pub fn set_interrupt(&mut self, interrupt: Arc<Interrupt>) {
+        self.interrupt = Some(interrupt);
     }
 
     /// Number of states.
@@ -407,6 +418,11 @@ impl FlowMap {
     /// One step no further than `t_limit`, with the bound check; its dense output only on
     /// [`FlowMap::accurate_dense`].
     pub(super) fn step(&mut self, t_limit: f64) -> Result<(), CycleError> {
+        if self.interrupt.as_ref().is_some_and(|i| i.is_raised()) {
+            return Err(CycleError::Cancelled {
+                t: self.integrator.t(),
+            });
+        }
         let mut rates = Variational::new(&mut self.model, self.with_matrix);
         self.integrator.step_lazy(&mut rates, t_limit)?;
         let bound = self.settings.bound;

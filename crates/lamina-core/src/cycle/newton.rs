@@ -118,6 +118,7 @@ pub fn refine(
                         break;
                     }
                 }
+                Err(err @ CycleError::Cancelled { .. }) => return Err(err),
                 Err(err) => last_error = Some(err),
             }
             lambda *= 0.5;
@@ -160,9 +161,12 @@ pub fn refine(
 /// Orbits whose size is below this many tolerances (relative to the state) count as a rest
 /// point: the damped steps stop at the noise floor only this close.
 const REST_POINT_TOLERANCES: f64 = 1e4;
+/// Times across the period at which the rates at a strobe map's fixed point are looked at.
+const REST_SAMPLES: usize = 8;
 
-/// The converged point, unless it is a rest point on the cut (the return map of a spiral
-/// around an equilibrium on the cut has that equilibrium as its limit, not a periodic orbit).
+/// The converged point, unless it is a rest point: on the cut (the return map of a spiral
+/// around an equilibrium on the cut has that equilibrium as its limit, not a periodic orbit)
+/// or as the strobe map's fixed point (a damped model settled at rest).
 #[allow(clippy::too_many_arguments)]
 fn finish(
     map: &mut FlowMap,
@@ -173,10 +177,23 @@ fn finish(
     residual: f64,
     iterations: usize,
 ) -> Result<Refined, CycleError> {
+    let period = image.t - image.t_start;
+    let rest_size = REST_POINT_TOLERANCES * settings.tolerance * norm(&x).max(1.0);
     if map.is_cut() {
-        let size = map.speed(t0, &x) * (image.t - image.t_start) / std::f64::consts::TAU;
-        if size <= REST_POINT_TOLERANCES * settings.tolerance * norm(&x).max(1.0) {
+        let size = map.speed(t0, &x) * period / std::f64::consts::TAU;
+        if size <= rest_size {
             return Err(CycleError::RestPoint { size });
+        }
+    } else {
+        // a fixed point of the strobe map where the rates vanish at every time of the period
+        // (the model's field is frozen at the point and looked at across the period, so a
+        // forced orbit that merely turns round at the strobe time is not mistaken for rest)
+        let speed = (0..REST_SAMPLES)
+            .map(|j| map.speed(t0 + period * j as f64 / REST_SAMPLES as f64, &x))
+            .fold(0.0, f64::max);
+        let size = speed * period / std::f64::consts::TAU;
+        if size <= rest_size {
+            return Err(CycleError::RestingPoint { size, state: x });
         }
     }
     Ok(Refined {

@@ -135,6 +135,7 @@ pub fn find_cycle(
         match refine(map, seed, k, settings).and_then(|refined| CycleReport::measure(map, refined))
         {
             Ok(report) => return Ok(report),
+            Err(err @ CycleError::Cancelled { .. }) => return Err(err),
             Err(err) => {
                 first_error.get_or_insert(err);
             }
