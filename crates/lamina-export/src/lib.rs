@@ -1,10 +1,13 @@
 //! Lamina's exports: CSV point sets with the columns of the product brief, written through
-//! an atomic file so a failed export never replaces a good file.
+//! an atomic file so a failed export never replaces a good file (and a link, device or FIFO
+//! is written through, never replaced).
 
 mod atomic;
 mod csv_points;
 
-pub use atomic::{AtomicFile, write_atomically, write_bytes_atomically};
+pub use atomic::{
+    AtomicFile, FileIdentity, UNFINISHED, Written, beside, write_atomically, write_bytes_atomically,
+};
 pub use csv_points::{CutCsv, StrobeCsv, SweepCsv, TrajectoryCsv, format_number};
 
 /// Errors of an export.

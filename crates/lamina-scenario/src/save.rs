@@ -1,6 +1,5 @@
 //! Saving a scenario: stable, readable RON text, written to disk atomically.
 
-use std::io::Write;
 use std::path::Path;
 
 use ron::ser::PrettyConfig;
@@ -30,45 +29,19 @@ fn render(scenario: &Scenario) -> Result<String, ron::Error> {
     Ok(text)
 }
 
-/// Writes the scenario to `path` atomically: the text goes to a temporary file in the same
-/// directory, is flushed to disk, then renamed over `path`. A failure at any point leaves an
-/// existing file at `path` untouched and no temporary file behind.
+/// Writes the scenario to `path` through Lamina's output files
+/// ([`lamina_export::AtomicFile`]): the text goes to a temporary file in the same directory,
+/// is flushed to disk, then renamed over `path`, keeping the replaced file's permissions (a new
+/// file gets the usual ones); a symbolic link is written through to its file. A failure at any
+/// point leaves an existing file at `path` untouched and no temporary file behind.
 pub fn save_file(path: &Path, scenario: &Scenario) -> Result<(), ScenarioError> {
     let io_error = |source| ScenarioError::Io {
         path: path.to_owned(),
         source,
     };
     let text = render(scenario).map_err(|err| io_error(std::io::Error::other(err)))?;
-    let dir = match path.parent() {
-        Some(parent) if !parent.as_os_str().is_empty() => parent,
-        _ => Path::new("."),
-    };
-    let mut builder = tempfile::Builder::new();
-    builder.prefix(".lamina-save-").suffix(".tmp");
-    // Keep the permissions of the file being replaced; a new file gets the usual ones.
-    if let Some(metadata) = std::fs::metadata(path)
-        .ok()
-        .filter(std::fs::Metadata::is_file)
-    {
-        builder.permissions(metadata.permissions());
-    } else {
-        #[cfg(unix)]
-        {
-            use std::os::unix::fs::PermissionsExt;
-            // the process umask still applies, as for any newly created file
-            builder.permissions(std::fs::Permissions::from_mode(0o666));
-        }
-    }
-    let mut file = builder.tempfile_in(dir).map_err(io_error)?;
-    file.write_all(text.as_bytes()).map_err(io_error)?;
-    file.as_file().sync_all().map_err(io_error)?;
-    file.persist(path).map_err(|err| io_error(err.error))?;
-    #[cfg(unix)]
-    {
-        // Make the rename itself durable; the file is already complete either way.
-        if let Ok(dir_handle) = std::fs::File::open(dir) {
-            let _ = dir_handle.sync_all();
-        }
-    }
-    Ok(())
+    lamina_export::write_bytes_atomically(path, text.as_bytes()).map_err(|err| match err {
+        lamina_export::ExportError::Io { source, .. } => io_error(source),
+        other => io_error(std::io::Error::other(other)),
+    })
 }
