@@ -42,8 +42,35 @@ enum Command {
     Lyapunov(cli::LyapunovArgs),
 }
 
+impl Command {
+    /// The subcommand's name, for the JSON error object.
+    fn name(&self) -> &'static str {
+        match self {
+            Self::Open { .. } => "open",
+            Self::Check { .. } => "check",
+            Self::Cut(_) => "cut",
+            Self::Strobe(_) => "strobe",
+            Self::Sweep(_) => "sweep",
+            Self::Render(_) => "render",
+            Self::Cycle(_) => "cycle",
+            Self::Lyapunov(_) => "lyapunov",
+        }
+    }
+
+    /// Whether the command writes JSON on stdout (`--json`).
+    fn writes_json(&self) -> bool {
+        match self {
+            Self::Cycle(args) => args.json(),
+            Self::Lyapunov(args) => args.json(),
+            _ => false,
+        }
+    }
+}
+
 fn main() -> ExitCode {
     let args = Cli::parse();
+    let json = args.command.as_ref().is_some_and(Command::writes_json);
+    let name = args.command.as_ref().map_or("open", Command::name);
     let result = match args.command {
         None => cli::open_explorer(None),
         Some(Command::Open { file }) => cli::open_explorer(Some(file)),
@@ -60,8 +87,21 @@ fn main() -> ExitCode {
         // the reader of our output has what it wanted (`lamina cut ... | head`)
         Err(err) if cli::output_closed(&err) => ExitCode::SUCCESS,
         Err(err) => {
-            eprintln!("error: {}", error_chain(&err));
-            ExitCode::FAILURE
+            let text = error_chain(&err);
+            let interrupted = err.downcast_ref::<cli::Interrupted>().is_some();
+            if interrupted {
+                eprintln!("{text}");
+            } else {
+                eprintln!("error: {text}");
+            }
+            if json {
+                cli::print_json_error(name, &text, &err);
+            }
+            if interrupted {
+                ExitCode::from(cli::INTERRUPTED)
+            } else {
+                ExitCode::FAILURE
+            }
         }
     }
 }

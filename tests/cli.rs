@@ -477,8 +477,8 @@ fn an_escape_keeps_the_valid_points_and_says_when() {
         assert_rel(state[0], 1.0 / (1.0 - t), 1e-6, "x");
     }
 
-    // With --out the file holds the same valid points.
-    let out = write(dir.path(), "samples.csv", "old contents\n");
+    // With --out a new file holds the same valid points...
+    let out = dir.path().join("samples.csv");
     lamina()
         .arg("strobe")
         .arg(&path)
@@ -490,6 +490,30 @@ fn an_escape_keeps_the_valid_points_and_says_when() {
         .stderr(predicate::str::contains("bound").and(predicate::str::contains("t = ")));
     assert_eq!(fs::read(&out).unwrap(), output.stdout);
     assert_eq!(listing(dir.path()), ["blow_up.ron", "samples.csv"]);
+    // ...but a failed run never replaces an existing file: its valid points go beside it,
+    // and the message says where
+    fs::write(&out, "old contents\n").unwrap();
+    lamina()
+        .arg("strobe")
+        .arg(&path)
+        .arg("--out")
+        .arg(&out)
+        .assert()
+        .failure()
+        .stdout("")
+        .stderr(
+            predicate::str::contains("samples.csv was left as it was")
+                .and(predicate::str::contains("samples.unfinished.csv")),
+        );
+    assert_eq!(fs::read_to_string(&out).unwrap(), "old contents\n");
+    assert_eq!(
+        fs::read(dir.path().join("samples.unfinished.csv")).unwrap(),
+        output.stdout
+    );
+    assert_eq!(
+        listing(dir.path()),
+        ["blow_up.ron", "samples.csv", "samples.unfinished.csv"]
+    );
 
     // The cut x = 1.5 is crossed once, at t = 1/3 [analytic], before the escape.
     let output = lamina()

@@ -5,16 +5,20 @@ use std::io::Write;
 use std::ops::ControlFlow;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
+use std::sync::Arc;
 
 use anyhow::{Context, Result, bail};
 use lamina_core::Interrupt;
 use lamina_core::cycle::{
-    FlowMap, MapKind, MapPoint, MapSettings, NewtonSettings, Recurrence, RecurrenceSettings,
-    close_returns, find_cycle, find_recurrence,
+    CycleError, FlowMap, MapKind, MapPoint, MapSettings, NewtonSettings, Number, Recurrence,
+    RecurrenceSettings, close_returns, find_cycle, find_recurrence,
 };
-use lamina_core::run::{CutPoint, Run, Sink, StrobeSample};
+use lamina_core::run::{CutPoint, Run, Sink, StopReason, StrobeSample};
 
 use super::cycle_output::{write_human, write_json};
+use super::failure::{Interrupted, WithFields};
+use super::memory;
+use super::signals::interrupt_on_signal;
 use super::prepare::{Prepared, prepare};
 use super::progress::Progress;
 
@@ -43,6 +47,13 @@ pub struct CycleArgs {
     /// Write the result as JSON on stdout.
     #[arg(long)]
     json: bool,
+}
+
+impl CycleArgs {
+    /// Whether the result goes out as JSON.
+    pub fn json(&self) -> bool {
+        self.json
+    }
 }
 
 /// The `--map` choices.
@@ -77,6 +88,16 @@ pub fn cycle(args: &CycleArgs) -> Result<ExitCode> {
     if args.period == Some(0) {
         bail!("--period must be at least 1");
     }
+    let n = prepared.model.start().len();
+    memory::ensure_fits(
+        FlowMap::workspace_bytes(n, prepared.spec.method),
+        &format!(
+            "following the orbit of {n} states with its variational equations ({n} + {n}^2 values)"
+        ),
+        "a model this large has no room for its periodic-orbit search on this machine",
+    )?;
+    // Ctrl-C stops the settling run or Newton's method at the next step
+    let interrupt = interrupt_on_signal()?;
     let names = prepared.model.names().states.clone();
     let rtol = prepared.spec.control.rtol;
     let span = prepared.spec.t_end() - prepared.spec.t_start;
@@ -89,6 +110,7 @@ pub fn cycle(args: &CycleArgs) -> Result<ExitCode> {
     let (seeds, k, origin, max_return_time) = if args.from_start {
         let settings = MapSettings::from_run(&prepared.spec, span);
         let mut map = FlowMap::new(prepared.model.clone(), kind.clone(), settings)?;
+        map.set_interrupt(Arc::clone(&interrupt));
         let seed = map
             .first_point(prepared.spec.t_start, prepared.model.start())
             .context("cannot reach the map from the start state")?;
@@ -99,18 +121,31 @@ pub fn cycle(args: &CycleArgs) -> Result<ExitCode> {
             span,
         )
     } else {
-        seeds_from_run(prepared.clone(), choice, args.period, path)?
+        seeds_from_run(prepared.clone(), choice, args.period, path, &interrupt)?
     };
 
     let settings = MapSettings::from_run(&prepared.spec, max_return_time);
     let mut map = FlowMap::new(prepared.model, kind, settings)?;
-    let report =
-        find_cycle(&mut map, &seeds, k, &NewtonSettings::for_rtol(rtol)).with_context(|| {
-            format!(
+    map.set_interrupt(Arc::clone(&interrupt));
+    let report = match find_cycle(&mut map, &seeds, k, &NewtonSettings::for_rtol(rtol)) {
+        Ok(report) => report,
+        Err(CycleError::Cancelled { t }) => {
+            return Err(Interrupted(format!(
+                "interrupted at t = {t} while Newton's method followed the orbit; nothing was \
+                 printed"
+            ))
+            .into());
+        }
+        Err(CycleError::RestingPoint { size, state }) => {
+            return Err(resting_point(&names, size, &state).into());
+        }
+        Err(err) => {
+            return Err(anyhow::Error::new(err).context(format!(
                 "no periodic orbit of period {k} found from {} seed(s)",
                 seeds.len()
-            )
-        })?;
+            )));
+        }
+    };
     let mut out = std::io::stdout().lock();
     if args.json {
         write_json(&mut out, &report, &names)?;
@@ -119,6 +154,31 @@ pub fn cycle(args: &CycleArgs) -> Result<ExitCode> {
     }
     out.flush().context("writing to stdout")?;
     Ok(ExitCode::SUCCESS)
+}
+
+/// The strobe map's fixed point at rest, said with the state's names (and, for JSON, as a
+/// `resting_point` object).
+fn resting_point(names: &[String], size: f64, state: &[f64]) -> WithFields {
+    let named: Vec<String> = names
+        .iter()
+        .zip(state)
+        .map(|(n, v)| format!("{n} = {}", Number(*v)))
+        .collect();
+    let mut point = serde_json::Map::new();
+    for (n, v) in names.iter().zip(state) {
+        point.insert(n.clone(), serde_json::json!(v));
+    }
+    let mut fields = serde_json::Map::new();
+    fields.insert("resting_point".into(), serde_json::Value::Object(point));
+    WithFields {
+        message: format!(
+            "the strobe map settles on a resting point (an equilibrium), not a periodic orbit: \
+             {} (the rates vanish there; the motion over a period, {size:.1e}, is below what \
+             the tolerance resolves)",
+            named.join(", ")
+        ),
+        fields,
+    }
 }
 
 /// The map asked for, or the default: the cut for an autonomous model that has one, else the
@@ -187,6 +247,7 @@ fn seeds_from_run(
     choice: MapArg,
     period: Option<usize>,
     path: &Path,
+    interrupt: &Interrupt,
 ) -> Result<(Vec<MapPoint>, usize, SeedOrigin, f64)> {
     let span = prepared.spec.t_end() - prepared.spec.t_start;
     let (cut, strobe) = match choice {
@@ -200,8 +261,15 @@ fn seeds_from_run(
         longest_return: 0.0,
         progress: Progress::new("settling"),
     };
-    let outcome = run.execute(&mut sink, &Interrupt::new());
+    let outcome = run.execute(&mut sink, interrupt);
     sink.progress.finish();
+    if let StopReason::Cancelled { t } = outcome.reason {
+        return Err(Interrupted(format!(
+            "interrupted at t = {t} while settling, after {} point(s); nothing was printed",
+            sink.points.len()
+        ))
+        .into());
+    }
     if outcome.reason.is_trouble() {
         bail!(
             "the run of {} stopped early ({}) after {} point(s)",

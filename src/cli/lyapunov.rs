@@ -6,13 +6,16 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use anyhow::{Context, Result};
-use lamina_core::Interrupt;
-use lamina_core::lyapunov::{ExponentSettings, ExponentSink, Spectrum, spectrum};
+use lamina_core::lyapunov::{ExponentSettings, ExponentSink, Spectrum, spectrum, workspace_bytes};
 use lamina_core::run::StopReason;
 use lamina_export::{AtomicFile, TrajectoryCsv, format_number};
 
+use super::failure::Interrupted;
+use super::memory;
+use super::outputs::{self, check_paths};
 use super::prepare::prepare;
 use super::progress::Progress;
+use super::signals::interrupt_on_signal;
 
 /// Arguments of `lyapunov`.
 #[derive(clap::Args, Debug)]
@@ -30,35 +33,76 @@ pub struct LyapunovArgs {
     exponents: Option<usize>,
 }
 
-/// Progress on the terminal's bar.
-struct Bar(Progress);
+impl LyapunovArgs {
+    /// Whether the result goes out as JSON.
+    pub fn json(&self) -> bool {
+        self.json
+    }
+}
+
+/// Progress on the terminal's bar, and the last time reported (for saying where an
+/// interrupted run stopped).
+struct Bar {
+    bar: Progress,
+    t: f64,
+    fraction: f64,
+}
 
 impl ExponentSink for Bar {
     fn progress(&mut self, t: f64, fraction: f64) {
-        self.0.update(t, fraction);
+        self.bar.update(t, fraction);
+        self.t = t;
+        self.fraction = fraction;
     }
 }
 
 /// Computes the exponents of the scenario and prints them (and writes the trace).
 pub fn lyapunov(args: &LyapunovArgs) -> Result<ExitCode> {
+    if let Some(trace) = &args.trace {
+        check_paths(&args.file, &[("--trace", trace)])?;
+    }
     let prepared = prepare(&args.file)?;
     let settings = ExponentSettings {
         count: args.exponents,
         ..ExponentSettings::all()
     };
-    let mut bar = Bar(Progress::new("lyapunov"));
-    let result = spectrum(
-        prepared.model,
-        &prepared.spec,
-        &settings,
-        &mut bar,
-        &Interrupt::new(),
-    );
-    bar.0.finish();
-    let result = result.with_context(|| format!("{}", args.file.display()))?;
-    if let Some(path) = &args.trace {
-        write_trace(path, &result)?;
+    let n = prepared.model.start().len();
+    let m = args.exponents.unwrap_or(n).min(n);
+    if m > 0 {
+        memory::ensure_fits(
+            workspace_bytes(n, m, prepared.spec.method),
+            &format!("computing {m} exponent(s) of {n} state(s)"),
+            "compute fewer with --exponents N (the cost grows with N)",
+        )?;
     }
+    // Ctrl-C stops the run at its next step; installed before the trace's temporary file
+    let interrupt = interrupt_on_signal()?;
+    let trace_file = match &args.trace {
+        Some(path) => Some(outputs::open("--trace", path)?),
+        None => None,
+    };
+    let mut bar = Bar {
+        bar: Progress::new("lyapunov"),
+        t: prepared.spec.t_start,
+        fraction: 0.0,
+    };
+    let result = spectrum(prepared.model, &prepared.spec, &settings, &mut bar, &interrupt);
+    bar.bar.finish();
+    let result = result.with_context(|| format!("{}", args.file.display()))?;
+    if let StopReason::Cancelled { t } = result.reason {
+        let written: Vec<&Path> = args.trace.iter().map(PathBuf::as_path).collect();
+        return Err(Interrupted(format!(
+            "interrupted at t = {t} ({:.0} % of the run): no exponents printed; {}",
+            100.0 * bar.fraction,
+            outputs::nothing_written(&written)
+        ))
+        .into());
+    }
+    let finished = result.reason == StopReason::Finished;
+    let trace_note = match trace_file {
+        Some(file) => Some(write_trace(file, &result, finished)?),
+        None => None,
+    };
     let text = if args.json {
         json(&result)?
     } else {
@@ -68,15 +112,20 @@ pub fn lyapunov(args: &LyapunovArgs) -> Result<ExitCode> {
     writeln!(stdout, "{text}")
         .and_then(|()| stdout.flush())
         .context("writing to stdout")?;
-    match result.reason {
-        StopReason::Finished => Ok(ExitCode::SUCCESS),
-        other => {
-            eprintln!(
-                "the run stopped early ({other}); the exponents are averaged up to t = {}",
-                result.t_end
-            );
-            Ok(ExitCode::FAILURE)
-        }
+    if let Some(note) = trace_note {
+        eprintln!("{note}");
+    }
+    if finished {
+        Ok(ExitCode::SUCCESS)
+    } else {
+        eprintln!(
+            "the run stopped early ({}); the exponents are averaged up to t = {} and not read \
+             (verdict: {})",
+            result.reason,
+            result.t_end,
+            result.verdict.name()
+        );
+        Ok(ExitCode::FAILURE)
     }
 }
 
@@ -85,16 +134,15 @@ fn exponent_names(m: usize) -> Vec<String> {
     (1..=m).map(|i| format!("l{i}")).collect()
 }
 
-/// Writes the running estimates as `t,l1,l2,...`, replacing `path` only when complete.
-fn write_trace(path: &Path, result: &Spectrum) -> Result<()> {
+/// Writes the running estimates as `t,l1,l2,...` into `file`: over its target when the run
+/// finished (or nothing was there), else beside it. Says where they went.
+fn write_trace(file: AtomicFile, result: &Spectrum, finished: bool) -> Result<String> {
     let trace = &result.trace;
-    let file = AtomicFile::create(path)?;
     let mut csv = TrajectoryCsv::new(file, &exponent_names(trace.exponents.len()))?;
     for (k, &t) in trace.t.iter().enumerate() {
         csv.write(t, &trace.sample(k))?;
     }
-    csv.finish()?.commit()?;
-    Ok(())
+    outputs::finish(csv.finish()?, finished, "the running estimates")
 }
 
 /// The JSON of the product brief (`exponents`, `time`) with the rest of the result. Numbers
@@ -114,6 +162,8 @@ fn json(result: &Spectrum) -> Result<String> {
         "t_end": result.t_end,
         "finished": result.reason == StopReason::Finished,
         "stop_reason": result.reason.to_string(),
+        "error": (result.reason != StopReason::Finished)
+            .then(|| format!("the run stopped early: {}", result.reason)),
         "reorthonormalisations": result.n_reorthonormalisations,
         "rate_evaluations": result.stats.n_rates,
     });

@@ -8,8 +8,9 @@ use std::process::ExitCode;
 use anyhow::{Context, Result, bail};
 use lamina_core::Interrupt;
 use lamina_core::run::{CutPoint, Run, Sink, StopReason, StrobeSample};
-use lamina_export::{AtomicFile, CutCsv, ExportError, StrobeCsv};
+use lamina_export::{CutCsv, ExportError, StrobeCsv};
 
+use super::outputs;
 use super::prepare::prepare;
 use super::progress::Progress;
 use super::signals::{INTERRUPTED, interrupt_on_signal};
@@ -90,6 +91,9 @@ impl<W: Write> Sink for CsvSink<W> {
 
 /// Runs the scenario and writes its cut points or strobe samples.
 pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
+    if let Some(out) = &args.out {
+        outputs::check_paths(&args.file, &[("--out", out)])?;
+    }
     let prepared = prepare(&args.file)?;
     let names = prepared.model.names().states.clone();
     match kind {
@@ -123,18 +127,23 @@ pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
     let interrupt = interrupt_on_signal()?;
     match &args.out {
         Some(path) => {
-            let file = AtomicFile::create(path)?;
+            let file = outputs::open("--out", path)?;
             let (reason, written, file) =
                 execute(kind, args.count, &names, file, &mut run, &interrupt, label)?;
             if let StopReason::Cancelled { .. } = reason {
                 // an interrupted run is not a result: the temporary file goes, the target
                 // stays as it was
                 drop(file);
-            } else {
-                // A run stopped by numerical trouble still keeps the valid points it found.
-                file.commit()?;
+                return report(reason, written, label, Some(path));
             }
-            report(reason, written, label, Some(path))
+            // a run stopped by numerical trouble keeps the valid points it found, but does
+            // not put them over an existing file
+            let note = outputs::finish(
+                file,
+                !reason.is_trouble(),
+                &format!("{written} valid {label} point(s)"),
+            )?;
+            report_file(reason, &note)
         }
         None => {
             let stdout = std::io::stdout().lock();
@@ -185,6 +194,25 @@ fn execute<W: Write>(
         Writer::Strobe(w) => w.finish()?,
     };
     Ok((outcome.reason, sink.written, out))
+}
+
+/// Reports how a run with an output file ended (not interrupted), with where its points
+/// went.
+fn report_file(reason: StopReason, note: &str) -> Result<ExitCode> {
+    match reason {
+        StopReason::Finished | StopReason::SinkStopped { .. } => {
+            eprintln!("{note}");
+            Ok(ExitCode::SUCCESS)
+        }
+        StopReason::PointLimit { t } => {
+            eprintln!("{note}; stopped at the point limit (limits.max_points) at t = {t}");
+            Ok(ExitCode::SUCCESS)
+        }
+        other => {
+            eprintln!("the run stopped early: {other}\n{note}");
+            Ok(ExitCode::FAILURE)
+        }
+    }
 }
 
 fn report(

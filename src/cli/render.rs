@@ -1,18 +1,21 @@
 //! `lamina render`: the explorer's views drawn headless into PNG files for reports.
 
+use std::io::Write;
 use std::ops::ControlFlow;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::process::ExitCode;
 
 use anyhow::{Context, Result, bail};
-use lamina_core::Interrupt;
-use lamina_core::run::{CutPoint, Run, Sink, StrobeSample};
+use lamina_core::run::{CutPoint, Run, Sink, StopReason, StrobeSample};
 use lamina_core::sweep::{SweepColumn, SweepSpec};
-use lamina_export::write_bytes_atomically;
+use lamina_export::AtomicFile;
 use lamina_render::Figure;
 use lamina_scenario::Scenario;
 
+use super::failure::Interrupted;
+use super::outputs;
 use super::prepare::prepare;
+use super::signals::interrupt_on_signal;
 
 /// Which view to draw.
 #[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
@@ -61,10 +64,6 @@ fn parse_size(text: &str) -> Result<(u32, u32), String> {
     Ok((w, h))
 }
 
-fn write_png(path: &Path, bytes: &[u8]) -> Result<()> {
-    Ok(write_bytes_atomically(path, bytes)?)
-}
-
 #[derive(Default)]
 struct Everything {
     trajectory: Vec<(f64, Vec<f64>)>,
@@ -86,15 +85,14 @@ impl Sink for Everything {
     }
 }
 
-/// Draws the orbit diagram of a finished sweep.
-pub fn write_orbit_diagram(
-    path: &Path,
+/// The orbit diagram of a finished sweep as PNG bytes.
+pub fn orbit_diagram_png(
     size: (u32, u32),
     scenario: &Scenario,
     spec: &SweepSpec,
     coordinate: usize,
     columns: &[SweepColumn],
-) -> Result<()> {
+) -> Result<Vec<u8>> {
     let parameter = &scenario.parameters[spec.parameter].name;
     let coordinate_name = &scenario.states[coordinate].name;
     let data: Vec<(f64, Vec<f64>)> = columns
@@ -108,17 +106,30 @@ pub fn write_orbit_diagram(
         x_label: parameter.clone(),
         y_label: coordinate_name.clone(),
     };
-    let bytes = lamina_render::orbit_diagram_png(&figure, &data, None)?;
-    write_png(path, &bytes)
+    Ok(lamina_render::orbit_diagram_png(&figure, &data, None)?)
 }
 
 /// `lamina render`.
 pub fn render(args: &RenderArgs) -> Result<ExitCode> {
+    outputs::check_paths(&args.file, &[("--png", &args.png)])?;
+    // Ctrl-C stops the run at its next step; installed before the picture's temporary file
+    let interrupt = interrupt_on_signal()?;
+    let png = outputs::open("--png", &args.png)?;
     if args.view == View::Sweep {
-        let (scenario, spec, coordinate, columns) = super::sweep::run_sweep(&args.file, None)?;
-        write_orbit_diagram(&args.png, args.size, &scenario, &spec, coordinate, &columns)?;
-        eprintln!("wrote {}", args.png.display());
-        return Ok(ExitCode::SUCCESS);
+        let run = super::sweep::run_sweep(&args.file, None, &interrupt)?;
+        if interrupt.is_raised() {
+            let parameter = &run.scenario.parameters[run.spec.parameter].name;
+            return Err(super::sweep::interrupted_sweep(&run, parameter, &[&args.png]).into());
+        }
+        let bytes = orbit_diagram_png(
+            args.size,
+            &run.scenario,
+            &run.spec,
+            run.coordinate,
+            &run.columns,
+        )?;
+        let succeeded = run.columns.iter().all(|c| !c.reason.is_trouble());
+        return finish(png, bytes, args, succeeded);
     }
     let prepared = prepare(&args.file)?;
     let scenario = prepared.scenario.clone();
@@ -131,7 +142,14 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
     let period = strobe.as_ref().map(|s| s.period);
     let mut sink = Everything::default();
     let outcome = Run::new(prepared.model, prepared.spec, cut, strobe, false)
-        .execute(&mut sink, &Interrupt::new());
+        .execute(&mut sink, &interrupt);
+    if let StopReason::Cancelled { t } = outcome.reason {
+        return Err(Interrupted(format!(
+            "interrupted at t = {t}; {}",
+            outputs::nothing_written(&[&args.png])
+        ))
+        .into());
+    }
     let figure = |x: String, y: String, what: &str| Figure {
         size: args.size,
         title: format!("{} — {what}", scenario.title),
@@ -208,30 +226,40 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
         }
         View::Sweep => unreachable_sweep()?,
     };
-    finish(args, bytes, outcome.reason)
+    let code = finish(png, bytes, args, !outcome.reason.is_trouble())?;
+    if outcome.reason.is_trouble() {
+        eprintln!(
+            "the run stopped early: {}; the picture shows what was found before",
+            outcome.reason
+        );
+    }
+    Ok(code)
 }
 
 fn unreachable_sweep() -> Result<Vec<u8>> {
     bail!("the sweep view is drawn above")
 }
 
+/// Writes the picture into `png`: over its target when the run `succeeded` or nothing was
+/// there, else beside it; says where it went.
 fn finish(
-    args: &RenderArgs,
+    mut png: AtomicFile,
     bytes: Vec<u8>,
-    reason: lamina_core::run::StopReason,
+    args: &RenderArgs,
+    succeeded: bool,
 ) -> Result<ExitCode> {
-    write_png(&args.png, &bytes)?;
-    eprintln!(
-        "wrote {} ({}x{})",
-        args.png.display(),
-        args.size.0,
-        args.size.1
-    );
-    if reason.is_trouble() {
-        eprintln!("the run stopped early: {reason}; the picture shows what was found before");
-        return Ok(ExitCode::FAILURE);
-    }
-    Ok(ExitCode::SUCCESS)
+    png.write_all(&bytes).context("--png")?;
+    let note = outputs::finish(
+        png,
+        succeeded,
+        &format!("the picture ({}x{})", args.size.0, args.size.1),
+    )?;
+    eprintln!("{note}");
+    Ok(if succeeded {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::FAILURE
+    })
 }
 
 /// The three coordinates of the 3D picture: the view block's, else the first three states,

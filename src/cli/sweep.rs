@@ -1,20 +1,23 @@
 //! `lamina sweep`: an orbit diagram in batch, as CSV (and optionally PNG), shardable.
 
 use std::io::Write;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::sync::Mutex;
 
 use anyhow::{Context, Result, bail};
 use lamina_core::Interrupt;
 use lamina_core::model::Model;
-use lamina_core::run::Strobe;
+use lamina_core::run::{StopReason, Strobe};
 use lamina_core::sweep::{SweepColumn, SweepSpec, sweep_follow, sweep_restart};
-use lamina_export::{AtomicFile, SweepCsv};
+use lamina_export::SweepCsv;
 use lamina_scenario::Scenario;
 
+use super::failure::Interrupted;
+use super::outputs;
 use super::prepare::prepare;
 use super::progress::Progress;
+use super::signals::interrupt_on_signal;
 
 /// Arguments of `lamina sweep`.
 #[derive(clap::Args, Debug)]
@@ -66,11 +69,27 @@ pub fn sweep_spec(scenario: &Scenario) -> Result<(SweepSpec, usize)> {
     Ok((spec, coordinate))
 }
 
-/// Runs the whole sweep (or one shard), reporting progress.
+/// A sweep run (or the part of it done before an interrupt).
+pub struct SweepRun {
+    /// The scenario as loaded.
+    pub scenario: Scenario,
+    /// The sweep settings.
+    pub spec: SweepSpec,
+    /// Index of the plotted coordinate.
+    pub coordinate: usize,
+    /// The values done, in sweep order.
+    pub columns: Vec<SweepColumn>,
+    /// How many values were to be run.
+    pub n_values: usize,
+}
+
+/// Runs the whole sweep (or one shard), reporting progress; `interrupt` stops it between
+/// (and inside) values.
 pub fn run_sweep(
     path: &std::path::Path,
     shard: Option<(usize, usize)>,
-) -> Result<(Scenario, SweepSpec, usize, Vec<SweepColumn>)> {
+    interrupt: &Interrupt,
+) -> Result<SweepRun> {
     let prepared = prepare(path)?;
     let scenario = prepared.scenario.clone();
     let (spec, coordinate) = sweep_spec(&scenario)?;
@@ -93,7 +112,6 @@ pub fn run_sweep(
     };
     let progress = Progress::new("sweep");
     let total = indices.len().max(1) as f64;
-    let interrupt = Interrupt::new();
     let columns = if spec.follow {
         let mut columns = Vec::new();
         sweep_follow(
@@ -103,9 +121,11 @@ pub fn run_sweep(
             &strobe_for,
             &spec,
             &indices,
-            &interrupt,
+            interrupt,
             &mut |c| {
-                columns.push(c.clone());
+                if !matches!(c.reason, StopReason::Cancelled { .. }) {
+                    columns.push(c.clone());
+                }
                 progress.update(c.value, columns.len() as f64 / total);
                 std::ops::ControlFlow::Continue(())
             },
@@ -120,7 +140,7 @@ pub fn run_sweep(
             &strobe_for,
             &spec,
             &indices,
-            &interrupt,
+            interrupt,
             &|c| {
                 if let Ok(mut d) = done.lock() {
                     *d += 1;
@@ -130,27 +150,85 @@ pub fn run_sweep(
         )?
     };
     progress.finish();
-    Ok((scenario, spec, coordinate, columns))
+    Ok(SweepRun {
+        scenario,
+        spec,
+        coordinate,
+        columns,
+        n_values: indices.len(),
+    })
+}
+
+/// What an interrupted sweep did: how many values were done and the last one in sweep
+/// order.
+pub fn interrupted_sweep(run: &SweepRun, parameter: &str, written: &[&Path]) -> Interrupted {
+    let last = run
+        .columns
+        .last()
+        .map(|c| format!(" (the last done in order: {parameter} = {})", c.value))
+        .unwrap_or_default();
+    Interrupted(format!(
+        "interrupted after {} of {} value(s){last}; {}",
+        run.columns.len(),
+        run.n_values,
+        outputs::nothing_written(written)
+    ))
 }
 
 /// `lamina sweep`.
 pub fn sweep(args: &SweepArgs) -> Result<ExitCode> {
-    let (scenario, spec, coordinate, columns) = run_sweep(&args.file, args.shard)?;
+    let mut paths: Vec<(&str, &Path)> = Vec::new();
+    if let Some(out) = &args.out {
+        paths.push(("--out", out));
+    }
+    if let Some(png) = &args.png {
+        paths.push(("--png", png));
+    }
+    outputs::check_paths(&args.file, &paths)?;
+    // Ctrl-C stops the sweep between (and inside) values; installed before the output files
+    let interrupt = interrupt_on_signal()?;
+    // every output is opened before the sweep, so a bad path fails at once
+    let out_file = match &args.out {
+        Some(path) => Some(outputs::open("--out", path)?),
+        None => None,
+    };
+    let png_file = match &args.png {
+        Some(path) => Some(outputs::open("--png", path)?),
+        None => None,
+    };
+    let run = run_sweep(&args.file, args.shard, &interrupt)?;
+    let SweepRun {
+        scenario,
+        spec,
+        coordinate,
+        columns,
+        ..
+    } = &run;
     let parameter = scenario.parameters[spec.parameter].name.clone();
+    if interrupt.is_raised() {
+        let written: Vec<&Path> = paths.iter().map(|(_, p)| *p).collect();
+        return Err(interrupted_sweep(&run, &parameter, &written).into());
+    }
     let names: Vec<String> = scenario.states.iter().map(|s| s.name.clone()).collect();
+    let troubled: Vec<String> = columns
+        .iter()
+        .filter(|c| c.reason.is_trouble())
+        .map(|c| format!("{parameter} = {}: {}", c.value, c.reason))
+        .collect();
+    let succeeded = troubled.is_empty();
     let write = |out: &mut dyn Write| -> Result<()> {
         let mut csv = SweepCsv::new(out, &parameter, &names)?;
-        for c in &columns {
+        for c in columns {
             csv.write_column(c.value, &c.points)?;
         }
         csv.finish()?;
         Ok(())
     };
-    match &args.out {
-        Some(path) => {
-            let mut file = AtomicFile::create(path)?;
+    let mut notes = Vec::new();
+    match out_file {
+        Some(mut file) => {
             write(&mut file)?;
-            file.commit()?;
+            notes.push(outputs::finish(file, succeeded, "the sweep's CSV")?);
         }
         None => {
             let mut stdout = std::io::stdout().lock();
@@ -158,22 +236,21 @@ pub fn sweep(args: &SweepArgs) -> Result<ExitCode> {
             stdout.flush()?;
         }
     }
-    if let Some(png) = &args.png {
-        super::render::write_orbit_diagram(
-            png,
-            (1200, 900),
-            &scenario,
-            &spec,
-            coordinate,
-            &columns,
-        )?;
+    if let Some(mut file) = png_file {
+        let bytes =
+            super::render::orbit_diagram_png((1200, 900), scenario, spec, *coordinate, columns)?;
+        file.write_all(&bytes).context("--png")?;
+        notes.push(outputs::finish(file, succeeded, "the orbit diagram")?);
     }
-    report_changes(&parameter, &columns);
-    let troubled: Vec<String> = columns
-        .iter()
-        .filter(|c| c.reason.is_trouble())
-        .map(|c| format!("{parameter} = {}: {}", c.value, c.reason))
-        .collect();
+    report_changes(&parameter, columns);
+    if args.shard.is_some() && spec.to < spec.from {
+        eprintln!(
+            "note: this sweep runs from {parameter} = {} down to {}: to merge its shards by \
+             hand, sort the rows by the value in falling order, \
+             (head -1 s0.csv; tail -q -n +2 s*.csv | sort -t, -k1,1gr -k2,2n) > sweep.csv",
+            spec.from, spec.to
+        );
+    }
     let short: Vec<String> = columns
         .iter()
         .filter(|c| c.points.len() < spec.keep)
@@ -187,7 +264,10 @@ pub fn sweep(args: &SweepArgs) -> Result<ExitCode> {
             short.join(", ")
         );
     }
-    if !troubled.is_empty() {
+    for note in notes {
+        eprintln!("{note}");
+    }
+    if !succeeded {
         eprintln!(
             "numerical trouble at {} value(s):\n{}",
             troubled.len(),

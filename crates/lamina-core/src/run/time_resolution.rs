@@ -4,6 +4,7 @@
 //! checks, through [`check_time_resolution`]) and recognised when a step collapses for it.
 
 use super::{RunSpec, Strobe};
+use crate::cycle::Number;
 use crate::integrate::min_step_at;
 
 /// Strobe sample times must be formed to this fraction of the period.
@@ -56,9 +57,9 @@ impl WindowPart {
 pub enum TimeResolution {
     /// A part of the window is lost (or much changed) in rounding where it lies.
     #[error(
-        "the {} of {length} after t = {t} comes out as {realised}: floating-point times there are \
-         {spacing} apart; start the time nearer 0",
-        part.name()
+        "the {} of {} after t = {} comes out as {}: floating-point times there are {} apart; \
+         start the time nearer 0",
+        part.name(), Number(*length), Number(*t), Number(*realised), Number(*spacing)
     )]
     WindowLost {
         /// Which part.
@@ -75,9 +76,10 @@ pub enum TimeResolution {
     /// Strobe times `first_at + k T` cannot be formed to a small part of the period over the
     /// window (the first sample or the window lies far from 0 for the period).
     #[error(
-        "strobe samples at first_at + k T with first_at = {first_at} and T = {period} cannot be \
-         timed near t = {t}: floating-point times there are {spacing} apart, more than a \
-         thousandth of the period; put the first sample and the start time nearer 0"
+        "strobe samples at first_at + k T with first_at = {} and T = {} cannot be timed near \
+         t = {}: floating-point times there are {} apart, more than a thousandth of the period; \
+         put the first sample and the start time nearer 0",
+        Number(*first_at), Number(*period), Number(*t), Number(*spacing)
     )]
     StrobeTimes {
         /// Time of sample 0.
@@ -91,10 +93,10 @@ pub enum TimeResolution {
     },
     /// Steps the model needs are below the smallest step that changes the time there.
     #[error(
-        "at t = {t} the steps fell to {step:e}, the smallest that changes the time there \
-         (floating-point times are {spacing} apart): the time is too far from 0 for the model's \
-         time scale; start the time nearer 0 (over this run's length the steps could go down to \
-         {local:e})"
+        "at t = {} the steps fell to {}, the smallest that changes the time there \
+         (floating-point times are {} apart): the time is too far from 0 for the model's time \
+         scale; start the time nearer 0 (over this run's length the steps could go down to {})",
+        Number(*t), Number(*step), Number(*spacing), Number(*local)
     )]
     StepLost {
         /// Where it happened.
