@@ -18,9 +18,9 @@ use lamina_core::run::{CutPoint, Run, Sink, StopReason, StrobeSample};
 use super::cycle_output::{write_human, write_json};
 use super::failure::{Interrupted, WithFields};
 use super::memory;
-use super::signals::interrupt_on_signal;
 use super::prepare::{Prepared, prepare};
 use super::progress::Progress;
+use super::signals::interrupt_on_signal;
 
 /// Seeds tried, closest return first.
 const MAX_SEEDS: usize = 4;
@@ -159,11 +159,16 @@ pub fn cycle(args: &CycleArgs) -> Result<ExitCode> {
 /// The strobe map's fixed point at rest, said with the state's names (and, for JSON, as a
 /// `resting_point` object).
 fn resting_point(names: &[String], size: f64, state: &[f64]) -> WithFields {
-    let named: Vec<String> = names
+    const SHOWN: usize = 8;
+    let mut named: Vec<String> = names
         .iter()
         .zip(state)
+        .take(SHOWN)
         .map(|(n, v)| format!("{n} = {}", Number(*v)))
         .collect();
+    if names.len() > SHOWN {
+        named.push(format!("and {} more states", names.len() - SHOWN));
+    }
     let mut point = serde_json::Map::new();
     for (n, v) in names.iter().zip(state) {
         point.insert(n.clone(), serde_json::json!(v));

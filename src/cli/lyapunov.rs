@@ -86,7 +86,13 @@ pub fn lyapunov(args: &LyapunovArgs) -> Result<ExitCode> {
         t: prepared.spec.t_start,
         fraction: 0.0,
     };
-    let result = spectrum(prepared.model, &prepared.spec, &settings, &mut bar, &interrupt);
+    let result = spectrum(
+        prepared.model,
+        &prepared.spec,
+        &settings,
+        &mut bar,
+        &interrupt,
+    );
     bar.bar.finish();
     let result = result.with_context(|| format!("{}", args.file.display()))?;
     if let StopReason::Cancelled { t } = result.reason {
@@ -162,11 +168,19 @@ fn json(result: &Spectrum) -> Result<String> {
         "t_end": result.t_end,
         "finished": result.reason == StopReason::Finished,
         "stop_reason": result.reason.to_string(),
-        "error": (result.reason != StopReason::Finished)
-            .then(|| format!("the run stopped early: {}", result.reason)),
         "reorthonormalisations": result.n_reorthonormalisations,
         "rate_evaluations": result.stats.n_rates,
     });
+    let mut value = value;
+    if result.reason != StopReason::Finished
+        && let Some(object) = value.as_object_mut()
+    {
+        // a run that did not finish is a failure: say so where a script looks for one
+        object.insert(
+            "error".into(),
+            serde_json::Value::String(format!("the run stopped early: {}", result.reason)),
+        );
+    }
     let text = serde_json::to_string(&value).context("writing JSON")?;
     Ok(text)
 }

@@ -141,8 +141,8 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
     };
     let period = strobe.as_ref().map(|s| s.period);
     let mut sink = Everything::default();
-    let outcome = Run::new(prepared.model, prepared.spec, cut, strobe, false)
-        .execute(&mut sink, &interrupt);
+    let outcome =
+        Run::new(prepared.model, prepared.spec, cut, strobe, false).execute(&mut sink, &interrupt);
     if let StopReason::Cancelled { t } = outcome.reason {
         return Err(Interrupted(format!(
             "interrupted at t = {t}; {}",

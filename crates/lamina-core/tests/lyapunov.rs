@@ -399,7 +399,11 @@ fn numerical_trouble_ends_the_run_with_its_time() {
         &spec(Method::Dp853, 1e-9, 0.0, 100.0),
         &ExponentSettings::all(),
     );
-    assert!(matches!(s.reason, StopReason::Escaped { .. }), "{:?}", s.reason);
+    assert!(
+        matches!(s.reason, StopReason::Escaped { .. }),
+        "{:?}",
+        s.reason
+    );
     assert_eq!(s.verdict, Verdict::Unbounded);
     assert_eq!(s.kaplan_yorke, None);
     let interrupt = Interrupt::new();
@@ -486,10 +490,7 @@ fn unusable_settings_are_refused() {
         ..run.clone()
     };
     let err = with(ExponentSettings::all(), &far).expect("refused");
-    assert!(
-        matches!(err, ExponentError::TimeTooCoarse(_)),
-        "{err}"
-    );
+    assert!(matches!(err, ExponentError::TimeTooCoarse(_)), "{err}");
     let message = err.to_string();
     assert!(
         message.contains("16384") && message.contains("nearer 0"),
@@ -519,9 +520,17 @@ fn rates_that_jump_with_the_state_are_flagged() {
 fn a_sliding_mode_is_reported_as_chattering_where_it_starts() {
     // [analytic] x' = -sign(x) from x = 1 reaches the surface x = 0 at t = 1 and slides on
     // it: the field points into it from both sides
-    for (settle, method) in [(0.0, Method::Dp853), (5.0, Method::Dp853), (0.0, Method::Auto)] {
+    for (settle, method) in [
+        (0.0, Method::Dp853),
+        (5.0, Method::Dp853),
+        (0.0, Method::Auto),
+    ] {
         let m = model(&[("x", 1.0, "-sign(x)"), ("y", 0.5, "-y")], &[]);
-        let s = compute(m, &spec(method, 1e-9, settle, 10.0), &ExponentSettings::all());
+        let s = compute(
+            m,
+            &spec(method, 1e-9, settle, 10.0),
+            &ExponentSettings::all(),
+        );
         let StopReason::Chattering { t } = s.reason else {
             panic!("settle {settle}: {:?}", s.reason);
         };
@@ -532,6 +541,10 @@ fn a_sliding_mode_is_reported_as_chattering_where_it_starts() {
     // [analytic] the relay oscillator x'' = -sign(x) switches every so often but never
     // slides: its run finishes
     let relay = model(&[("x", 1.0, "v"), ("v", 0.0, "-sign(x)")], &[]);
-    let s = compute(relay, &spec(Method::Dp853, 1e-9, 0.0, 30.0), &ExponentSettings::all());
+    let s = compute(
+        relay,
+        &spec(Method::Dp853, 1e-9, 0.0, 30.0),
+        &ExponentSettings::all(),
+    );
     assert_eq!(s.reason, StopReason::Finished);
 }

@@ -217,7 +217,8 @@ fn difference_jacobian_gives_the_same_solution_as_the_exact_one() {
     assert!(s1.n_accepted.abs_diff(s2.n_accepted) * 50 < s1.n_accepted);
     // the step work without dense output: one Jacobian per step, one factorisation per
     // attempt; per Jacobian the closure costs one evaluation per state and one for d/dt
-    let (lazy_exact, lazy_differences) = (lazy_stats(&mut typed, &x0), lazy_stats(&mut closure, &x0));
+    let (lazy_exact, lazy_differences) =
+        (lazy_stats(&mut typed, &x0), lazy_stats(&mut closure, &x0));
     assert_eq!(lazy_exact.n_jacobians, lazy_exact.n_accepted);
     let s2 = lazy_differences;
     assert_eq!(

@@ -72,7 +72,10 @@ fn exponents_by_the_stiff_method_sum_to_the_trace() {
         ],
         &[],
     );
-    for (m, trace, span, tol) in [(chain, trace, 0.5, 1e-7), (lorenz, -(11.0 + 8.0 / 3.0), 5.0, 1e-9)] {
+    for (m, trace, span, tol) in [
+        (chain, trace, 0.5, 1e-7),
+        (lorenz, -(11.0 + 8.0 / 3.0), 5.0, 1e-9),
+    ] {
         let run = RunSpec {
             method: Method::Rodas4,
             control: StepControl {
@@ -84,8 +87,14 @@ fn exponents_by_the_stiff_method_sum_to_the_trace() {
             span,
             ..RunSpec::default()
         };
-        let result =
-            spectrum(m, &run, &ExponentSettings::all(), &mut (), &Interrupt::new()).expect("runs");
+        let result = spectrum(
+            m,
+            &run,
+            &ExponentSettings::all(),
+            &mut (),
+            &Interrupt::new(),
+        )
+        .expect("runs");
         let sum: f64 = result.exponents.iter().sum();
         // [analytic] as above, to a small multiple of the tolerance over the span
         assert!(

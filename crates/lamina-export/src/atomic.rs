@@ -119,7 +119,10 @@ impl AtomicFile {
                     return Err(error(io::Error::other("is a socket; cannot write to it")));
                 }
                 // written as it goes, never replaced (the kernel follows any links)
-                let file = OpenOptions::new().write(true).open(&target).map_err(error)?;
+                let file = OpenOptions::new()
+                    .write(true)
+                    .open(&target)
+                    .map_err(error)?;
                 return Ok(Self {
                     target,
                     way: Way::Direct {
@@ -130,7 +133,9 @@ impl AtomicFile {
             _ => {}
         }
         let destination = resolve_links(&target).map_err(error)?;
-        let existing = fs::metadata(&destination).ok().filter(fs::Metadata::is_file);
+        let existing = fs::metadata(&destination)
+            .ok()
+            .filter(fs::Metadata::is_file);
         let mut builder = tempfile::Builder::new();
         builder.prefix(".lamina-").suffix(".partial");
         #[cfg(unix)]
@@ -346,9 +351,8 @@ impl FileIdentity {
             }
         }
         let resolved = resolve_links(path).unwrap_or_else(|_| path.to_path_buf());
-        let directory = fs::canonicalize(directory_of(&resolved)).unwrap_or_else(|_| {
-            directory_of(&resolved)
-        });
+        let directory =
+            fs::canonicalize(directory_of(&resolved)).unwrap_or_else(|_| directory_of(&resolved));
         match resolved.file_name() {
             Some(name) => FileIdentity::New(directory.join(name)),
             None => FileIdentity::New(resolved),

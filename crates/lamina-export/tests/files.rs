@@ -24,13 +24,23 @@ fn a_symbolic_link_is_written_through_and_stays_a_link() {
     let link = dir.path().join("link.csv");
     symlink(&real, &link).expect("link");
     write_bytes_atomically(&link, b"new\n").expect("written");
-    assert!(fs::symlink_metadata(&link).expect("link").file_type().is_symlink());
+    assert!(
+        fs::symlink_metadata(&link)
+            .expect("link")
+            .file_type()
+            .is_symlink()
+    );
     assert_eq!(fs::read_to_string(&real).expect("read"), "new\n");
     // a link whose file does not exist yet makes that file
     let dangling = dir.path().join("dangling.csv");
     symlink("made.csv", &dangling).expect("link");
     write_bytes_atomically(&dangling, b"made\n").expect("written");
-    assert!(fs::symlink_metadata(&dangling).expect("link").file_type().is_symlink());
+    assert!(
+        fs::symlink_metadata(&dangling)
+            .expect("link")
+            .file_type()
+            .is_symlink()
+    );
     assert_eq!(
         fs::read_to_string(dir.path().join("made.csv")).expect("read"),
         "made\n"
@@ -41,7 +51,10 @@ fn a_symbolic_link_is_written_through_and_stays_a_link() {
 fn a_fifo_is_written_directly_and_never_replaced() {
     let dir = tempfile::tempdir().expect("tempdir");
     let fifo = dir.path().join("pipe");
-    let made = Command::new("mkfifo").arg(&fifo).status().expect("mkfifo runs");
+    let made = Command::new("mkfifo")
+        .arg(&fifo)
+        .status()
+        .expect("mkfifo runs");
     assert!(made.success());
     let reader_path = fifo.clone();
     let reader = std::thread::spawn(move || {
@@ -60,7 +73,12 @@ fn a_fifo_is_written_directly_and_never_replaced() {
         Written::Target(fifo.clone())
     );
     assert_eq!(reader.join().expect("reader"), "through the pipe\n");
-    assert!(fs::metadata(&fifo).expect("still there").file_type().is_fifo());
+    assert!(
+        fs::metadata(&fifo)
+            .expect("still there")
+            .file_type()
+            .is_fifo()
+    );
     let listing = fs::read_dir(dir.path()).expect("list").count();
     assert_eq!(listing, 1, "no temporary file beside the FIFO");
 }

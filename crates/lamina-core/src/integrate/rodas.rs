@@ -253,8 +253,7 @@ impl Rodas {
         }
         if dense {
             let mut coeffs = std::mem::take(&mut self.dense);
-            let finite =
-                self.interpolant(rates, t, x, h, StartRates::Current, &mut coeffs, stats);
+            let finite = self.interpolant(rates, t, x, h, StartRates::Current, &mut coeffs, stats);
             self.dense = coeffs;
             if !finite {
                 return false;

@@ -61,7 +61,13 @@ impl ChatterWatch {
     /// kept changing branch every few steps, runs `model` from there for a short while with
     /// its branches held (`run` gives the integrator settings and the length of the exponent
     /// run) and returns the time of the chattering that run reports, if it does.
-    pub(super) fn observe(&mut self, model: &Model, run: &RunSpec, t: f64, x: &[f64]) -> Option<f64> {
+    pub(super) fn observe(
+        &mut self,
+        model: &Model,
+        run: &RunSpec,
+        t: f64,
+        x: &[f64],
+    ) -> Option<f64> {
         self.n_steps += 1;
         self.values
             .eval(&mut self.scratch, t, x, &self.parameters, &mut self.out);

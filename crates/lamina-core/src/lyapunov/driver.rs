@@ -78,9 +78,7 @@ pub fn workspace_bytes(n_states: usize, n_exponents: usize, method: Method) -> u
     let integrator = Integrator::workspace_bytes(method, dim, n_states);
     let vectors = (n + 2 * n * m) * 8;
     let jacobian = n * n * 8;
-    integrator
-        .saturating_add(vectors)
-        .saturating_add(jacobian)
+    integrator.saturating_add(vectors).saturating_add(jacobian)
 }
 
 /// Refuses settings that cannot run.
@@ -254,8 +252,8 @@ impl Work {
                 break reason;
             }
             let model = self.tangent.model();
-            if let Some(t) = (self.chatter.as_mut())
-                .and_then(|watch| watch.observe(model, &self.run, t1, x))
+            if let Some(t) =
+                (self.chatter.as_mut()).and_then(|watch| watch.observe(model, &self.run, t1, x))
             {
                 break StopReason::Chattering { t };
             }
@@ -393,5 +391,3 @@ fn add_stats(total: &mut Stats, more: Stats) {
     total.n_accepted += more.n_accepted;
     total.n_rejected += more.n_rejected;
 }
-
-

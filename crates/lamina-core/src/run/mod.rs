@@ -11,8 +11,8 @@ mod strobe;
 mod time_resolution;
 
 pub use cut::{Cut, CutPoint, Direction, Surface};
-pub use driver::{Collect, Run, RunOutcome, Sink, StopReason, run_once};
 pub(crate) use driver::stop_reason;
+pub use driver::{Collect, Run, RunOutcome, Sink, StopReason, run_once};
 pub use spec::{CutSpec, RunSpec, SpecError, StrobeSpec, SurfaceSpec};
 pub use stored::StoredRun;
 pub use strobe::{Strobe, StrobeSample};
