@@ -247,9 +247,12 @@ fn forced_response(k: f64, t: f64) -> f64 {
     k * (k * t.cos() + t.sin()) / (1.0 + k * k)
 }
 
+/// Points of a run as `(t, x)`.
+type Points = Vec<(f64, f64)>;
+
 /// Strobe samples at `2 pi j` of `x' = -k (x - cos t)` and cut points at `x = c` (both
 /// directions), from a run with `method` at `rtol = atol = tol`.
-fn forced_points(method: Method, k: f64, tol: f64, c: f64) -> (Vec<(f64, f64)>, Vec<(f64, f64)>) {
+fn forced_points(method: Method, k: f64, tol: f64, c: f64) -> (Points, Points) {
     let m = model(&[("x", 0.0, "-k*(x - cos(t))")], &[("k", k)]);
     let strobe = common::strobe(&m, "2*pi", 0.0);
     let cut = common::plane(&m, &[("x", 1.0)], c, Direction::Both);

@@ -134,7 +134,7 @@ impl Integrator {
         let mut shortened = false;
         for _ in 0..MAX_DENSE_SHORTENINGS {
             let error = self.stepper.dense_error();
-            if !(error > 1.0) {
+            if error.is_nan() || error <= 1.0 {
                 break;
             }
             // the estimate falls with the fourth power of the step

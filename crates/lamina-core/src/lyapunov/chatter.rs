@@ -106,7 +106,7 @@ impl ChatterWatch {
 fn confirm(model: &Model, run: &RunSpec, t: f64, x: &[f64]) -> Option<f64> {
     let length = (run.t_end() - run.t_start) * CONFIRM_FRACTION;
     let span = length.min(run.t_end() - t);
-    if !(span > 0.0) {
+    if span.is_nan() || span <= 0.0 {
         return None;
     }
     let mut from_here = model.clone();
