@@ -381,3 +381,25 @@ fn a_strobe_map_fixed_point_at_rest_is_called_a_resting_point() {
     // [analytic] x(pi/4) = (cos + sin)(pi/4) / 2 = 1 / sqrt 2
     assert!((report.point.state[0] - 0.5f64.sqrt()).abs() < 1e-8);
 }
+
+#[test]
+fn failure_messages_read_as_one_sentence() {
+    // every message is one line of single spaces (a line continuation once left a run of
+    // spaces in the middle of one)
+    let messages = [
+        lamina_core::cycle::CycleError::RestPoint { size: 1.77e-14 }.to_string(),
+        lamina_core::cycle::CycleError::RestingPoint {
+            size: 1e-17,
+            state: vec![1e-18, 0.0],
+        }
+        .to_string(),
+        lamina_core::cycle::CycleError::TooLarge {
+            bytes: 12_900_000_000,
+            n_states: 200,
+        }
+        .to_string(),
+    ];
+    for message in messages {
+        assert!(!message.contains("  ") && !message.contains('\n'), "{message}");
+    }
+}
