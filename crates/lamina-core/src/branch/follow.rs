@@ -4,7 +4,7 @@
 //! a special point) and puts the halves together in branch order.
 
 use super::error::{BranchError, StepFailure};
-use super::orbit::{OrbitLimits, OrbitMap, OrbitProblem, OrbitStart};
+use super::orbit::{Born, OrbitLimits, OrbitMap, OrbitProblem, OrbitStart};
 use super::problem::Problem;
 use super::rest_problem::RestProblem;
 use super::settings::BranchSettings;
@@ -130,7 +130,8 @@ pub fn follow_orbit_branch(
 ) -> Result<Branch, BranchError> {
     let value = check_range(model, range)?;
     check_map(model, map)?;
-    if start.state.len() != model.start().len() || !(start.period > 0.0) {
+    if start.state.len() != model.start().len() || !(start.period.is_finite() && start.period > 0.0)
+    {
         return Err(BranchError::BadOrbit {
             detail: format!(
                 "has {} values for {} states and period {}",
@@ -202,20 +203,13 @@ pub fn orbits_from_hopf(
         });
     };
     let mut problem = orbit_problem(model, map, integration, range, settings, 1, 1, period)?;
-    let (u, tangent) = problem
+    let born = problem
         .hopf_start(&hopf.state, hopf.value, omega)
         .map_err(|failure| not_near("Hopf point", failure))?;
     let scale = hopf.state.iter().fold(1.0f64, |m, v| m.max(v.abs()));
     let first_step = (BORN_STEP * scale).min(settings.initial_step * range.width());
     Ok(one_way(
-        problem,
-        Station {
-            u,
-            tangent,
-            measured: None,
-            bordered: None,
-            arclength: 0.0,
-        },
+        born,
         first_step,
         range,
         settings,
@@ -263,22 +257,15 @@ pub fn doubled_orbits(
         doubling.anchor.returns,
         period,
     )?;
-    let (problem, u, tangent) =
-        base.doubled_start(&doubling.anchor)
-            .map_err(|failure| BranchError::BadOrbit {
-                detail: format!("at the period doubling cannot be doubled: {failure}"),
-            })?;
+    let born = base
+        .doubled_start(&doubling.anchor)
+        .map_err(|failure| BranchError::BadOrbit {
+            detail: format!("at the period doubling cannot be doubled: {failure}"),
+        })?;
     let scale = doubling.state.iter().fold(1.0f64, |m, v| m.max(v.abs()));
     let first_step = (BORN_STEP * scale).min(settings.initial_step * range.width());
     Ok(one_way(
-        problem,
-        Station {
-            u,
-            tangent,
-            measured: None,
-            bordered: None,
-            arclength: 0.0,
-        },
+        born,
         first_step,
         range,
         settings,
@@ -372,7 +359,7 @@ fn both_ways<P: Problem>(
     let first_step = settings.initial_step * range.width();
     let mut halves: Vec<(f64, Half)> = Vec::new();
     let mut most_segments = problem.most_segments();
-    let from_differences = problem.from_differences();
+    let from_differences = problem.uses_differences();
     for (idx, &toward) in targets.iter().enumerate() {
         let mut station = start.clone();
         let wanted = (toward - value).signum();
@@ -471,11 +458,9 @@ fn unreachable_start() -> BranchPoint {
     }
 }
 
-/// Walks from a special point along `start`'s tangent until an end.
-#[allow(clippy::too_many_arguments)]
+/// Walks from a special point along the born branch's tangent until an end.
 fn one_way(
-    problem: OrbitProblem,
-    start: Station,
+    born: Born,
     first_step: f64,
     range: &BranchRange,
     settings: &BranchSettings,
@@ -483,7 +468,21 @@ fn one_way(
     interrupt: &Interrupt,
     how: BranchStart,
 ) -> Branch {
-    let from_differences = problem.from_differences();
+    let Born {
+        problem,
+        start,
+        tangent,
+        normal,
+    } = born;
+    let start = Station {
+        u: start,
+        tangent,
+        measured: None,
+        bordered: None,
+        arclength: 0.0,
+        normal: Some(normal),
+    };
+    let from_differences = problem.uses_differences();
     let mut walk = walker(problem, range, settings, interrupt);
     // heading for the end the branch's parameter moves toward at first (decided on the way)
     let toward = if start.value() - range.low() < range.high() - start.value() {

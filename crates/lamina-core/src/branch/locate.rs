@@ -186,6 +186,7 @@ impl<P: Problem> Walker<'_, P> {
             measured: Some(measured),
             bordered: Some(bordered),
             arclength: a.arclength + s,
+            normal: None,
         })
     }
 }
@@ -234,7 +235,17 @@ fn check(kind: SpecialKind, measured: &Measured) -> Option<(Option<f64>, Option<
                 .fold(f64::INFINITY, f64::min);
             (near <= CHECK_TOLERANCE).then_some((period, None))
         }
-        (SpecialKind::Fold | SpecialKind::BranchPoint, _) => Some((period, None)),
+        (SpecialKind::Fold | SpecialKind::BranchPoint, Spectrum::Multipliers(values)) => {
+            // an orbit's fold or branch point has a multiplier +1 besides the trivial one
+            let near = values
+                .iter()
+                .map(|m| (m.re - 1.0).hypot(m.im))
+                .fold(f64::INFINITY, f64::min);
+            (near <= CHECK_TOLERANCE).then_some((period, None))
+        }
+        (SpecialKind::Fold | SpecialKind::BranchPoint, Spectrum::Eigenvalues(_)) => {
+            Some((period, None))
+        }
         _ => None,
     }
 }

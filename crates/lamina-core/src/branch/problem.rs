@@ -29,6 +29,15 @@ pub(crate) struct Measured {
     pub(crate) end: Option<EndReason>,
 }
 
+/// A point in a new layout of the unknowns (more shooting segments).
+#[derive(Clone, Debug, PartialEq)]
+pub(crate) struct Layout {
+    /// The unknowns.
+    pub(crate) unknowns: Vec<f64>,
+    /// A guess of the tangent (its weighted parts kept, the rest zero).
+    pub(crate) tangent: Vec<f64>,
+}
+
 /// A system of equations whose solution curve is followed.
 pub(crate) trait Problem: Clone {
     /// Number of unknowns, the parameter last (one more than the number of equations).
@@ -63,7 +72,7 @@ pub(crate) trait Problem: Clone {
         u: &[f64],
         tangent: &[f64],
         force: bool,
-    ) -> Result<Option<(Vec<f64>, Vec<f64>)>, StepFailure> {
+    ) -> Result<Option<Layout>, StepFailure> {
         let _ = (u, tangent, force);
         Ok(None)
     }
@@ -77,7 +86,7 @@ pub(crate) trait Problem: Clone {
     }
 
     /// Whether the Jacobian comes from central differences (rates that jump with the states).
-    fn from_differences(&self) -> bool {
+    fn uses_differences(&self) -> bool {
         false
     }
 }

@@ -5,7 +5,7 @@
 
 use super::error::StepFailure;
 use super::linear::{Bordered, max_norm, null_vector};
-use super::problem::{Measured, Problem};
+use super::problem::{Layout, Measured, Problem};
 use super::settings::BranchSettings;
 use super::types::{BranchPoint, BranchSink, EndReason, SpecialPoint};
 use crate::Interrupt;
@@ -23,6 +23,10 @@ pub(crate) struct Station {
     pub(crate) bordered: Option<f64>,
     /// Distance walked from the start.
     pub(crate) arclength: f64,
+    /// The normal of the next step's bordering row when it is not the weighted tangent: at
+    /// the start of a branch born at a special point, the tangent made orthogonal to the
+    /// branch it is born from, so that Newton's method cannot slide back onto that branch.
+    pub(crate) normal: Option<Vec<f64>>,
 }
 
 impl Station {
@@ -212,7 +216,7 @@ impl<'a, P: Problem> Walker<'a, P> {
             }
         }
         let length = self.dot(&t, &t).sqrt();
-        if !(length > 0.0) {
+        if length.is_nan() || length <= 0.0 {
             return Err(StepFailure::Singular);
         }
         for v in &mut t {
@@ -229,6 +233,7 @@ impl<'a, P: Problem> Walker<'a, P> {
             measured: Some(measured),
             bordered: Some(bordered),
             arclength: 0.0,
+            normal: None,
         })
     }
 
@@ -270,18 +275,14 @@ impl<'a, P: Problem> Walker<'a, P> {
                     if h >= h_min {
                         continue;
                     }
-                    match self
-                        .problem
-                        .refine_layout(&current.u, &current.tangent, true)
+                    if let Ok(Some(layout)) =
+                        self.problem
+                            .refine_layout(&current.u, &current.tangent, true)
+                        && let Some(station) = self.relayout(&current, layout)
                     {
-                        Ok(Some((u, guess))) => {
-                            if let Some(station) = self.relayout(&current, u, &guess) {
-                                current = station;
-                                h = (self.settings.initial_step * self.width).clamp(h_min, h_max);
-                                continue;
-                            }
-                        }
-                        Ok(None) | Err(_) => {}
+                        current = station;
+                        h = (self.settings.initial_step * self.width).clamp(h_min, h_max);
+                        continue;
                     }
                     break EndReason::NewtonFailed {
                         value: current.value(),
@@ -332,10 +333,10 @@ impl<'a, P: Problem> Walker<'a, P> {
                 h
             };
             current = next;
-            if let Ok(Some((u, guess))) =
+            if let Ok(Some(layout)) =
                 self.problem
                     .refine_layout(&current.u, &current.tangent, false)
-                && let Some(station) = self.relayout(&current, u, &guess)
+                && let Some(station) = self.relayout(&current, layout)
             {
                 current = station;
             }
@@ -370,7 +371,10 @@ impl<'a, P: Problem> Walker<'a, P> {
             .zip(&current.tangent)
             .map(|(a, t)| a + length * t)
             .collect();
-        let normal = self.weighted(&current.tangent);
+        let normal = current
+            .normal
+            .clone()
+            .unwrap_or_else(|| self.weighted(&current.tangent));
         let corrected = match bound {
             Some(b) => self.correct(&predicted, &Constraint::Parameter(b))?,
             None => self.correct(
@@ -402,26 +406,32 @@ impl<'a, P: Problem> Walker<'a, P> {
                 measured: Some(measured),
                 bordered: Some(bordered),
                 arclength: current.arclength + walked,
+                normal: None,
             },
             bound,
         ))
     }
 
-    /// The station `current` in a new layout `u` (tangent guessed by `guess`).
-    fn relayout(&mut self, current: &Station, u: Vec<f64>, guess: &[f64]) -> Option<Station> {
+    /// The station `current` in a new layout.
+    fn relayout(&mut self, current: &Station, layout: Layout) -> Option<Station> {
+        let Layout {
+            unknowns: u,
+            tangent: guess,
+        } = layout;
         let size = self.problem.n_unknowns();
         let mut residual = vec![0.0; size - 1];
         let mut jacobian = vec![0.0; (size - 1) * size];
         self.problem
             .evaluate(&u, &u, &mut residual, &mut jacobian)
             .ok()?;
-        let (tangent, bordered) = self.tangent_at(&jacobian, guess)?;
+        let (tangent, bordered) = self.tangent_at(&jacobian, &guess)?;
         Some(Station {
             u,
             tangent,
             measured: current.measured.clone(),
             bordered: Some(bordered),
             arclength: current.arclength,
+            normal: None,
         })
     }
 

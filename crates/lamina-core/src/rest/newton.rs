@@ -138,7 +138,8 @@ fn finish(
     let residual = norm(&f);
     model.jacobian(0.0, &x, &mut jacobian);
     let size = jacobian.iter().fold(0.0f64, |m, v| m.max(v.abs())).max(1.0);
-    if !(residual <= settings.residual_tolerance * size * norm(&x).max(1.0)) {
+    let allowed = settings.residual_tolerance * size * norm(&x).max(1.0);
+    if residual.is_nan() || residual > allowed {
         return Err(RestError::NoConvergence {
             iterations,
             residual,

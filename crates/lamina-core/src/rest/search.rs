@@ -15,7 +15,8 @@ use crate::run::{Run, RunSpec, Sink, StopReason};
 pub struct RestSettings {
     /// Seeds taken from the recorded trajectory, evenly spread over it.
     pub n_run_seeds: usize,
-    /// Seeds spread (by a Halton sequence) over the run's box, widened by `box_margin`.
+    /// Seeds spread (by a Halton sequence) over the box of the run and the origin, widened by
+    /// `box_margin`.
     pub n_spread_seeds: usize,
     /// The box of the run is widened by this fraction of its width on every side.
     pub box_margin: f64,
@@ -139,7 +140,7 @@ impl Sink for SampleSink<'_> {
 
 /// Finds every resting point of `model` that Newton's method reaches from the start state,
 /// from the end and samples of the run over `run`'s window, and from a spread of seeds over
-/// the box that run covers.
+/// the box that run covers (with the origin), widened.
 ///
 /// # Errors
 /// [`RestError::Forced`] for a model that uses `t`, [`RestError::NoStates`],
@@ -246,8 +247,9 @@ fn seeds(
     for j in 0..take {
         seeds.push(trajectory[j * trajectory.len() / take].clone());
     }
-    let mut low = start.to_vec();
-    let mut high = start.to_vec();
+    // the box of the run, with the origin (where many models rest), widened
+    let mut low: Vec<f64> = start.iter().map(|v| v.min(0.0)).collect();
+    let mut high: Vec<f64> = start.iter().map(|v| v.max(0.0)).collect();
     for state in seeds.iter().chain(trajectory) {
         for ((lo, hi), &v) in low.iter_mut().zip(high.iter_mut()).zip(state) {
             if v.is_finite() {

@@ -6,11 +6,14 @@
 use super::shooting::{OrbitProblem, Recording, Timing};
 use crate::branch::error::StepFailure;
 use crate::branch::linear::{max_norm, multiply, norm};
-use crate::branch::problem::{Measured, Problem, Tests};
+use crate::branch::problem::{Layout, Measured, Problem, Tests};
 use crate::branch::types::{Anchor, BranchPoint, EndReason, Spectrum};
 use crate::cycle::linalg::{complement_basis, restrict};
 use crate::cycle::{Multiplier, Verdict, multipliers};
 use crate::integrate::Rates;
+
+/// Relative distance from the cut within which a segment's start counts as on it.
+const ON_CUT: f64 = 1e-10;
 
 /// An orbit whose size falls below this fraction of `max(1, |x|)` has shrunk onto a resting
 /// point.
@@ -82,7 +85,16 @@ impl OrbitProblem {
             self.plain.reset(&mut self.model, t0, &x0);
             let parameters = self.model.parameters().to_vec();
             let mut g_previous = match &mut self.recording {
-                Recording::Cut(cut) => cut.value(t0, &x0, &parameters),
+                Recording::Cut(cut) => {
+                    let g = cut.value(t0, &x0, &parameters);
+                    cut.gradient(t0, &x0, &parameters, &mut state);
+                    // a start on the cut (to round-off) is not a crossing
+                    if g.abs() <= ON_CUT * norm(&state) * max_norm(&x0).max(1.0) {
+                        0.0
+                    } else {
+                        g
+                    }
+                }
                 _ => 0.0,
             };
             while self.plain.t() < t_end {
@@ -220,7 +232,7 @@ impl Problem for OrbitProblem {
         u: &[f64],
         tangent: &[f64],
         force: bool,
-    ) -> Result<Option<(Vec<f64>, Vec<f64>)>, StepFailure> {
+    ) -> Result<Option<Layout>, StepFailure> {
         let m = self.segments;
         if m >= self.max_segments || self.evaluated_at != u {
             return Ok(None);
@@ -238,8 +250,7 @@ impl Problem for OrbitProblem {
             return Ok(None);
         }
         .min(self.max_segments);
-        let (new_u, new_tangent) = self.relayout(u, tangent, new_m)?;
-        Ok(Some((new_u, new_tangent)))
+        self.relayout(u, tangent, new_m).map(Some)
     }
 
     fn anchor(&self, u: &[f64]) -> Anchor {
@@ -254,7 +265,7 @@ impl Problem for OrbitProblem {
         self.most_segments
     }
 
-    fn from_differences(&self) -> bool {
+    fn uses_differences(&self) -> bool {
         self.differences
     }
 }
@@ -268,7 +279,7 @@ impl OrbitProblem {
         u: &[f64],
         tangent: &[f64],
         new_m: usize,
-    ) -> Result<(Vec<f64>, Vec<f64>), StepFailure> {
+    ) -> Result<Layout, StepFailure> {
         let n = self.n;
         let m = self.segments;
         let old_size = self.size();
@@ -298,7 +309,10 @@ impl OrbitProblem {
         new_u.push(u[old_size - 1]);
         new_tangent.push(tangent[old_size - 1]);
         self.set_segments(new_m);
-        Ok((new_u, new_tangent))
+        Ok(Layout {
+            unknowns: new_u,
+            tangent: new_tangent,
+        })
     }
 }
 

@@ -8,6 +8,7 @@ mod shooting;
 mod start;
 
 pub(crate) use shooting::{OrbitLimits, OrbitProblem};
+pub(crate) use start::Born;
 pub use start::OrbitStart;
 
 use crate::run::{Cut, StrobeSpec};

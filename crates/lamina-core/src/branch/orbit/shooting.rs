@@ -55,6 +55,16 @@ pub(super) struct Schedule {
     pub(super) dtau: f64,
 }
 
+/// Where one segment ends and how that end moves.
+struct SegmentEnd {
+    /// The end state.
+    end: Vec<f64>,
+    /// `d end / d start`, row-major.
+    phi: Vec<f64>,
+    /// `d end / d p`.
+    sensitivity: Vec<f64>,
+}
+
 /// An orbit branch's equations.
 #[derive(Clone, Debug)]
 pub(crate) struct OrbitProblem {
@@ -282,7 +292,7 @@ impl OrbitProblem {
         j: usize,
         u: &[f64],
         schedule: Schedule,
-    ) -> Result<(Vec<f64>, Vec<f64>, Vec<f64>), StepFailure> {
+    ) -> Result<SegmentEnd, StepFailure> {
         let n = self.n;
         let x0 = u[j * n..(j + 1) * n].to_vec();
         let t0 = schedule.t0 + j as f64 * schedule.tau;
@@ -305,7 +315,11 @@ impl OrbitProblem {
                 sensitivity[i] += schedule.dtau * ((j + 1) as f64 * f_end[i] - j as f64 * moved[i]);
             }
         }
-        Ok((end, phi, sensitivity))
+        Ok(SegmentEnd {
+            end,
+            phi,
+            sensitivity,
+        })
     }
 
     /// [`OrbitProblem::segment`] by central differences of the flow (rates that jump with the
@@ -315,7 +329,7 @@ impl OrbitProblem {
         j: usize,
         u: &[f64],
         schedule: Schedule,
-    ) -> Result<(Vec<f64>, Vec<f64>, Vec<f64>), StepFailure> {
+    ) -> Result<SegmentEnd, StepFailure> {
         let n = self.n;
         let p = u[u.len() - 1];
         let x0 = u[j * n..(j + 1) * n].to_vec();
@@ -355,7 +369,11 @@ impl OrbitProblem {
         let sensitivity = (0..n)
             .map(|i| (ends[0][i] - ends[1][i]) / (2.0 * delta))
             .collect();
-        Ok((end, phi, sensitivity))
+        Ok(SegmentEnd {
+            end,
+            phi,
+            sensitivity,
+        })
     }
 
     /// Evaluates the shooting equations and their Jacobian at `u` (see the module's doc).
@@ -383,7 +401,11 @@ impl OrbitProblem {
         self.blocks.clear();
         let mut f_end = vec![0.0; n];
         for j in 0..m {
-            let (end, phi, sensitivity) = self.segment(j, u, schedule)?;
+            let SegmentEnd {
+                end,
+                phi,
+                sensitivity,
+            } = self.segment(j, u, schedule)?;
             let next = (j + 1) % m;
             let t_end = schedule.t0 + (j + 1) as f64 * schedule.tau;
             if self.autonomous() {

@@ -8,6 +8,8 @@ use crate::branch::error::StepFailure;
 use crate::branch::linear::{apply, multiply, norm, null_vector};
 use crate::branch::types::Anchor;
 use crate::cycle::CycleReport;
+use crate::cycle::linalg::solve_least_norm;
+use crate::integrate::Rates;
 
 /// A periodic orbit to start a branch from.
 #[derive(Clone, Debug, PartialEq)]
@@ -90,15 +92,16 @@ impl OrbitProblem {
     }
 
     /// The degenerate start at a Hopf point `(x_star, p_star)` with angular frequency
-    /// `omega`: the resting point held as an orbit of period `2 pi / omega`, and the tangent
+    /// `omega`: the resting point held as an orbit of period `2 pi / omega`, the tangent
     /// along the small orbits `Re(q e^(i omega t))` (`q` the eigenvector of `i omega`, turned so
-    /// that its real part is longest, scaled to length 1 there).
+    /// that its real part is longest, scaled to length 1 there), and the first step's normal:
+    /// that tangent made orthogonal to the resting branch.
     pub(crate) fn hopf_start(
         &mut self,
         x_star: &[f64],
         p_star: f64,
         omega: f64,
-    ) -> Result<(Vec<f64>, Vec<f64>), StepFailure> {
+    ) -> Result<Born, StepFailure> {
         let n = self.n;
         let m = self.segments;
         self.model.set_parameter(self.parameter, p_star);
@@ -125,7 +128,7 @@ impl OrbitProblem {
         let real: Vec<f64> = q_r.iter().zip(q_i).map(|(r, i)| r * c - i * s).collect();
         let imaginary: Vec<f64> = q_r.iter().zip(q_i).map(|(r, i)| r * s + i * c).collect();
         let length = norm(&real);
-        if !(length > 0.0) {
+        if length.is_nan() || length <= 0.0 {
             return Err(StepFailure::Singular);
         }
         let period = std::f64::consts::TAU / omega;
@@ -146,16 +149,34 @@ impl OrbitProblem {
         }
         u.push(p_star);
         tangent.push(0.0);
-        Ok((u, tangent))
+        // the resting branch through the point: x*'(p) = -J^-1 f_p in every segment, period
+        // free, parameter 1
+        let mut derivative = vec![0.0; n];
+        self.model
+            .parameter_derivative(0.0, x_star, self.parameter, &mut derivative);
+        let minus: Vec<f64> = derivative.iter().map(|v| -v).collect();
+        let (slope, _) = solve_least_norm(&jacobian, n, &minus).ok_or(StepFailure::Singular)?;
+        let mut resting = Vec::with_capacity(self.size());
+        for _ in 0..m {
+            resting.extend_from_slice(&slope);
+        }
+        if self.autonomous() {
+            resting.push(0.0);
+        }
+        resting.push(1.0);
+        let normal = orthogonal_normal(&self.weights, &tangent, &resting);
+        Ok(Born {
+            problem: self.clone(),
+            start: u,
+            tangent,
+            normal,
+        })
     }
 
     /// The problem of the doubled orbit at the period doubling held by `anchor` (made by a
     /// problem like this one), its degenerate start (the orbit run twice) and the tangent
     /// along the doubled orbits (the eigenvector of the multiplier -1 carried around).
-    pub(crate) fn doubled_start(
-        &self,
-        anchor: &Anchor,
-    ) -> Result<(OrbitProblem, Vec<f64>, Vec<f64>), StepFailure> {
+    pub(crate) fn doubled_start(&self, anchor: &Anchor) -> Result<Born, StepFailure> {
         let n = self.n;
         let m = anchor.segments;
         let mut base = self.clone();
@@ -170,6 +191,7 @@ impl OrbitProblem {
         let mut jacobian = vec![0.0; (size - 1) * size];
         base.shoot(u, u, &mut residual, &mut jacobian)?;
         let blocks = base.blocks.clone();
+        let single = null_vector(&jacobian, size - 1, size).ok_or(StepFailure::Singular)?;
         let mut monodromy_plus_one = monodromy_of(&blocks, n);
         for i in 0..n {
             monodromy_plus_one[i * n + i] += 1.0;
@@ -182,19 +204,55 @@ impl OrbitProblem {
         doubled.start_period = 2.0 * period;
         let mut start = Vec::with_capacity(doubled.size());
         let mut tangent = Vec::with_capacity(doubled.size());
+        // the branch of the orbit run once, in the doubled layout
+        let mut once = Vec::with_capacity(doubled.size());
         let mut delta = w;
         for j in 0..2 * m {
             start.extend_from_slice(&u[(j % m) * n..(j % m + 1) * n]);
             tangent.extend_from_slice(&delta);
+            once.extend_from_slice(&single[(j % m) * n..(j % m + 1) * n]);
             delta = apply(&blocks[j % m], &delta);
         }
         if doubled.autonomous() {
+            // shift along the flow so that the first point's change is across the flow (the
+            // phase condition's direction): add alpha f(x_j) to every segment's change
+            let mut flows = Vec::with_capacity(n * 2 * m);
+            let mut f = vec![0.0; n];
+            for j in 0..2 * m {
+                doubled.model.rates(0.0, &start[j * n..(j + 1) * n], &mut f);
+                flows.extend_from_slice(&f);
+            }
+            let along: f64 = flows[..n]
+                .iter()
+                .zip(&tangent[..n])
+                .map(|(a, b)| a * b)
+                .sum();
+            let speed: f64 = flows[..n].iter().map(|a| a * a).sum();
+            if speed > 0.0 {
+                for (t, f) in tangent.iter_mut().zip(&flows) {
+                    *t -= along / speed * f;
+                }
+            }
+            let length = norm(&tangent[..n]);
+            if length > 0.0 {
+                for t in &mut tangent {
+                    *t /= length;
+                }
+            }
             start.push(2.0 * period);
             tangent.push(0.0);
+            once.push(2.0 * single[n * m]);
         }
         start.push(u[size - 1]);
         tangent.push(0.0);
-        Ok((doubled, start, tangent))
+        once.push(single[size - 1]);
+        let normal = orthogonal_normal(&doubled.weights, &tangent, &once);
+        Ok(Born {
+            problem: doubled,
+            start,
+            tangent,
+            normal,
+        })
     }
 
     /// Sets the strobe periods per orbit period (forced models).
@@ -203,6 +261,41 @@ impl OrbitProblem {
             *returns = k.max(1);
         }
     }
+}
+
+/// The start of a branch born at a special point.
+pub(crate) struct Born {
+    /// The problem of the born orbits.
+    pub(crate) problem: OrbitProblem,
+    /// The special point as unknowns of that problem.
+    pub(crate) start: Vec<f64>,
+    /// The unit tangent along the born branch.
+    pub(crate) tangent: Vec<f64>,
+    /// The first step's normal: `W tangent` made orthogonal to the branch it is born from.
+    pub(crate) normal: Vec<f64>,
+}
+
+/// `W (d - beta other)` with `beta` making it orthogonal to `other`: a bordering row that
+/// holds the step along `d` but not along `other`.
+fn orthogonal_normal(weights: &[f64], d: &[f64], other: &[f64]) -> Vec<f64> {
+    let dot = |a: &[f64], b: &[f64]| -> f64 {
+        a.iter()
+            .zip(b)
+            .zip(weights)
+            .map(|((x, y), w)| x * y * w)
+            .sum()
+    };
+    let size = dot(other, other);
+    let beta = if size > 0.0 {
+        dot(d, other) / size
+    } else {
+        0.0
+    };
+    d.iter()
+        .zip(other)
+        .zip(weights)
+        .map(|((a, b), w)| w * (a - beta * b))
+        .collect()
 }
 
 /// The product of the segments' `Phi` in order (the monodromy matrix).
