@@ -5,7 +5,7 @@ use plotters::prelude::*;
 use crate::figure::{FONT, Figure, RenderError, draw_error, encode_png, register_font};
 
 const BACKGROUND: RGBColor = RGBColor(255, 255, 255);
-const INK: RGBColor = RGBColor(30, 34, 42);
+pub(crate) const INK: RGBColor = RGBColor(30, 34, 42);
 const TRACE: RGBColor = RGBColor(36, 98, 160);
 
 /// Lamina's ramp (deep blue to coral) for colouring by order or return time.
@@ -36,7 +36,7 @@ fn ramp(u: f64) -> RGBColor {
     RGBColor(228, 96, 70)
 }
 
-fn range_of(values: impl Iterator<Item = f64>) -> (f64, f64) {
+pub(crate) fn range_of(values: impl Iterator<Item = f64>) -> (f64, f64) {
     let (lo, hi) = values
         .filter(|v| v.is_finite())
         .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
@@ -74,7 +74,7 @@ fn font_size(figure: &Figure, fraction: f64, min: f64) -> f64 {
 
 /// The PNG of `figure`: a white canvas of its size with the caption at the bottom, on which
 /// `draw` puts the rest.
-fn picture(
+pub(crate) fn picture(
     figure: &Figure,
     draw: impl FnOnce(
         &DrawingArea<BitMapBackend<'_>, plotters::coord::Shift>,

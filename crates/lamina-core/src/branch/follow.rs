@@ -210,6 +210,7 @@ pub fn orbits_from_hopf(
     let first_step = (BORN_STEP * scale).min(settings.initial_step * range.width());
     Ok(one_way(
         born,
+        hopf.clone(),
         first_step,
         range,
         settings,
@@ -266,6 +267,7 @@ pub fn doubled_orbits(
     let first_step = (BORN_STEP * scale).min(settings.initial_step * range.width());
     Ok(one_way(
         born,
+        doubling.clone(),
         first_step,
         range,
         settings,
@@ -435,6 +437,7 @@ fn both_ways<P: Problem>(
         start_index: Some(start_index),
         special,
         start: how,
+        born_at: None,
         ends,
         from_differences,
         most_segments,
@@ -458,9 +461,11 @@ fn unreachable_start() -> BranchPoint {
     }
 }
 
-/// Walks from a special point along the born branch's tangent until an end.
+/// Walks from the special point `born_at` along the born branch's tangent until an end.
+#[allow(clippy::too_many_arguments)]
 fn one_way(
     born: Born,
+    born_at: SpecialPoint,
     first_step: f64,
     range: &BranchRange,
     settings: &BranchSettings,
@@ -512,6 +517,7 @@ fn one_way(
         start_index: None,
         special,
         start: how,
+        born_at: Some(born_at),
         ends: vec![BranchEnd {
             toward,
             reason: half.end,

@@ -154,6 +154,7 @@ impl<P: Problem> Walker<'_, P> {
             kind,
             value: station.value(),
             state: measured.point.state.clone(),
+            points: measured.point.points.clone(),
             period,
             frequency,
             after: 0,

@@ -157,6 +157,9 @@ pub struct SpecialPoint {
     pub value: f64,
     /// The state (as for [`BranchPoint::state`]).
     pub state: Vec<f64>,
+    /// The orbit's recorded points there (as for [`BranchPoint::points`]); empty at a
+    /// resting point.
+    pub points: Vec<Vec<f64>>,
     /// The orbit's period there; at a Hopf point the period of the orbit born there,
     /// `2 pi / frequency`.
     pub period: Option<f64>,
@@ -295,6 +298,9 @@ pub struct Branch {
     pub special: Vec<SpecialPoint>,
     /// How it was started.
     pub start: BranchStart,
+    /// The special point of another branch it was born at (a Hopf point or a period
+    /// doubling); `None` for a branch started from a given point.
+    pub born_at: Option<SpecialPoint>,
     /// One end per direction followed.
     pub ends: Vec<BranchEnd>,
     /// Whether an orbit's derivatives came from central differences (rates that jump with the

@@ -109,7 +109,10 @@ impl<'a, P: Problem> Walker<'a, P> {
     }
 
     /// Newton's method from `predicted` onto the branch with the extra equation
-    /// `constraint`.
+    /// `constraint`. Converged when a step is within the tolerance; the point after that step
+    /// is evaluated once more, so the returned Jacobian (and the stability measured from it)
+    /// is exactly the point's. (Using the last iterate's Jacobian instead would save that
+    /// evaluation, but near a fold of orbits it moved the multipliers by a millionth.)
     pub(crate) fn correct(
         &mut self,
         predicted: &[f64],

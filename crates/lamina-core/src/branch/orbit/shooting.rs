@@ -279,7 +279,8 @@ impl OrbitProblem {
         self.full.reset(&mut rates, t0, &z0);
         let t_end = t0 + tau;
         while self.full.t() < t_end {
-            self.full.step(&mut rates, t_end)?;
+            // no dense output: only the end is wanted
+            self.full.step_lazy(&mut rates, t_end)?;
             check_bound(&self.full.x()[..n], self.bound)?;
         }
         Ok(())
