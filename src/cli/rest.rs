@@ -163,10 +163,12 @@ fn plain(report: &RestReport, names: &[String]) -> String {
         line(format!("       eigenvalues  {}", values.join(",  ")));
     }
     if !report.points.iter().any(|p| p.reached_by_run) {
-        line(format!(
-            "the run does not end at a resting point ({})",
-            report.run_reason
-        ));
+        let ending = if report.run_reason.is_trouble() {
+            format!(" (it stopped early: {})", report.run_reason)
+        } else {
+            String::new()
+        };
+        line(format!("the run does not settle at a resting point{ending}"));
     }
     text
 }
