@@ -168,7 +168,9 @@ fn plain(report: &RestReport, names: &[String]) -> String {
         } else {
             String::new()
         };
-        line(format!("the run does not settle at a resting point{ending}"));
+        line(format!(
+            "the run does not settle at a resting point{ending}"
+        ));
     }
     text
 }

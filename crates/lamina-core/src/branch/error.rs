@@ -119,6 +119,12 @@ pub(crate) enum StepFailure {
         /// Size of the last step.
         step: f64,
     },
+    /// The tangent turned too far in one step (the step may have jumped to another branch).
+    #[error("the branch turned by {angle:.2} rad in one step")]
+    Turn {
+        /// The angle between the tangents.
+        angle: f64,
+    },
     /// The iteration limit was reached.
     #[error("no convergence in {iterations} steps (last step {step:e})")]
     NoConvergence {

@@ -394,7 +394,7 @@ impl<'a, P: Problem> Walker<'a, P> {
         let turn = self.dot(&tangent, &current.tangent).clamp(-1.0, 1.0).acos();
         let h_floor = 16.0 * self.settings.min_step * self.width;
         if turn > self.settings.max_turn && h > h_floor {
-            return Err(StepFailure::NotContracting { step: h });
+            return Err(StepFailure::Turn { angle: turn });
         }
         let previous_state = current.measured.as_ref().map(|m| m.point.state.clone());
         let mut measured = self
