@@ -3,6 +3,7 @@
 mod branch;
 mod branch_output;
 mod branch_picture;
+mod branch_start;
 mod check;
 mod cycle;
 mod cycle_output;

@@ -126,7 +126,7 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
         let prepared = prepare(&args.file)?;
         let of = match args.of {
             Some(of) => of,
-            None if super::branch::run_settles_at_rest(&prepared) => OfArg::Rest,
+            None if super::branch_start::run_settles_at_rest(&prepared) => OfArg::Rest,
             None => OfArg::Cycle,
         };
         let followed =

@@ -3,16 +3,16 @@
 //! start toward both ends of the range (one end when the start is on the other, one way from
 //! a special point) and puts the halves together in branch order.
 
+use super::assemble::{both_ways, one_way};
 use super::error::{BranchError, StepFailure};
-use super::orbit::{Born, OrbitLimits, OrbitMap, OrbitProblem, OrbitStart};
+use super::orbit::{OrbitLimits, OrbitMap, OrbitProblem, OrbitStart};
 use super::problem::Problem;
 use super::rest_problem::RestProblem;
 use super::settings::BranchSettings;
 use super::types::{
-    Branch, BranchEnd, BranchOf, BranchPoint, BranchRange, BranchSink, BranchStart, SpecialKind,
-    SpecialPoint,
+    Branch, BranchOf, BranchRange, BranchSink, BranchStart, SpecialKind, SpecialPoint,
 };
-use super::walk::{Half, Station, Walker};
+use super::walk::Walker;
 use crate::Interrupt;
 use crate::model::Model;
 use crate::run::RunSpec;
@@ -46,7 +46,7 @@ fn check_range(model: &Model, range: &BranchRange) -> Result<f64, BranchError> {
 }
 
 /// The walker of `problem` over `range`.
-fn walker<'a, P: Problem>(
+pub(super) fn walker<'a, P: Problem>(
     problem: P,
     range: &BranchRange,
     settings: &'a BranchSettings,
@@ -94,12 +94,13 @@ pub fn follow_rest_branch(
     let mut u0 = state.to_vec();
     u0.push(value);
     let mut start_walker = walker(problem.clone(), range, settings, interrupt);
-    let start = start_walker
+    let (station, point) = start_walker
         .settle_start(&u0)
         .map_err(|failure| not_near("resting point", failure))?;
     Ok(both_ways(
         problem,
-        start,
+        station,
+        point,
         range,
         settings,
         sink,
@@ -156,7 +157,7 @@ pub fn follow_orbit_branch(
         .unknowns_through(&start.state, start.period, value)
         .map_err(|failure| not_near("periodic orbit", failure))?;
     let mut start_walker = walker(problem.clone(), range, settings, interrupt);
-    let station = start_walker
+    let (station, point) = start_walker
         .settle_start(&u0)
         .map_err(|failure| not_near("periodic orbit", failure))?;
     // the layout the start was settled in
@@ -164,6 +165,7 @@ pub fn follow_orbit_branch(
     Ok(both_ways(
         problem,
         station,
+        point,
         range,
         settings,
         sink,
@@ -336,195 +338,5 @@ fn not_near(what: &'static str, failure: StepFailure) -> BranchError {
             what,
             detail: other.to_string(),
         },
-    }
-}
-
-/// Walks from `start` toward `to` and toward `from` (each unless the start is on that end)
-/// and joins the halves in branch order.
-#[allow(clippy::too_many_arguments)]
-fn both_ways<P: Problem>(
-    problem: P,
-    start: Station,
-    range: &BranchRange,
-    settings: &BranchSettings,
-    sink: &mut dyn BranchSink,
-    interrupt: &Interrupt,
-    of: BranchOf,
-    how: BranchStart,
-) -> Branch {
-    let value = start.value();
-    let targets: Vec<f64> = [range.to, range.from]
-        .into_iter()
-        .filter(|&end| end != value)
-        .collect();
-    let n_walks = targets.len() as f64;
-    let first_step = settings.initial_step * range.width();
-    let mut halves: Vec<(f64, Half)> = Vec::new();
-    let mut most_segments = problem.most_segments();
-    let from_differences = problem.uses_differences();
-    for (idx, &toward) in targets.iter().enumerate() {
-        let mut station = start.clone();
-        let wanted = (toward - value).signum();
-        let slope = station.slope();
-        let flip = if slope == 0.0 {
-            idx == 1
-        } else {
-            slope * wanted < 0.0
-        };
-        if flip {
-            for t in &mut station.tangent {
-                *t = -*t;
-            }
-            station.bordered = station.bordered.map(|b| -b);
-        }
-        let mut walk = walker(problem.clone(), range, settings, interrupt);
-        let done = idx as f64;
-        let half = walk.walk(station, first_step, toward, sink, &|f| (done + f) / n_walks);
-        most_segments = most_segments.max(walk.problem.most_segments());
-        halves.push((toward, half));
-    }
-    let mut start_point: BranchPoint = match start.measured {
-        Some(measured) => measured.point,
-        None => unreachable_start(),
-    };
-    start_point.arclength = 0.0;
-    let mut points = Vec::new();
-    let mut special = Vec::new();
-    let mut ends = Vec::new();
-    // toward `from`, reversed, comes first
-    let from_half = halves.iter().find(|(toward, _)| *toward == range.from);
-    let to_half = halves.iter().find(|(toward, _)| *toward == range.to);
-    if let Some((toward, half)) = from_half {
-        let count = half.points.len();
-        for point in half.points.iter().rev() {
-            let mut point = point.clone();
-            point.arclength = -point.arclength;
-            points.push(point);
-        }
-        for (located, before) in &half.special {
-            let mut located = located.clone();
-            located.arclength = -located.arclength;
-            located.after = count - before - 1;
-            special.push(located);
-        }
-        ends.push(BranchEnd {
-            toward: *toward,
-            reason: half.end.clone(),
-            n_points: count,
-        });
-    }
-    let start_index = points.len();
-    points.push(start_point);
-    if let Some((toward, half)) = to_half {
-        points.extend(half.points.iter().cloned());
-        for (located, before) in &half.special {
-            let mut located = located.clone();
-            located.after = start_index + before;
-            special.push(located);
-        }
-        ends.push(BranchEnd {
-            toward: *toward,
-            reason: half.end.clone(),
-            n_points: half.points.len(),
-        });
-    }
-    special.sort_by(|p, q| p.arclength.total_cmp(&q.arclength));
-    sink.progress(1.0);
-    Branch {
-        of,
-        parameter: range.parameter,
-        points,
-        start_index: Some(start_index),
-        special,
-        start: how,
-        born_at: None,
-        ends,
-        from_differences,
-        most_segments,
-    }
-}
-
-/// A start that was not measured cannot be one of `both_ways`'s (those come from
-/// `settle_start`, which measures); an empty point keeps the function total.
-fn unreachable_start() -> BranchPoint {
-    BranchPoint {
-        value: f64::NAN,
-        state: Vec::new(),
-        period: None,
-        points: Vec::new(),
-        stable: false,
-        n_unstable: 0,
-        kind: None,
-        spectrum: super::types::Spectrum::Eigenvalues(Vec::new()),
-        iterations: 0,
-        arclength: 0.0,
-    }
-}
-
-/// Walks from the special point `born_at` along the born branch's tangent until an end.
-#[allow(clippy::too_many_arguments)]
-fn one_way(
-    born: Born,
-    born_at: SpecialPoint,
-    first_step: f64,
-    range: &BranchRange,
-    settings: &BranchSettings,
-    sink: &mut dyn BranchSink,
-    interrupt: &Interrupt,
-    how: BranchStart,
-) -> Branch {
-    let Born {
-        problem,
-        start,
-        tangent,
-        normal,
-    } = born;
-    let start = Station {
-        u: start,
-        tangent,
-        measured: None,
-        bordered: None,
-        arclength: 0.0,
-        normal: Some(normal),
-    };
-    let from_differences = problem.uses_differences();
-    let mut walk = walker(problem, range, settings, interrupt);
-    // heading for the end the branch's parameter moves toward at first (decided on the way)
-    let toward = if start.value() - range.low() < range.high() - start.value() {
-        range.high()
-    } else {
-        range.low()
-    };
-    let half = walk.walk(start, first_step, toward, sink, &|f| f);
-    let special = half
-        .special
-        .iter()
-        .map(|(located, before)| {
-            let mut located = located.clone();
-            located.after = before.saturating_sub(1);
-            located
-        })
-        .collect();
-    sink.progress(1.0);
-    let toward = match half.points.last() {
-        Some(last) if last.value >= half.points[0].value => range.high(),
-        Some(_) => range.low(),
-        None => toward,
-    };
-    Branch {
-        of: BranchOf::Orbit,
-        parameter: range.parameter,
-        start_index: None,
-        special,
-        start: how,
-        born_at: Some(born_at),
-        ends: vec![BranchEnd {
-            toward,
-            reason: half.end,
-            n_points: half.points.len(),
-        }],
-        from_differences,
-        most_segments: walk.problem.most_segments(),
-        points: half.points,
     }
 }

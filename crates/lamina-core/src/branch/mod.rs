@@ -19,6 +19,7 @@
 //! generic: a [`problem`] supplies the equations, the walker ([`walk`]) the predictor,
 //! Newton's corrector and the step control, [`locate`] the special points.
 
+mod assemble;
 mod error;
 mod follow;
 mod linear;

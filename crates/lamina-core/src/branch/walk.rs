@@ -206,8 +206,11 @@ impl<'a, P: Problem> Walker<'a, P> {
     }
 
     /// The start: `u0` corrected at its parameter value, measured, with its tangent (a null
-    /// vector of `DF`, parameter component made non-negative).
-    pub(crate) fn settle_start(&mut self, u0: &[f64]) -> Result<Station, StepFailure> {
+    /// vector of `DF`, parameter component made non-negative); and the start's point.
+    pub(crate) fn settle_start(
+        &mut self,
+        u0: &[f64],
+    ) -> Result<(Station, BranchPoint), StepFailure> {
         let value = u0[u0.len() - 1];
         let corrected = self.correct(u0, &Constraint::Parameter(value))?;
         let size = corrected.u.len();
@@ -230,14 +233,16 @@ impl<'a, P: Problem> Walker<'a, P> {
             .ok_or(StepFailure::Singular)?;
         let mut measured = self.problem.measure(&corrected.u, None)?;
         measured.point.iterations = corrected.iterations;
-        Ok(Station {
+        let point = measured.point.clone();
+        let station = Station {
             u: corrected.u,
             tangent,
             measured: Some(measured),
             bordered: Some(bordered),
             arclength: 0.0,
             normal: None,
-        })
+        };
+        Ok((station, point))
     }
 
     /// Walks from `start` along its tangent until an end, reporting each point to `sink`.
