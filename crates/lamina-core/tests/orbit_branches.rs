@@ -414,6 +414,43 @@ fn multiple_shooting_holds_a_strongly_unstable_orbit() {
 }
 
 #[test]
+fn rates_that_jump_take_their_derivatives_from_differences() {
+    // the planar limit cycle with its radial term multiplied by step(x^2), which is always 1
+    // but counts as a rate that jumps with the states
+    let m = model(
+        &[
+            ("x", 1.0, "x*(1 - x^2 - y^2)*step(x^2) - w*y"),
+            ("y", 0.0, "y*(1 - x^2 - y^2)*step(x^2) + w*x"),
+        ],
+        &[("w", 2.0)],
+    );
+    assert!(m.jumps_with_states());
+    let cut = plane(&m, &[("y", 1.0)], 0.0, Direction::Rising);
+    let run = window(1e-11, 0.0, 100.0);
+    let start = OrbitStart {
+        t: 0.0,
+        state: vec![1.0, 0.0],
+        period: PI,
+        returns: 1,
+        monodromy: None,
+    };
+    let branch = orbit_branch(&m, &OrbitMap::Cut(cut), &run, &range(2.0, 3.0), &start);
+    assert!(branch.from_differences);
+    assert_eq!(branch.ends[0].reason, EndReason::Bound { value: 3.0 });
+    for p in &branch.points {
+        let w = p.value;
+        // [analytic] REFERENCES case 3: the cycle r = 1, period 2 pi / w, nontrivial
+        // multiplier exp(-2 * 2 pi / w)
+        assert!((p.state[0] - 1.0).abs() < 1e-8, "{p:?}");
+        assert!((p.period.expect("orbit") - TAU / w).abs() < 1e-8);
+        let expected = (-2.0 * TAU / w).exp();
+        let got = multipliers(&p.spectrum)[0].re;
+        // central differences are accurate to about rtol^(2/3)
+        assert!(rel(got, expected) < 1e-5, "{got:e} vs {expected:e}");
+    }
+}
+
+#[test]
 fn maps_that_do_not_fit_the_model_are_refused() {
     let (forced, strobe) = forced_oscillator(("w", 0.8), ("zeta", 0.1));
     let cut = plane(&forced, &[("v", 1.0)], 0.0, Direction::Rising);

@@ -159,12 +159,18 @@ pub fn branch_png(
                         + PathElement::new(corners(shape, size), outline)
                 });
         }
+        // the branch and its marks weigh more than the cloud: the legend may hide some dots,
+        // not the branch
         let corner = emptiest_corner(
             cloud
                 .iter()
-                .copied()
-                .chain(lines.iter().flat_map(|l| l.points.iter().copied()))
-                .chain(marks.iter().map(|m| (m.x, m.y))),
+                .map(|&p| (p, 1))
+                .chain(
+                    lines
+                        .iter()
+                        .flat_map(|l| line_samples(&l.points).into_iter().map(|p| (p, 50))),
+                )
+                .chain(marks.iter().map(|m| ((m.x, m.y), 500))),
             (x0, x1),
             (y0, y1),
         );
@@ -181,15 +187,15 @@ pub fn branch_png(
 }
 
 /// The corner of the plot (a box of 40 % of its width and 30 % of its height) with the
-/// fewest drawn points, for the legend: the upper right one when they tie.
+/// least weight of drawn points, for the legend: the upper right one when they tie.
 fn emptiest_corner(
-    points: impl Iterator<Item = (f64, f64)>,
+    points: impl Iterator<Item = ((f64, f64), usize)>,
     (x0, x1): (f64, f64),
     (y0, y1): (f64, f64),
 ) -> SeriesLabelPosition {
     // upper right, upper left, lower right, lower left
     let mut counts = [0usize; 4];
-    for (x, y) in points {
+    for ((x, y), weight) in points {
         let u = (x - x0) / (x1 - x0);
         let v = (y - y0) / (y1 - y0);
         let right = u >= 0.6;
@@ -201,7 +207,7 @@ fn emptiest_corner(
                 .iter_mut()
                 .zip([right && top, left && top, right && bottom, left && bottom])
         {
-            *count += usize::from(inside);
+            *count += if inside { weight } else { 0 };
         }
     }
     match (0..4).min_by_key(|&i| counts[i]) {
@@ -210,6 +216,21 @@ fn emptiest_corner(
         Some(3) => SeriesLabelPosition::LowerLeft,
         _ => SeriesLabelPosition::UpperRight,
     }
+}
+
+/// Points along a line, ten on every piece between its corners (so that a long straight
+/// piece through a corner of the plot counts there).
+fn line_samples(points: &[(f64, f64)]) -> Vec<(f64, f64)> {
+    let mut samples = Vec::with_capacity(points.len() * 10);
+    for pair in points.windows(2) {
+        let ((xa, ya), (xb, yb)) = (pair[0], pair[1]);
+        for k in 0..10 {
+            let f = f64::from(k) / 10.0;
+            samples.push((xa + f * (xb - xa), ya + f * (yb - ya)));
+        }
+    }
+    samples.extend(points.last());
+    samples
 }
 
 /// The corners of one of four mark shapes (an octagon for a disc, a square, a triangle, a
