@@ -157,7 +157,7 @@ fn crossings<R: Rates>(
     while integrator.t() < 50.0 {
         integrator.step_lazy(rates, 50.0).expect("settles");
     }
-    let n_settle = integrator.stats().n_rates;
+    let n_settle = integrator.stats().n_rate_evaluations;
     let mut g0 = cut.value(integrator.t(), integrator.x(), &[]);
     let mut found = 0;
     let mut checksum = 0.0;
@@ -176,7 +176,7 @@ fn crossings<R: Rates>(
     let secs = started.elapsed().as_secs_f64();
     (
         secs,
-        integrator.stats().n_rates - n_settle,
+        integrator.stats().n_rate_evaluations - n_settle,
         black_box(checksum),
     )
 }

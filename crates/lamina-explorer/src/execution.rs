@@ -94,7 +94,7 @@ impl ExplorerApp {
                         self.results.cut.len(),
                         self.results.strobe.len(),
                         outcome.stats.n_accepted,
-                        outcome.stats.n_rates,
+                        outcome.stats.n_rate_evaluations,
                         elapsed.as_secs_f64()
                     );
                     for change in outcome.method_changes.iter().take(20) {

@@ -40,7 +40,7 @@ impl MethodChoice {
     /// is kept for a choice a later file format might name that a build does not have).
     pub fn method(self) -> Option<Method> {
         Some(match self {
-            Self::Auto => Method::Auto,
+            Self::Auto => Method::Automatic,
             Self::Dp853 => Method::Dp853,
             Self::Dp5 => Method::Dp5,
             Self::Stiff => Method::Rodas4,
@@ -88,7 +88,7 @@ impl Scenario {
             t_start: self.time.start,
             settle: self.time.settle,
             span: self.time.span,
-            bound: self.limits.bound,
+            escape: self.limits.bound,
             max_points: usize::try_from(self.limits.max_points).unwrap_or(usize::MAX),
             ..RunSpec::default()
         }
@@ -115,7 +115,7 @@ impl Scenario {
         let strobe = self.strobe.as_ref()?;
         Some(StrobeSpec {
             period: strobe.period.clone(),
-            phase: strobe.phase,
+            first_at: strobe.phase,
         })
     }
 
@@ -143,7 +143,7 @@ impl Scenario {
             parameter: self.sweep_parameter_index()?,
             from: sweep.from,
             to: sweep.to,
-            steps: sweep.steps,
+            values: sweep.steps.saturating_add(1),
             settle: sweep.settle,
             keep: sweep.keep as usize,
             span: self.time.span,

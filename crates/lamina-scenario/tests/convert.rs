@@ -28,15 +28,15 @@ fn the_model_spec_keeps_names_values_and_order() {
 #[test]
 fn the_run_spec() {
     let run = load(EXAMPLE).run_spec();
-    assert_eq!(run.method, Method::Auto);
+    assert_eq!(run.method, Method::Automatic);
     assert_eq!((run.control.rtol, run.control.atol), (1e-9, 1e-12));
     assert_eq!(run.control.max_step, None);
     assert_eq!((run.t_start, run.settle, run.span), (0.0, 200.0, 2000.0));
-    assert_eq!((run.max_points, run.bound), (200_000, 1e6));
+    assert_eq!((run.max_points, run.escape), (200_000, 1e6));
 
     let run = load(MINIMAL).run_spec();
     assert_eq!(run.method, Method::Dp5);
-    assert_eq!((run.max_points, run.bound), (200_000, 1e6)); // limits left out
+    assert_eq!((run.max_points, run.escape), (200_000, 1e6)); // limits left out
     let text = edit(
         EXAMPLE,
         "method: Auto, rtol: 1e-9, atol: 1e-12",
@@ -51,7 +51,7 @@ fn the_run_spec() {
 
 #[test]
 fn method_choices() {
-    assert_eq!(MethodChoice::Auto.method(), Some(Method::Auto));
+    assert_eq!(MethodChoice::Auto.method(), Some(Method::Automatic));
     assert_eq!(MethodChoice::Dp5.method(), Some(Method::Dp5));
     assert_eq!(MethodChoice::Dp853.method(), Some(Method::Dp853));
     assert_eq!(MethodChoice::Stiff.method(), Some(Method::Rodas4));
@@ -70,7 +70,7 @@ fn cut_and_strobe_specs() {
     );
     assert_eq!(cut.direction, run::Direction::Falling);
     let strobe = scenario.strobe_spec().expect("strobe");
-    assert_eq!((strobe.period.as_str(), strobe.phase), ("2*pi/w", 0.0));
+    assert_eq!((strobe.period.as_str(), strobe.first_at), ("2*pi/w", 0.0));
 
     let text = edit(
         EXAMPLE,
