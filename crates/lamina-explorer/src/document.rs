@@ -138,22 +138,26 @@ fn blank_scenario() -> Scenario {
                 name: "x".into(),
                 start: 1.0,
                 rate: "v".into(),
+                unit: None,
             },
             State {
                 name: "v".into(),
                 start: 0.0,
                 rate: "-x - c*v".into(),
+                unit: None,
             },
         ],
         vec![Parameter {
             name: "c".into(),
             value: 0.1,
             range: (0.0, 1.0),
+            unit: None,
         }],
         Time {
             start: 0.0,
             settle: 0.0,
             span: 100.0,
+            unit: None,
         },
     )
 }

@@ -211,6 +211,7 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             name,
             start: 0.0,
             rate: "0".into(),
+            unit: None,
         });
         changes.model = true;
     }
@@ -309,6 +310,7 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             name,
             value: 1.0,
             range: (0.0, 2.0),
+            unit: None,
         });
         changes.model = true;
     }
@@ -330,13 +332,13 @@ fn integrator_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         ComboBox::from_id_salt("method")
             .selected_text(method_label(s.integrator.method))
             .show_ui(ui, |ui| {
-                for m in [MethodChoice::Auto, MethodChoice::Dp853, MethodChoice::Dp5, MethodChoice::Stiff] {
+                for m in [MethodChoice::Automatic, MethodChoice::Dp853, MethodChoice::Dp5, MethodChoice::Stiff] {
                     ui.selectable_value(&mut s.integrator.method, m, method_label(m));
                 }
             })
             .response
             .labelled_by(label.id)
-            .on_hover_text("Auto starts with Dormand–Prince 8(5,3) and changes to Rodas4 where the model turns stiff (and back); Stiff uses Rodas4 throughout");
+            .on_hover_text("automatic starts with the explicit Dormand–Prince 8(5,3) and changes to the stiff Rodas4 where the model turns stiff (and back); stiff uses Rodas4 throughout");
         if s.integrator.method != before {
             changes.model = true;
         }
@@ -381,10 +383,10 @@ fn integrator_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
 
 fn method_label(m: MethodChoice) -> &'static str {
     match m {
-        MethodChoice::Auto => "Auto",
+        MethodChoice::Automatic => "automatic (explicit / stiff)",
         MethodChoice::Dp5 => "Dormand–Prince 5(4)",
         MethodChoice::Dp853 => "Dormand–Prince 8(5,3)",
-        MethodChoice::Stiff => "Stiff (Rodas4)",
+        MethodChoice::Stiff => "stiff (Rodas4)",
     }
 }
 
@@ -545,14 +547,14 @@ fn strobe_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
     let mut enabled = doc.scenario.strobe.is_some();
     if ui
         .checkbox(&mut enabled, "sample at a fixed period")
-        .on_hover_text("Record the state at phase + k × period")
+        .on_hover_text("Record the state at first at + k × period")
         .changed()
     {
         let first = names.first().cloned().unwrap_or_default();
         let second = names.get(1).cloned().unwrap_or_else(|| first.clone());
         doc.scenario.strobe = enabled.then(|| Strobe {
             period: "1".into(),
-            phase: 0.0,
+            first_at: 0.0,
             axes: (first, second),
         });
         changes.strobe = true;
@@ -571,10 +573,15 @@ fn strobe_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             .labelled_by(label.id)
             .on_hover_text("An expression in parameters and constants, e.g. 2*pi/w")
             .changed();
-        ui.label("phase");
-        changes.strobe |= number_field(ui, Id::unique("strobe_phase"), &mut strobe.phase, 56.0)
-            .on_hover_text("Time of sample 0")
-            .changed();
+        ui.label("first at");
+        changes.strobe |= number_field(
+            ui,
+            Id::unique("strobe_first_at"),
+            &mut strobe.first_at,
+            56.0,
+        )
+        .on_hover_text("Time of sample 0; the samples are at first at + k × period")
+        .changed();
     });
     changes.view |= axes_ui(ui, "strobe_axes", &names, &mut strobe.axes);
     problems_ui(ui, doc.problems_at("strobe"));

@@ -51,7 +51,7 @@ pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChan
                 parameter: p.map(|p| p.name.clone()).unwrap_or_default(),
                 from: p.map_or(0.0, |p| p.range.0),
                 to: p.map_or(1.0, |p| p.range.1),
-                steps: 200,
+                values: 201,
                 settle: 200.0,
                 keep: 32,
                 follow: true,
@@ -84,8 +84,8 @@ pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChan
             changed |= number_field(ui, egui::Id::unique("sweep_to"), &mut sweep.to, 64.0).on_hover_text("Last value").changed();
         });
         ui.end_row();
-        ui.label("steps");
-        changed |= ui.add(egui::DragValue::new(&mut sweep.steps).range(1..=100_000)).on_hover_text("Intervals between from and to").changed();
+        ui.label("values");
+        changed |= ui.add(egui::DragValue::new(&mut sweep.values).range(2..=100_001)).on_hover_text("Number of parameter values, from and to included").changed();
         ui.end_row();
         ui.label("settle per value");
         changed |= number_field(ui, egui::Id::unique("sweep_settle"), &mut sweep.settle, 64.0).on_hover_text("Transient at each value, not kept").changed();
@@ -95,8 +95,8 @@ pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChan
         ui.end_row();
         ui.label("points from");
         ui.horizontal(|ui| {
-            changed |= ui.selectable_value(&mut sweep.source, SweepSource::Strobe, "strobe").changed();
             changed |= ui.selectable_value(&mut sweep.source, SweepSource::Cut, "cut").changed();
+            changed |= ui.selectable_value(&mut sweep.source, SweepSource::Strobe, "strobe").changed();
         });
         ui.end_row();
         ui.label("plotted");

@@ -233,7 +233,7 @@ fn the_sweep_fills_the_orbit_diagram() {
     let mut app = app();
     app.edit_scenario(|s| {
         if let Some(sweep) = &mut s.sweep {
-            sweep.steps = 6;
+            sweep.values = 7;
             sweep.keep = 8;
             sweep.settle = 60.0;
             sweep.follow = false;
@@ -250,7 +250,7 @@ fn the_sweep_fills_the_orbit_diagram() {
         std::thread::sleep(Duration::from_millis(5));
     }
     steps(&mut h, 2);
-    assert_eq!(h.state().n_sweep_values(), 7, "steps = 6 gives 7 values");
+    assert_eq!(h.state().n_sweep_values(), 7, "values = 7 gives 7 values");
     h.get_by_label("7 values");
     assert!(
         h.state().n_runs_started() <= 1,
@@ -273,6 +273,7 @@ fn model_app(
                 name: n.to_string(),
                 start: *start,
                 rate: rate.to_string(),
+                unit: None,
             })
             .collect();
         s.parameters = parameters
@@ -281,6 +282,7 @@ fn model_app(
                 name: n.to_string(),
                 value: *v,
                 range: (v - 1.0, v + 1.0),
+                unit: None,
             })
             .collect();
         s.cut = Some(lamina_scenario::Cut {

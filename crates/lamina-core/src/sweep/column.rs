@@ -40,22 +40,9 @@ impl SweepSpec {
         self.values as usize
     }
 
-    /// The parameter value of index `idx`: `from + idx (to - from) / (values - 1)`, computed
-    /// afresh (so every shard of a sweep gets bit-identical values) and rounded to 15
-    /// significant digits of the larger end, so that a sweep between decimal ends lands on
-    /// the decimal values: 0.234 (which prints as `0.234`), not the 0.23399999999999999 the
-    /// arithmetic leaves, and 0 in the middle of -1 to 1, not 1e-17. The ends are `from`
-    /// and `to` exactly.
+    /// The parameter value of index `idx`; see [`grid_value`].
     pub fn value(&self, idx: usize) -> f64 {
-        let last = self.n_values().saturating_sub(1);
-        if idx == 0 || last == 0 {
-            return self.from;
-        }
-        if idx >= last {
-            return self.to;
-        }
-        let exact = self.from + (self.to - self.from) * (idx as f64 / last as f64);
-        round_to_digits_of(exact, self.from.abs().max(self.to.abs()))
+        grid_value(self.from, self.to, self.values, idx)
     }
 
     /// Indices of shard `shard` of `n_shards`: every `n_shards`-th value starting at `shard`.
@@ -64,6 +51,24 @@ impl SweepSpec {
             .filter(|i| n_shards > 0 && i % n_shards == shard)
             .collect()
     }
+}
+
+/// Value `idx` of `values` values from `from` to `to`, both ends included:
+/// `from + idx (to - from) / (values - 1)`, computed afresh (so every shard of a sweep or map
+/// gets bit-identical values) and rounded to 15 significant digits of the larger end, so that
+/// a range between decimal ends lands on the decimal values: 0.234 (which prints as `0.234`),
+/// not the 0.23399999999999999 the arithmetic leaves, and 0 in the middle of -1 to 1, not
+/// 1e-17. The ends are `from` and `to` exactly; one value is `from`.
+pub fn grid_value(from: f64, to: f64, values: u32, idx: usize) -> f64 {
+    let last = (values as usize).saturating_sub(1);
+    if idx == 0 || last == 0 {
+        return from;
+    }
+    if idx >= last {
+        return to;
+    }
+    let exact = from + (to - from) * (idx as f64 / last as f64);
+    round_to_digits_of(exact, from.abs().max(to.abs()))
 }
 
 /// `value` rounded to 15 significant digits of `scale` (the most that every decimal of that
