@@ -72,7 +72,7 @@ pub fn lyapunov(args: &LyapunovArgs) -> Result<ExitCode> {
         StopReason::Finished => Ok(ExitCode::SUCCESS),
         other => {
             eprintln!(
-                "the run stopped early ({other}); the exponents are averaged up to t = {}",
+                "the run ended early ({other}); the exponents are averaged up to t = {}",
                 result.t_end
             );
             Ok(ExitCode::FAILURE)

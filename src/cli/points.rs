@@ -200,10 +200,12 @@ fn report(
         StopReason::Cancelled { t } => {
             match path {
                 Some(path) => eprintln!(
-                    "interrupted at t = {t}; nothing was written to {}",
+                    "stopped at t = {t} on a signal; nothing was written to {}",
                     path.display()
                 ),
-                None => eprintln!("interrupted at t = {t}; wrote {written} {label} point(s)"),
+                None => {
+                    eprintln!("stopped at t = {t} on a signal; wrote {written} {label} point(s)")
+                }
             }
             Ok(ExitCode::from(INTERRUPTED))
         }
@@ -221,7 +223,7 @@ fn report(
         }
         other => {
             eprintln!(
-                "wrote {written} valid {label} point(s){target}; the run stopped early: {other}"
+                "wrote {written} valid {label} point(s){target}; the run ended early: {other}"
             );
             Ok(ExitCode::FAILURE)
         }

@@ -2,6 +2,11 @@
 
 use egui::{Context, RichText};
 
+/// Lamina's tagline: the package description, the first line of `lamina --help` and the About
+/// box's first line (tested to agree).
+pub const TAGLINE: &str =
+    "Poincaré sections, strobe maps, periodic orbits and orbit diagrams of typed nonlinear models";
+
 /// The caution paragraph of the README, shown in the About box.
 pub const CAUTION: &str = "Lamina's results are numerical approximations of the model you typed, not a certification of \
 hardware: a design decision about equipment that can hurt someone (power electronics, actuators, medical or vehicle \
@@ -51,7 +56,8 @@ pub fn about_window(ctx: &Context, open: &mut bool) {
         ui.heading("Lamina");
         ui.label(format!("version {}", env!("CARGO_PKG_VERSION")));
         ui.add_space(6.0);
-        ui.label("Poincaré sections, strobe maps and return times of typed nonlinear models, for engineers who need to know what their system settles into.");
+        ui.label(TAGLINE);
+        ui.label("For engineers who need to know what their system settles into, and where that changes as a parameter moves.");
         ui.add_space(8.0);
         ui.label(RichText::new("Caution").strong());
         ui.label(CAUTION);

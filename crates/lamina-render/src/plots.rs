@@ -149,7 +149,7 @@ pub fn scatter_png(
 }
 
 /// A 3D trajectory in orthographic projection: pieces of line (each a list of (across, depth,
-/// up) points; a wrapping drive phase starts a new piece).
+/// up) points; the time within the drive period starts a new piece where it wraps around).
 pub fn trajectory_png(
     figure: &Figure,
     z_label: &str,
@@ -211,7 +211,7 @@ pub fn trajectory_png(
 }
 
 /// Splits a line of 3D points into pieces wherever coordinate `axis` (0, 1 or 2) falls
-/// from one point to the next, as a drive phase does when it wraps around; with no axis, one
+/// from one point to the next, as the time within the drive period does when it wraps around; with no axis, one
 /// piece.
 pub fn split_where_it_wraps(
     points: impl IntoIterator<Item = (f64, f64, f64)>,

@@ -9,4 +9,4 @@ mod period;
 
 pub use column::{SweepColumn, SweepSource, SweepSpec, grid_value};
 pub use driver::{SweepError, run_value, sweep_follow, sweep_restart};
-pub use period::{PeriodChange, period_changes, repeat_period};
+pub use period::{PeriodChange, period_changes, repeat_period, returns_text};
