@@ -43,8 +43,8 @@ pub enum Action {
     Run,
     /// Stop the run.
     Stop,
-    /// Continue a finished run.
-    Continue,
+    /// Run on: integrate another span from where the finished run ended.
+    RunOn,
     /// New scenario.
     New,
     /// Open (asks for a file).
@@ -117,6 +117,11 @@ impl ExplorerApp {
         if self.log.len() > 500 {
             self.log.remove(0);
         }
+    }
+
+    /// The axis labels of the run's states and the time, with the scenario's units.
+    pub(crate) fn axis_labels(&self) -> crate::results::AxisLabels {
+        crate::results::AxisLabels::new(&self.doc.scenario, &self.results.names)
     }
 
     /// State names of the current scenario.
@@ -294,8 +299,8 @@ impl ExplorerApp {
         let mut actions = Vec::new();
         let shortcut = |m: Modifiers, k: Key| KeyboardShortcut::new(m, k);
         ctx.input_mut(|i| {
-            if i.consume_shortcut(&shortcut(Modifiers::SHIFT, Key::F5)) {
-                actions.push(Action::Continue);
+            if i.consume_shortcut(&shortcut(Modifiers::NONE, Key::F6)) {
+                actions.push(Action::RunOn);
             }
             if i.consume_shortcut(&shortcut(Modifiers::NONE, Key::F5))
                 || i.consume_shortcut(&shortcut(Modifiers::COMMAND, Key::R))
@@ -346,7 +351,7 @@ impl ExplorerApp {
         match action {
             Action::Run => self.start_run(ctx),
             Action::Stop => self.stop_run(),
-            Action::Continue => self.continue_run(ctx),
+            Action::RunOn => self.run_on(ctx),
             Action::New => self.request_new(),
             Action::Open => self.request_open(),
             Action::OpenPath(path) => self.request_open_path(path),

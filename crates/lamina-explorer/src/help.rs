@@ -16,7 +16,10 @@ systems) needs measurement, the applicable codes and standards, and review by a 
 pub const SHORTCUTS: &[(&str, &str)] = &[
     ("F5  or  Ctrl+R", "Run the scenario from the start"),
     ("Esc", "Stop the run"),
-    ("Shift+F5", "Continue a finished run for another span"),
+    (
+        "F6",
+        "Run on: integrate another span from where the run ended",
+    ),
     ("Ctrl+N", "New scenario"),
     ("Ctrl+O", "Open a scenario"),
     ("Ctrl+S", "Save"),

@@ -7,7 +7,7 @@ use lamina_scenario::{
 };
 
 use crate::document::{Document, rename_everywhere};
-use crate::widgets::{ERROR_COLOUR, number_field, problems_ui};
+use crate::widgets::{ERROR_COLOUR, number_field, problems_ui, unit_field, unit_suffix};
 
 /// What the user changed in the panel this frame; the app acts on it after drawing.
 #[must_use]
@@ -145,11 +145,12 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
     let mut rename = None;
     let n_states = doc.scenario.states.len();
     egui::Grid::new("states_grid")
-        .num_columns(4)
+        .num_columns(5)
         .spacing([6.0, 4.0])
         .show(ui, |ui| {
             ui.label(RichText::new("name").weak());
             ui.label(RichText::new("start").weak());
+            ui.label(RichText::new("unit").weak());
             ui.label(RichText::new("rate").weak());
             ui.end_row();
             for idx in 0..n_states {
@@ -166,6 +167,11 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                 {
                     changes.model = true;
                 }
+                changes.view |= unit_field(
+                    ui,
+                    &mut doc.scenario.states[idx].unit,
+                    &format!("Unit of {name}, shown beside its values and on axes (free text)"),
+                );
                 ui.horizontal(|ui| {
                     let label = ui.label(format!("d{name}/dt ="));
                     let state = &mut doc.scenario.states[idx];
@@ -194,6 +200,7 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                 ui.end_row();
                 let field = format!("states[{idx}]");
                 if doc.problems_at(&field).next().is_some() {
+                    ui.label("");
                     ui.label("");
                     ui.label("");
                     ui.vertical(|ui| problems_ui(ui, doc.problems_at(&field)));
@@ -259,8 +266,9 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             let p = &mut doc.scenario.parameters[idx];
             let (lo, hi) = p.range;
             if lo < hi {
-                let slider =
-                    egui::Slider::new(&mut p.value, lo..=hi).clamping(egui::SliderClamping::Never);
+                let slider = egui::Slider::new(&mut p.value, lo..=hi)
+                    .clamping(egui::SliderClamping::Never)
+                    .suffix(unit_suffix(p.unit.as_deref()));
                 let response = ui
                     .add(slider)
                     .labelled_by(label.id)
@@ -297,6 +305,13 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             if lo.changed() || hi.changed() {
                 changes.view = true;
             }
+            changes.view |= unit_field(
+                ui,
+                &mut p.unit,
+                &format!(
+                    "Unit of {name}, shown beside its value, on axes and in captions (free text)"
+                ),
+            );
         });
         problems_ui(ui, doc.problems_at(&format!("parameters[{idx}]")));
     }
@@ -371,6 +386,9 @@ fn integrator_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         ui.end_row();
         ui.label("span");
         changes.model |= number_field(ui, Id::unique("span"), &mut s.time.span, 80.0).on_hover_text("Length of the recorded window after the transient").changed();
+        ui.end_row();
+        ui.label("time unit");
+        changes.view |= unit_field(ui, &mut s.time.unit, "Unit of time, shown beside times, on axes and in captions (free text)");
         ui.end_row();
     });
     problems_ui(

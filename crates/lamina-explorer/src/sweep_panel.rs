@@ -17,6 +17,9 @@ use crate::widgets::{number_field, problems_ui};
 /// Tolerance of the repeat test, relative to the size of the kept points.
 const REPEAT_TOLERANCE: f64 = 1e-5;
 
+/// The most returns a repeat is looked for.
+const MAX_RETURNS: usize = 12;
+
 /// The sweep's job and what it has produced.
 #[derive(Default)]
 pub struct SweepState {
@@ -128,6 +131,11 @@ impl ExplorerApp {
             .unwrap_or_default()
     }
 
+    /// The swept parameter's name with its unit, for axes.
+    pub(crate) fn swept_parameter_label(&self) -> String {
+        self.doc.scenario.parameter_label(self.sweep.axes.0)
+    }
+
     /// Starts the scenario's sweep.
     pub(crate) fn start_sweep(&mut self, ctx: &egui::Context) {
         if self.sweep.worker.is_running() {
@@ -177,7 +185,7 @@ impl ExplorerApp {
         for event in self.sweep.worker.drain() {
             match event {
                 SweepEvent::Column(column) => {
-                    let period = repeat_period(&column.points, 12, REPEAT_TOLERANCE);
+                    let period = repeat_period(&column.points, MAX_RETURNS, REPEAT_TOLERANCE);
                     let at = self
                         .sweep
                         .columns
@@ -195,23 +203,18 @@ impl ExplorerApp {
                             .collect();
                         let changes = lamina_core::sweep::period_changes(&periods);
                         self.note(format!(
-                            "sweep done: {} of {} values, {} change(s) of period",
+                            "sweep done: {} of {} values, {} change(s) of the repeat",
                             self.sweep.columns.len(),
                             self.sweep.total,
                             changes.len()
                         ));
                         let name = self.swept_parameter_name();
+                        if let Some((first, returns)) = periods.first() {
+                            let returns = lamina_core::sweep::returns_text(*returns, MAX_RETURNS);
+                            self.note(format!("  {name} = {first}: {returns}"));
+                        }
                         for c in changes.iter().take(12) {
-                            let show = |p: Option<usize>| {
-                                p.map_or("no repeat".to_string(), |k| format!("period {k}"))
-                            };
-                            self.note(format!(
-                                "  {} to {} between {name} = {:.6} and {:.6}",
-                                show(c.from),
-                                show(c.to),
-                                c.below,
-                                c.above
-                            ));
+                            self.note(format!("  {}", c.describe(&name, MAX_RETURNS)));
                         }
                     }
                 },
@@ -262,19 +265,14 @@ impl ExplorerApp {
         }
         let (parameter, coordinate) = self.sweep.axes;
         let pname = self.swept_parameter_name();
-        let cname = self
-            .doc
-            .scenario
-            .states
-            .get(coordinate)
-            .map(|s| s.name.clone())
-            .unwrap_or_default();
+        let plabel = self.swept_parameter_label();
+        let clabel = self.doc.scenario.state_label(coordinate);
         let current = self.doc.scenario.parameters.get(parameter).map(|p| p.value);
         let clicked = orbit_diagram_ui(
             ui,
             &self.sweep.columns,
             coordinate,
-            (&pname, &cname),
+            (&plabel, &clabel),
             current,
         );
         if let Some(value) = clicked
