@@ -188,13 +188,13 @@ impl ExplorerApp {
         app.results = Results::new(names);
         let mut state = [0.0; 2];
         for k in 0..n_points {
-            let phase = k as f64 * 0.618_033_988_75 * std::f64::consts::TAU;
+            let angle = k as f64 * 0.618_033_988_75 * std::f64::consts::TAU;
             let wobble = 1.0 + 0.05 * ((k as f64 * 0.37).sin());
-            state[0] = wobble * phase.cos();
-            state[1] = wobble * phase.sin();
+            state[0] = wobble * angle.cos();
+            state[1] = wobble * angle.sin();
             let point = lamina_core::run::CutPoint {
                 t: k as f64,
-                return_time: Some(1.0 + 0.1 * phase.sin()),
+                return_time: Some(1.0 + 0.1 * angle.sin()),
                 state: state.to_vec(),
             };
             app.results.cut.push_cut(&point);
