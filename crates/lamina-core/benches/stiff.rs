@@ -1,7 +1,7 @@
 //! Stiff benchmark: Van der Pol with mu = 1000 over ten periods (about 16 100 time units) at
 //! rtol = atol = 1e-8, through the cut v = 0 falling, with the automatic method against
 //! DOP853 forced (and Rodas4 forced for comparison): CPU time, accepted and rejected steps,
-//! right-hand-side evaluations, Jacobians and changes of method, and the mean period.
+//! rate evaluations, Jacobians and changes of method, and the mean period.
 //!
 //! The runs go through the run driver with the typed model, as the explorer and the command
 //! line run them.

@@ -279,7 +279,7 @@ fn report(t: &Timings, n_crossings: usize) {
         rate(t.native)
     );
     println!(
-        "  right-hand-side evaluations per crossing: {:.1}",
+        "  rate evaluations per crossing: {:.1}",
         t.evals_per_crossing
     );
     println!("  closures/native: {:.3}", t.closures / t.native);

@@ -263,9 +263,9 @@ mod tests {
     use super::*;
 
     #[test]
-    fn a_line_splits_where_its_phase_wraps() {
-        // [analytic] phase 0.5, 0.9, then 0.1 (wrapped), 0.4: two pieces of two points
-        let points = [0.5, 0.9, 0.1, 0.4].map(|phase| (1.0, 2.0, phase));
+    fn a_line_splits_where_its_third_coordinate_wraps() {
+        // [analytic] 0.5, 0.9, then 0.1 (wrapped), 0.4: two pieces of two points
+        let points = [0.5, 0.9, 0.1, 0.4].map(|within| (1.0, 2.0, within));
         let pieces = split_where_it_wraps(points, Some(2));
         assert_eq!(pieces.len(), 2);
         assert_eq!(pieces[0], vec![(1.0, 2.0, 0.5), (1.0, 2.0, 0.9)]);

@@ -9,7 +9,7 @@ use super::dop853_tableau::*;
 pub(super) const N_TERMS: usize = 8;
 /// Classical order, used by the automatic initial step.
 pub(super) const ORDER: i32 = 8;
-/// Right-hand-side evaluations of one step attempt (stages 2 to 12).
+/// Rate evaluations of one step attempt (stages 2 to 12).
 pub(super) const EVALS_PER_ATTEMPT: u64 = 11;
 /// Further evaluations for the dense output of an accepted step (stages 14–16); stage 13,
 /// `f` at the new state, is needed anyway as the first stage of the next step.

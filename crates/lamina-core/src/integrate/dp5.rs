@@ -52,7 +52,7 @@ pub(super) const D7: f64 = 69997945.0 / 29380423.0;
 pub(super) const N_TERMS: usize = 5;
 /// Classical order, used by the automatic initial step.
 pub(super) const ORDER: i32 = 5;
-/// Right-hand-side evaluations of one step attempt (stages 2 to 7).
+/// Rate evaluations of one step attempt (stages 2 to 7).
 pub(super) const EVALS_PER_ATTEMPT: u64 = 6;
 
 /// Stage vectors and scratch of the Dormand–Prince 5(4) stepper, allocated once.

@@ -22,7 +22,7 @@ const NON_FINITE_SHRINK: f64 = 0.25;
 /// Time runs forward only. After every successful [`Integrator::step`] or
 /// [`Integrator::step_fixed`], [`Integrator::segment`] holds the dense output of that step.
 /// [`Integrator::step_lazy`] takes the same step without building the dense output (for
-/// DOP853 that saves three of its fifteen right-hand-side evaluations per step);
+/// DOP853 that saves three of its fifteen rate evaluations per step);
 /// [`Integrator::ensure_dense`] builds it afterwards, for that step, when it is wanted.
 /// All storage is allocated in [`Integrator::new`] (and again in [`Integrator::reset`] only if
 /// the state length changes); stepping allocates nothing.
@@ -191,7 +191,7 @@ impl Integrator {
     }
 
     /// Builds the dense output of the last step if [`Integrator::step_lazy`] left it out
-    /// (three right-hand-side evaluations for DOP853, none for Dormand–Prince 5(4)).
+    /// (three rate evaluations for DOP853, none for Dormand–Prince 5(4)).
     ///
     /// # Errors
     /// [`StepError::NotFinite`] (at the step's start time) when the dense output is not

@@ -164,7 +164,7 @@ pub enum StepError {
 /// Counters of work done by an integrator.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub struct Stats {
-    /// Right-hand-side evaluations.
+    /// Rate evaluations (of the right-hand side `f(t, x)`).
     pub n_rate_evaluations: u64,
     /// Accepted steps.
     pub n_accepted: u64,

@@ -1,7 +1,7 @@
 //! Rodas4, the stiffly accurate, L-stable Rosenbrock method of order 4(3) with third-order
 //! dense output: E. Hairer & G. Wanner, Solving Ordinary Differential Equations II (2nd ed.,
 //! 1996), sec. IV.7 and VI.4, as in their code RODAS. Six stages, one Jacobian and one LU
-//! decomposition of `I / (h gamma) - J` per step, five right-hand-side evaluations per
+//! decomposition of `I / (h gamma) - J` per step, five rate evaluations per
 //! attempt and one for `f` at the accepted state.
 //!
 //! The dense output `y(s) = (1 - s) y0 + s (y1 + (1 - s) (q2 + s q3))` is the nested form of
@@ -17,7 +17,7 @@ use super::{Rates, StepControl};
 pub(super) const N_TERMS: usize = 4;
 /// Classical order, used by the automatic initial step.
 pub(super) const ORDER: i32 = 4;
-/// Right-hand-side evaluations of one step attempt (stages 2 to 6).
+/// Rate evaluations of one step attempt (stages 2 to 6).
 pub(super) const EVALS_PER_ATTEMPT: u64 = 5;
 
 /// Smallest increment scale of the difference Jacobian (Hairer's `MAX(1D-5, |y|)`).
