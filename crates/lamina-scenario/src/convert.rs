@@ -1,5 +1,5 @@
 //! From the file's blocks to the core's plain specifications (and the regime map's plain
-//! settings, [`MapSpec`]), and from names to indices.
+//! settings, [`RegimeMapSpec`]), and from names to indices.
 
 use lamina_core::integrate::{Method, StepControl};
 use lamina_core::model::{ModelSpec, ParameterSpec, StateSpec};
@@ -40,7 +40,7 @@ impl From<SweepSource> for lamina_core::sweep::SweepSource {
 /// parameters on a grid, each cell integrated from the scenario's start for `settle`, then
 /// recorded for `span` and classified from its cut points or strobe samples.
 #[derive(Clone, Debug, PartialEq)]
-pub struct MapSpec {
+pub struct RegimeMapSpec {
     /// The parameter across.
     pub x: MapAxisSpec,
     /// The parameter up.
@@ -53,14 +53,14 @@ pub struct MapSpec {
     pub source: lamina_core::sweep::SweepSource,
 }
 
-impl MapSpec {
+impl RegimeMapSpec {
     /// Number of cells, `x.values * y.values`.
     pub fn n_cells(&self) -> usize {
         self.x.n_values() * self.y.n_values()
     }
 }
 
-/// One axis of a [`MapSpec`].
+/// One axis of a [`RegimeMapSpec`].
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct MapAxisSpec {
     /// Index of the parameter varied along this axis.
@@ -214,7 +214,7 @@ impl Scenario {
 
     /// The regime map as plain settings with the parameters as indices (`None` without a
     /// map, or with an axis whose parameter is not one).
-    pub fn map_spec(&self) -> Option<MapSpec> {
+    pub fn map_spec(&self) -> Option<RegimeMapSpec> {
         let map = self.map.as_ref()?;
         let axis = |axis: &MapAxis| {
             Some(MapAxisSpec {
@@ -224,7 +224,7 @@ impl Scenario {
                 values: axis.values,
             })
         };
-        Some(MapSpec {
+        Some(RegimeMapSpec {
             x: axis(&map.x)?,
             y: axis(&map.y)?,
             settle: map.settle,

@@ -17,7 +17,7 @@ mod scenario;
 mod source;
 
 pub use check::{is_colour, is_identifier};
-pub use convert::{MapAxisSpec, MapSpec, ViewAxis};
+pub use convert::{MapAxisSpec, RegimeMapSpec, ViewAxis};
 pub use error::{Problem, ScenarioError, Severity};
 pub use load::{load_file, load_str};
 pub use save::{save_file, to_ron_string};

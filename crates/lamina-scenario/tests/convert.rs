@@ -6,7 +6,7 @@ use common::{EXAMPLE, MINIMAL, edit, load};
 use lamina_core::integrate::Method;
 use lamina_core::run::{self, SurfaceSpec};
 use lamina_core::sweep::SweepSource;
-use lamina_scenario::{MapAxisSpec, MapSpec, MethodChoice, ViewAxis};
+use lamina_scenario::{MapAxisSpec, MethodChoice, RegimeMapSpec, ViewAxis};
 
 #[test]
 fn the_model_spec_keeps_names_values_and_order() {
@@ -148,7 +148,7 @@ fn the_map_spec_names_its_parameters_by_index() {
     let map = load(EXAMPLE).map_spec().expect("map");
     assert_eq!(
         map,
-        MapSpec {
+        RegimeMapSpec {
             x: MapAxisSpec {
                 parameter: 2,
                 from: 0.1,
