@@ -49,7 +49,7 @@ fn special<'a>(doc: &'a Value, kind: &str) -> Vec<&'a Value> {
 }
 
 const LORENZ: &str = r#"(
-    format: 1,
+    format: 2,
     title: "Lorenz",
     states: [
         (name: "x", start: 1.0, rate: "sigma*(y - x)"),
@@ -61,14 +61,14 @@ const LORENZ: &str = r#"(
         (name: "rho", value: RHO, range: (0.0, 50.0)),
         (name: "beta", value: 2.6666666666666665, range: (0.0, 5.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-10, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-10, atol: 1e-12),
     time: (start: 0.0, settle: 50.0, span: 50.0),
     cut: Some((
         surface: Plane(normal: {"z": 1.0}, offset: 27.0),
         direction: Rising,
         axes: ("x", "y"),
     )),
-    sweep: Some((parameter: "rho", from: 15.0, to: 30.0, steps: 30, settle: 20.0,
+    sweep: Some((parameter: "rho", from: 15.0, to: 30.0, values: 31, settle: 20.0,
                  keep: 10, follow: true, source: Cut, coordinate: "x")),
 )
 "#;
@@ -126,13 +126,13 @@ fn rest_of_a_forced_model_points_to_the_strobe_orbit() {
         dir.path(),
         "forced.ron",
         r#"(
-    format: 1,
+    format: 2,
     title: "Forced decay",
     states: [(name: "x", start: 0.0, rate: "-x + cos(w*t)")],
     parameters: [(name: "w", value: 1.0, range: (0.1, 3.0))],
-    integrator: (method: Auto, rtol: 1e-9, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-9, atol: 1e-12),
     time: (start: 0.0, settle: 0.0, span: 10.0),
-    strobe: Some((period: "2*pi/w", phase: 0.0, axes: ("x", "x"))),
+    strobe: Some((period: "2*pi/w", first_at: 0.0, axes: ("x", "x"))),
 )
 "#,
     );
@@ -149,14 +149,14 @@ fn rest_of_a_forced_model_points_to_the_strobe_orbit() {
 }
 
 const CUBIC: &str = r#"(
-    format: 1,
+    format: 2,
     title: "Cubic with two folds",
     states: [(name: "x", start: -2.1, rate: "m - x^3 + 3*x")],
     parameters: [(name: "m", value: -3.0, range: (-3.0, 3.0))],
-    integrator: (method: Auto, rtol: 1e-9, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-9, atol: 1e-12),
     time: (start: 0.0, settle: 0.0, span: 10.0),
-    strobe: Some((period: "1", phase: 0.0, axes: ("x", "x"))),
-    sweep: Some((parameter: "m", from: FROM, to: TO, steps: 60, settle: 10.0,
+    strobe: Some((period: "1", first_at: 0.0, axes: ("x", "x"))),
+    sweep: Some((parameter: "m", from: FROM, to: TO, values: 61, settle: 10.0,
                  keep: 4, follow: true, source: Strobe, coordinate: "x")),
 )
 "#;
@@ -228,7 +228,7 @@ fn lorenz_hopf_point_through_the_command_line() {
 }
 
 const BRUSSELATOR: &str = r#"(
-    format: 1,
+    format: 2,
     title: "Brusselator",
     states: [
         (name: "x", start: 1.0, rate: "a - (b + 1)*x + x^2*y"),
@@ -238,14 +238,14 @@ const BRUSSELATOR: &str = r#"(
         (name: "a", value: 1.0, range: (0.5, 2.0)),
         (name: "b", value: 1.5, range: (1.0, 3.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-10, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-10, atol: 1e-12),
     time: (start: 0.0, settle: 30.0, span: 30.0),
     cut: Some((
         surface: Plane(normal: {"x": 1.0}, offset: 1.0),
         direction: Rising,
         axes: ("x", "y"),
     )),
-    sweep: Some((parameter: "b", from: 1.5, to: 2.01, steps: 20, settle: 50.0,
+    sweep: Some((parameter: "b", from: 1.5, to: 2.01, values: 21, settle: 50.0,
                  keep: 4, follow: true, source: Cut, coordinate: "y")),
 )
 "#;
@@ -283,7 +283,7 @@ fn orbits_born_at_the_brusselator_hopf_point() {
 }
 
 const ROSSLER: &str = r#"(
-    format: 1,
+    format: 2,
     title: "Rossler",
     states: [
         (name: "x", start: 1.0, rate: "-y - z"),
@@ -295,14 +295,14 @@ const ROSSLER: &str = r#"(
         (name: "b", value: 0.2, range: (0.0, 1.0)),
         (name: "c", value: 2.5, range: (1.0, 10.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-10, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-10, atol: 1e-12),
     time: (start: 0.0, settle: 500.0, span: 100.0),
     cut: Some((
         surface: Plane(normal: {"x": 1.0}, offset: 0.0),
         direction: Falling,
         axes: ("y", "z"),
     )),
-    sweep: Some((parameter: "c", from: 2.5, to: 3.0, steps: 10, settle: 100.0,
+    sweep: Some((parameter: "c", from: 2.5, to: 3.0, values: 11, settle: 100.0,
                  keep: 8, follow: true, source: Cut, coordinate: "y")),
 )
 "#;

@@ -11,7 +11,7 @@ use lamina_core::Interrupt;
 use lamina_core::branch::{Branch, BranchOf};
 use lamina_core::run::{CutPoint, Run, RunSpec, Sink, Strobe, StrobeSample};
 use lamina_core::sweep::SweepSource;
-use lamina_render::{BranchLine, BranchMark, Figure};
+use lamina_render::{BranchLine, BranchMark, Figure, picture_title, view_names};
 
 use super::branch::Followed;
 use super::prepare::Prepared;
@@ -54,16 +54,16 @@ pub fn branch_picture(
         None => (Vec::new(), "the branch alone".to_string()),
     };
     let branch = &followed.branch;
-    let what = match branch.of {
-        BranchOf::Rest => "branch of resting points",
-        BranchOf::Orbit => "branch of periodic orbits",
+    let view = match branch.of {
+        BranchOf::Rest => view_names::RESTING_BRANCH,
+        BranchOf::Orbit => view_names::ORBIT_BRANCH,
     };
     let figure = Figure {
         size,
-        title: format!("{} — {what}", scenario.title),
+        title: picture_title(&scenario.title, view),
         caption: scenario.caption(),
-        x_label: followed.parameter.clone(),
-        y_label: scenario.states[coordinate].name.clone(),
+        x_label: scenario.parameter_label(branch.parameter),
+        y_label: scenario.state_label(coordinate),
     };
     let mut marks: Vec<BranchMark> = branch
         .born_at

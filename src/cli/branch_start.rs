@@ -55,13 +55,13 @@ impl RestOrigin {
 pub fn resting_start(prepared: &Prepared) -> Result<(Vec<f64>, RestOrigin)> {
     let mut model = prepared.model.clone();
     let settings = RestNewtonSettings::default();
-    let bound = prepared.spec.bound;
+    let escape = prepared.spec.escape;
     let progress = Progress::new("settling");
     let outcome = Run::new(model.clone(), prepared.spec.clone(), None, None, false)
         .execute(&mut Quiet(&progress), &Interrupt::new());
     progress.finish();
     if !outcome.reason.is_trouble()
-        && let Ok(solved) = solve_resting_point(&mut model, &outcome.final_state, bound, &settings)
+        && let Ok(solved) = solve_resting_point(&mut model, &outcome.final_state, escape, &settings)
     {
         let scale = solved.state.iter().fold(1.0f64, |m, v| m.max(v.abs()));
         let gap = solved
@@ -74,7 +74,7 @@ pub fn resting_start(prepared: &Prepared) -> Result<(Vec<f64>, RestOrigin)> {
         }
     }
     let start = model.start().to_vec();
-    match solve_resting_point(&mut model, &start, bound, &settings) {
+    match solve_resting_point(&mut model, &start, escape, &settings) {
         Ok(solved) => Ok((solved.state, RestOrigin::FromStart)),
         Err(err) => bail!(
             "the start is not near a resting point: the run does not settle at one ({}), and \
@@ -138,15 +138,10 @@ pub fn settled_orbit(
     let report = find_cycle(&mut flow_map, &seeds, k, &NewtonSettings::for_rtol(rtol))
         .with_context(|| {
             format!(
-                "the start is not near a periodic orbit: none of period {k} found from {} seed(s)",
+                "the start is not near a periodic orbit: no {k}-return orbit found from {} seed(s)",
                 seeds.len()
             )
         })?;
-    let returns_words = if k == 1 {
-        "1 return".to_string()
-    } else {
-        format!("{k} returns")
-    };
     let map_words = match choice {
         MapArg::Cut => "cut map",
         MapArg::Strobe => "strobe map",
@@ -156,8 +151,8 @@ pub fn settled_orbit(
         SeedOrigin::CloseReturn { .. } => "the closest return of the run's settled points",
     };
     let how = format!(
-        "the orbit of the {map_words} with {returns_words} (period {}) found by Newton's method \
-         from {seed_words}",
+        "the {k}-return orbit of the {map_words} (period {}) found by Newton's method from \
+         {seed_words}",
         Number(report.period)
     );
     Ok((orbit_map, OrbitStart::from_report(&report), how))

@@ -72,7 +72,7 @@ pub fn lyapunov(args: &LyapunovArgs) -> Result<ExitCode> {
         StopReason::Finished => Ok(ExitCode::SUCCESS),
         other => {
             eprintln!(
-                "the run stopped early ({other}); the exponents are averaged up to t = {}",
+                "the run ended early ({other}); the exponents are averaged up to t = {}",
                 result.t_end
             );
             Ok(ExitCode::FAILURE)
@@ -115,7 +115,7 @@ fn json(result: &Spectrum) -> Result<String> {
         "finished": result.reason == StopReason::Finished,
         "stop_reason": result.reason.to_string(),
         "reorthonormalisations": result.n_reorthonormalisations,
-        "rate_evaluations": result.stats.n_rates,
+        "rate_evaluations": result.stats.n_rate_evaluations,
     });
     let text = serde_json::to_string(&value).context("writing JSON")?;
     Ok(text)

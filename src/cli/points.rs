@@ -127,7 +127,7 @@ pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
             let (reason, written, file) =
                 execute(kind, args.count, &names, file, &mut run, &interrupt, label)?;
             if let StopReason::Cancelled { .. } = reason {
-                // an interrupted run is not a result: the temporary file goes, the target
+                // a stopped run is not a result: the temporary file goes, the target
                 // stays as it was
                 drop(file);
             } else {
@@ -141,7 +141,7 @@ pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
             let (reason, written, mut out) = execute(
                 kind, args.count, &names, stdout, &mut run, &interrupt, label,
             )?;
-            // the rows so far, also of an interrupted run: each is a whole, valid row
+            // the rows so far, also of a stopped run: each is a whole, valid row
             out.flush().context("writing to stdout")?;
             report(reason, written, label, None)
         }
@@ -200,10 +200,12 @@ fn report(
         StopReason::Cancelled { t } => {
             match path {
                 Some(path) => eprintln!(
-                    "interrupted at t = {t}; nothing was written to {}",
+                    "stopped at t = {t} on a signal; nothing was written to {}",
                     path.display()
                 ),
-                None => eprintln!("interrupted at t = {t}; wrote {written} {label} point(s)"),
+                None => {
+                    eprintln!("stopped at t = {t} on a signal; wrote {written} {label} point(s)")
+                }
             }
             Ok(ExitCode::from(INTERRUPTED))
         }
@@ -221,7 +223,7 @@ fn report(
         }
         other => {
             eprintln!(
-                "wrote {written} valid {label} point(s){target}; the run stopped early: {other}"
+                "wrote {written} valid {label} point(s){target}; the run ended early: {other}"
             );
             Ok(ExitCode::FAILURE)
         }

@@ -299,7 +299,7 @@ fn forced_oscillator(first: (&str, f64), second: (&str, f64)) -> (Model, StrobeS
     );
     let strobe = StrobeSpec {
         period: "2*pi/w".to_string(),
-        phase: 0.0,
+        first_at: 0.0,
     };
     (m, strobe)
 }

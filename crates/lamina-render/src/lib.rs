@@ -8,5 +8,5 @@ mod figure;
 mod plots;
 
 pub use branch::{BranchLine, BranchMark, branch_png};
-pub use figure::{Figure, RenderError};
+pub use figure::{Figure, RenderError, picture_title, view_names};
 pub use plots::{orbit_diagram_png, scatter_png, split_where_it_wraps, trajectory_png};

@@ -82,7 +82,7 @@ pub enum BranchError {
         detail: String,
     },
     /// The interrupt flag was raised.
-    #[error("cancelled")]
+    #[error("stopped (asked to stop)")]
     Cancelled,
 }
 
@@ -92,11 +92,11 @@ pub(crate) enum StepFailure {
     /// The integration failed.
     #[error("integrating the orbit failed: {0}")]
     Integration(#[from] StepError),
-    /// A state left the bound.
-    #[error("a state left the bound {bound}")]
+    /// A state passed the escape size.
+    #[error("a state passed the escape size {}", crate::run::Size(*escape))]
     Escaped {
-        /// The bound.
-        bound: f64,
+        /// The escape size (`limits.escape`).
+        escape: f64,
     },
     /// The period became zero or negative.
     #[error("the period became {period}, not positive")]
@@ -140,6 +140,6 @@ pub(crate) enum StepFailure {
     #[error("the orbit sits on a resting point (no flow at its point)")]
     NoFlow,
     /// The interrupt flag was raised.
-    #[error("cancelled")]
+    #[error("stopped (asked to stop)")]
     Cancelled,
 }

@@ -112,7 +112,7 @@ pub fn follow_rest_branch(
 
 /// Follows the periodic orbit `start` of `model` on `map` in the parameter of `range`, from
 /// the model's value toward both ends, integrated with `integration`'s method, tolerances and
-/// bound.
+/// escape size.
 ///
 /// # Errors
 /// The range errors; [`BranchError::ForcedCut`] / [`BranchError::AutonomousStrobe`] for a

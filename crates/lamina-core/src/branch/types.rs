@@ -265,7 +265,7 @@ impl EndReason {
                 Number(*period),
                 Number(*value)
             ),
-            Self::Cancelled => "cancelled".to_string(),
+            Self::Cancelled => "stopped (asked to stop)".to_string(),
         }
     }
 }

@@ -321,8 +321,8 @@ impl<'a, P: Problem> Walker<'a, P> {
             if sink_stopped {
                 break EndReason::Cancelled;
             }
-            if let Some(bound) = landed {
-                break EndReason::Bound { value: bound };
+            if let Some(end) = landed {
+                break EndReason::Bound { value: end };
             }
             if let Some(reason) = end_here {
                 break reason;
@@ -362,14 +362,14 @@ impl<'a, P: Problem> Walker<'a, P> {
         let slope = current.slope();
         let value = current.value();
         let predicted_value = value + h * slope;
-        let bound = if predicted_value > self.high && slope > 0.0 {
+        let end = if predicted_value > self.high && slope > 0.0 {
             Some(self.high)
         } else if predicted_value < self.low && slope < 0.0 {
             Some(self.low)
         } else {
             None
         };
-        let length = match bound {
+        let length = match end {
             Some(b) => (b - value) / slope,
             None => h,
         };
@@ -383,7 +383,7 @@ impl<'a, P: Problem> Walker<'a, P> {
             .normal
             .clone()
             .unwrap_or_else(|| self.weighted(&current.tangent));
-        let corrected = match bound {
+        let corrected = match end {
             Some(b) => self.correct(&predicted, &Constraint::Parameter(b))?,
             None => self.correct(
                 &predicted,
@@ -416,7 +416,7 @@ impl<'a, P: Problem> Walker<'a, P> {
                 arclength: current.arclength + walked,
                 normal: None,
             },
-            bound,
+            end,
         ))
     }
 

@@ -29,13 +29,16 @@ pub enum RestError {
         /// Size of the rates where it stopped.
         residual: f64,
     },
-    /// Newton's iterates left the bound.
-    #[error("Newton's iterates left the bound {bound} (no resting point within it from here)")]
+    /// Newton's iterates passed the escape size.
+    #[error(
+        "Newton's iterates passed the escape size {} (no resting point within it from here)",
+        crate::run::Size(*escape)
+    )]
     Escaped {
-        /// The bound (`limits.escape`).
-        bound: f64,
+        /// The escape size (`limits.escape`).
+        escape: f64,
     },
     /// The interrupt flag was raised.
-    #[error("cancelled")]
+    #[error("stopped (asked to stop)")]
     Cancelled,
 }

@@ -47,14 +47,14 @@ pub struct SolvedRest {
 }
 
 /// Refines `seed` to a resting point of `model` (which must not use `t`; the rates are taken
-/// at `t = 0`), staying within `bound` in every state.
+/// at `t = 0`), every state staying within the escape size `escape`.
 ///
 /// # Errors
 /// [`RestError::BadSeed`], [`RestError::NoConvergence`], [`RestError::Escaped`].
 pub fn solve_resting_point(
     model: &mut Model,
     seed: &[f64],
-    bound: f64,
+    escape: f64,
     settings: &RestNewtonSettings,
 ) -> Result<SolvedRest, RestError> {
     let n = model.dim();
@@ -102,8 +102,8 @@ pub fn solve_resting_point(
             }
             lambda *= 0.5;
         }
-        if x.iter().any(|v| v.abs() > bound) {
-            return Err(RestError::Escaped { bound });
+        if x.iter().any(|v| v.abs() > escape) {
+            return Err(RestError::Escaped { escape });
         }
         if !accepted {
             // no step shrinks the rates: at round-off if the step is tiny, else stuck

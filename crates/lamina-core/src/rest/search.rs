@@ -185,7 +185,7 @@ pub fn find_resting_points(
             return Err(RestError::Cancelled);
         }
         sink.progress(0.5 + 0.5 * idx as f64 / seeds.len() as f64);
-        let Ok(solved) = solve_resting_point(&mut model, seed, run.bound, &settings.newton) else {
+        let Ok(solved) = solve_resting_point(&mut model, seed, run.escape, &settings.newton) else {
             continue;
         };
         n_converged += 1;

@@ -100,8 +100,10 @@ impl OrbitProblem {
             while self.plain.t() < t_end {
                 self.plain.step(&mut self.model, t_end)?;
                 let x = self.plain.x();
-                if x.iter().any(|v| v.abs() > self.bound) {
-                    return Err(StepFailure::Escaped { bound: self.bound });
+                if x.iter().any(|v| v.abs() > self.escape) {
+                    return Err(StepFailure::Escaped {
+                        escape: self.escape,
+                    });
                 }
                 size = size.max(distance(x, &x1));
                 let segment = self.plain.segment();

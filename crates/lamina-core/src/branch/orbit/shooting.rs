@@ -79,7 +79,7 @@ pub(crate) struct OrbitProblem {
     pub(super) recording: Recording,
     pub(super) full: Integrator,
     pub(super) plain: Integrator,
-    pub(super) bound: f64,
+    pub(super) escape: f64,
     pub(super) rtol: f64,
     pub(super) weights: Vec<f64>,
     pub(super) tolerance: f64,
@@ -128,7 +128,7 @@ impl OrbitProblem {
                 let scratch = period.scratch();
                 (
                     Timing::Forced {
-                        first_at: spec.phase,
+                        first_at: spec.first_at,
                         period,
                         scratch,
                         returns: returns.max(1),
@@ -151,7 +151,7 @@ impl OrbitProblem {
             growth_limit: limits.growth_limit,
             timing,
             recording,
-            bound: integration.bound,
+            escape: integration.escape,
             rtol,
             weights: Vec::new(),
             tolerance: (limits.tolerance_in_rtol * rtol).max(1e-12),
@@ -265,7 +265,7 @@ impl OrbitProblem {
         let t_end = t0 + tau;
         while self.plain.t() < t_end {
             self.plain.step(&mut self.model, t_end)?;
-            check_bound(&self.plain.x()[..self.n], self.bound)?;
+            check_escape(&self.plain.x()[..self.n], self.escape)?;
         }
         Ok(())
     }
@@ -281,7 +281,7 @@ impl OrbitProblem {
         while self.full.t() < t_end {
             // no dense output: only the end is wanted
             self.full.step_lazy(&mut rates, t_end)?;
-            check_bound(&self.full.x()[..n], self.bound)?;
+            check_escape(&self.full.x()[..n], self.escape)?;
         }
         Ok(())
     }
@@ -448,10 +448,10 @@ impl OrbitProblem {
     }
 }
 
-/// Fails when a state left the bound.
-fn check_bound(x: &[f64], bound: f64) -> Result<(), StepFailure> {
-    if x.iter().any(|v| v.abs() > bound) {
-        return Err(StepFailure::Escaped { bound });
+/// Fails when a state passed the escape size.
+fn check_escape(x: &[f64], escape: f64) -> Result<(), StepFailure> {
+    if x.iter().any(|v| v.abs() > escape) {
+        return Err(StepFailure::Escaped { escape });
     }
     Ok(())
 }
