@@ -79,7 +79,7 @@ fn help_lists_the_options() {
         .success()
         .stdout(
             predicate::str::contains("--map")
-                .and(predicate::str::contains("--period"))
+                .and(predicate::str::contains("--returns"))
                 .and(predicate::str::contains("--from-start"))
                 .and(predicate::str::contains("--json")),
         );
@@ -121,7 +121,7 @@ fn tunnel_diode_oscillator_has_a_stable_cycle_through_its_cut() {
 }
 
 #[test]
-fn clocked_resonator_at_low_drive_has_a_period_one_strobe_orbit() {
+fn clocked_resonator_at_low_drive_has_a_one_return_strobe_orbit() {
     let dir = TempDir::new().unwrap();
     let text = fs::read_to_string(demo("clocked_resonator.ron")).unwrap();
     let from = r#"(name: "a", value: 0.38"#;
@@ -166,7 +166,7 @@ fn clocked_resonator_at_low_drive_has_a_period_one_strobe_orbit() {
 }
 
 #[test]
-fn chaos_and_a_torus_have_no_repeat_without_a_period() {
+fn chaos_and_a_torus_have_no_repeat_without_a_count_of_returns() {
     for name in ["piecewise_circuit.ron", "coupled_oscillators.ron"] {
         lamina()
             .arg("cycle")
@@ -175,15 +175,15 @@ fn chaos_and_a_torus_have_no_repeat_without_a_period() {
             .failure()
             .stdout("")
             .stderr(
-                predicate::str::contains("no repeat up to 12")
-                    .and(predicate::str::contains("--period")),
+                predicate::str::contains("no repeat within 12 returns")
+                    .and(predicate::str::contains("--returns")),
             );
     }
 }
 
 /// Rössler (a = b = 0.2, c = 5.7) with the cut x = 0, x decreasing.
 const ROSSLER: &str = r#"(
-    format: 1,
+    format: 2,
     title: "Rossler",
     states: [
         (name: "x", start: 1.0, rate: "-y - z"),
@@ -195,7 +195,7 @@ const ROSSLER: &str = r#"(
         (name: "b", value: 0.2, range: (0.0, 1.0)),
         (name: "c", value: 5.7, range: (1.0, 10.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-12, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-12, atol: 1e-12),
     time: (start: 0.0, settle: 100.0, span: 600.0),
     cut: Some((
         surface: Plane(normal: {"x": 1.0}, offset: 0.0),
@@ -209,7 +209,7 @@ const ROSSLER: &str = r#"(
 fn rossler_saddle_orbit_through_the_command_line() {
     let dir = TempDir::new().unwrap();
     let path = write(dir.path(), "rossler.ron", ROSSLER);
-    let doc = cycle_json(&path, &["--period", "1"]);
+    let doc = cycle_json(&path, &["--returns", "1"]);
     let multipliers = check_document(&doc, &["x", "y", "z"], 2);
     // P. Cvitanović et al., ChaosBook.org, "Rössler's model" (REFERENCES case 10)
     assert!((number(&doc["point"]["y"], "y") - 6.09176831742).abs() < 1e-7);
@@ -231,11 +231,12 @@ fn rossler_saddle_orbit_through_the_command_line() {
     lamina()
         .arg("cycle")
         .arg(&path)
-        .args(["--period", "1"])
+        .args(["--returns", "1"])
         .assert()
         .success()
         .stdout(
-            predicate::str::contains("unstable, 1 unstable direction")
+            predicate::str::starts_with("1-return orbit of the cut map, period 5.881088455")
+                .and(predicate::str::contains("unstable, 1 unstable direction"))
                 .and(predicate::str::contains("period doubling"))
                 .and(predicate::str::contains("trivial")),
         );
@@ -245,7 +246,7 @@ fn rossler_saddle_orbit_through_the_command_line() {
 fn harmonic(period: &str) -> String {
     format!(
         r#"(
-    format: 1,
+    format: 2,
     title: "Harmonic oscillator",
     states: [
         (name: "x", start: 1.0, rate: "v"),
@@ -254,9 +255,9 @@ fn harmonic(period: &str) -> String {
     parameters: [
         (name: "w", value: 2.0, range: (0.5, 3.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-12, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-12, atol: 1e-12),
     time: (start: 0.0, settle: 0.0, span: 30.0),
-    strobe: Some((period: "{period}", phase: 0.0, axes: ("x", "v"))),
+    strobe: Some((period: "{period}", first_at: 0.0, axes: ("x", "v"))),
 )
 "#
     )
@@ -281,7 +282,7 @@ fn identity_strobe_map_from_the_start_does_not_fail() {
 #[test]
 fn planar_limit_cycle_from_the_start() {
     let text = r#"(
-    format: 1,
+    format: 2,
     title: "Planar limit cycle",
     states: [
         (name: "x", start: 0.5, rate: "x*(1 - x^2 - y^2) - w*y"),
@@ -290,7 +291,7 @@ fn planar_limit_cycle_from_the_start() {
     parameters: [
         (name: "w", value: 2.0, range: (0.5, 3.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-12, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-12, atol: 1e-12),
     time: (start: 0.0, settle: 0.0, span: 30.0),
     cut: Some((
         surface: Plane(normal: {"y": 1.0}, offset: 0.0),
@@ -324,10 +325,10 @@ fn bad_requests_fail_with_a_reason() {
     lamina()
         .arg("cycle")
         .arg(&path)
-        .args(["--period", "0"])
+        .args(["--returns", "0"])
         .assert()
         .failure()
-        .stderr(predicate::str::contains("--period must be at least 1"));
+        .stderr(predicate::str::contains("--returns must be at least 1"));
     lamina()
         .arg("cycle")
         .arg(dir.path().join("missing.ron"))
@@ -341,7 +342,7 @@ fn a_driven_oscillator_strobed_at_half_its_drive_period_repeats_every_two() {
     // x'' + c x' + x = cos(w t) sampled every pi / w: the steady response A cos(w t - phi)
     // alternates between two points
     let text = r#"(
-    format: 1,
+    format: 2,
     title: "Driven linear oscillator",
     states: [
         (name: "x", start: 0.0, rate: "v"),
@@ -351,9 +352,9 @@ fn a_driven_oscillator_strobed_at_half_its_drive_period_repeats_every_two() {
         (name: "c", value: 0.5, range: (0.0, 1.0)),
         (name: "w", value: 1.3, range: (0.5, 3.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-12, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-12, atol: 1e-12),
     time: (start: 0.0, settle: 150.0, span: 60.0),
-    strobe: Some((period: "pi/w", phase: 0.0, axes: ("x", "v"))),
+    strobe: Some((period: "pi/w", first_at: 0.0, axes: ("x", "v"))),
 )
 "#;
     let dir = TempDir::new().unwrap();

@@ -317,13 +317,13 @@ fn ctrl_c_stops_every_long_command_saying_where_and_what_was_not_written() {
             vec!["sweep", "--out", "OUT", "--png", "PNG"],
             "of 41 value(s)",
         ),
-        (vec!["lyapunov", "--trace", "OUT"], "interrupted at t = "),
-        (vec!["lyapunov", "--json"], "interrupted at t = "),
+        (vec!["lyapunov", "--trace", "OUT"], "stopped at t = "),
+        (vec!["lyapunov", "--json"], "stopped at t = "),
         (
             vec!["render", "--view", "strobe", "--png", "PNG"],
-            "interrupted at t = ",
+            "stopped at t = ",
         ),
-        (vec!["cycle", "--map", "strobe"], "interrupted at t = "),
+        (vec!["cycle", "--map", "strobe"], "stopped at t = "),
     ];
     for (args, where_) in cases {
         let args: Vec<&str> = args
@@ -339,13 +339,13 @@ fn ctrl_c_stops_every_long_command_saying_where_and_what_was_not_written() {
         // [common practice] a program stopped by Ctrl-C exits with 128 + SIGINT
         assert_eq!(output.status.code(), Some(130), "{args:?}: {stderr}");
         assert!(
-            stderr.contains("interrupted") && stderr.contains(where_),
+            stderr.contains("on a signal") && stderr.contains(where_),
             "{args:?}: {stderr}"
         );
         assert!(!stderr.contains("panicked"), "{stderr}");
         if args.contains(&"--json") {
             let json: serde_json::Value = serde_json::from_str(&stdout_text(&output)).unwrap();
-            assert_eq!(json["interrupted"], true, "{json}");
+            assert_eq!(json["stopped_on_signal"], true, "{json}");
         } else {
             assert_eq!(stdout_text(&output), "", "{args:?}");
         }

@@ -13,7 +13,7 @@ fn lamina() -> Command {
 fn brusselator(dir: &Path, follow: bool) -> PathBuf {
     let text = format!(
         r#"(
-    format: 1,
+    format: 2,
     title: "Brusselator sweep",
     states: [
         (name: "x", start: 1.3, rate: "a - (b + 1)*x + x^2*y"),
@@ -23,10 +23,10 @@ fn brusselator(dir: &Path, follow: bool) -> PathBuf {
         (name: "a", value: 1.0, range: (0.5, 2.0)),
         (name: "b", value: 2.2, range: (1.0, 3.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-9, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-9, atol: 1e-12),
     time: (start: 0.0, settle: 0.0, span: 200.0),
     cut: Some((surface: Plane(normal: {{"x": 1.0}}, offset: 1.0), direction: Rising, axes: ("x", "y"))),
-    sweep: Some((parameter: "b", from: 1.5, to: 2.5, steps: 10, settle: 600.0,
+    sweep: Some((parameter: "b", from: 1.5, to: 2.5, values: 11, settle: 600.0,
                  keep: 4, follow: {follow}, source: Cut, coordinate: "y")),
 )"#
     );
@@ -43,16 +43,38 @@ fn rows(text: &str) -> Vec<String> {
 fn sweep_csv_has_the_product_columns_and_every_value() {
     let dir = tempfile::tempdir().expect("tempdir");
     let path = brusselator(dir.path(), false);
-    let out = lamina()
+    let output = lamina()
         .args(["sweep"])
         .arg(&path)
         .assert()
         .success()
         .get_output()
-        .stdout
         .clone();
-    let text = String::from_utf8(out).expect("utf8");
+    let text = String::from_utf8(output.stdout).expect("utf8");
     assert_eq!(text.lines().next(), Some("b,k,x,y"));
+    // the change list: the first value's repeat, then each change in one wording, the values
+    // in shortest round-trip form ([analytic] 11 values from 1.5 to 2.5 are 1.5, 1.6, ...)
+    let changes = String::from_utf8(output.stderr).expect("utf8");
+    let mut lines = changes
+        .lines()
+        .filter(|l| l.starts_with("b = ") || l.contains(" between b = "));
+    let first = lines.next().expect("the first value's line");
+    assert!(first.starts_with("b = 1.5: "), "{changes}");
+    for line in lines {
+        let (words, values) = line.split_once(" between b = ").expect("a change line");
+        assert!(words.contains(" to "), "{line}");
+        for part in [words.split(" to ").next(), words.split(" to ").nth(1)] {
+            let part = part.expect("two sides");
+            assert!(
+                part.ends_with("-return orbit") || part == "no repeat within 12 returns",
+                "{line}"
+            );
+        }
+        let (below, above) = values.split_once(" and ").expect("two values");
+        for value in [below, above] {
+            assert!(value.len() <= 3, "not the shortest form: {line}");
+        }
+    }
     let values: std::collections::BTreeSet<String> = rows(&text)
         .iter()
         .map(|r| r.split(',').next().unwrap_or("").to_string())
@@ -158,7 +180,7 @@ fn render_writes_every_view_at_the_requested_size() {
     // a shorter window and a coarser sweep, so the test stays quick in a debug build
     let quick = demo
         .replace("span: 20000.0", "span: 600.0")
-        .replace("steps: 300", "steps: 12")
+        .replace("values: 301", "values: 13")
         .replace("settle: 300.0", "settle: 100.0");
     let path = dir.path().join("quick.ron");
     std::fs::write(&path, quick).expect("write");

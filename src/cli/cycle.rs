@@ -36,10 +36,10 @@ pub struct CycleArgs {
     /// model does not use t, otherwise the strobe.
     #[arg(long, value_enum, value_name = "MAP")]
     map: Option<MapArg>,
-    /// Returns per period (look for a period-K point of the map). Default: the repeat found in
-    /// the settled points (1 with --from-start).
+    /// Returns of the map per orbit (look for a K-return orbit; its period is the time of the
+    /// K returns). Default: the repeat found in the settled points (1 with --from-start).
     #[arg(long, value_name = "K")]
-    period: Option<usize>,
+    returns: Option<usize>,
     /// Start Newton's method from the scenario's start state (its first cut point or strobe
     /// sample) instead of the closest return of the settled points.
     #[arg(long)]
@@ -58,7 +58,7 @@ impl CycleArgs {
 
 /// The `--map` choices.
 #[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
-enum MapArg {
+pub enum MapArg {
     /// The cut map (Poincaré map).
     Cut,
     /// The strobe map (time-T map).
@@ -84,9 +84,10 @@ pub enum SeedOrigin {
 pub fn cycle(args: &CycleArgs) -> Result<ExitCode> {
     let path = &args.file;
     let prepared = prepare(path)?;
+    let scenario = prepared.scenario.clone();
     let choice = choose_map(args.map, &prepared, path)?;
-    if args.period == Some(0) {
-        bail!("--period must be at least 1");
+    if args.returns == Some(0) {
+        bail!("--returns must be at least 1");
     }
     let n = prepared.model.start().len();
     memory::ensure_fits(
@@ -116,12 +117,12 @@ pub fn cycle(args: &CycleArgs) -> Result<ExitCode> {
             .context("cannot reach the map from the start state")?;
         (
             vec![seed],
-            args.period.unwrap_or(1),
+            args.returns.unwrap_or(1),
             SeedOrigin::Start,
             span,
         )
     } else {
-        seeds_from_run(prepared.clone(), choice, args.period, path, &interrupt)?
+        seeds_from_run(prepared.clone(), choice, args.returns, path, &interrupt)?
     };
 
     let settings = MapSettings::from_run(&prepared.spec, max_return_time);
@@ -131,8 +132,8 @@ pub fn cycle(args: &CycleArgs) -> Result<ExitCode> {
         Ok(report) => report,
         Err(CycleError::Cancelled { t }) => {
             return Err(Interrupted(format!(
-                "interrupted at t = {t} while Newton's method followed the orbit; nothing was \
-                 printed"
+                "stopped at t = {t} on a signal while Newton's method followed the orbit; \
+                 nothing was printed"
             ))
             .into());
         }
@@ -141,7 +142,7 @@ pub fn cycle(args: &CycleArgs) -> Result<ExitCode> {
         }
         Err(err) => {
             return Err(anyhow::Error::new(err).context(format!(
-                "no periodic orbit of period {k} found from {} seed(s)",
+                "no {k}-return orbit found from {} seed(s)",
                 seeds.len()
             )));
         }
@@ -150,7 +151,7 @@ pub fn cycle(args: &CycleArgs) -> Result<ExitCode> {
     if args.json {
         write_json(&mut out, &report, &names)?;
     } else {
-        write_human(&mut out, &report, &names, &origin)?;
+        write_human(&mut out, &report, &scenario, &origin)?;
     }
     out.flush().context("writing to stdout")?;
     Ok(ExitCode::SUCCESS)
@@ -247,10 +248,10 @@ impl Sink for CloudSink {
 
 /// Runs the scenario, finds the repeat in its settled points and picks the closest returns
 /// as seeds. Returns the seeds, k, where they came from and the longest return time allowed.
-fn seeds_from_run(
+pub(super) fn seeds_from_run(
     prepared: Prepared,
     choice: MapArg,
-    period: Option<usize>,
+    returns: Option<usize>,
     path: &Path,
     interrupt: &Interrupt,
 ) -> Result<(Vec<MapPoint>, usize, SeedOrigin, f64)> {
@@ -270,14 +271,14 @@ fn seeds_from_run(
     sink.progress.finish();
     if let StopReason::Cancelled { t } = outcome.reason {
         return Err(Interrupted(format!(
-            "interrupted at t = {t} while settling, after {} point(s); nothing was printed",
+            "stopped at t = {t} on a signal while settling, after {} point(s); nothing was printed",
             sink.points.len()
         ))
         .into());
     }
     if outcome.reason.is_trouble() {
         bail!(
-            "the run of {} stopped early ({}) after {} point(s)",
+            "the run of {} ended early ({}) after {} point(s)",
             path.display(),
             outcome.reason,
             sink.points.len()
@@ -296,10 +297,10 @@ fn seeds_from_run(
         );
     }
     let recurrence = find_recurrence(&points, &RecurrenceSettings::default());
-    let k = match (period, recurrence.k()) {
+    let k = match (returns, recurrence.k()) {
         (Some(k), _) | (None, Some(k)) => k,
         (None, None) => bail!(
-            "{} {label}: {recurrence}; give --period K to look for an orbit of period K \
+            "{} {label}: {recurrence}; give --returns K to look for a K-return orbit \
              (unstable orbits inside chaos are found that way)",
             points.len()
         ),
@@ -307,7 +308,7 @@ fn seeds_from_run(
     let returns = close_returns(&points, k, MAX_SEEDS);
     let Some(closest) = returns.first() else {
         bail!(
-            "{} {label} are too few for period {k}: lengthen time.span",
+            "{} {label} are too few for a {k}-return orbit: lengthen time.span",
             points.len()
         );
     };

@@ -4,6 +4,7 @@ use std::io::Write;
 
 use anyhow::{Context, Result};
 use lamina_core::cycle::{CycleReport, MapChoice, Multiplier, Number};
+use lamina_scenario::{Scenario, State};
 use serde::Serialize;
 use serde::ser::{SerializeMap, Serializer};
 
@@ -23,9 +24,11 @@ struct Json<'a> {
 }
 
 /// A state as an object of state names, in the model's order.
-struct NamedState<'a> {
-    names: &'a [String],
-    values: &'a [f64],
+pub struct NamedState<'a> {
+    /// The state names.
+    pub names: &'a [String],
+    /// The values, in the same order.
+    pub values: &'a [f64],
 }
 
 impl Serialize for NamedState<'_> {
@@ -38,10 +41,13 @@ impl Serialize for NamedState<'_> {
     }
 }
 
+/// A complex number in JSON.
 #[derive(Serialize)]
-struct JsonComplex {
-    re: f64,
-    im: f64,
+pub struct JsonComplex {
+    /// Real part.
+    pub re: f64,
+    /// Imaginary part.
+    pub im: f64,
 }
 
 fn complex(values: &[Multiplier]) -> Vec<JsonComplex> {
@@ -49,6 +55,16 @@ fn complex(values: &[Multiplier]) -> Vec<JsonComplex> {
         .iter()
         .map(|m| JsonComplex { re: m.re, im: m.im })
         .collect()
+}
+
+/// Writes `value` as one line of JSON. The text is made first and written as bytes, so a
+/// reader that closed the pipe shows as the `io::Error` it is (serde_json's own writer hides
+/// it), and the command ends quietly.
+pub fn write_json_line(out: &mut impl Write, value: &impl Serialize) -> Result<()> {
+    let mut text = serde_json::to_string(value).context("writing JSON")?;
+    text.push('\n');
+    out.write_all(text.as_bytes())?;
+    Ok(())
 }
 
 /// Writes the report as one JSON line (serde_json writes the shortest text that reads back
@@ -66,26 +82,22 @@ pub fn write_json(out: &mut impl Write, report: &CycleReport, names: &[String]) 
         k: report.k,
         floquet: report.floquet.as_deref().map(complex),
     };
-    serde_json::to_writer(&mut *out, &json).context("writing JSON")?;
-    writeln!(out).context("writing to stdout")?;
+    write_json_line(&mut *out, &json)?;
     Ok(())
 }
 
-/// Writes the report for a person to read.
+/// Writes the report for a person to read, with the scenario's units.
 pub fn write_human(
     out: &mut impl Write,
     report: &CycleReport,
-    names: &[String],
+    scenario: &Scenario,
     origin: &SeedOrigin,
 ) -> Result<()> {
+    let time_unit = unit_suffix(scenario.time.unit.as_deref());
+    let states = &scenario.states;
     let map = match report.map {
         MapChoice::Cut => "cut map",
         MapChoice::Strobe => "strobe map",
-    };
-    let returns = if report.k == 1 {
-        "1 return".to_string()
-    } else {
-        format!("{} returns", report.k)
     };
     let mut text = String::new();
     let mut line = |s: String| {
@@ -93,23 +105,19 @@ pub fn write_human(
         text.push('\n');
     };
     line(format!(
-        "periodic orbit of the {map}, period {} ({returns})",
-        report.k
+        "{}-return orbit of the {map}, period {}{time_unit}",
+        report.k, report.period
     ));
     line(format!(
-        "  period        {}  (total time of {returns})",
-        report.period
-    ));
-    line(format!(
-        "  point         {}  (t = {})",
-        named(names, &report.point.state),
+        "  point         {}  (t = {}{time_unit})",
+        named(states, &report.point.state),
         report.point.t
     ));
     for (idx, other) in report.orbit.iter().enumerate().skip(1) {
         line(format!(
-            "  point {}       {}  (t = {})",
+            "  point {}       {}  (t = {}{time_unit})",
             idx + 1,
-            named(names, &other.state),
+            named(states, &other.state),
             other.t
         ));
     }
@@ -176,12 +184,23 @@ fn distance_to_one(m: &Multiplier) -> f64 {
     (m.re - 1.0).hypot(m.im)
 }
 
-/// `a = 1, b = 2` with full precision.
-fn named(names: &[String], values: &[f64]) -> String {
-    names
+/// `x = 1 um, v = 2` with full precision and each state's unit.
+fn named(states: &[State], values: &[f64]) -> String {
+    states
         .iter()
         .zip(values)
-        .map(|(n, v)| format!("{n} = {}", Number(*v)))
+        .map(|(s, v)| {
+            let unit = unit_suffix(s.unit.as_deref());
+            format!("{} = {}{unit}", s.name, Number(*v))
+        })
         .collect::<Vec<_>>()
         .join(", ")
+}
+
+/// ` um` for a unit, nothing without one.
+fn unit_suffix(unit: Option<&str>) -> String {
+    match unit {
+        Some(unit) if !unit.trim().is_empty() => format!(" {unit}"),
+        _ => String::new(),
+    }
 }

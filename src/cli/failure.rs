@@ -1,6 +1,7 @@
-//! How a command that did not succeed ends: an interrupted one with status 130 and a word on
-//! what it stopped at and what was or was not written; with `--json` any failure also as a
-//! JSON object `{"error": "...", ...}` on stdout, so a script reading stdout always gets one.
+//! How a command that did not succeed ends: one stopped on a signal (Ctrl-C) with status 130
+//! and a word on where it stood and what was or was not written; with `--json` any failure
+//! also as a JSON object `{"error": "...", ...}` on stdout, so a script reading stdout always
+//! gets one.
 
 use std::fmt;
 use std::io::Write;
@@ -38,14 +39,15 @@ impl fmt::Display for WithFields {
 
 impl std::error::Error for WithFields {}
 
-/// Prints `{"error": text, "command": command, ...}` on stdout (with `"interrupted": true`
-/// for an interrupted command and any fields the error carries).
+/// Prints `{"error": text, "command": command, ...}` on stdout (with
+/// `"stopped_on_signal": true` for a command stopped on a signal, and any fields the error
+/// carries).
 pub fn print_json_error(command: &str, text: &str, err: &anyhow::Error) {
     let mut object = Map::new();
     object.insert("error".into(), Value::String(text.to_string()));
     object.insert("command".into(), Value::String(command.to_string()));
     if err.downcast_ref::<Interrupted>().is_some() {
-        object.insert("interrupted".into(), Value::Bool(true));
+        object.insert("stopped_on_signal".into(), Value::Bool(true));
     }
     if let Some(detailed) = err.chain().find_map(|c| c.downcast_ref::<WithFields>()) {
         for (key, value) in &detailed.fields {

@@ -40,8 +40,8 @@ impl LyapunovArgs {
     }
 }
 
-/// Progress on the terminal's bar, and the last time reported (for saying where an
-/// interrupted run stopped).
+/// Progress on the terminal's bar, and the last time reported (for saying where a run
+/// stopped on a signal stood).
 struct Bar {
     bar: Progress,
     t: f64,
@@ -98,7 +98,7 @@ pub fn lyapunov(args: &LyapunovArgs) -> Result<ExitCode> {
     if let StopReason::Cancelled { t } = result.reason {
         let written: Vec<&Path> = args.trace.iter().map(PathBuf::as_path).collect();
         return Err(Interrupted(format!(
-            "interrupted at t = {t} ({:.0} % of the run): no exponents printed; {}",
+            "stopped at t = {t} on a signal ({:.0} % of the run): no exponents printed; {}",
             100.0 * bar.fraction,
             outputs::nothing_written(&written)
         ))
@@ -125,7 +125,7 @@ pub fn lyapunov(args: &LyapunovArgs) -> Result<ExitCode> {
         Ok(ExitCode::SUCCESS)
     } else {
         eprintln!(
-            "the run stopped early ({}); the exponents are averaged up to t = {} and not read \
+            "the run ended early ({}); the exponents are averaged up to t = {} and not read \
              (verdict: {})",
             result.reason,
             result.t_end,
@@ -169,7 +169,7 @@ fn json(result: &Spectrum) -> Result<String> {
         "finished": result.reason == StopReason::Finished,
         "stop_reason": result.reason.to_string(),
         "reorthonormalisations": result.n_reorthonormalisations,
-        "rate_evaluations": result.stats.n_rates,
+        "rate_evaluations": result.stats.n_rate_evaluations,
     });
     let mut value = value;
     if result.reason != StopReason::Finished
@@ -178,7 +178,7 @@ fn json(result: &Spectrum) -> Result<String> {
         // a run that did not finish is a failure: say so where a script looks for one
         object.insert(
             "error".into(),
-            serde_json::Value::String(format!("the run stopped early: {}", result.reason)),
+            serde_json::Value::String(format!("the run ended early: {}", result.reason)),
         );
     }
     let text = serde_json::to_string(&value).context("writing JSON")?;

@@ -41,6 +41,17 @@ pub fn open(flag: &str, path: &Path) -> Result<AtomicFile> {
     AtomicFile::create(path).with_context(|| format!("{flag} {}", path.display()))
 }
 
+/// Checks now that `path` can take the output of `flag` (a temporary file is made in its
+/// directory and removed again), for a command that writes its files only at the end. A
+/// device or FIFO is not opened here (a FIFO's reader would see its end at once).
+pub fn probe(flag: &str, path: &Path) -> Result<()> {
+    let special = std::fs::metadata(path).is_ok_and(|m| !m.is_file() && !m.is_dir());
+    if !special {
+        drop(open(flag, path)?);
+    }
+    Ok(())
+}
+
 /// Commits `file` and says where `what` went: to its target when the run `succeeded` or
 /// nothing was there, else beside the existing file, which is left as it was.
 pub fn finish(file: AtomicFile, succeeded: bool, what: &str) -> Result<String> {
@@ -55,7 +66,7 @@ pub fn finish(file: AtomicFile, succeeded: bool, what: &str) -> Result<String> {
     })
 }
 
-/// `"nothing was written to A, B"` for the outputs of an interrupted command (their
+/// `"nothing was written to A, B"` for the outputs of a command stopped on a signal (their
 /// temporary files are removed, the targets left as they were).
 pub fn nothing_written(paths: &[&Path]) -> String {
     if paths.is_empty() {

@@ -131,7 +131,7 @@ pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
             let (reason, written, file) =
                 execute(kind, args.count, &names, file, &mut run, &interrupt, label)?;
             if let StopReason::Cancelled { .. } = reason {
-                // an interrupted run is not a result: the temporary file goes, the target
+                // a stopped run is not a result: the temporary file goes, the target
                 // stays as it was
                 drop(file);
                 return report(reason, written, label, Some(path));
@@ -150,7 +150,7 @@ pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
             let (reason, written, mut out) = execute(
                 kind, args.count, &names, stdout, &mut run, &interrupt, label,
             )?;
-            // the rows so far, also of an interrupted run: each is a whole, valid row
+            // the rows so far, also of a stopped run: each is a whole, valid row
             out.flush().context("writing to stdout")?;
             report(reason, written, label, None)
         }
@@ -196,7 +196,7 @@ fn execute<W: Write>(
     Ok((outcome.reason, sink.written, out))
 }
 
-/// Reports how a run with an output file ended (not interrupted), with where its points
+/// Reports how a run with an output file ended (not stopped on a signal), with where its points
 /// went.
 fn report_file(reason: StopReason, note: &str) -> Result<ExitCode> {
     match reason {
@@ -209,7 +209,7 @@ fn report_file(reason: StopReason, note: &str) -> Result<ExitCode> {
             Ok(ExitCode::SUCCESS)
         }
         other => {
-            eprintln!("the run stopped early: {other}\n{note}");
+            eprintln!("the run ended early: {other}\n{note}");
             Ok(ExitCode::FAILURE)
         }
     }
@@ -228,10 +228,12 @@ fn report(
         StopReason::Cancelled { t } => {
             match path {
                 Some(path) => eprintln!(
-                    "interrupted at t = {t}; nothing was written to {}",
+                    "stopped at t = {t} on a signal; nothing was written to {}",
                     path.display()
                 ),
-                None => eprintln!("interrupted at t = {t}; wrote {written} {label} point(s)"),
+                None => {
+                    eprintln!("stopped at t = {t} on a signal; wrote {written} {label} point(s)")
+                }
             }
             Ok(ExitCode::from(INTERRUPTED))
         }
@@ -249,7 +251,7 @@ fn report(
         }
         other => {
             eprintln!(
-                "wrote {written} valid {label} point(s){target}; the run stopped early: {other}"
+                "wrote {written} valid {label} point(s){target}; the run ended early: {other}"
             );
             Ok(ExitCode::FAILURE)
         }

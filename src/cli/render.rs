@@ -9,9 +9,11 @@ use anyhow::{Context, Result, bail};
 use lamina_core::run::{CutPoint, Run, Sink, StopReason, StrobeSample};
 use lamina_core::sweep::{SweepColumn, SweepSpec};
 use lamina_export::AtomicFile;
-use lamina_render::Figure;
+use lamina_render::{Figure, picture_title, view_names};
 use lamina_scenario::Scenario;
 
+use super::branch::{OfArg, StartArg};
+use super::branch_picture::branch_picture;
 use super::failure::Interrupted;
 use super::outputs;
 use super::prepare::prepare;
@@ -28,6 +30,8 @@ pub enum View {
     Strobe,
     /// The orbit diagram of the scenario's sweep.
     Sweep,
+    /// A branch of resting points or orbits over the orbit diagram.
+    Branch,
 }
 
 /// Arguments of `lamina render`.
@@ -44,6 +48,10 @@ pub struct RenderArgs {
     /// Picture size in pixels.
     #[arg(long, value_name = "WxH", default_value = "1200x900", value_parser = parse_size)]
     size: (u32, u32),
+    /// For the branch view: follow a resting point or an orbit. Default: a resting point if
+    /// the run settles at one, else the orbit it settles into.
+    #[arg(long, value_enum)]
+    of: Option<OfArg>,
 }
 
 fn parse_size(text: &str) -> Result<(u32, u32), String> {
@@ -93,18 +101,16 @@ pub fn orbit_diagram_png(
     coordinate: usize,
     columns: &[SweepColumn],
 ) -> Result<Vec<u8>> {
-    let parameter = &scenario.parameters[spec.parameter].name;
-    let coordinate_name = &scenario.states[coordinate].name;
     let data: Vec<(f64, Vec<f64>)> = columns
         .iter()
         .map(|c| (c.value, c.points.iter().map(|p| p[coordinate]).collect()))
         .collect();
     let figure = Figure {
         size,
-        title: format!("{} — orbit diagram", scenario.title),
+        title: picture_title(&scenario.title, view_names::ORBIT),
         caption: scenario.caption(),
-        x_label: parameter.clone(),
-        y_label: coordinate_name.clone(),
+        x_label: scenario.parameter_label(spec.parameter),
+        y_label: scenario.state_label(coordinate),
     };
     Ok(lamina_render::orbit_diagram_png(&figure, &data, None)?)
 }
@@ -115,11 +121,23 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
     // Ctrl-C stops the run at its next step; installed before the picture's temporary file
     let interrupt = interrupt_on_signal()?;
     let png = outputs::open("--png", &args.png)?;
+    if args.view == View::Branch {
+        let prepared = prepare(&args.file)?;
+        let of = match args.of {
+            Some(of) => of,
+            None if super::branch_start::run_settles_at_rest(&prepared) => OfArg::Rest,
+            None => OfArg::Cycle,
+        };
+        let followed =
+            super::branch::follow(&prepared, &args.file, of, None, None, StartArg::Settled)?;
+        let (bytes, note) = branch_picture(&prepared, &args.file, &followed, args.size)?;
+        return finish(png, bytes, &format!("the branch picture ({note})"), true);
+    }
     if args.view == View::Sweep {
         let run = super::sweep::run_sweep(&args.file, None, &interrupt)?;
         if interrupt.is_raised() {
             let parameter = &run.scenario.parameters[run.spec.parameter].name;
-            return Err(super::sweep::interrupted_sweep(&run, parameter, &[&args.png]).into());
+            return Err(super::sweep::stopped_sweep(&run, parameter, &[&args.png]).into());
         }
         let bytes = orbit_diagram_png(
             args.size,
@@ -129,11 +147,11 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
             &run.columns,
         )?;
         let succeeded = run.columns.iter().all(|c| !c.reason.is_trouble());
-        return finish(png, bytes, args, succeeded);
+        return finish(png, bytes, &size_text(args), succeeded);
     }
     let prepared = prepare(&args.file)?;
     let scenario = prepared.scenario.clone();
-    let names: Vec<String> = scenario.states.iter().map(|s| s.name.clone()).collect();
+    let n_states = scenario.states.len();
     let (cut, strobe) = match args.view {
         View::Cut if prepared.cut.is_none() => bail!("{} has no cut", args.file.display()),
         View::Strobe if prepared.strobe.is_none() => bail!("{} has no strobe", args.file.display()),
@@ -145,14 +163,14 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
         Run::new(prepared.model, prepared.spec, cut, strobe, false).execute(&mut sink, &interrupt);
     if let StopReason::Cancelled { t } = outcome.reason {
         return Err(Interrupted(format!(
-            "interrupted at t = {t}; {}",
+            "stopped at t = {t} on a signal; {}",
             outputs::nothing_written(&[&args.png])
         ))
         .into());
     }
     let figure = |x: String, y: String, what: &str| Figure {
         size: args.size,
-        title: format!("{} — {what}", scenario.title),
+        title: picture_title(&scenario.title, what),
         caption: scenario.caption(),
         x_label: x,
         y_label: y,
@@ -160,11 +178,11 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
     let bytes = match args.view {
         View::Trajectory => {
             let axes = three_axes(&scenario);
-            let n = names.len();
-            let label = |a: usize| match names.get(a) {
-                Some(name) => name.clone(),
-                None if a == n => "t".into(),
-                None => "drive phase".into(),
+            let n = n_states;
+            let label = |a: usize| match a {
+                _ if a < n => scenario.state_label(a),
+                _ if a == n => scenario.time_label(),
+                _ => time_within_period_label(&scenario),
             };
             let points = sink.trajectory.iter().map(|(t, s)| {
                 let v = |a: usize| match s.get(a) {
@@ -174,11 +192,11 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
                 };
                 (v(axes[0]), v(axes[1]), v(axes[2]))
             });
-            // a new piece of line wherever the drive phase wraps around
-            let phase_axis = axes.iter().position(|&a| a == n + 1);
-            let pieces = lamina_render::split_where_it_wraps(points, phase_axis);
+            // a new piece of line wherever the time within the period wraps around
+            let wrapping_axis = axes.iter().position(|&a| a == n + 1);
+            let pieces = lamina_render::split_where_it_wraps(points, wrapping_axis);
             lamina_render::trajectory_png(
-                &figure(label(axes[0]), label(axes[1]), "trajectory"),
+                &figure(label(axes[0]), label(axes[1]), view_names::TRAJECTORY),
                 &label(axes[2]),
                 &pieces,
             )?
@@ -195,7 +213,11 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
                     .filter_map(|p| p.return_time.map(|r| (p.state[keep], r)))
                     .collect();
                 lamina_render::scatter_png(
-                    &figure(names[keep].clone(), "return time".into(), "cut points"),
+                    &figure(
+                        scenario.state_label(keep),
+                        return_time_label(&scenario),
+                        view_names::CUT,
+                    ),
                     &points,
                     None,
                 )?
@@ -204,7 +226,11 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
                     sink.cut.iter().map(|p| (p.state[a], p.state[b])).collect();
                 let order: Vec<f64> = (0..points.len()).map(|i| i as f64).collect();
                 lamina_render::scatter_png(
-                    &figure(names[a].clone(), names[b].clone(), "cut points"),
+                    &figure(
+                        scenario.state_label(a),
+                        scenario.state_label(b),
+                        view_names::CUT,
+                    ),
                     &points,
                     Some(&order),
                 )?
@@ -219,47 +245,65 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
                 .collect();
             let order: Vec<f64> = (0..points.len()).map(|i| i as f64).collect();
             lamina_render::scatter_png(
-                &figure(names[a].clone(), names[b].clone(), "strobe samples"),
+                &figure(
+                    scenario.state_label(a),
+                    scenario.state_label(b),
+                    view_names::STROBE,
+                ),
                 &points,
                 Some(&order),
             )?
         }
-        View::Sweep => unreachable_sweep()?,
+        View::Sweep | View::Branch => drawn_above()?,
     };
-    let code = finish(png, bytes, args, !outcome.reason.is_trouble())?;
-    if outcome.reason.is_trouble() {
+    let trouble = outcome.reason.is_trouble();
+    let code = finish(png, bytes, &size_text(args), !trouble)?;
+    if trouble {
         eprintln!(
-            "the run stopped early: {}; the picture shows what was found before",
+            "the run ended early: {}; the picture shows what was found before",
             outcome.reason
         );
     }
     Ok(code)
 }
 
-fn unreachable_sweep() -> Result<Vec<u8>> {
-    bail!("the sweep view is drawn above")
+/// `the picture (WxH)`.
+fn size_text(args: &RenderArgs) -> String {
+    format!("the picture ({}x{})", args.size.0, args.size.1)
 }
 
-/// Writes the picture into `png`: over its target when the run `succeeded` or nothing was
-/// there, else beside it; says where it went.
-fn finish(
-    mut png: AtomicFile,
-    bytes: Vec<u8>,
-    args: &RenderArgs,
-    succeeded: bool,
-) -> Result<ExitCode> {
+fn drawn_above() -> Result<Vec<u8>> {
+    bail!("the sweep and branch views are drawn above")
+}
+
+/// Writes the picture `what` into `png`: over its target when the run `succeeded` or
+/// nothing was there, else beside it; says where it went.
+fn finish(mut png: AtomicFile, bytes: Vec<u8>, what: &str, succeeded: bool) -> Result<ExitCode> {
     png.write_all(&bytes).context("--png")?;
-    let note = outputs::finish(
-        png,
-        succeeded,
-        &format!("the picture ({}x{})", args.size.0, args.size.1),
-    )?;
+    let note = outputs::finish(png, succeeded, what)?;
     eprintln!("{note}");
     Ok(if succeeded {
         ExitCode::SUCCESS
     } else {
         ExitCode::FAILURE
     })
+}
+
+/// `return time`, with the time's unit.
+fn return_time_label(scenario: &Scenario) -> String {
+    with_time_unit("return time", scenario)
+}
+
+/// The label of the time within the strobe period (`t mod T`), with the time's unit.
+fn time_within_period_label(scenario: &Scenario) -> String {
+    with_time_unit("t mod T", scenario)
+}
+
+fn with_time_unit(label: &str, scenario: &Scenario) -> String {
+    match scenario.time.unit.as_deref() {
+        Some(unit) if !unit.trim().is_empty() => format!("{label} ({unit})"),
+        _ => label.to_owned(),
+    }
 }
 
 /// The three coordinates of the 3D picture: the view block's, else the first three states,

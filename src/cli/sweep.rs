@@ -30,9 +30,9 @@ pub struct SweepArgs {
     /// Also draw the orbit diagram into this PNG.
     #[arg(long, value_name = "FILE.png")]
     png: Option<PathBuf>,
-    /// Run only every N-th value starting at I (restart mode), for spreading one sweep over
-    /// several machines; concatenating the shards' rows and sorting by the parameter value
-    /// gives the whole sweep.
+    /// Run only every N-th value starting at I, for spreading one sweep over several machines
+    /// (a sweep with `follow: false` only); concatenating the shards' rows and sorting by the
+    /// parameter value gives the whole sweep.
     #[arg(long, value_name = "I/N", value_parser = parse_shard)]
     shard: Option<(usize, usize)>,
 }
@@ -159,16 +159,16 @@ pub fn run_sweep(
     })
 }
 
-/// What an interrupted sweep did: how many values were done and the last one in sweep
+/// What a sweep stopped on a signal did: how many values were done and the last one in sweep
 /// order.
-pub fn interrupted_sweep(run: &SweepRun, parameter: &str, written: &[&Path]) -> Interrupted {
+pub fn stopped_sweep(run: &SweepRun, parameter: &str, written: &[&Path]) -> Interrupted {
     let last = run
         .columns
         .last()
         .map(|c| format!(" (the last done in order: {parameter} = {})", c.value))
         .unwrap_or_default();
     Interrupted(format!(
-        "interrupted after {} of {} value(s){last}; {}",
+        "stopped on a signal after {} of {} value(s){last}; {}",
         run.columns.len(),
         run.n_values,
         outputs::nothing_written(written)
@@ -207,7 +207,7 @@ pub fn sweep(args: &SweepArgs) -> Result<ExitCode> {
     let parameter = scenario.parameters[spec.parameter].name.clone();
     if interrupt.is_raised() {
         let written: Vec<&Path> = paths.iter().map(|(_, p)| *p).collect();
-        return Err(interrupted_sweep(&run, &parameter, &written).into());
+        return Err(stopped_sweep(&run, &parameter, &written).into());
     }
     let names: Vec<String> = scenario.states.iter().map(|s| s.name.clone()).collect();
     let troubled: Vec<String> = columns
@@ -281,30 +281,26 @@ pub fn sweep(args: &SweepArgs) -> Result<ExitCode> {
 /// Tolerance of the repeat test, relative to the size of the kept points.
 pub const REPEAT_TOLERANCE: f64 = 1e-5;
 
-/// Prints where the repeat period changes along the sweep (stderr).
+/// The most returns a repeat is looked for.
+const MAX_RETURNS: usize = 12;
+
+/// Prints after how many returns each value repeats at the first value and where that
+/// changes along the sweep (stderr).
 fn report_changes(parameter: &str, columns: &[SweepColumn]) {
     let periods: Vec<(f64, Option<usize>)> = columns
         .iter()
         .map(|c| {
             (
                 c.value,
-                lamina_core::sweep::repeat_period(&c.points, 12, REPEAT_TOLERANCE),
+                lamina_core::sweep::repeat_period(&c.points, MAX_RETURNS, REPEAT_TOLERANCE),
             )
         })
         .collect();
-    let name =
-        |p: Option<usize>| p.map_or("no repeat up to 12".to_string(), |k| format!("period {k}"));
-    let changes = lamina_core::sweep::period_changes(&periods);
     if let Some(first) = periods.first() {
-        eprintln!("{parameter} = {}: {}", first.0, name(first.1));
+        let returns = lamina_core::sweep::returns_text(first.1, MAX_RETURNS);
+        eprintln!("{parameter} = {}: {returns}", first.0);
     }
-    for c in changes {
-        eprintln!(
-            "{} -> {} between {parameter} = {} and {}",
-            name(c.from),
-            name(c.to),
-            c.below,
-            c.above
-        );
+    for change in lamina_core::sweep::period_changes(&periods) {
+        eprintln!("{}", change.describe(parameter, MAX_RETURNS));
     }
 }

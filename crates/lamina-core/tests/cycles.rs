@@ -400,6 +400,9 @@ fn failure_messages_read_as_one_sentence() {
         .to_string(),
     ];
     for message in messages {
-        assert!(!message.contains("  ") && !message.contains('\n'), "{message}");
+        assert!(
+            !message.contains("  ") && !message.contains('\n'),
+            "{message}"
+        );
     }
 }

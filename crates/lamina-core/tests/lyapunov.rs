@@ -368,7 +368,7 @@ fn numerical_trouble_ends_the_run_with_its_time() {
         &ExponentSettings::all(),
     );
     assert!(
-        matches!(s.reason, StopReason::Escaped { t } if t > 0.99 && t < 1.0),
+        matches!(s.reason, StopReason::Escaped { t, .. } if t > 0.99 && t < 1.0),
         "{:?}",
         s.reason
     );
@@ -382,7 +382,7 @@ fn numerical_trouble_ends_the_run_with_its_time() {
         &spec(Method::Dp853, 1e-9, 0.5, 5.0),
         &ExponentSettings::all(),
     );
-    let StopReason::Escaped { t } = s.reason else {
+    let StopReason::Escaped { t, .. } = s.reason else {
         panic!("expected an escape, got {:?}", s.reason)
     };
     assert!(t > 0.99 && t < 1.0, "t = {t}");
@@ -523,7 +523,7 @@ fn a_sliding_mode_is_reported_as_chattering_where_it_starts() {
     for (settle, method) in [
         (0.0, Method::Dp853),
         (5.0, Method::Dp853),
-        (0.0, Method::Auto),
+        (0.0, Method::Automatic),
     ] {
         let m = model(&[("x", 1.0, "-sign(x)"), ("y", 0.5, "-y")], &[]);
         let s = compute(

@@ -28,7 +28,15 @@ fn escape_is_reported_with_its_time() {
     let m = model(&[("x", 1.0, "x^2")], &[]);
     let (_, outcome) = collect(m, spec(Method::Dp853, 1e-9, 0.0, 5.0), None, None);
     match outcome.reason {
-        StopReason::Escaped { t } => assert!(t > 0.99 && t < 1.0, "t = {t}"),
+        StopReason::Escaped { t, escape } => {
+            assert!(t > 0.99 && t < 1.0, "t = {t}");
+            assert_eq!(escape, 1e6);
+            let message = outcome.reason.to_string();
+            assert!(
+                message.starts_with("a state passed the escape size 1e6 at t = 0.99"),
+                "{message}"
+            );
+        }
         other => panic!("expected an escape, got {other:?}"),
     }
 }
@@ -327,7 +335,7 @@ fn no_sample_beyond_the_escape_size_is_recorded() {
     let cut = level(&m, "x - 2e6*floor(y)", Direction::Both);
     for method in [Method::Dp5, Method::Dp853, Method::Rodas4] {
         let mut run_spec = spec(method, 10.0, 0.0, 20.0);
-        run_spec.bound = 1e6;
+        run_spec.escape = 1e6;
         let (points, outcome) = collect(m.clone(), run_spec, Some(cut.clone()), Some(s));
         assert!(
             matches!(outcome.reason, StopReason::Escaped { .. }),

@@ -222,7 +222,7 @@ fn difference_jacobian_gives_the_same_solution_as_the_exact_one() {
     assert_eq!(lazy_exact.n_jacobians, lazy_exact.n_accepted);
     let s2 = lazy_differences;
     assert_eq!(
-        s2.n_rates,
+        s2.n_rate_evaluations,
         2 + 5 * (s2.n_accepted + s2.n_rejected) + s2.n_accepted + 2 * s2.n_jacobians
     );
     let s1 = lazy_exact;
@@ -274,7 +274,7 @@ fn forced_points(method: Method, k: f64, tol: f64, c: f64) -> (Points, Points) {
 
 #[test]
 fn strobe_samples_and_cut_points_of_a_stiffly_forced_model_are_accurate() {
-    for method in [Method::Rodas4, Method::Auto] {
+    for method in [Method::Rodas4, Method::Automatic] {
         for (k, tol) in [(1e4, 1e-6), (1e6, 1e-2), (1e3, 1e-9)] {
             let (samples, crossings) = forced_points(method, k, tol, 0.5);
             assert!(samples.len() >= 6, "{method:?} {k:e}: {samples:?}");

@@ -27,7 +27,7 @@ fn the_strobe_map_of_a_stiff_nonlinear_model_has_the_exact_derivative() {
             max_step: None,
             initial_step: None,
         },
-        bound: 1e6,
+        escape: 1e6,
         max_return_time: 10.0,
     };
     let mut map = FlowMap::new(m, MapKind::Strobe(strobe), settings).expect("a strobe map");
@@ -109,7 +109,7 @@ fn the_working_memory_grows_with_the_square_of_the_states() {
     // [analytic] n + n^2 values per vector: for 200 states 40 200 values, 322 kB a vector;
     // the steppers hold a few dozen such vectors and the stiff method two 200 x 200 matrices,
     // where one matrix of the whole system would take 40 200^2 x 8 bytes = 12.9 GB
-    for method in [Method::Rodas4, Method::Auto, Method::Dp853] {
+    for method in [Method::Rodas4, Method::Automatic, Method::Dp853] {
         let bytes = FlowMap::workspace_bytes(200, method);
         assert!(bytes < 40_000_000, "{method:?}: {bytes}");
         let bytes = workspace_bytes(200, 200, method);
@@ -123,7 +123,7 @@ fn the_working_memory_grows_with_the_square_of_the_states() {
 fn exponents_that_cannot_fit_in_memory_are_refused_with_the_size() {
     // 3 000 000 states with all exponents: 9e12 values per vector, far beyond any memory;
     // the run is refused before it allocates, with the size and what to do
-    let bytes = workspace_bytes(3_000_000, 3_000_000, Method::Auto);
+    let bytes = workspace_bytes(3_000_000, 3_000_000, Method::Automatic);
     assert!(!lamina_core::memory::can_allocate(bytes));
     let text = ExponentError::TooLarge {
         bytes,

@@ -17,6 +17,9 @@ use crate::widgets::{number_field, problems_ui};
 /// Tolerance of the repeat test, relative to the size of the kept points.
 const REPEAT_TOLERANCE: f64 = 1e-5;
 
+/// The most returns a repeat is looked for.
+const MAX_RETURNS: usize = 12;
+
 /// The sweep's job and what it has produced.
 #[derive(Default)]
 pub struct SweepState {
@@ -51,7 +54,7 @@ pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChan
                 parameter: p.map(|p| p.name.clone()).unwrap_or_default(),
                 from: p.map_or(0.0, |p| p.range.0),
                 to: p.map_or(1.0, |p| p.range.1),
-                steps: 200,
+                values: 201,
                 settle: 200.0,
                 keep: 32,
                 follow: true,
@@ -84,8 +87,8 @@ pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChan
             changed |= number_field(ui, egui::Id::unique("sweep_to"), &mut sweep.to, 64.0).on_hover_text("Last value").changed();
         });
         ui.end_row();
-        ui.label("steps");
-        changed |= ui.add(egui::DragValue::new(&mut sweep.steps).range(1..=100_000)).on_hover_text("Intervals between from and to").changed();
+        ui.label("values");
+        changed |= ui.add(egui::DragValue::new(&mut sweep.values).range(2..=100_001)).on_hover_text("Number of parameter values, from and to included").changed();
         ui.end_row();
         ui.label("settle per value");
         changed |= number_field(ui, egui::Id::unique("sweep_settle"), &mut sweep.settle, 64.0).on_hover_text("Transient at each value, not kept").changed();
@@ -95,8 +98,8 @@ pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChan
         ui.end_row();
         ui.label("points from");
         ui.horizontal(|ui| {
-            changed |= ui.selectable_value(&mut sweep.source, SweepSource::Strobe, "strobe").changed();
             changed |= ui.selectable_value(&mut sweep.source, SweepSource::Cut, "cut").changed();
+            changed |= ui.selectable_value(&mut sweep.source, SweepSource::Strobe, "strobe").changed();
         });
         ui.end_row();
         ui.label("plotted");
@@ -126,6 +129,11 @@ impl ExplorerApp {
             .get(self.sweep.axes.0)
             .map(|p| p.name.clone())
             .unwrap_or_default()
+    }
+
+    /// The swept parameter's name with its unit, for axes.
+    pub(crate) fn swept_parameter_label(&self) -> String {
+        self.doc.scenario.parameter_label(self.sweep.axes.0)
     }
 
     /// Starts the scenario's sweep.
@@ -177,7 +185,7 @@ impl ExplorerApp {
         for event in self.sweep.worker.drain() {
             match event {
                 SweepEvent::Column(column) => {
-                    let period = repeat_period(&column.points, 12, REPEAT_TOLERANCE);
+                    let period = repeat_period(&column.points, MAX_RETURNS, REPEAT_TOLERANCE);
                     let at = self
                         .sweep
                         .columns
@@ -195,23 +203,18 @@ impl ExplorerApp {
                             .collect();
                         let changes = lamina_core::sweep::period_changes(&periods);
                         self.note(format!(
-                            "sweep done: {} of {} values, {} change(s) of period",
+                            "sweep done: {} of {} values, {} change(s) of the repeat",
                             self.sweep.columns.len(),
                             self.sweep.total,
                             changes.len()
                         ));
                         let name = self.swept_parameter_name();
+                        if let Some((first, returns)) = periods.first() {
+                            let returns = lamina_core::sweep::returns_text(*returns, MAX_RETURNS);
+                            self.note(format!("  {name} = {first}: {returns}"));
+                        }
                         for c in changes.iter().take(12) {
-                            let show = |p: Option<usize>| {
-                                p.map_or("no repeat".to_string(), |k| format!("period {k}"))
-                            };
-                            self.note(format!(
-                                "  {} to {} between {name} = {:.6} and {:.6}",
-                                show(c.from),
-                                show(c.to),
-                                c.below,
-                                c.above
-                            ));
+                            self.note(format!("  {}", c.describe(&name, MAX_RETURNS)));
                         }
                     }
                 },
@@ -262,19 +265,14 @@ impl ExplorerApp {
         }
         let (parameter, coordinate) = self.sweep.axes;
         let pname = self.swept_parameter_name();
-        let cname = self
-            .doc
-            .scenario
-            .states
-            .get(coordinate)
-            .map(|s| s.name.clone())
-            .unwrap_or_default();
+        let plabel = self.swept_parameter_label();
+        let clabel = self.doc.scenario.state_label(coordinate);
         let current = self.doc.scenario.parameters.get(parameter).map(|p| p.value);
         let clicked = orbit_diagram_ui(
             ui,
             &self.sweep.columns,
             coordinate,
-            (&pname, &cname),
+            (&plabel, &clabel),
             current,
         );
         if let Some(value) = clicked

@@ -5,7 +5,7 @@ use plotters::prelude::*;
 use crate::figure::{FONT, Figure, RenderError, draw_error, encode_png, register_font};
 
 const BACKGROUND: RGBColor = RGBColor(255, 255, 255);
-const INK: RGBColor = RGBColor(30, 34, 42);
+pub(crate) const INK: RGBColor = RGBColor(30, 34, 42);
 const TRACE: RGBColor = RGBColor(36, 98, 160);
 
 /// Lamina's ramp (deep blue to coral) for colouring by order or return time.
@@ -36,7 +36,7 @@ fn ramp(u: f64) -> RGBColor {
     RGBColor(228, 96, 70)
 }
 
-fn range_of(values: impl Iterator<Item = f64>) -> (f64, f64) {
+pub(crate) fn range_of(values: impl Iterator<Item = f64>) -> (f64, f64) {
     let (lo, hi) = values
         .filter(|v| v.is_finite())
         .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
@@ -74,7 +74,7 @@ fn font_size(figure: &Figure, fraction: f64, min: f64) -> f64 {
 
 /// The PNG of `figure`: a white canvas of its size with the caption at the bottom, on which
 /// `draw` puts the rest.
-fn picture(
+pub(crate) fn picture(
     figure: &Figure,
     draw: impl FnOnce(
         &DrawingArea<BitMapBackend<'_>, plotters::coord::Shift>,
@@ -149,7 +149,7 @@ pub fn scatter_png(
 }
 
 /// A 3D trajectory in orthographic projection: pieces of line (each a list of (across, depth,
-/// up) points; a wrapping drive phase starts a new piece).
+/// up) points; the time within the drive period starts a new piece where it wraps around).
 pub fn trajectory_png(
     figure: &Figure,
     z_label: &str,
@@ -211,7 +211,7 @@ pub fn trajectory_png(
 }
 
 /// Splits a line of 3D points into pieces wherever coordinate `axis` (0, 1 or 2) falls
-/// from one point to the next, as a drive phase does when it wraps around; with no axis, one
+/// from one point to the next, as the time within the drive period does when it wraps around; with no axis, one
 /// piece.
 pub fn split_where_it_wraps(
     points: impl IntoIterator<Item = (f64, f64, f64)>,
@@ -263,9 +263,9 @@ mod tests {
     use super::*;
 
     #[test]
-    fn a_line_splits_where_its_phase_wraps() {
-        // [analytic] phase 0.5, 0.9, then 0.1 (wrapped), 0.4: two pieces of two points
-        let points = [0.5, 0.9, 0.1, 0.4].map(|phase| (1.0, 2.0, phase));
+    fn a_line_splits_where_its_third_coordinate_wraps() {
+        // [analytic] 0.5, 0.9, then 0.1 (wrapped), 0.4: two pieces of two points
+        let points = [0.5, 0.9, 0.1, 0.4].map(|within| (1.0, 2.0, within));
         let pieces = split_where_it_wraps(points, Some(2));
         assert_eq!(pieces.len(), 2);
         assert_eq!(pieces[0], vec![(1.0, 2.0, 0.5), (1.0, 2.0, 0.9)]);

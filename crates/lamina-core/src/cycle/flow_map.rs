@@ -43,20 +43,20 @@ pub struct MapSettings {
     pub method: Method,
     /// Tolerances (applied to the states and to the variational matrix alike).
     pub control: StepControl,
-    /// Following the orbit fails when a state's magnitude exceeds this.
-    pub bound: f64,
+    /// Following the orbit fails when a state's magnitude passes this escape size.
+    pub escape: f64,
     /// Longest time allowed between two crossings of the cut before the crossing counts as
     /// lost.
     pub max_return_time: f64,
 }
 
 impl MapSettings {
-    /// The integrator and bound of a run's settings, with the given longest return time.
+    /// The integrator and escape size of a run's settings, with the given longest return time.
     pub fn from_run(spec: &RunSpec, max_return_time: f64) -> Self {
         Self {
             method: spec.method,
             control: spec.control,
-            bound: spec.bound,
+            escape: spec.escape,
             max_return_time,
         }
     }
@@ -415,7 +415,7 @@ impl FlowMap {
         Ok(())
     }
 
-    /// One step no further than `t_limit`, with the bound check; its dense output only on
+    /// One step no further than `t_limit`, with the escape check; its dense output only on
     /// [`FlowMap::accurate_dense`].
     pub(super) fn step(&mut self, t_limit: f64) -> Result<(), CycleError> {
         if self.interrupt.as_ref().is_some_and(|i| i.is_raised()) {
@@ -425,13 +425,13 @@ impl FlowMap {
         }
         let mut rates = Variational::new(&mut self.model, self.with_matrix);
         self.integrator.step_lazy(&mut rates, t_limit)?;
-        let bound = self.settings.bound;
+        let escape = self.settings.escape;
         if self.integrator.x()[..self.n]
             .iter()
-            .any(|v| v.abs() > bound)
+            .any(|v| v.abs() > escape)
         {
             return Err(CycleError::Escaped {
-                bound,
+                escape,
                 t: self.integrator.t(),
             });
         }

@@ -16,7 +16,7 @@ mod cut_map;
 mod differences;
 mod error;
 mod flow_map;
-mod linalg;
+pub(crate) mod linalg;
 mod newton;
 mod recurrence;
 mod report;

@@ -76,7 +76,7 @@ impl fmt::Display for Recurrence {
                 relative_spread,
             } => write!(
                 f,
-                "no repeat up to {max_k} (closest: every {closest_k}, relative spread \
+                "no repeat within {max_k} returns (closest: every {closest_k}, relative spread \
                  {relative_spread:.1e}): a torus, chaos or an unsettled transient"
             ),
             Self::TooFewPoints { n_points } => {

@@ -1,13 +1,13 @@
 //! Rodas4, the stiffly accurate, L-stable Rosenbrock method of order 4(3): E. Hairer &
 //! G. Wanner, Solving Ordinary Differential Equations II (2nd ed., 1996), sec. IV.7 and VI.4,
 //! as in their code RODAS. Six stages, one Jacobian and one LU decomposition of
-//! `I / (h gamma) - J` per step, five right-hand-side evaluations per attempt and one for `f`
+//! `I / (h gamma) - J` per step, five rate evaluations per attempt and one for `f`
 //! at the accepted state. For variational equations the matrices are the model's own `n x n`
 //! ones (see `rodas_matrix.rs`).
 //!
 //! The dense output has the nested form of [`super::DenseSegment`] with five terms
 //! `y0, y1 - y0, q2, q3, q4`: a quartic through both ends of the step (a stepper paired with
-//! DOP853, method `Auto`, pads them with zero terms to DOP853's eight). In a step that is not
+//! DOP853, method `Automatic`, pads them with zero terms to DOP853's eight). In a step that is not
 //! stiff (`h |J| <= 1`) it is the third-order interpolant of RODAS, built from the stage
 //! solutions (`q4 = 0`). That interpolant follows a stiff component badly: on
 //! `y' = -k (y - g(t))` with `h k >> 1` its error grows like `h^3` times the third derivative
@@ -223,7 +223,7 @@ impl Rodas {
             let floor = super::rodas_matrix::DIFFERENCE_FLOOR;
             let t1 = t + (f64::EPSILON * t.abs().max(floor)).sqrt();
             rates.rates(t1, x, &mut self.f_stage);
-            stats.n_rates += 1;
+            stats.n_rate_evaluations += 1;
             let delta = t1 - t;
             for ((d, f1), f0) in self.f_t.iter_mut().zip(&self.f_stage).zip(&self.f0) {
                 *d = (f1 - f0) / delta;
@@ -247,7 +247,7 @@ impl Rodas {
         dense: bool,
     ) -> bool {
         rates.rates(t + h, &self.x_new, &mut self.f_new);
-        stats.n_rates += 1;
+        stats.n_rate_evaluations += 1;
         if !self.f_new.iter().all(|v| v.is_finite()) {
             return false;
         }
@@ -455,7 +455,7 @@ impl Stages<'_> {
         ];
         stage_rhs(u6, fs, 0.0, f_t, inv_h, &earlier);
         matrix.solve(rates, t, x, u6, stats);
-        stats.n_rates += EVALS_PER_ATTEMPT;
+        stats.n_rate_evaluations += EVALS_PER_ATTEMPT;
         true
     }
 }

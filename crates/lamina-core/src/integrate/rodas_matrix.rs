@@ -149,7 +149,7 @@ impl IterationMatrix {
                         }
                         y_scratch[j] = xj;
                     }
-                    stats.n_rates += dim as u64;
+                    stats.n_rate_evaluations += dim as u64;
                 }
             }
         }

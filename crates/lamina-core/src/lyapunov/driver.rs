@@ -37,7 +37,7 @@ const PROGRESS_EVERY_STEPS: u64 = 256;
 /// (`rates_jump`).
 ///
 /// Cancellation: `interrupt` is checked once per step. Numerical trouble (a state beyond
-/// `run.bound`, a value not finite, a collapsing step) ends the run with its reason and
+/// `run.escape`, a value not finite, a collapsing step) ends the run with its reason and
 /// time; the estimates up to the last good step are returned.
 ///
 /// # Errors
@@ -175,14 +175,14 @@ impl Work {
 
     /// Integrates the settle time without tangent vectors; a reason if the run ends in it.
     fn settle(&mut self, sink: &mut dyn ExponentSink, interrupt: &Interrupt) -> Option<StopReason> {
-        if let Some(reason) = check_state(self.run.bound, self.t, &self.x) {
+        if let Some(reason) = check_state(self.run.escape, self.t, &self.x) {
             return Some(reason);
         }
         let t_record = self.run.t_record();
         if self.t >= t_record {
             return None;
         }
-        let bound = self.run.bound;
+        let escape = self.run.escape;
         let model = self.tangent.model_mut();
         let mut integrator = Integrator::new(self.run.method, self.run.control, self.n);
         integrator.reset(model, self.t, &self.x);
@@ -199,7 +199,7 @@ impl Work {
             }
             self.n_steps += 1;
             let t1 = integrator.t();
-            if let Some(reason) = check_state(bound, t1, integrator.x()) {
+            if let Some(reason) = check_state(escape, t1, integrator.x()) {
                 break Some(reason);
             }
             if let Some(t) = self
@@ -248,7 +248,7 @@ impl Work {
             self.n_steps += 1;
             let t1 = integrator.t();
             let (x, vectors) = integrator.x().split_at(n);
-            if let Some(reason) = check_state(self.run.bound, t1, x) {
+            if let Some(reason) = check_state(self.run.escape, t1, x) {
                 break reason;
             }
             let model = self.tangent.model();
@@ -332,7 +332,7 @@ impl Work {
         let rates_jump = model.program().jumps_with_states();
         let n_states = self.n;
         // only a run that finished its span is read: one that escaped grew without bound,
-        // any other that stopped early is undecided (its estimates are kept, unread)
+        // any other that ended early is undecided (its estimates are kept, unread)
         let finished = reason == StopReason::Finished;
         let verdict = match reason {
             StopReason::Finished => classify(&self.estimates, &spread, n_states, omitted),
@@ -375,19 +375,19 @@ fn fraction_done(run: &RunSpec, t: f64) -> f64 {
 }
 
 /// Escape and non-finite checks of the model's state `x` at `t`.
-fn check_state(bound: f64, t: f64, x: &[f64]) -> Option<StopReason> {
+fn check_state(escape: f64, t: f64, x: &[f64]) -> Option<StopReason> {
     if x.iter().any(|v| !v.is_finite()) {
         return Some(StopReason::NotFinite { t });
     }
-    if x.iter().any(|v| v.abs() > bound) {
-        return Some(StopReason::Escaped { t });
+    if x.iter().any(|v| v.abs() > escape) {
+        return Some(StopReason::Escaped { t, escape });
     }
     None
 }
 
 /// Adds the work counters of `more` to `total`.
 fn add_stats(total: &mut Stats, more: Stats) {
-    total.n_rates += more.n_rates;
+    total.n_rate_evaluations += more.n_rate_evaluations;
     total.n_accepted += more.n_accepted;
     total.n_rejected += more.n_rejected;
 }

@@ -56,7 +56,7 @@ pub struct Spectrum {
     /// or when the run did not finish its span.
     pub kaplan_yorke: Option<f64>,
     /// What the exponents say the steady state is (`Unbounded` for a run that escaped,
-    /// `Undecided` for one that stopped early otherwise).
+    /// `Undecided` for one that ended early otherwise).
     pub verdict: Verdict,
     /// The running estimates, thinned (for a convergence plot).
     pub trace: Trace,

@@ -116,7 +116,7 @@ pub enum Verdict {
     /// orbit from a torus.
     Regular,
     /// The run was too short to judge (fewer than two samples in the tail of the trace), or
-    /// it stopped before the end of its span (cancelled, chattering, a value not finite, a
+    /// it ended before the end of its span (stopped on a signal, chattering, a value not finite, a
     /// collapsing step): exponents of an unfinished run say nothing about the steady state.
     Undecided,
     /// A state passed the escape size: the motion grows without bound, and the exponents
@@ -142,7 +142,7 @@ impl std::fmt::Display for Verdict {
             ),
             Self::Undecided => write!(
                 f,
-                "undecided (the run is too short to judge, or it stopped before the end of its span)"
+                "undecided (the run is too short to judge, or it ended early)"
             ),
             Self::Unbounded => write!(
                 f,

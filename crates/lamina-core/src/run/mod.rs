@@ -12,7 +12,7 @@ mod time_resolution;
 
 pub use cut::{Cut, CutPoint, Direction, Surface};
 pub(crate) use driver::stop_reason;
-pub use driver::{Collect, Run, RunOutcome, Sink, StopReason, run_once};
+pub use driver::{Collect, Run, RunOutcome, Sink, Size, StopReason, run_once};
 pub use spec::{CutSpec, RunSpec, SpecError, StrobeSpec, SurfaceSpec};
 pub use stored::StoredRun;
 pub use strobe::{Strobe, StrobeSample};

@@ -1,4 +1,4 @@
-//! The strobe (time-T map): samples at `phase + k T` taken from the dense output.
+//! The strobe (time-T map): samples at `first_at + k T` taken from the dense output.
 
 use super::{SpecError, StrobeSpec};
 use crate::expr::Program;
@@ -10,7 +10,7 @@ pub struct Strobe {
     /// Sampling period, positive.
     pub period: f64,
     /// Absolute time of sample index 0.
-    pub phase: f64,
+    pub first_at: f64,
 }
 
 impl Strobe {
@@ -35,14 +35,14 @@ impl Strobe {
         }
         Ok(Self {
             period,
-            phase: spec.phase,
+            first_at: spec.first_at,
         })
     }
 
     /// Time of sample `index`, computed afresh (never accumulated) so it does not drift.
     #[inline]
     pub fn time_of(&self, index: i64) -> f64 {
-        self.phase + index as f64 * self.period
+        self.first_at + index as f64 * self.period
     }
 
     /// The first sample index whose time is at or after `t`. Where the times are too coarse
@@ -51,7 +51,7 @@ impl Strobe {
     /// `2^53` in size is held there; this never loops long nor overflows.
     pub fn first_index_from(&self, t: f64) -> i64 {
         const LIMIT: f64 = 9_007_199_254_740_992.0; // 2^53
-        let guess = ((t - self.phase) / self.period).ceil();
+        let guess = ((t - self.first_at) / self.period).ceil();
         if guess.is_nan() {
             return 0;
         }
@@ -78,7 +78,7 @@ impl Strobe {
 /// One strobe sample.
 #[derive(Clone, Debug, PartialEq)]
 pub struct StrobeSample {
-    /// Absolute sample index: `t = phase + index * period`.
+    /// Absolute sample index: `t = first_at + index * period`.
     pub index: i64,
     /// Sample time.
     pub t: f64,

@@ -142,7 +142,7 @@ pub fn check_time_resolution(
         }
     }
     if let Some(strobe) = strobe {
-        let (first_at, period) = (strobe.phase, strobe.period);
+        let (first_at, period) = (strobe.first_at, strobe.period);
         for t in [spec.t_record(), spec.t_end()] {
             if !(t.is_finite() && first_at.is_finite()) {
                 continue;
@@ -220,14 +220,14 @@ mod tests {
     fn strobe_times_far_from_zero_are_refused() {
         let strobe = Strobe {
             period: 1.0,
-            phase: 1e20,
+            first_at: 1e20,
         };
         let err = check_time_resolution(&window(0.0, 0.0, 100.0), Some(&strobe))
             .expect_err("first sample far away");
         assert!(matches!(err, TimeResolution::StrobeTimes { .. }), "{err}");
         let strobe = Strobe {
             period: 1.0,
-            phase: 0.0,
+            first_at: 0.0,
         };
         assert!(check_time_resolution(&window(1e15, 0.0, 100.0), Some(&strobe)).is_err());
         assert!(check_time_resolution(&window(1e6, 0.0, 100.0), Some(&strobe)).is_ok());

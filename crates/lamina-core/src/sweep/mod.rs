@@ -7,6 +7,6 @@ mod column;
 mod driver;
 mod period;
 
-pub use column::{SweepColumn, SweepSource, SweepSpec};
+pub use column::{SweepColumn, SweepSource, SweepSpec, grid_value};
 pub use driver::{SweepError, run_value, sweep_follow, sweep_restart};
-pub use period::{PeriodChange, period_changes, repeat_period};
+pub use period::{PeriodChange, period_changes, repeat_period, returns_text};

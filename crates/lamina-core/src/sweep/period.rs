@@ -1,4 +1,6 @@
-//! The period of a sweep column: the smallest k for which the kept points repeat every k.
+//! The repeat of a sweep column: the smallest number of returns k after which the kept
+//! points repeat, and the words for it and for where it changes along a sweep (one wording
+//! for the command line and the window).
 
 /// The smallest `k <= max_k` such that every kept point is within `tolerance` (relative to
 /// the spread of the points, plus an absolute floor) of the point `k` places later; `None`
@@ -38,6 +40,28 @@ pub struct PeriodChange {
     pub from: Option<usize>,
     /// New period.
     pub to: Option<usize>,
+}
+
+impl PeriodChange {
+    /// `1-return orbit to 2-return orbit between a = 0.234 and 0.236`, the values in their
+    /// shortest round-trip form; `max_returns` is the most returns the repeat was looked for.
+    pub fn describe(&self, parameter: &str, max_returns: usize) -> String {
+        format!(
+            "{} to {} between {parameter} = {} and {}",
+            returns_text(self.from, max_returns),
+            returns_text(self.to, max_returns),
+            self.below,
+            self.above
+        )
+    }
+}
+
+/// `1-return orbit`, `2-return orbit`, or `no repeat within 12 returns` for `None`.
+pub fn returns_text(returns: Option<usize>, max_returns: usize) -> String {
+    match returns {
+        Some(k) => format!("{k}-return orbit"),
+        None => format!("no repeat within {max_returns} returns"),
+    }
 }
 
 /// Changes of period between neighbouring values of `(value, period)` (in sweep order).
@@ -84,5 +108,13 @@ mod tests {
             (2.0, 3.0, Some(2))
         );
         assert_eq!(changes[1].to, None);
+        assert_eq!(
+            changes[0].describe("b", 12),
+            "1-return orbit to 2-return orbit between b = 2 and 3"
+        );
+        assert_eq!(
+            changes[1].describe("b", 12),
+            "2-return orbit to no repeat within 12 returns between b = 3 and 4"
+        );
     }
 }
