@@ -6,6 +6,7 @@ use std::process::ExitCode;
 
 use anyhow::{Context, Result, bail};
 use lamina_core::Interrupt;
+use lamina_core::recurrence::RecurrenceKind;
 use lamina_core::run::{CutPoint, Run, Sink, StrobeSample};
 use lamina_core::sweep::{SweepColumn, SweepSpec};
 use lamina_export::write_bytes_atomically;
@@ -86,7 +87,7 @@ impl Sink for Everything {
     }
 }
 
-/// Draws the orbit diagram of a finished sweep.
+/// Draws the orbit diagram of a finished sweep, each value coloured by its label.
 pub fn write_orbit_diagram(
     path: &Path,
     size: (u32, u32),
@@ -94,6 +95,7 @@ pub fn write_orbit_diagram(
     spec: &SweepSpec,
     coordinate: usize,
     columns: &[SweepColumn],
+    kinds: &[RecurrenceKind],
 ) -> Result<()> {
     let parameter = &scenario.parameters[spec.parameter].name;
     let coordinate_name = &scenario.states[coordinate].name;
@@ -108,7 +110,7 @@ pub fn write_orbit_diagram(
         x_label: parameter.clone(),
         y_label: coordinate_name.clone(),
     };
-    let bytes = lamina_render::orbit_diagram_png(&figure, &data, None)?;
+    let bytes = lamina_render::orbit_diagram_png(&figure, &data, Some(kinds))?;
     write_png(path, &bytes)
 }
 
@@ -116,7 +118,10 @@ pub fn write_orbit_diagram(
 pub fn render(args: &RenderArgs) -> Result<ExitCode> {
     if args.view == View::Sweep {
         let (scenario, spec, coordinate, columns) = super::sweep::run_sweep(&args.file, None)?;
-        write_orbit_diagram(&args.png, args.size, &scenario, &spec, coordinate, &columns)?;
+        let kinds = super::sweep::labels(&scenario, &columns);
+        write_orbit_diagram(
+            &args.png, args.size, &scenario, &spec, coordinate, &columns, &kinds,
+        )?;
         eprintln!("wrote {}", args.png.display());
         return Ok(ExitCode::SUCCESS);
     }

@@ -27,10 +27,10 @@ enum Drawing {
         z_label: String,
         pieces: Vec<Vec<(f64, f64, f64)>>,
     },
-    /// Columns of an orbit diagram with their repeat periods.
+    /// Columns of an orbit diagram with their labels from the recurrence detector.
     Orbit {
         columns: Vec<(f64, Vec<f64>)>,
-        periods: Vec<usize>,
+        kinds: Vec<lamina_core::recurrence::RecurrenceKind>,
     },
 }
 
@@ -49,8 +49,8 @@ impl PngJob {
             Drawing::Trajectory { z_label, pieces } => {
                 trajectory_png(&self.figure, z_label, pieces)
             }
-            Drawing::Orbit { columns, periods } => {
-                orbit_diagram_png(&self.figure, columns, Some(periods))
+            Drawing::Orbit { columns, kinds } => {
+                orbit_diagram_png(&self.figure, columns, Some(kinds))
             }
         }
         .map_err(|e| e.to_string())?;
@@ -196,19 +196,14 @@ impl ExplorerApp {
                         (c.value, values)
                     })
                     .collect();
-                let periods = self
-                    .sweep
-                    .columns
-                    .iter()
-                    .map(|(_, p)| p.unwrap_or(0))
-                    .collect();
+                let kinds = self.sweep.columns.iter().map(|(_, k)| *k).collect();
                 (
                     figure(
                         format!("Orbit diagram — {}", self.doc.scenario.title),
                         self.swept_parameter_name(),
                         names.get(coordinate).cloned().unwrap_or_default(),
                     ),
-                    Drawing::Orbit { columns, periods },
+                    Drawing::Orbit { columns, kinds },
                 )
             }
         };

@@ -4,7 +4,9 @@
 //! text uses a font embedded in the binary.
 
 mod figure;
+mod orbit;
 mod plots;
 
 pub use figure::{Figure, RenderError};
-pub use plots::{orbit_diagram_png, scatter_png, split_where_it_wraps, trajectory_png};
+pub use orbit::{orbit_diagram_png, recurrence_colour};
+pub use plots::{scatter_png, split_where_it_wraps, trajectory_png};

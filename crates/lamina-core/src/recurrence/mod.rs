@@ -1,0 +1,422 @@
+//! Recurrence in a cloud of cut points or strobe samples: does it repeat after k returns
+//! (k <= 12), does it not repeat at all (a torus or chaos), or is it still drifting (not
+//! settled)? One detector for every caller: the periodic-orbit search (which k to look for,
+//! which points to start from), the sweep (the label, colour and listed changes of every
+//! parameter value) and anything else that classifies a cloud.
+//!
+//! The tolerance of the repeat test follows the integrator's accuracy and the cloud's own
+//! size: two points count as one when they are within [`ACCURACY_TOLERANCES`] integrator
+//! tolerances (`rtol` times the cloud's size plus `atol`) of each other. A cloud that does not
+//! repeat within that tolerance is examined for drift before it is called a torus or chaos:
+//! differences after k returns that shrink steadily (a transient still converging onto an
+//! orbit), or points that keep moving one way (a slow drift), read "not settled".
+
+mod close;
+mod drift;
+
+use std::fmt;
+
+pub use close::{CloseReturn, close_returns};
+
+use crate::integrate::StepControl;
+
+/// Two points within this many integrator tolerances (`rtol * size + atol`, with the cloud's
+/// size) count as the same point. Points of a settled orbit computed at a tolerance differ by
+/// the integration error accumulated over a return, which for a stable orbit is some tens of
+/// tolerances; the factor leaves room above that.
+pub const ACCURACY_TOLERANCES: f64 = 1e3;
+
+/// The repeat tolerance is never below this fraction of the cloud's size (double precision).
+const ROUND_OFF: f64 = 1e-13;
+
+/// Fewest pairs `(p[i], p[i + k])` a k is judged on.
+const MIN_PAIRS: usize = 3;
+
+/// Settings of the recurrence detector.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct RecurrenceSettings {
+    /// Largest number of returns tried.
+    pub max_k: usize,
+    /// Relative tolerance of the integration that made the points.
+    pub rtol: f64,
+    /// Absolute tolerance of the integration that made the points.
+    pub atol: f64,
+}
+
+impl Default for RecurrenceSettings {
+    /// Up to 12 returns, for points integrated at the default tolerances.
+    fn default() -> Self {
+        Self::for_control(&StepControl::default())
+    }
+}
+
+impl RecurrenceSettings {
+    /// Up to 12 returns, for points integrated with `control`'s tolerances.
+    pub fn for_control(control: &StepControl) -> Self {
+        Self {
+            max_k: 12,
+            rtol: control.rtol,
+            atol: control.atol,
+        }
+    }
+
+    /// The distance within which two points of a cloud of this `size` (root-mean-square
+    /// magnitude) count as the same point.
+    pub fn tolerance(&self, size: f64) -> f64 {
+        (ACCURACY_TOLERANCES * (self.rtol * size + self.atol)).max(ROUND_OFF * size)
+    }
+}
+
+/// What the recurrence detector found.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Recurrence {
+    /// The points repeat every `k` returns: a periodic orbit of `k` returns.
+    Repeats {
+        /// The least such k.
+        k: usize,
+        /// The largest `|p[i + k] - p[i]|` over the later half of the points.
+        spread: f64,
+        /// The tolerance it was judged against.
+        tolerance: f64,
+    },
+    /// The points have not settled: they still converge onto an orbit or drift.
+    NotSettled {
+        /// The number of returns whose differences came closest to repeating.
+        closest_k: usize,
+        /// The largest `|p[i + k] - p[i]|` over the later half, for that k.
+        spread: f64,
+        /// The tolerance a repeat needs.
+        tolerance: f64,
+        /// What the drift looks like.
+        drift: drift::Drift,
+    },
+    /// No k up to `max_k` repeats and the points do not drift: a torus or chaos (or a
+    /// periodic orbit of more returns).
+    NoRepeat {
+        /// Largest k tried.
+        max_k: usize,
+        /// The k that came closest.
+        closest_k: usize,
+        /// Its spread.
+        spread: f64,
+        /// The tolerance it was judged against.
+        tolerance: f64,
+    },
+    /// Too few points to judge.
+    TooFewPoints {
+        /// How many there were.
+        n_points: usize,
+    },
+}
+
+pub use drift::Drift;
+
+/// The recurrence as a plain label, for colours, legends and changes along a sweep.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum RecurrenceKind {
+    /// A periodic orbit of this many returns.
+    Returns(usize),
+    /// Not settled.
+    NotSettled,
+    /// No repeat up to the largest k tried.
+    NoRepeat,
+    /// Too few points to judge.
+    TooFewPoints,
+}
+
+impl fmt::Display for RecurrenceKind {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Self::Returns(1) => write!(f, "1 return"),
+            Self::Returns(k) => write!(f, "{k} returns"),
+            Self::NotSettled => write!(f, "not settled"),
+            Self::NoRepeat => write!(f, "no repeat"),
+            Self::TooFewPoints => write!(f, "too few points"),
+        }
+    }
+}
+
+impl Recurrence {
+    /// The number of returns, if the points repeat.
+    pub fn k(&self) -> Option<usize> {
+        match self {
+            Self::Repeats { k, .. } => Some(*k),
+            _ => None,
+        }
+    }
+
+    /// The plain label.
+    pub fn kind(&self) -> RecurrenceKind {
+        match self {
+            Self::Repeats { k, .. } => RecurrenceKind::Returns(*k),
+            Self::NotSettled { .. } => RecurrenceKind::NotSettled,
+            Self::NoRepeat { .. } => RecurrenceKind::NoRepeat,
+            Self::TooFewPoints { .. } => RecurrenceKind::TooFewPoints,
+        }
+    }
+
+    /// The number of returns to look for an orbit with: the repeat, or for a cloud not
+    /// settled the k it comes closest to repeating after (a transient still converging onto
+    /// an orbit, which Newton's method can finish); `None` for no repeat or too few points.
+    pub fn search_k(&self) -> Option<usize> {
+        match self {
+            Self::Repeats { k, .. } => Some(*k),
+            Self::NotSettled { closest_k, .. } => Some(*closest_k),
+            Self::NoRepeat { .. } | Self::TooFewPoints { .. } => None,
+        }
+    }
+}
+
+impl fmt::Display for Recurrence {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Self::Repeats { k: 1, spread, .. } => {
+                write!(f, "repeats every return (spread {spread:.1e})")
+            }
+            Self::Repeats { k, spread, .. } => {
+                write!(f, "repeats every {k} returns (spread {spread:.1e})")
+            }
+            Self::NotSettled {
+                closest_k,
+                spread,
+                tolerance,
+                drift,
+            } => write!(
+                f,
+                "not settled: {drift} (closest to repeating: every {closest_k} return(s), spread \
+                 {spread:.1e} against a tolerance of {tolerance:.1e}); lengthen the settle time"
+            ),
+            Self::NoRepeat {
+                max_k,
+                closest_k,
+                spread,
+                tolerance,
+            } => write!(
+                f,
+                "no repeat up to {max_k} returns (closest: every {closest_k}, spread {spread:.1e} \
+                 against a tolerance of {tolerance:.1e}): a torus or chaos"
+            ),
+            Self::TooFewPoints { n_points } => {
+                write!(f, "too few points to look for a repeat ({n_points})")
+            }
+        }
+    }
+}
+
+/// Classifies a cloud of cut points or strobe samples (in time order): the least k up to
+/// `settings.max_k` after which every point of the later half comes back to within the
+/// tolerance ([`RecurrenceSettings::tolerance`]) of itself; failing that, "not settled" when
+/// the points drift ([`Drift`]), else "no repeat".
+pub fn find_recurrence<P: AsRef<[f64]>>(points: &[P], settings: &RecurrenceSettings) -> Recurrence {
+    let n_points = points.len();
+    if n_points < MIN_PAIRS + 1 {
+        return Recurrence::TooFewPoints { n_points };
+    }
+    let tolerance = settings.tolerance(size(points));
+    let from = n_points / 2;
+    let mut closest: Option<(usize, f64)> = None;
+    for k in 1..=settings.max_k.max(1) {
+        // pairs inside the later half where there are enough of them, else the last pairs
+        let first = from.min(n_points.saturating_sub(k + MIN_PAIRS));
+        if n_points < first + k + MIN_PAIRS {
+            break;
+        }
+        let spread = (first..n_points - k)
+            .map(|i| distance(points[i].as_ref(), points[i + k].as_ref()))
+            .fold(0.0f64, f64::max);
+        if spread <= tolerance {
+            return Recurrence::Repeats {
+                k,
+                spread,
+                tolerance,
+            };
+        }
+        // a spread not clearly below a smaller k's is no closer to repeating
+        if closest.is_none_or(|(_, best)| spread < 0.5 * best) {
+            closest = Some((k, spread));
+        }
+    }
+    let Some((closest_k, spread)) = closest else {
+        return Recurrence::TooFewPoints { n_points };
+    };
+    match drift::drift(points, closest_k, tolerance) {
+        Some(drift) => Recurrence::NotSettled {
+            closest_k,
+            spread,
+            tolerance,
+            drift,
+        },
+        None => Recurrence::NoRepeat {
+            max_k: settings.max_k,
+            closest_k,
+            spread,
+            tolerance,
+        },
+    }
+}
+
+/// The root-mean-square magnitude of the points (never zero).
+fn size<P: AsRef<[f64]>>(points: &[P]) -> f64 {
+    let mean_square = points
+        .iter()
+        .map(|p| p.as_ref().iter().map(|v| v * v).sum::<f64>())
+        .sum::<f64>()
+        / points.len().max(1) as f64;
+    mean_square.sqrt().max(f64::MIN_POSITIVE)
+}
+
+pub(crate) fn distance(a: &[f64], b: &[f64]) -> f64 {
+    a.iter()
+        .zip(b)
+        .map(|(p, q)| (p - q) * (p - q))
+        .sum::<f64>()
+        .sqrt()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The logistic map x -> r x (1 - x) from x0, after `skip` iterations, `n` points.
+    fn logistic(r: f64, skip: usize, n: usize) -> Vec<Vec<f64>> {
+        let mut x = 0.3;
+        for _ in 0..skip {
+            x = r * x * (1.0 - x);
+        }
+        (0..n)
+            .map(|_| {
+                x = r * x * (1.0 - x);
+                vec![x]
+            })
+            .collect()
+    }
+
+    fn settings() -> RecurrenceSettings {
+        RecurrenceSettings {
+            max_k: 12,
+            rtol: 1e-12,
+            atol: 1e-12,
+        }
+    }
+
+    #[test]
+    fn the_logistic_map_doubles_its_period_where_it_should() {
+        // [analytic] the fixed point 1 - 1/r is stable for 1 < r < 3, the 2-cycle for
+        // 3 < r < 1 + sqrt(6) = 3.449, the 4-cycle up to 3.544; the 3-cycle is born at
+        // r = 1 + sqrt(8) = 3.8284 (R. M. May, "Simple mathematical models with very
+        // complicated dynamics", Nature 261 (1976) 459)
+        for (r, k) in [(2.8, 1), (3.2, 2), (3.5, 4), (3.835, 3)] {
+            let found = find_recurrence(&logistic(r, 5000, 64), &settings());
+            assert_eq!(found.kind(), RecurrenceKind::Returns(k), "r = {r}: {found}");
+        }
+        // [analytic] at r = 4 the map is chaotic (conjugate to the tent map): no repeat
+        let found = find_recurrence(&logistic(4.0, 100, 200), &settings());
+        assert!(matches!(found, Recurrence::NoRepeat { .. }), "{found}");
+    }
+
+    #[test]
+    fn an_irrational_rotation_does_not_repeat() {
+        // [analytic] a turn by the golden ratio never closes: a torus section
+        let turn = (5f64.sqrt() - 1.0) / 2.0;
+        let points: Vec<Vec<f64>> = (0..200)
+            .map(|i| {
+                let a = std::f64::consts::TAU * turn * i as f64;
+                vec![a.cos(), a.sin()]
+            })
+            .collect();
+        let found = find_recurrence(&points, &settings());
+        assert!(
+            matches!(found, Recurrence::NoRepeat { max_k: 12, .. }),
+            "{found}"
+        );
+        assert_eq!(found.search_k(), None);
+    }
+
+    #[test]
+    fn a_transient_still_converging_is_not_settled() {
+        // [analytic] x_i = 2 + 0.5 * 0.97^i approaches the fixed point 2 by 3 % per return
+        let points: Vec<Vec<f64>> = (0..64)
+            .map(|i| vec![2.0 + 0.5 * 0.97f64.powi(i), 1.0])
+            .collect();
+        let found = find_recurrence(&points, &settings());
+        let Recurrence::NotSettled {
+            closest_k: 1,
+            drift: Drift::Converging {
+                factor_per_return, ..
+            },
+            ..
+        } = found
+        else {
+            panic!("{found}");
+        };
+        assert!(
+            (factor_per_return - 0.97).abs() < 1e-9,
+            "{factor_per_return}"
+        );
+        assert_eq!(found.search_k(), Some(1));
+        // [analytic] a spiral onto a fixed point, turning 1 radian and shrinking 2 % per
+        // return (a complex multiplier 0.98 e^i): also not settled
+        let points: Vec<Vec<f64>> = (0..64)
+            .map(|i| {
+                let r = 0.3 * 0.98f64.powi(i);
+                vec![1.0 + r * f64::from(i).cos(), r * f64::from(i).sin()]
+            })
+            .collect();
+        let found = find_recurrence(&points, &settings());
+        assert_eq!(found.kind(), RecurrenceKind::NotSettled, "{found}");
+        // [analytic] a 2-cycle whose two points approach their places with the multiplier
+        // -0.95: not settled, closest to repeating after 2 returns
+        let points: Vec<Vec<f64>> = (0..64)
+            .map(|i| {
+                let side = if i % 2 == 0 { 1.0 } else { -1.0 };
+                vec![side * (1.0 + 0.2 * 0.95f64.powi(i)), 0.5]
+            })
+            .collect();
+        let found = find_recurrence(&points, &settings());
+        assert_eq!(found.kind(), RecurrenceKind::NotSettled, "{found}");
+        assert_eq!(found.search_k(), Some(2), "{found}");
+    }
+
+    #[test]
+    fn a_slow_drift_is_not_settled() {
+        // [analytic] points moving 1e-5 per return on a size of 1 (as a slowly charging
+        // capacitor would): far above the tolerance, so no repeat, and moving one way
+        let points: Vec<Vec<f64>> = (0..64)
+            .map(|i| vec![1.0 + 1e-5 * f64::from(i), 0.3])
+            .collect();
+        let found = find_recurrence(&points, &settings());
+        assert!(
+            matches!(
+                found,
+                Recurrence::NotSettled {
+                    drift: Drift::Moving { .. },
+                    ..
+                }
+            ),
+            "{found}"
+        );
+        assert!(found.to_string().starts_with("not settled"), "{found}");
+    }
+
+    #[test]
+    fn the_tolerance_follows_the_integrator_and_the_size() {
+        let loose = RecurrenceSettings {
+            max_k: 12,
+            rtol: 1e-6,
+            atol: 1e-9,
+        };
+        // [analytic] 1000 (rtol size + atol)
+        assert!((loose.tolerance(2.0) - 1e3 * (2e-6 + 1e-9)).abs() < 1e-15);
+        // points 1e-4 apart on a size of 1 repeat at rtol 1e-6 (within 1e-3), not at 1e-12
+        let points: Vec<Vec<f64>> = (0..40)
+            .map(|i| vec![1.0 + 1e-4 * f64::from(i % 2)])
+            .collect();
+        assert_eq!(find_recurrence(&points, &loose).k(), Some(1));
+        assert_eq!(find_recurrence(&points, &settings()).k(), Some(2));
+        // [analytic] too few points to judge
+        assert!(matches!(
+            find_recurrence(&points[..3], &settings()),
+            Recurrence::TooFewPoints { n_points: 3 }
+        ));
+    }
+}
