@@ -8,18 +8,18 @@ use std::process::ExitCode;
 
 use anyhow::{Context, Result, bail};
 use lamina_core::Interrupt;
-use lamina_core::cycle::{
-    FlowMap, MapKind, MapPoint, MapSettings, NewtonSettings, Recurrence, RecurrenceSettings,
-    close_returns, find_cycle, find_recurrence,
-};
+use lamina_core::cycle::{FlowMap, MapKind, MapPoint, MapSettings, NewtonSettings, find_cycle};
+use lamina_core::recheck::{self, Recheck, RecheckError};
+use lamina_core::recurrence::{Recurrence, RecurrenceSettings, close_returns, find_recurrence};
 use lamina_core::run::{CutPoint, Run, Sink, StrobeSample};
 
 use super::cycle_output::{write_human, write_json};
 use super::prepare::{Prepared, prepare};
 use super::progress::Progress;
 
-/// Seeds tried, closest return first.
-const MAX_SEEDS: usize = 4;
+/// Seeds tried, closest return first (more are tried only when the first ones fail or close
+/// after fewer returns than asked).
+const MAX_SEEDS: usize = 8;
 /// The longest return time allowed is this many times the longest one seen in the run.
 const RETURN_TIME_MARGIN: f64 = 10.0;
 
@@ -43,6 +43,11 @@ pub struct CycleArgs {
     /// Write the result as JSON on stdout.
     #[arg(long)]
     json: bool,
+    /// Find the orbit again with both integrator tolerances divided by 100 (and Newton's
+    /// tolerance with them) and report the significant digits on which the two agree, with
+    /// the number that agrees least.
+    #[arg(long)]
+    recheck: bool,
 }
 
 /// The `--map` choices.
@@ -103,22 +108,31 @@ pub fn cycle(args: &CycleArgs) -> Result<ExitCode> {
     };
 
     let settings = MapSettings::from_run(&prepared.spec, max_return_time);
-    let mut map = FlowMap::new(prepared.model, kind, settings)?;
+    let mut map = FlowMap::new(prepared.model.clone(), kind.clone(), settings)?;
     let report =
         find_cycle(&mut map, &seeds, k, &NewtonSettings::for_rtol(rtol)).with_context(|| {
             format!(
-                "no periodic orbit of period {k} found from {} seed(s)",
+                "no periodic orbit of {k} return(s) found from {} seed(s)",
                 seeds.len()
             )
         })?;
+    let recheck: Option<Result<Recheck, RecheckError>> = args
+        .recheck
+        .then(|| recheck::cycle(prepared.model, kind, &settings, &report, &names));
     let mut out = std::io::stdout().lock();
     if args.json {
-        write_json(&mut out, &report, &names)?;
+        write_json(&mut out, &report, &names, recheck.as_ref())?;
     } else {
-        write_human(&mut out, &report, &names, &origin)?;
+        write_human(&mut out, &report, &names, &origin, recheck.as_ref())?;
     }
     out.flush().context("writing to stdout")?;
-    Ok(ExitCode::SUCCESS)
+    match recheck {
+        Some(Err(err)) => {
+            eprintln!("the recheck failed, so the orbit above is not confirmed: {err}");
+            Ok(ExitCode::FAILURE)
+        }
+        _ => Ok(ExitCode::SUCCESS),
+    }
 }
 
 /// The map asked for, or the default: the cut for an autonomous model that has one, else the
@@ -189,6 +203,7 @@ fn seeds_from_run(
     path: &Path,
 ) -> Result<(Vec<MapPoint>, usize, SeedOrigin, f64)> {
     let span = prepared.spec.t_end() - prepared.spec.t_start;
+    let prepared_control = prepared.spec.control;
     let (cut, strobe) = match choice {
         MapArg::Cut => (prepared.cut, None),
         MapArg::Strobe => (None, prepared.strobe),
@@ -222,11 +237,11 @@ fn seeds_from_run(
             points.len()
         );
     }
-    let recurrence = find_recurrence(&points, &RecurrenceSettings::default());
-    let k = match (period, recurrence.k()) {
+    let recurrence = find_recurrence(&points, &RecurrenceSettings::for_control(&prepared_control));
+    let k = match (period, recurrence.search_k()) {
         (Some(k), _) | (None, Some(k)) => k,
         (None, None) => bail!(
-            "{} {label}: {recurrence}; give --period K to look for an orbit of period K \
+            "{} {label}: {recurrence}; give --period K to look for an orbit of K returns \
              (unstable orbits inside chaos are found that way)",
             points.len()
         ),
@@ -234,7 +249,7 @@ fn seeds_from_run(
     let returns = close_returns(&points, k, MAX_SEEDS);
     let Some(closest) = returns.first() else {
         bail!(
-            "{} {label} are too few for period {k}: lengthen time.span",
+            "{} {label} are too few for an orbit of {k} return(s): lengthen time.span",
             points.len()
         );
     };

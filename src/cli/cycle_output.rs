@@ -4,10 +4,12 @@ use std::io::Write;
 
 use anyhow::{Context, Result};
 use lamina_core::cycle::{CycleReport, MapChoice, Multiplier, Number};
+use lamina_core::recheck::{Recheck, RecheckError};
 use serde::Serialize;
 use serde::ser::{SerializeMap, Serializer};
 
 use super::cycle::SeedOrigin;
+use super::recheck::{JsonRecheck, recheck_lines};
 
 /// The JSON document of the product brief.
 #[derive(Serialize)]
@@ -20,6 +22,15 @@ struct Json<'a> {
     k: usize,
     #[serde(skip_serializing_if = "Option::is_none")]
     floquet: Option<Vec<JsonComplex>>,
+    /// Returns asked for (differs from `k` when only an orbit of fewer returns was found).
+    asked_k: usize,
+    /// How the search went, when it did not simply find what was asked.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    note: Option<String>,
+    /// The stability margin in words.
+    margin: String,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    recheck: Option<JsonRecheck>,
 }
 
 /// A state as an object of state names, in the model's order.
@@ -53,7 +64,12 @@ fn complex(values: &[Multiplier]) -> Vec<JsonComplex> {
 
 /// Writes the report as one JSON line (serde_json writes the shortest text that reads back
 /// to the same f64).
-pub fn write_json(out: &mut impl Write, report: &CycleReport, names: &[String]) -> Result<()> {
+pub fn write_json(
+    out: &mut impl Write,
+    report: &CycleReport,
+    names: &[String],
+    recheck: Option<&Result<Recheck, RecheckError>>,
+) -> Result<()> {
     let json = Json {
         period: report.period,
         point: NamedState {
@@ -65,6 +81,10 @@ pub fn write_json(out: &mut impl Write, report: &CycleReport, names: &[String]) 
         residual: report.residual,
         k: report.k,
         floquet: report.floquet.as_deref().map(complex),
+        asked_k: report.search.asked,
+        note: report.search_note(),
+        margin: report.outlook.to_string(),
+        recheck: recheck.map(JsonRecheck::of),
     };
     serde_json::to_writer(&mut *out, &json).context("writing JSON")?;
     writeln!(out).context("writing to stdout")?;
@@ -77,6 +97,7 @@ pub fn write_human(
     report: &CycleReport,
     names: &[String],
     origin: &SeedOrigin,
+    recheck: Option<&Result<Recheck, RecheckError>>,
 ) -> Result<()> {
     let map = match report.map {
         MapChoice::Cut => "cut map",
@@ -93,9 +114,13 @@ pub fn write_human(
         text.push('\n');
     };
     line(format!(
-        "periodic orbit of the {map}, period {} ({returns})",
-        report.k
+        "{}-return orbit of the {map}, period {}",
+        report.k,
+        Number(report.period)
     ));
+    if let Some(note) = report.search_note() {
+        line(format!("  note          {note}"));
+    }
     line(format!(
         "  period        {}  (total time of {returns})",
         report.period
@@ -149,14 +174,7 @@ pub fn write_human(
         }
     ));
     line(format!("  verdict       {}", report.verdict));
-    if let Some(nearest) = &report.nearest {
-        line(format!(
-            "  nearest the unit circle: {} (|m| - 1 = {}); stability would change there {}",
-            nearest.multiplier,
-            Number(nearest.distance),
-            nearest.loss
-        ));
-    }
+    line(format!("  margin        {}", report.outlook));
     match origin {
         SeedOrigin::Start => line("  seed          the start state".to_string()),
         SeedOrigin::CloseReturn {
@@ -166,6 +184,11 @@ pub fn write_human(
         } => line(format!(
             "  seed          closest return of {n_points} settled points (distance {distance:.1e}); {recurrence}"
         )),
+    }
+    if let Some(recheck) = recheck {
+        for l in recheck_lines(recheck) {
+            line(format!("  {l}"));
+        }
     }
     out.write_all(text.as_bytes())
         .context("writing to stdout")?;

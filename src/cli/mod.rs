@@ -8,6 +8,7 @@ mod lyapunov;
 mod points;
 mod prepare;
 mod progress;
+mod recheck;
 mod render;
 mod signals;
 mod sweep;

@@ -14,6 +14,8 @@ pub mod expr;
 pub mod integrate;
 pub mod lyapunov;
 pub mod model;
+pub mod recheck;
+pub mod recurrence;
 pub mod run;
 pub mod sweep;
 pub mod switching;
