@@ -32,6 +32,10 @@ const ROUND_OFF: f64 = 1e-13;
 /// Fewest pairs `(p[i], p[i + k])` a k is judged on.
 const MIN_PAIRS: usize = 3;
 
+/// Fewest points on which a cloud that does not repeat is called "no repeat" or "not settled":
+/// with fewer, a torus or chaos cannot be told from a transient.
+pub const MIN_POINTS_TO_JUDGE: usize = 16;
+
 /// Settings of the recurrence detector.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct RecurrenceSettings {
@@ -81,7 +85,8 @@ pub enum Recurrence {
     },
     /// The points have not settled: they still converge onto an orbit or drift.
     NotSettled {
-        /// The number of returns whose differences came closest to repeating.
+        /// The number of returns the drift was found at: the orbit it converges onto has that
+        /// many returns (or the stride at which the points move one way).
         closest_k: usize,
         /// The largest `|p[i + k] - p[i]|` over the later half, for that k.
         spread: f64,
@@ -102,7 +107,8 @@ pub enum Recurrence {
         /// The tolerance it was judged against.
         tolerance: f64,
     },
-    /// Too few points to judge.
+    /// Too few points to judge: fewer than 4, or fewer than [`MIN_POINTS_TO_JUDGE`] that do
+    /// not repeat.
     TooFewPoints {
         /// How many there were.
         n_points: usize,
@@ -177,14 +183,14 @@ impl fmt::Display for Recurrence {
                 write!(f, "repeats every {k} returns (spread {spread:.1e})")
             }
             Self::NotSettled {
-                closest_k,
                 spread,
                 tolerance,
                 drift,
+                ..
             } => write!(
                 f,
-                "not settled: {drift} (closest to repeating: every {closest_k} return(s), spread \
-                 {spread:.1e} against a tolerance of {tolerance:.1e}); lengthen the settle time"
+                "not settled: {drift}, spread {spread:.1e} against a repeat tolerance of \
+                 {tolerance:.1e}; lengthen the settle time"
             ),
             Self::NoRepeat {
                 max_k,
@@ -196,9 +202,11 @@ impl fmt::Display for Recurrence {
                 "no repeat up to {max_k} returns (closest: every {closest_k}, spread {spread:.1e} \
                  against a tolerance of {tolerance:.1e}): a torus or chaos"
             ),
-            Self::TooFewPoints { n_points } => {
-                write!(f, "too few points to look for a repeat ({n_points})")
-            }
+            Self::TooFewPoints { n_points } => write!(
+                f,
+                "too few points ({n_points}) to tell a repeat, a drift, a torus and chaos apart \
+                 (keep at least {MIN_POINTS_TO_JUDGE})"
+            ),
         }
     }
 }
@@ -206,30 +214,22 @@ impl fmt::Display for Recurrence {
 /// Classifies a cloud of cut points or strobe samples (in time order): the least k up to
 /// `settings.max_k` after which every point of the later half comes back to within the
 /// tolerance ([`RecurrenceSettings::tolerance`]) of itself; failing that, "not settled" when
-/// the points drift ([`Drift`]), else "no repeat".
+/// the points drift ([`Drift`]), else "no repeat" (both only from [`MIN_POINTS_TO_JUDGE`]
+/// points on: fewer are "too few points").
 pub fn find_recurrence<P: AsRef<[f64]>>(points: &[P], settings: &RecurrenceSettings) -> Recurrence {
     let n_points = points.len();
     if n_points < MIN_PAIRS + 1 {
         return Recurrence::TooFewPoints { n_points };
     }
     let tolerance = settings.tolerance(size(points));
-    let from = n_points / 2;
     let mut closest: Option<(usize, f64)> = None;
     for k in 1..=settings.max_k.max(1) {
-        // pairs inside the later half where there are enough of them, else the last pairs
-        let first = from.min(n_points.saturating_sub(k + MIN_PAIRS));
-        if n_points < first + k + MIN_PAIRS {
+        if n_points < k + MIN_PAIRS {
             break;
         }
-        let spread = (first..n_points - k)
-            .map(|i| distance(points[i].as_ref(), points[i + k].as_ref()))
-            .fold(0.0f64, f64::max);
+        let spread = later_spread(points, k);
         if spread <= tolerance {
-            return Recurrence::Repeats {
-                k,
-                spread,
-                tolerance,
-            };
+            return repeats_or_spiral(points, k, spread, tolerance);
         }
         // a spread not clearly below a smaller k's is no closer to repeating
         if closest.is_none_or(|(_, best)| spread < 0.5 * best) {
@@ -239,13 +239,19 @@ pub fn find_recurrence<P: AsRef<[f64]>>(points: &[P], settings: &RecurrenceSetti
     let Some((closest_k, spread)) = closest else {
         return Recurrence::TooFewPoints { n_points };
     };
+    if n_points < MIN_POINTS_TO_JUDGE {
+        return Recurrence::TooFewPoints { n_points };
+    }
     match drift::drift(points, closest_k, tolerance) {
-        Some(drift) => Recurrence::NotSettled {
-            closest_k,
-            spread,
-            tolerance,
-            drift,
-        },
+        Some(drift) => {
+            let k = drift.k();
+            Recurrence::NotSettled {
+                closest_k: k,
+                spread: later_spread(points, k),
+                tolerance,
+                drift,
+            }
+        }
         None => Recurrence::NoRepeat {
             max_k: settings.max_k,
             closest_k,
@@ -253,6 +259,44 @@ pub fn find_recurrence<P: AsRef<[f64]>>(points: &[P], settings: &RecurrenceSetti
             tolerance,
         },
     }
+}
+
+/// A repeat after `k` returns, unless the differences after fewer returns still shrink
+/// steadily: then the cloud is a transient spiralling onto an orbit of fewer returns whose
+/// turn per return is close to a fraction j / k of a full turn, so that after k returns it
+/// comes back near itself while it is still converging (a slowly damped resonance sampled
+/// once per clock period does this).
+fn repeats_or_spiral<P: AsRef<[f64]>>(
+    points: &[P],
+    k: usize,
+    spread: f64,
+    tolerance: f64,
+) -> Recurrence {
+    for j in 1..k {
+        if let Some(drift @ Drift::Converging { .. }) = drift::converging(points, j, tolerance) {
+            return Recurrence::NotSettled {
+                closest_k: j,
+                spread: later_spread(points, j),
+                tolerance,
+                drift,
+            };
+        }
+    }
+    Recurrence::Repeats {
+        k,
+        spread,
+        tolerance,
+    }
+}
+
+/// The largest `|p[i + k] - p[i]|` over the pairs inside the later half of the points where
+/// there are enough of them, else over the last [`MIN_PAIRS`] pairs.
+fn later_spread<P: AsRef<[f64]>>(points: &[P], k: usize) -> f64 {
+    let n = points.len();
+    let first = (n / 2).min(n.saturating_sub(k + MIN_PAIRS));
+    (first..n.saturating_sub(k))
+        .map(|i| distance(points[i].as_ref(), points[i + k].as_ref()))
+        .fold(0.0f64, f64::max)
 }
 
 /// The root-mean-square magnitude of the points (never zero).
@@ -375,6 +419,29 @@ mod tests {
         let found = find_recurrence(&points, &settings());
         assert_eq!(found.kind(), RecurrenceKind::NotSettled, "{found}");
         assert_eq!(found.search_k(), Some(2), "{found}");
+    }
+
+    #[test]
+    fn a_damped_resonance_near_a_quarter_turn_is_not_a_four_return_orbit() {
+        // [analytic] a spiral onto the point (1.34, 5) turning 0.26 of a turn and shrinking
+        // 3.7 % per return, amplitude 3e-5: after 4 returns it comes back within 3e-6 of
+        // itself (inside the tolerance), yet it is a transient converging onto one point
+        let turn = std::f64::consts::TAU * 0.26;
+        let points: Vec<Vec<f64>> = (0..64)
+            .map(|i| {
+                let r = 3e-5 * 0.963f64.powi(i);
+                let a = turn * f64::from(i);
+                vec![1.34 + r * a.cos(), 5.0 + 0.1 * r * a.sin()]
+            })
+            .collect();
+        let loose = RecurrenceSettings {
+            max_k: 12,
+            rtol: 1e-9,
+            atol: 1e-12,
+        };
+        let found = find_recurrence(&points, &loose);
+        assert_eq!(found.kind(), RecurrenceKind::NotSettled, "{found}");
+        assert_eq!(found.search_k(), Some(1), "{found}");
     }
 
     #[test]
