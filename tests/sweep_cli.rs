@@ -211,3 +211,57 @@ fn sweep_png_is_written_beside_the_csv() {
             .starts_with("b,k,x,y\n")
     );
 }
+
+#[test]
+fn the_listed_behaviour_follows_the_one_recurrence_detector() {
+    // Brusselator (REFERENCES case 12) sampled once per time unit, B = 1.7, 1.9, 2.1, 2.3
+    let text = r#"(
+    format: 1,
+    title: "Brusselator strobed",
+    states: [
+        (name: "x", start: 1.3, rate: "a - (b + 1)*x + x^2*y"),
+        (name: "y", start: 2.0, rate: "b*x - x^2*y"),
+    ],
+    parameters: [
+        (name: "a", value: 1.0, range: (0.5, 2.0)),
+        (name: "b", value: 2.2, range: (1.0, 3.0)),
+    ],
+    integrator: (method: Auto, rtol: 1e-9, atol: 1e-12),
+    time: (start: 0.0, settle: 0.0, span: 100.0),
+    strobe: Some((period: "1", phase: 0.0, axes: ("x", "y"))),
+    sweep: Some((parameter: "b", from: 1.7, to: 2.3, steps: 3, settle: 600.0,
+                 keep: 32, follow: false, source: Strobe, coordinate: "y")),
+)"#;
+    let dir = tempfile::tempdir().expect("tempdir");
+    let path = dir.path().join("strobed.ron");
+    std::fs::write(&path, text).expect("write");
+    let png = dir.path().join("diagram.png");
+    let output = lamina()
+        .arg("sweep")
+        .arg(&path)
+        .arg("--png")
+        .arg(&png)
+        .assert()
+        .success()
+        .get_output()
+        .clone();
+    let err = String::from_utf8(output.stderr).expect("utf8");
+    // [analytic] REFERENCES case 12: below B = 2 every sample sits on the equilibrium (one
+    // return); above it the samples go round the cycle without closing (no repeat)
+    assert!(
+        err.contains("4 value(s) of b, 1 change(s) of behaviour:"),
+        "{err}"
+    );
+    let lines: Vec<&str> = err.lines().collect();
+    let at = lines
+        .iter()
+        .position(|l| l.contains("change(s) of behaviour"))
+        .expect("headline");
+    assert!(
+        lines[at + 1].starts_with("  b = 1.7 to ")
+            && lines[at + 1].ends_with("(2 values): 1 return"),
+        "{err}"
+    );
+    assert!(lines[at + 2].ends_with("(2 values): no repeat"), "{err}");
+    assert_eq!(png_size(&png), (1200, 900));
+}
