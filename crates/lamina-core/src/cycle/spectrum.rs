@@ -174,7 +174,10 @@ impl fmt::Display for Loss {
         match self {
             Self::ThroughPlusOne => write!(f, "through +1 (fold-like: orbits meet and vanish)"),
             Self::ThroughMinusOne => write!(f, "through -1 (period doubling)"),
-            Self::ComplexPair => write!(f, "a complex pair (torus birth: a second frequency)"),
+            Self::ComplexPair => write!(
+                f,
+                "through the circle as a complex pair (torus birth: a second frequency)"
+            ),
         }
     }
 }

@@ -57,9 +57,13 @@ struct Collect {
     points: Vec<MapPoint>,
 }
 
+/// A crossing this close after the common start (relative to its time) is the start itself,
+/// found again because the start lies a rounding error before the cut surface.
+const SAME_TIME: f64 = 1e-9;
+
 impl Collect {
     fn take(&mut self, t: f64, state: &[f64]) -> ControlFlow<()> {
-        if t > self.t_start {
+        if t - self.t_start > SAME_TIME * self.t_start.abs().max(1.0) {
             self.points.push(MapPoint {
                 t,
                 state: state.to_vec(),

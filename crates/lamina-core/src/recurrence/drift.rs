@@ -237,7 +237,10 @@ impl StepMap {
 fn observed_shrink(steps: &[Vec<f64>]) -> f64 {
     let third = (steps.len() / 3).max(1);
     let rms = |part: &[Vec<f64>]| {
-        (part.iter().map(|d| d.iter().map(|v| v * v).sum::<f64>()).sum::<f64>()
+        (part
+            .iter()
+            .map(|d| d.iter().map(|v| v * v).sum::<f64>())
+            .sum::<f64>()
             / part.len().max(1) as f64)
             .sqrt()
     };
