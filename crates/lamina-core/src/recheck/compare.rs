@@ -6,7 +6,7 @@ use super::{
 };
 use crate::cycle::{CycleReport, MapPoint, Multiplier, UNIT_CIRCLE_BAND};
 use crate::integrate::StepControl;
-use crate::lyapunov::Spectrum;
+use crate::lyapunov::{Spectrum, zero_band};
 
 /// Points of a run compared one by one after their common start when the run is sensitive
 /// to small changes (a chaotic run): about as far as two computations of the Lorenz attractor
@@ -15,7 +15,7 @@ pub const HORIZON: usize = 20;
 
 /// Digits lost between the short horizon and the whole run beyond which the run counts as
 /// parting (its later points no longer compare one by one).
-const PARTING_DIGITS: f64 = 1.0;
+const PARTING_DIGITS: f64 = 2.0;
 
 /// Compares two computations of one periodic orbit: the period, the point (state by state,
 /// named by `names`) and the multipliers of the map (paired nearest first, named
@@ -174,8 +174,8 @@ pub fn compare_points(
             .map_or(digits.len(), |i| i + 1);
         notes.push(format!(
             "compared over the first {horizon} points after the common start only: further on \
-             the two computations part (down to {} digit(s) from point {from} on), as the \
-             points of a chaotic run do; compare the cloud's statistics there",
+             the two computations drift apart (down to {} digit(s) from point {from} on), as \
+             a chaotic run's points do; compare the cloud's statistics there",
             overall.floor().max(0.0)
         ));
     } else {
@@ -203,9 +203,10 @@ pub fn compare_points(
 /// An exponent is only as good as its running estimate has settled: its uncertainty is the
 /// larger of the difference between the two computations and the spread of either running
 /// estimate, and its digits are measured against the larger of its magnitude and 1e-3 of the
-/// largest magnitude in the spectrum (a zero exponent has no relative digits of its own; the
-/// same band decides "zero" in the verdict). The note says whether the spread or the
-/// tolerance limits the worst exponent.
+/// largest magnitude in the spectrum. An exponent that both computations find zero (within
+/// the band the verdict uses, [`crate::lyapunov::zero_band`]) counts as the same zero: its
+/// printed digits mean nothing, the agreement on "zero" is what counts. The note says
+/// whether the spread or the tolerance limits the worst exponent.
 ///
 /// # Errors
 /// [`RecheckError::NothingToCompare`] when the two have different numbers of exponents or
@@ -236,14 +237,19 @@ pub fn compare_spectra(
             .filter(|v| v.is_finite())
             .unwrap_or(0.0)
     };
+    let band1 = zero_band(&first.exponents, &first.spread);
+    let band2 = zero_band(&second.exponents, &second.spread);
     let mut comparison = Comparison::default();
     let mut limits = Vec::new();
     for (i, (&l1, &l2)) in first.exponents.iter().zip(&second.exponents).enumerate() {
         let difference = (l1 - l2).abs();
         let spread = spread_of(first, i).max(spread_of(second, i));
         let scale = l1.abs().max(l2.abs()).max(floor);
+        let zero = |l: f64, band: &[f64]| band.get(i).is_some_and(|b| l.abs() <= *b);
         let digits = if !l1.is_finite() || !l2.is_finite() {
             significant_digits(l1, l2, scale)
+        } else if zero(l1, &band1) && zero(l2, &band2) {
+            f64::from(MAX_DIGITS)
         } else {
             significant_digits(0.0, difference.max(spread), scale)
         };
@@ -373,15 +379,22 @@ mod tests {
     #[test]
     fn exponents_are_only_as_good_as_their_spread() {
         // [analytic] Lorenz-like: the estimates differ by 1e-6 but spread 2e-3: the spread
-        // limits l1 to about 2.7 digits (0.906 / 2e-3); the zero exponent is judged against
-        // 1e-3 of the largest magnitude (0.0146) with its spread 1e-3: about 1.2 digits
+        // limits l1 to about 2.7 digits (0.906 / 2e-3); the middle exponent is zero within
+        // its band (6 spreads) in both, so it agrees as zero
         let first = spectrum(&[0.906, 1e-4, -14.57], &[2e-3, 1e-3, 1e-4]);
         let second = spectrum(&[0.906001, -2e-4, -14.5701], &[2e-3, 1e-3, 1e-4]);
         let recheck = compare_spectra(&first, &second, &StepControl::default()).expect("same");
-        assert_eq!(recheck.worst.name, "l2");
-        assert_eq!(recheck.digits, 1, "{recheck}");
+        assert_eq!(recheck.worst.name, "l1");
+        assert_eq!(recheck.digits, 2, "{recheck}");
         let note = recheck.note.expect("note");
         assert!(note.contains("spread"), "{note}");
+        // [analytic] a middle exponent of 0.02 is not zero (band 1e-3 of 14.57): judged against its
+        // magnitude with its spread 1e-3, about 1.3 digits
+        let first = spectrum(&[0.906, 0.02, -14.57], &[2e-3, 1e-3, 1e-4]);
+        let second = spectrum(&[0.906001, 0.0201, -14.5701], &[2e-3, 1e-3, 1e-4]);
+        let recheck = compare_spectra(&first, &second, &StepControl::default()).expect("same");
+        assert_eq!(recheck.worst.name, "l2");
+        assert_eq!(recheck.digits, 1, "{recheck}");
         // a different number of exponents has nothing to compare
         assert!(
             compare_spectra(&first, &spectrum(&[0.9], &[0.0]), &StepControl::default()).is_err()
