@@ -8,7 +8,8 @@ use std::process::ExitCode;
 
 use clap::{Parser, Subcommand};
 
-/// Lamina: Poincaré sections, strobe maps and periodic orbits of typed nonlinear models.
+/// The command line; its one-line description is the package's (the tagline, also in the
+/// About box).
 #[derive(Parser, Debug)]
 #[command(name = "lamina", version, about, long_about = None)]
 struct Cli {

@@ -168,7 +168,7 @@ fn assert_rel(actual: f64, expected: f64, rel: f64, what: &str) {
 /// A small valid scenario with a cut and a strobe; the bad inputs below are made from it by
 /// one replacement each.
 const BASE: &str = r#"(
-    format: 1,
+    format: 2,
     title: "Damped oscillator",
     states: [
         (name: "x", start: 1.0, rate: "v"),
@@ -185,7 +185,7 @@ const BASE: &str = r#"(
         direction: Falling,
         axes: ("x", "v"),
     )),
-    strobe: Some((period: "2*pi/w", phase: 0.0, axes: ("x", "v"))),
+    strobe: Some((period: "2*pi/w", first_at: 0.0, axes: ("x", "v"))),
 )
 "#;
 
@@ -212,6 +212,9 @@ fn help_lists_the_commands_and_options() {
         .get_output()
         .clone();
     let help = stdout_of(&output);
+    // one tagline: the package description, the first line of --help and the About box
+    assert_eq!(env!("CARGO_PKG_DESCRIPTION"), lamina_explorer::TAGLINE);
+    assert!(help.starts_with(lamina_explorer::TAGLINE), "{help}");
     for command in ["check", "cut", "strobe", "open"] {
         assert!(help.contains(command), "--help lacks '{command}':\n{help}");
     }
@@ -236,7 +239,7 @@ fn check_accepts_every_demo() {
             .arg(&path)
             .assert()
             .code(0)
-            .stderr(predicate::str::contains("ok"));
+            .stderr(predicate::str::contains("ok").and(predicate::str::contains("format 1").not()));
     }
 }
 
@@ -382,7 +385,7 @@ fn a_failed_run_leaves_the_out_file_alone() {
         "no_strobe.ron",
         &with(
             BASE,
-            "    strobe: Some((period: \"2*pi/w\", phase: 0.0, axes: (\"x\", \"v\"))),\n",
+            "    strobe: Some((period: \"2*pi/w\", first_at: 0.0, axes: (\"x\", \"v\"))),\n",
             "",
         ),
     );
@@ -423,10 +426,10 @@ fn a_failed_run_leaves_the_out_file_alone() {
     }
 }
 
-/// x' = x^2 from x(0) = 1: x = 1 / (1 - t) [analytic], which leaves the bound 1e6 at
+/// x' = x^2 from x(0) = 1: x = 1 / (1 - t) [analytic], which passes the escape size 1e6 at
 /// t = 1 - 1e-6.
 const BLOW_UP: &str = r#"(
-    format: 1,
+    format: 2,
     title: "Blow-up in finite time",
     states: [
         (name: "x", start: 1.0, rate: "x^2"),
@@ -435,8 +438,8 @@ const BLOW_UP: &str = r#"(
     integrator: (method: Dp5, rtol: 1e-9, atol: 1e-12),
     time: (start: 0.0, settle: 0.0, span: 5.0),
     cut: Some((surface: Level("x - 1.5"), direction: Rising, axes: ("x", "x"))),
-    strobe: Some((period: "0.1", phase: 0.0, axes: ("x", "x"))),
-    limits: (max_points: 1000, bound: 1e6),
+    strobe: Some((period: "0.1", first_at: 0.0, axes: ("x", "x"))),
+    limits: (max_points: 1000, escape: 1e6),
 )
 "#;
 
@@ -468,9 +471,12 @@ fn an_escape_keeps_the_valid_points_and_says_when() {
         .get_output()
         .clone();
     let stderr = stderr_of(&output);
-    assert!(stderr.contains("bound"), "no reason in\n{stderr}");
+    assert!(
+        stderr.contains("a state passed the escape size 1e6 at t = "),
+        "no reason in\n{stderr}"
+    );
     assert!(!stderr.contains("panicked"), "{stderr}");
-    // [analytic] the bound 1e6 is passed at t = 1 - 1e-6.
+    // [analytic] the escape size 1e6 is passed at t = 1 - 1e-6.
     let t_stop = stop_time(&stderr);
     assert!(t_stop > 0.99 && t_stop <= 1.0, "stopped at {t_stop}");
     let samples = strobe_samples(&stdout_of(&output), &names);
@@ -491,7 +497,7 @@ fn an_escape_keeps_the_valid_points_and_says_when() {
         .assert()
         .failure()
         .stdout("")
-        .stderr(predicate::str::contains("bound").and(predicate::str::contains("t = ")));
+        .stderr(predicate::str::contains("escape size 1e6").and(predicate::str::contains("t = ")));
     assert_eq!(fs::read(&out).unwrap(), output.stdout);
     assert_eq!(listing(dir.path()), ["blow_up.ron", "samples.csv"]);
 
@@ -501,7 +507,7 @@ fn an_escape_keeps_the_valid_points_and_says_when() {
         .arg(&path)
         .assert()
         .failure()
-        .stderr(predicate::str::contains("bound"))
+        .stderr(predicate::str::contains("escape size 1e6"))
         .get_output()
         .clone();
     let points = cut_points(&stdout_of(&output), &names);
@@ -571,9 +577,9 @@ const BAD: &[Bad] = &[
         located: true,
     },
     Bad {
-        from: "format: 1",
-        to: "format: 2",
-        needles: &["format 2", "format 1"],
+        from: "format: 2",
+        to: "format: 3",
+        needles: &["format 3", "format 2"],
         located: false,
     },
     Bad {
@@ -740,7 +746,7 @@ fn cut_without_a_cut_and_strobe_without_a_strobe_fail_clearly() {
     )),
 ";
     let strobe_block =
-        "    strobe: Some((period: \"2*pi/w\", phase: 0.0, axes: (\"x\", \"v\"))),\n";
+        "    strobe: Some((period: \"2*pi/w\", first_at: 0.0, axes: (\"x\", \"v\"))),\n";
     let no_cut = write(dir.path(), "no_cut.ron", &with(BASE, cut_block, ""));
     let no_strobe = write(dir.path(), "no_strobe.ron", &with(BASE, strobe_block, ""));
     lamina().arg("check").arg(&no_cut).assert().success();
@@ -778,7 +784,7 @@ fn cut_without_a_cut_and_strobe_without_a_strobe_fail_clearly() {
 fn limit_cycle(x0: f64) -> String {
     format!(
         r#"(
-    format: 1,
+    format: 2,
     title: "Planar limit cycle",
     states: [
         (name: "x", start: {x0:?}, rate: "x*(1 - x^2 - y^2) - w*y"),
@@ -787,7 +793,7 @@ fn limit_cycle(x0: f64) -> String {
     parameters: [
         (name: "w", value: 2.0, range: (0.5, 3.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-12, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-12, atol: 1e-12),
     time: (start: 0.0, settle: 0.0, span: 30.0),
     cut: Some((
         surface: Plane(normal: {{"y": 1.0}}, offset: 0.0),
@@ -840,7 +846,7 @@ fn limit_cycle_cut_matches_the_exact_return_map() {
 #[test]
 fn linear_decay_strobe_matches_the_exact_map_factor() {
     let text = r#"(
-    format: 1,
+    format: 2,
     title: "Linear decay",
     states: [
         (name: "x", start: 1.0, rate: "-k*x"),
@@ -848,9 +854,9 @@ fn linear_decay_strobe_matches_the_exact_map_factor() {
     parameters: [
         (name: "k", value: 0.7, range: (0.0, 1.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-12, atol: 1e-14),
+    integrator: (method: Automatic, rtol: 1e-12, atol: 1e-14),
     time: (start: 0.0, settle: 0.0, span: 20.0),
-    strobe: Some((period: "2", phase: 0.0, axes: ("x", "x"))),
+    strobe: Some((period: "2", first_at: 0.0, axes: ("x", "x"))),
 )
 "#;
     let dir = TempDir::new().unwrap();
@@ -925,7 +931,7 @@ fn recheck_of_cut_points_and_strobe_samples_goes_to_stderr() {
 
     // a strobe: REFERENCES case 1, linear decay sampled every 2
     let decay = r#"(
-    format: 1,
+    format: 2,
     title: "Linear decay",
     states: [
         (name: "x", start: 1.0, rate: "-k*x"),
@@ -933,9 +939,9 @@ fn recheck_of_cut_points_and_strobe_samples_goes_to_stderr() {
     parameters: [
         (name: "k", value: 0.7, range: (0.0, 1.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-8, atol: 1e-14),
+    integrator: (method: Automatic, rtol: 1e-8, atol: 1e-14),
     time: (start: 0.0, settle: 0.0, span: 20.0),
-    strobe: Some((period: "2", phase: 0.0, axes: ("x", "x"))),
+    strobe: Some((period: "2", first_at: 0.0, axes: ("x", "x"))),
 )
 "#;
     let path = write(dir.path(), "decay.ron", decay);

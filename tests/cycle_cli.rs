@@ -79,7 +79,7 @@ fn help_lists_the_options() {
         .success()
         .stdout(
             predicate::str::contains("--map")
-                .and(predicate::str::contains("--period"))
+                .and(predicate::str::contains("--returns"))
                 .and(predicate::str::contains("--from-start"))
                 .and(predicate::str::contains("--json"))
                 .and(predicate::str::contains("--recheck")),
@@ -122,7 +122,7 @@ fn tunnel_diode_oscillator_has_a_stable_cycle_through_its_cut() {
 }
 
 #[test]
-fn clocked_resonator_at_low_drive_has_a_period_one_strobe_orbit() {
+fn clocked_resonator_at_low_drive_has_a_one_return_strobe_orbit() {
     let dir = TempDir::new().unwrap();
     let text = fs::read_to_string(demo("clocked_resonator.ron")).unwrap();
     let from = r#"(name: "a", value: 0.38"#;
@@ -167,7 +167,7 @@ fn clocked_resonator_at_low_drive_has_a_period_one_strobe_orbit() {
 }
 
 #[test]
-fn chaos_and_a_torus_have_no_repeat_without_a_period() {
+fn chaos_and_a_torus_have_no_repeat_without_a_count_of_returns() {
     for name in ["piecewise_circuit.ron", "coupled_oscillators.ron"] {
         lamina()
             .arg("cycle")
@@ -176,15 +176,15 @@ fn chaos_and_a_torus_have_no_repeat_without_a_period() {
             .failure()
             .stdout("")
             .stderr(
-                predicate::str::contains("no repeat up to 12")
-                    .and(predicate::str::contains("--period")),
+                predicate::str::contains("no repeat within 12 returns")
+                    .and(predicate::str::contains("--returns")),
             );
     }
 }
 
 /// Rössler (a = b = 0.2, c = 5.7) with the cut x = 0, x decreasing.
 const ROSSLER: &str = r#"(
-    format: 1,
+    format: 2,
     title: "Rossler",
     states: [
         (name: "x", start: 1.0, rate: "-y - z"),
@@ -196,7 +196,7 @@ const ROSSLER: &str = r#"(
         (name: "b", value: 0.2, range: (0.0, 1.0)),
         (name: "c", value: 5.7, range: (1.0, 10.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-12, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-12, atol: 1e-12),
     time: (start: 0.0, settle: 100.0, span: 600.0),
     cut: Some((
         surface: Plane(normal: {"x": 1.0}, offset: 0.0),
@@ -210,7 +210,7 @@ const ROSSLER: &str = r#"(
 fn rossler_saddle_orbit_through_the_command_line() {
     let dir = TempDir::new().unwrap();
     let path = write(dir.path(), "rossler.ron", ROSSLER);
-    let doc = cycle_json(&path, &["--period", "1"]);
+    let doc = cycle_json(&path, &["--returns", "1"]);
     let multipliers = check_document(&doc, &["x", "y", "z"], 2);
     // P. Cvitanović et al., ChaosBook.org, "Rössler's model" (REFERENCES case 10)
     assert!((number(&doc["point"]["y"], "y") - 6.09176831742).abs() < 1e-7);
@@ -233,11 +233,12 @@ fn rossler_saddle_orbit_through_the_command_line() {
     lamina()
         .arg("cycle")
         .arg(&path)
-        .args(["--period", "1"])
+        .args(["--returns", "1"])
         .assert()
         .success()
         .stdout(
-            predicate::str::contains("unstable, 1 unstable direction")
+            predicate::str::starts_with("1-return orbit of the cut map, period 5.881088455")
+                .and(predicate::str::contains("unstable, 1 unstable direction"))
                 .and(predicate::str::contains("unstable: |m| = 2.40395"))
                 .and(predicate::str::contains("trivial"))
                 .and(predicate::str::contains("period doubling").not())
@@ -249,7 +250,7 @@ fn rossler_saddle_orbit_through_the_command_line() {
 fn rossler_two_returns_are_never_the_one_return_orbit_run_twice() {
     let dir = TempDir::new().unwrap();
     let path = write(dir.path(), "rossler.ron", ROSSLER);
-    let doc = cycle_json(&path, &["--period", "2"]);
+    let doc = cycle_json(&path, &["--returns", "2"]);
     let multipliers = check_document(&doc, &["x", "y", "z"], 2);
     let period = number(&doc["period"], "period");
     assert_eq!(doc["asked_k"], 2);
@@ -275,7 +276,7 @@ fn rossler_two_returns_are_never_the_one_return_orbit_run_twice() {
     let output = lamina()
         .arg("cycle")
         .arg(&path)
-        .args(["--period", "2"])
+        .args(["--returns", "2"])
         .assert()
         .success()
         .get_output()
@@ -293,7 +294,7 @@ fn rossler_two_returns_are_never_the_one_return_orbit_run_twice() {
 #[test]
 fn recheck_reports_the_digits_that_agree() {
     let text = r#"(
-    format: 1,
+    format: 2,
     title: "Planar limit cycle",
     states: [
         (name: "x", start: 0.5, rate: "x*(1 - x^2 - y^2) - w*y"),
@@ -302,7 +303,7 @@ fn recheck_reports_the_digits_that_agree() {
     parameters: [
         (name: "w", value: 2.0, range: (0.5, 3.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-8, atol: 1e-10),
+    integrator: (method: Automatic, rtol: 1e-8, atol: 1e-10),
     time: (start: 0.0, settle: 0.0, span: 30.0),
     cut: Some((
         surface: Plane(normal: {"y": 1.0}, offset: 0.0),
@@ -355,7 +356,7 @@ fn recheck_reports_the_digits_that_agree() {
 fn harmonic(period: &str) -> String {
     format!(
         r#"(
-    format: 1,
+    format: 2,
     title: "Harmonic oscillator",
     states: [
         (name: "x", start: 1.0, rate: "v"),
@@ -364,9 +365,9 @@ fn harmonic(period: &str) -> String {
     parameters: [
         (name: "w", value: 2.0, range: (0.5, 3.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-12, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-12, atol: 1e-12),
     time: (start: 0.0, settle: 0.0, span: 30.0),
-    strobe: Some((period: "{period}", phase: 0.0, axes: ("x", "v"))),
+    strobe: Some((period: "{period}", first_at: 0.0, axes: ("x", "v"))),
 )
 "#
     )
@@ -391,7 +392,7 @@ fn identity_strobe_map_from_the_start_does_not_fail() {
 #[test]
 fn planar_limit_cycle_from_the_start() {
     let text = r#"(
-    format: 1,
+    format: 2,
     title: "Planar limit cycle",
     states: [
         (name: "x", start: 0.5, rate: "x*(1 - x^2 - y^2) - w*y"),
@@ -400,7 +401,7 @@ fn planar_limit_cycle_from_the_start() {
     parameters: [
         (name: "w", value: 2.0, range: (0.5, 3.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-12, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-12, atol: 1e-12),
     time: (start: 0.0, settle: 0.0, span: 30.0),
     cut: Some((
         surface: Plane(normal: {"y": 1.0}, offset: 0.0),
@@ -434,10 +435,10 @@ fn bad_requests_fail_with_a_reason() {
     lamina()
         .arg("cycle")
         .arg(&path)
-        .args(["--period", "0"])
+        .args(["--returns", "0"])
         .assert()
         .failure()
-        .stderr(predicate::str::contains("--period must be at least 1"));
+        .stderr(predicate::str::contains("--returns must be at least 1"));
     lamina()
         .arg("cycle")
         .arg(dir.path().join("missing.ron"))
@@ -451,7 +452,7 @@ fn a_driven_oscillator_strobed_at_half_its_drive_period_repeats_every_two() {
     // x'' + c x' + x = cos(w t) sampled every pi / w: the steady response A cos(w t - phi)
     // alternates between two points
     let text = r#"(
-    format: 1,
+    format: 2,
     title: "Driven linear oscillator",
     states: [
         (name: "x", start: 0.0, rate: "v"),
@@ -461,9 +462,9 @@ fn a_driven_oscillator_strobed_at_half_its_drive_period_repeats_every_two() {
         (name: "c", value: 0.5, range: (0.0, 1.0)),
         (name: "w", value: 1.3, range: (0.5, 3.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-12, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-12, atol: 1e-12),
     time: (start: 0.0, settle: 150.0, span: 60.0),
-    strobe: Some((period: "pi/w", phase: 0.0, axes: ("x", "v"))),
+    strobe: Some((period: "pi/w", first_at: 0.0, axes: ("x", "v"))),
 )
 "#;
     let dir = TempDir::new().unwrap();

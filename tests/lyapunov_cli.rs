@@ -59,7 +59,7 @@ fn numbers(value: &Value, key: &str) -> Vec<f64> {
 
 /// A damped oscillator driven at frequency w: x'' + c x' + x = a cos(w t).
 const DRIVEN: &str = r#"(
-    format: 1,
+    format: 2,
     title: "Driven damped oscillator",
     states: [
         (name: "x", start: 1.0, rate: "v"),
@@ -278,7 +278,9 @@ fn a_run_that_escapes_reports_why_and_fails() {
         .arg("--json")
         .assert()
         .code(1)
-        .stderr(predicate::str::contains("stopped early").and(predicate::str::contains("bound")))
+        .stderr(
+            predicate::str::contains("ended early").and(predicate::str::contains("escape size")),
+        )
         .get_output()
         .clone();
     let result: Value = serde_json::from_slice(&output.stdout).expect("JSON");

@@ -24,7 +24,7 @@ fn lamina() -> Command {
 fn oscillator(span: &str) -> String {
     format!(
         r#"(
-    format: 1,
+    format: 2,
     title: "Long oscillator run",
     states: [
         (name: "x", start: 1.0, rate: "v"),
@@ -38,8 +38,8 @@ fn oscillator(span: &str) -> String {
         direction: Falling,
         axes: ("x", "v"),
     )),
-    strobe: Some((period: "1", phase: 0.0, axes: ("x", "v"))),
-    limits: (max_points: 1000000000, bound: 1e6),
+    strobe: Some((period: "1", first_at: 0.0, axes: ("x", "v"))),
+    limits: (max_points: 1000000000, escape: 1e6),
 )
 "#
     )
@@ -122,7 +122,7 @@ fn ctrl_c_with_out_leaves_the_target_alone_and_no_temporary_file() {
     let stderr = stderr_text(&output);
     // [common practice] a program stopped by Ctrl-C exits with 128 + SIGINT
     assert_eq!(output.status.code(), Some(130), "{stderr}");
-    assert!(stderr.contains("interrupted at t = "), "{stderr}");
+    assert!(stderr.contains("stopped at t = "), "{stderr}");
     assert!(!stderr.contains("panicked"), "{stderr}");
     assert_eq!(output.stdout, b"");
     assert_eq!(fs::read_to_string(&out).unwrap(), "good\n");
@@ -155,7 +155,7 @@ fn ctrl_c_on_stdout_ends_on_a_whole_row() {
     let stderr = stderr_text(&output);
     // [common practice] a program stopped by Ctrl-C exits with 128 + SIGINT
     assert_eq!(output.status.code(), Some(130), "{stderr}");
-    assert!(stderr.contains("interrupted at t = "), "{stderr}");
+    assert!(stderr.contains("stopped at t = "), "{stderr}");
     assert!(text.ends_with('\n'), "the last row is cut off");
     let mut lines = text.lines();
     assert_eq!(lines.next(), Some("k,t,return_time,x,v"));

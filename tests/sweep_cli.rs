@@ -13,7 +13,7 @@ fn lamina() -> Command {
 fn brusselator(dir: &Path, follow: bool) -> PathBuf {
     let text = format!(
         r#"(
-    format: 1,
+    format: 2,
     title: "Brusselator sweep",
     states: [
         (name: "x", start: 1.3, rate: "a - (b + 1)*x + x^2*y"),
@@ -23,10 +23,10 @@ fn brusselator(dir: &Path, follow: bool) -> PathBuf {
         (name: "a", value: 1.0, range: (0.5, 2.0)),
         (name: "b", value: 2.2, range: (1.0, 3.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-9, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-9, atol: 1e-12),
     time: (start: 0.0, settle: 0.0, span: 200.0),
     cut: Some((surface: Plane(normal: {{"x": 1.0}}, offset: 1.0), direction: Rising, axes: ("x", "y"))),
-    sweep: Some((parameter: "b", from: 1.5, to: 2.5, steps: 10, settle: 600.0,
+    sweep: Some((parameter: "b", from: 1.5, to: 2.5, values: 11, settle: 600.0,
                  keep: 4, follow: {follow}, source: Cut, coordinate: "y")),
 )"#
     );
@@ -43,16 +43,44 @@ fn rows(text: &str) -> Vec<String> {
 fn sweep_csv_has_the_product_columns_and_every_value() {
     let dir = tempfile::tempdir().expect("tempdir");
     let path = brusselator(dir.path(), false);
-    let out = lamina()
+    let output = lamina()
         .args(["sweep"])
         .arg(&path)
         .assert()
         .success()
         .get_output()
-        .stdout
         .clone();
-    let text = String::from_utf8(out).expect("utf8");
+    let text = String::from_utf8(output.stdout).expect("utf8");
     assert_eq!(text.lines().next(), Some("b,k,x,y"));
+    // the change list: the first value's repeat, then each change in one wording, the values
+    // in shortest round-trip form ([analytic] 11 values from 1.5 to 2.5 are 1.5, 1.6, ...)
+    let changes = String::from_utf8(output.stderr).expect("utf8");
+    let mut lines = changes
+        .lines()
+        .filter(|l| l.starts_with("b = ") || l.contains(" between b = "));
+    let first = lines.next().expect("the first value's line");
+    assert!(first.starts_with("b = 1.5: "), "{changes}");
+    for line in lines {
+        let (words, values) = line.split_once(" between b = ").expect("a change line");
+        assert!(words.contains(" to "), "{line}");
+        for part in [words.split(" to ").next(), words.split(" to ").nth(1)] {
+            let part = part.expect("two sides");
+            assert!(
+                part.ends_with("-return orbit")
+                    || [
+                        "no repeat within 12 returns",
+                        "not settled",
+                        "too few points"
+                    ]
+                    .contains(&part),
+                "{line}"
+            );
+        }
+        let (below, above) = values.split_once(" and ").expect("two values");
+        for value in [below, above] {
+            assert!(value.len() <= 3, "not the shortest form: {line}");
+        }
+    }
     let values: std::collections::BTreeSet<String> = rows(&text)
         .iter()
         .map(|r| r.split(',').next().unwrap_or("").to_string())
@@ -158,7 +186,7 @@ fn render_writes_every_view_at_the_requested_size() {
     // a shorter window and a coarser sweep, so the test stays quick in a debug build
     let quick = demo
         .replace("span: 20000.0", "span: 600.0")
-        .replace("steps: 300", "steps: 12")
+        .replace("values: 301", "values: 13")
         .replace("settle: 300.0", "settle: 100.0");
     let path = dir.path().join("quick.ron");
     std::fs::write(&path, quick).expect("write");
@@ -216,7 +244,7 @@ fn sweep_png_is_written_beside_the_csv() {
 fn the_listed_behaviour_follows_the_one_recurrence_detector() {
     // Brusselator (REFERENCES case 12) sampled once per time unit, B = 1.7, 1.9, 2.1, 2.3
     let text = r#"(
-    format: 1,
+    format: 2,
     title: "Brusselator strobed",
     states: [
         (name: "x", start: 1.3, rate: "a - (b + 1)*x + x^2*y"),
@@ -226,10 +254,10 @@ fn the_listed_behaviour_follows_the_one_recurrence_detector() {
         (name: "a", value: 1.0, range: (0.5, 2.0)),
         (name: "b", value: 2.2, range: (1.0, 3.0)),
     ],
-    integrator: (method: Auto, rtol: 1e-9, atol: 1e-12),
+    integrator: (method: Automatic, rtol: 1e-9, atol: 1e-12),
     time: (start: 0.0, settle: 0.0, span: 100.0),
-    strobe: Some((period: "1", phase: 0.0, axes: ("x", "y"))),
-    sweep: Some((parameter: "b", from: 1.7, to: 2.3, steps: 3, settle: 600.0,
+    strobe: Some((period: "1", first_at: 0.0, axes: ("x", "y"))),
+    sweep: Some((parameter: "b", from: 1.7, to: 2.3, values: 4, settle: 600.0,
                  keep: 32, follow: false, source: Strobe, coordinate: "y")),
 )"#;
     let dir = tempfile::tempdir().expect("tempdir");
@@ -246,22 +274,17 @@ fn the_listed_behaviour_follows_the_one_recurrence_detector() {
         .get_output()
         .clone();
     let err = String::from_utf8(output.stderr).expect("utf8");
-    // [analytic] REFERENCES case 12: below B = 2 every sample sits on the equilibrium (one
-    // return); above it the samples go round the cycle without closing (no repeat)
-    assert!(
-        err.contains("4 value(s) of b, 1 change(s) of behaviour:"),
+    // [analytic] REFERENCES case 12: below B = 2 every sample sits on the equilibrium (a
+    // 1-return orbit); above it the samples go round the cycle without closing (no repeat)
+    assert!(err.contains("b = 1.7: 1-return orbit\n"), "{err}");
+    let changes: Vec<&str> = err
+        .lines()
+        .filter(|l| l.contains(" between b = "))
+        .collect();
+    assert_eq!(
+        changes,
+        ["1-return orbit to no repeat within 12 returns between b = 1.9 and 2.1"],
         "{err}"
     );
-    let lines: Vec<&str> = err.lines().collect();
-    let at = lines
-        .iter()
-        .position(|l| l.contains("change(s) of behaviour"))
-        .expect("headline");
-    assert!(
-        lines[at + 1].starts_with("  b = 1.7 to ")
-            && lines[at + 1].ends_with("(2 values): 1 return"),
-        "{err}"
-    );
-    assert!(lines[at + 2].ends_with("(2 values): no repeat"), "{err}");
     assert_eq!(png_size(&png), (1200, 900));
 }

@@ -19,6 +19,9 @@ pub fn check(path: &Path) -> Result<ExitCode> {
             return Ok(ExitCode::FAILURE);
         }
     };
+    if let Some(note) = scenario.format_note() {
+        eprintln!("{}: {note}", path.display());
+    }
     let problems = scenario.check();
     for problem in &problems {
         eprintln!("{}: {problem}", path.display());

@@ -32,10 +32,10 @@ pub struct CycleArgs {
     /// model does not use t, otherwise the strobe.
     #[arg(long, value_enum, value_name = "MAP")]
     map: Option<MapArg>,
-    /// Returns per period (look for a period-K point of the map). Default: the repeat found in
-    /// the settled points (1 with --from-start).
+    /// Returns of the map per orbit (look for a K-return orbit; its period is the time of the
+    /// K returns). Default: the repeat found in the settled points (1 with --from-start).
     #[arg(long, value_name = "K")]
-    period: Option<usize>,
+    returns: Option<usize>,
     /// Start Newton's method from the scenario's start state (its first cut point or strobe
     /// sample) instead of the closest return of the settled points.
     #[arg(long)]
@@ -78,9 +78,10 @@ pub enum SeedOrigin {
 pub fn cycle(args: &CycleArgs) -> Result<ExitCode> {
     let path = &args.file;
     let prepared = prepare(path)?;
+    let scenario = prepared.scenario.clone();
     let choice = choose_map(args.map, &prepared, path)?;
-    if args.period == Some(0) {
-        bail!("--period must be at least 1");
+    if args.returns == Some(0) {
+        bail!("--returns must be at least 1");
     }
     let names = prepared.model.names().states.clone();
     let rtol = prepared.spec.control.rtol;
@@ -99,23 +100,18 @@ pub fn cycle(args: &CycleArgs) -> Result<ExitCode> {
             .context("cannot reach the map from the start state")?;
         (
             vec![seed],
-            args.period.unwrap_or(1),
+            args.returns.unwrap_or(1),
             SeedOrigin::Start,
             span,
         )
     } else {
-        seeds_from_run(prepared.clone(), choice, args.period, path)?
+        seeds_from_run(prepared.clone(), choice, args.returns, path)?
     };
 
     let settings = MapSettings::from_run(&prepared.spec, max_return_time);
     let mut map = FlowMap::new(prepared.model.clone(), kind.clone(), settings)?;
-    let report =
-        find_cycle(&mut map, &seeds, k, &NewtonSettings::for_rtol(rtol)).with_context(|| {
-            format!(
-                "no periodic orbit of {k} return(s) found from {} seed(s)",
-                seeds.len()
-            )
-        })?;
+    let report = find_cycle(&mut map, &seeds, k, &NewtonSettings::for_rtol(rtol))
+        .with_context(|| format!("no {k}-return orbit found from {} seed(s)", seeds.len()))?;
     let recheck: Option<Result<Recheck, RecheckError>> = args
         .recheck
         .then(|| recheck::cycle(prepared.model, kind, &settings, &report, &names));
@@ -123,7 +119,7 @@ pub fn cycle(args: &CycleArgs) -> Result<ExitCode> {
     if args.json {
         write_json(&mut out, &report, &names, recheck.as_ref())?;
     } else {
-        write_human(&mut out, &report, &names, &origin, recheck.as_ref())?;
+        write_human(&mut out, &report, &scenario, &origin, recheck.as_ref())?;
     }
     out.flush().context("writing to stdout")?;
     match recheck {
@@ -199,7 +195,7 @@ impl Sink for CloudSink {
 fn seeds_from_run(
     prepared: Prepared,
     choice: MapArg,
-    period: Option<usize>,
+    returns: Option<usize>,
     path: &Path,
 ) -> Result<(Vec<MapPoint>, usize, SeedOrigin, f64)> {
     let span = prepared.spec.t_end() - prepared.spec.t_start;
@@ -219,7 +215,7 @@ fn seeds_from_run(
     sink.progress.finish();
     if outcome.reason.is_trouble() {
         bail!(
-            "the run of {} stopped early ({}) after {} point(s)",
+            "the run of {} ended early ({}) after {} point(s)",
             path.display(),
             outcome.reason,
             sink.points.len()
@@ -238,10 +234,10 @@ fn seeds_from_run(
         );
     }
     let recurrence = find_recurrence(&points, &RecurrenceSettings::for_control(&prepared_control));
-    let k = match (period, recurrence.search_k()) {
+    let k = match (returns, recurrence.search_k()) {
         (Some(k), _) | (None, Some(k)) => k,
         (None, None) => bail!(
-            "{} {label}: {recurrence}; give --period K to look for an orbit of K returns \
+            "{} {label}: {recurrence}; give --returns K to look for a K-return orbit \
              (unstable orbits inside chaos are found that way)",
             points.len()
         ),
@@ -249,7 +245,7 @@ fn seeds_from_run(
     let returns = close_returns(&points, k, MAX_SEEDS);
     let Some(closest) = returns.first() else {
         bail!(
-            "{} {label} are too few for an orbit of {k} return(s): lengthen time.span",
+            "{} {label} are too few for a {k}-return orbit: lengthen time.span",
             points.len()
         );
     };

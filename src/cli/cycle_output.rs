@@ -5,6 +5,7 @@ use std::io::Write;
 use anyhow::{Context, Result};
 use lamina_core::cycle::{CycleReport, MapChoice, Multiplier, Number};
 use lamina_core::recheck::{Recheck, RecheckError};
+use lamina_scenario::{Scenario, State};
 use serde::Serialize;
 use serde::ser::{SerializeMap, Serializer};
 
@@ -91,22 +92,19 @@ pub fn write_json(
     Ok(())
 }
 
-/// Writes the report for a person to read.
+/// Writes the report for a person to read, with the scenario's units.
 pub fn write_human(
     out: &mut impl Write,
     report: &CycleReport,
-    names: &[String],
+    scenario: &Scenario,
     origin: &SeedOrigin,
     recheck: Option<&Result<Recheck, RecheckError>>,
 ) -> Result<()> {
+    let time_unit = unit_suffix(scenario.time.unit.as_deref());
+    let states = &scenario.states;
     let map = match report.map {
         MapChoice::Cut => "cut map",
         MapChoice::Strobe => "strobe map",
-    };
-    let returns = if report.k == 1 {
-        "1 return".to_string()
-    } else {
-        format!("{} returns", report.k)
     };
     let mut text = String::new();
     let mut line = |s: String| {
@@ -114,27 +112,22 @@ pub fn write_human(
         text.push('\n');
     };
     line(format!(
-        "{}-return orbit of the {map}, period {}",
-        report.k,
-        Number(report.period)
+        "{}-return orbit of the {map}, period {}{time_unit}",
+        report.k, report.period
     ));
     if let Some(note) = report.search_note() {
         line(format!("  note          {note}"));
     }
     line(format!(
-        "  period        {}  (total time of {returns})",
-        report.period
-    ));
-    line(format!(
-        "  point         {}  (t = {})",
-        named(names, &report.point.state),
+        "  point         {}  (t = {}{time_unit})",
+        named(states, &report.point.state),
         report.point.t
     ));
     for (idx, other) in report.orbit.iter().enumerate().skip(1) {
         line(format!(
-            "  point {}       {}  (t = {})",
+            "  point {}       {}  (t = {}{time_unit})",
             idx + 1,
-            named(names, &other.state),
+            named(states, &other.state),
             other.t
         ));
     }
@@ -199,12 +192,23 @@ fn distance_to_one(m: &Multiplier) -> f64 {
     (m.re - 1.0).hypot(m.im)
 }
 
-/// `a = 1, b = 2` with full precision.
-fn named(names: &[String], values: &[f64]) -> String {
-    names
+/// `x = 1 um, v = 2` with full precision and each state's unit.
+fn named(states: &[State], values: &[f64]) -> String {
+    states
         .iter()
         .zip(values)
-        .map(|(n, v)| format!("{n} = {}", Number(*v)))
+        .map(|(s, v)| {
+            let unit = unit_suffix(s.unit.as_deref());
+            format!("{} = {}{unit}", s.name, Number(*v))
+        })
         .collect::<Vec<_>>()
         .join(", ")
+}
+
+/// ` um` for a unit, nothing without one.
+fn unit_suffix(unit: Option<&str>) -> String {
+    match unit {
+        Some(unit) if !unit.trim().is_empty() => format!(" {unit}"),
+        _ => String::new(),
+    }
 }

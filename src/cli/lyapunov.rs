@@ -103,7 +103,7 @@ pub fn lyapunov(args: &LyapunovArgs) -> Result<ExitCode> {
         StopReason::Finished => Ok(ExitCode::SUCCESS),
         other => {
             eprintln!(
-                "the run stopped early ({other}); the exponents are averaged up to t = {}",
+                "the run ended early ({other}); the exponents are averaged up to t = {}",
                 result.t_end
             );
             Ok(ExitCode::FAILURE)
@@ -146,7 +146,7 @@ fn json(result: &Spectrum, recheck: Option<&Result<Recheck, RecheckError>>) -> R
         "finished": result.reason == StopReason::Finished,
         "stop_reason": result.reason.to_string(),
         "reorthonormalisations": result.n_reorthonormalisations,
-        "rate_evaluations": result.stats.n_rates,
+        "rate_evaluations": result.stats.n_rate_evaluations,
     });
     if let Some(recheck) = recheck {
         value["recheck"] =

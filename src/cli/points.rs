@@ -161,7 +161,7 @@ pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
             let file = AtomicFile::create(path)?;
             let (reason, kept, file) = execute(&setup, file, &mut run, &interrupt)?;
             if let StopReason::Cancelled { .. } = reason {
-                // an interrupted run is not a result: the temporary file goes, the target
+                // a stopped run is not a result: the temporary file goes, the target
                 // stays as it was
                 drop(file);
             } else {
@@ -173,7 +173,7 @@ pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
         None => {
             let stdout = std::io::stdout().lock();
             let (reason, kept, mut out) = execute(&setup, stdout, &mut run, &interrupt)?;
-            // the rows so far, also of an interrupted run: each is a whole, valid row
+            // the rows so far, also of a stopped run: each is a whole, valid row
             out.flush().context("writing to stdout")?;
             (report(reason, kept.len(), label, None)?, kept)
         }
@@ -189,7 +189,7 @@ pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
                     Ok(code)
                 }
                 Err(RecheckError::Cancelled { t }) => {
-                    eprintln!("recheck: interrupted at t = {t}");
+                    eprintln!("recheck: stopped at t = {t} on a signal");
                     Ok(ExitCode::from(INTERRUPTED))
                 }
                 Err(err) => {
@@ -278,10 +278,12 @@ fn report(
         StopReason::Cancelled { t } => {
             match path {
                 Some(path) => eprintln!(
-                    "interrupted at t = {t}; nothing was written to {}",
+                    "stopped at t = {t} on a signal; nothing was written to {}",
                     path.display()
                 ),
-                None => eprintln!("interrupted at t = {t}; wrote {written} {label} point(s)"),
+                None => {
+                    eprintln!("stopped at t = {t} on a signal; wrote {written} {label} point(s)")
+                }
             }
             Ok(ExitCode::from(INTERRUPTED))
         }
@@ -299,7 +301,7 @@ fn report(
         }
         other => {
             eprintln!(
-                "wrote {written} valid {label} point(s){target}; the run stopped early: {other}"
+                "wrote {written} valid {label} point(s){target}; the run ended early: {other}"
             );
             Ok(ExitCode::FAILURE)
         }

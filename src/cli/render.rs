@@ -10,7 +10,7 @@ use lamina_core::recurrence::RecurrenceKind;
 use lamina_core::run::{CutPoint, Run, Sink, StrobeSample};
 use lamina_core::sweep::{SweepColumn, SweepSpec};
 use lamina_export::write_bytes_atomically;
-use lamina_render::Figure;
+use lamina_render::{Figure, picture_title, view_names};
 use lamina_scenario::Scenario;
 
 use super::prepare::prepare;
@@ -97,18 +97,16 @@ pub fn write_orbit_diagram(
     columns: &[SweepColumn],
     kinds: &[RecurrenceKind],
 ) -> Result<()> {
-    let parameter = &scenario.parameters[spec.parameter].name;
-    let coordinate_name = &scenario.states[coordinate].name;
     let data: Vec<(f64, Vec<f64>)> = columns
         .iter()
         .map(|c| (c.value, c.points.iter().map(|p| p[coordinate]).collect()))
         .collect();
     let figure = Figure {
         size,
-        title: format!("{} — orbit diagram", scenario.title),
+        title: picture_title(&scenario.title, view_names::ORBIT),
         caption: scenario.caption(),
-        x_label: parameter.clone(),
-        y_label: coordinate_name.clone(),
+        x_label: scenario.parameter_label(spec.parameter),
+        y_label: scenario.state_label(coordinate),
     };
     let bytes = lamina_render::orbit_diagram_png(&figure, &data, Some(kinds))?;
     write_png(path, &bytes)
@@ -127,7 +125,7 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
     }
     let prepared = prepare(&args.file)?;
     let scenario = prepared.scenario.clone();
-    let names: Vec<String> = scenario.states.iter().map(|s| s.name.clone()).collect();
+    let n_states = scenario.states.len();
     let (cut, strobe) = match args.view {
         View::Cut if prepared.cut.is_none() => bail!("{} has no cut", args.file.display()),
         View::Strobe if prepared.strobe.is_none() => bail!("{} has no strobe", args.file.display()),
@@ -139,7 +137,7 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
         .execute(&mut sink, &Interrupt::new());
     let figure = |x: String, y: String, what: &str| Figure {
         size: args.size,
-        title: format!("{} — {what}", scenario.title),
+        title: picture_title(&scenario.title, what),
         caption: scenario.caption(),
         x_label: x,
         y_label: y,
@@ -147,11 +145,11 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
     let bytes = match args.view {
         View::Trajectory => {
             let axes = three_axes(&scenario);
-            let n = names.len();
-            let label = |a: usize| match names.get(a) {
-                Some(name) => name.clone(),
-                None if a == n => "t".into(),
-                None => "drive phase".into(),
+            let n = n_states;
+            let label = |a: usize| match a {
+                _ if a < n => scenario.state_label(a),
+                _ if a == n => scenario.time_label(),
+                _ => time_within_period_label(&scenario),
             };
             let points = sink.trajectory.iter().map(|(t, s)| {
                 let v = |a: usize| match s.get(a) {
@@ -161,11 +159,11 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
                 };
                 (v(axes[0]), v(axes[1]), v(axes[2]))
             });
-            // a new piece of line wherever the drive phase wraps around
-            let phase_axis = axes.iter().position(|&a| a == n + 1);
-            let pieces = lamina_render::split_where_it_wraps(points, phase_axis);
+            // a new piece of line wherever the time within the period wraps around
+            let wrapping_axis = axes.iter().position(|&a| a == n + 1);
+            let pieces = lamina_render::split_where_it_wraps(points, wrapping_axis);
             lamina_render::trajectory_png(
-                &figure(label(axes[0]), label(axes[1]), "trajectory"),
+                &figure(label(axes[0]), label(axes[1]), view_names::TRAJECTORY),
                 &label(axes[2]),
                 &pieces,
             )?
@@ -182,7 +180,11 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
                     .filter_map(|p| p.return_time.map(|r| (p.state[keep], r)))
                     .collect();
                 lamina_render::scatter_png(
-                    &figure(names[keep].clone(), "return time".into(), "cut points"),
+                    &figure(
+                        scenario.state_label(keep),
+                        return_time_label(&scenario),
+                        view_names::CUT,
+                    ),
                     &points,
                     None,
                 )?
@@ -191,7 +193,11 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
                     sink.cut.iter().map(|p| (p.state[a], p.state[b])).collect();
                 let order: Vec<f64> = (0..points.len()).map(|i| i as f64).collect();
                 lamina_render::scatter_png(
-                    &figure(names[a].clone(), names[b].clone(), "cut points"),
+                    &figure(
+                        scenario.state_label(a),
+                        scenario.state_label(b),
+                        view_names::CUT,
+                    ),
                     &points,
                     Some(&order),
                 )?
@@ -206,7 +212,11 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
                 .collect();
             let order: Vec<f64> = (0..points.len()).map(|i| i as f64).collect();
             lamina_render::scatter_png(
-                &figure(names[a].clone(), names[b].clone(), "strobe samples"),
+                &figure(
+                    scenario.state_label(a),
+                    scenario.state_label(b),
+                    view_names::STROBE,
+                ),
                 &points,
                 Some(&order),
             )?
@@ -233,10 +243,27 @@ fn finish(
         args.size.1
     );
     if reason.is_trouble() {
-        eprintln!("the run stopped early: {reason}; the picture shows what was found before");
+        eprintln!("the run ended early: {reason}; the picture shows what was found before");
         return Ok(ExitCode::FAILURE);
     }
     Ok(ExitCode::SUCCESS)
+}
+
+/// `return time`, with the time's unit.
+fn return_time_label(scenario: &Scenario) -> String {
+    with_time_unit("return time", scenario)
+}
+
+/// The label of the time within the strobe period (`t mod T`), with the time's unit.
+fn time_within_period_label(scenario: &Scenario) -> String {
+    with_time_unit("t mod T", scenario)
+}
+
+fn with_time_unit(label: &str, scenario: &Scenario) -> String {
+    match scenario.time.unit.as_deref() {
+        Some(unit) if !unit.trim().is_empty() => format!("{label} ({unit})"),
+        _ => label.to_owned(),
+    }
 }
 
 /// The three coordinates of the 3D picture: the view block's, else the first three states,

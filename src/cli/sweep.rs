@@ -30,9 +30,9 @@ pub struct SweepArgs {
     /// Also draw the orbit diagram into this PNG.
     #[arg(long, value_name = "FILE.png")]
     png: Option<PathBuf>,
-    /// Run only every N-th value starting at I (restart mode), for spreading one sweep over
-    /// several machines; concatenating the shards' rows and sorting by the parameter value
-    /// gives the whole sweep.
+    /// Run only every N-th value starting at I, for spreading one sweep over several machines
+    /// (a sweep with `follow: false` only); concatenating the shards' rows and sorting by the
+    /// parameter value gives the whole sweep.
     #[arg(long, value_name = "I/N", value_parser = parse_shard)]
     shard: Option<(usize, usize)>,
 }

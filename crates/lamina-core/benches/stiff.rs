@@ -1,7 +1,7 @@
 //! Stiff benchmark: Van der Pol with mu = 1000 over ten periods (about 16 100 time units) at
 //! rtol = atol = 1e-8, through the cut v = 0 falling, with the automatic method against
 //! DOP853 forced (and Rodas4 forced for comparison): CPU time, accepted and rejected steps,
-//! right-hand-side evaluations, Jacobians and changes of method, and the mean period.
+//! rate evaluations, Jacobians and changes of method, and the mean period.
 //!
 //! The runs go through the run driver with the typed model, as the explorer and the command
 //! line run them.
@@ -92,7 +92,7 @@ fn report(label: &str, secs: f64, outcome: &RunOutcome, points: &Collect) -> f64
         "  {label:<8} {secs:>8.3} s CPU  {:>9} steps  {:>7} rejected  {:>10} evaluations  {:>6} Jacobians  {:>4} changes of method  period {mean_period:.9}  ({})",
         s.n_accepted,
         s.n_rejected,
-        s.n_rates,
+        s.n_rate_evaluations,
         s.n_jacobians,
         outcome.method_changes.len(),
         outcome.reason
@@ -104,15 +104,15 @@ fn main() {
     println!(
         "Van der Pol mu = 1000, {N_PERIODS} periods, rtol = atol = {TOLERANCE:e}, cut v = 0 falling"
     );
-    println!("  (Auto and Rodas4: median of {ROUNDS} runs; DOP853: one run)");
-    let (auto_secs, auto, auto_points) = run(Method::Auto, ROUNDS);
-    let auto_secs = report("Auto", auto_secs, &auto, &auto_points);
+    println!("  (Automatic and Rodas4: median of {ROUNDS} runs; DOP853: one run)");
+    let (auto_secs, auto, auto_points) = run(Method::Automatic, ROUNDS);
+    let auto_secs = report("Automatic", auto_secs, &auto, &auto_points);
     let (stiff_secs, stiff, stiff_points) = run(Method::Rodas4, ROUNDS);
     report("Rodas4", stiff_secs, &stiff, &stiff_points);
     let (explicit_secs, explicit, explicit_points) = run(Method::Dp853, 1);
     let explicit_secs = report("DOP853", explicit_secs, &explicit, &explicit_points);
     println!(
-        "  DOP853/Auto: {:.1} x the CPU time, {:.1} x the steps",
+        "  DOP853/Automatic: {:.1} x the CPU time, {:.1} x the steps",
         explicit_secs / auto_secs,
         explicit.stats.n_accepted as f64 / auto.stats.n_accepted as f64
     );

@@ -53,7 +53,7 @@ fn main() {
         parameter: 2,
         from: 0.15,
         to: 0.55,
-        steps: 127,
+        values: 128,
         settle: 600.0,
         keep: 48,
         span: 2000.0,
@@ -62,7 +62,7 @@ fn main() {
     };
     let period = StrobeSpec {
         period: "2*pi/w".into(),
-        phase: 0.0,
+        first_at: 0.0,
     };
     let strobe_for = move |m: &Model| Strobe::compile(&period, m).ok();
     let indices: Vec<usize> = (0..spec.n_values()).collect();

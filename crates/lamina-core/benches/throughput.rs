@@ -157,7 +157,7 @@ fn crossings<R: Rates>(
     while integrator.t() < 50.0 {
         integrator.step_lazy(rates, 50.0).expect("settles");
     }
-    let n_settle = integrator.stats().n_rates;
+    let n_settle = integrator.stats().n_rate_evaluations;
     let mut g0 = cut.value(integrator.t(), integrator.x(), &[]);
     let mut found = 0;
     let mut checksum = 0.0;
@@ -176,7 +176,7 @@ fn crossings<R: Rates>(
     let secs = started.elapsed().as_secs_f64();
     (
         secs,
-        integrator.stats().n_rates - n_settle,
+        integrator.stats().n_rate_evaluations - n_settle,
         black_box(checksum),
     )
 }
@@ -279,7 +279,7 @@ fn report(t: &Timings, n_crossings: usize) {
         rate(t.native)
     );
     println!(
-        "  right-hand-side evaluations per crossing: {:.1}",
+        "  rate evaluations per crossing: {:.1}",
         t.evals_per_crossing
     );
     println!("  closures/native: {:.3}", t.closures / t.native);

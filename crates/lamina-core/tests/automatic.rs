@@ -29,7 +29,7 @@ const AMPLITUDE: f64 = 2.0000729660026084;
 
 #[test]
 fn stiff_van_der_pol_period_matches_the_reference_with_few_steps() {
-    for method in [Method::Auto, Method::Rodas4] {
+    for method in [Method::Automatic, Method::Rodas4] {
         let m = stiff_van_der_pol();
         let cut = plane(&m, &[("v", 1.0)], 0.0, Direction::Falling);
         let (points, outcome) = collect(m, spec(method, 1e-9, 0.0, 2.05 * PERIOD), Some(cut), None);
@@ -81,7 +81,7 @@ fn automatic_method_reports_when_and_why_it_changes() {
     let m = stiff_van_der_pol();
     let mut run = Run::new(
         m,
-        spec(Method::Auto, 1e-8, 0.0, 1.05 * PERIOD),
+        spec(Method::Automatic, 1e-8, 0.0, 1.05 * PERIOD),
         None,
         None,
         false,
@@ -131,7 +131,12 @@ fn a_model_that_stops_being_stiff_goes_back_to_the_explicit_method() {
         &[("k", 1e4)],
     );
     let samples = strobe(&m, "1", 0.0);
-    let (points, outcome) = collect(m, spec(Method::Auto, 1e-9, 0.0, 20.0), None, Some(samples));
+    let (points, outcome) = collect(
+        m,
+        spec(Method::Automatic, 1e-9, 0.0, 20.0),
+        None,
+        Some(samples),
+    );
     assert_eq!(outcome.reason, StopReason::Finished);
     let to: Vec<Method> = outcome.method_changes.iter().map(|c| c.to).collect();
     assert_eq!(

@@ -74,11 +74,11 @@ pub fn level(model: &Model, expression: &str, direction: Direction) -> Cut {
 }
 
 /// A strobe with a period expression.
-pub fn strobe(model: &Model, period: &str, phase: f64) -> Strobe {
+pub fn strobe(model: &Model, period: &str, first_at: f64) -> Strobe {
     Strobe::compile(
         &StrobeSpec {
             period: period.to_string(),
-            phase,
+            first_at,
         },
         model,
     )
@@ -104,7 +104,7 @@ pub fn rel(a: f64, b: f64) -> f64 {
 
 /// Both explicit methods and the automatic choice (which on a non-stiff model stays with
 /// DOP853).
-pub const METHODS: [Method; 3] = [Method::Dp5, Method::Dp853, Method::Auto];
+pub const METHODS: [Method; 3] = [Method::Dp5, Method::Dp853, Method::Automatic];
 
 /// Run settings at tolerance `tol` with a settle and a recorded span.
 pub fn window(tol: f64, settle: f64, span: f64) -> RunSpec {

@@ -66,9 +66,16 @@ fn dop853_saves_three_evaluations_per_step_without_dense_output() {
     let (e, l) = (eager.stats(), lazy.stats());
     assert_eq!(e.n_accepted, l.n_accepted);
     // [analytic] stages 14-16 of DOP853 serve the dense output only
-    assert_eq!(e.n_rates - l.n_rates, 3 * e.n_accepted);
+    assert_eq!(
+        e.n_rate_evaluations - l.n_rate_evaluations,
+        3 * e.n_accepted
+    );
     lazy.ensure_dense(&mut rates).expect("finite");
-    assert_eq!(lazy.stats().n_rates, l.n_rates + 3);
+    assert_eq!(lazy.stats().n_rate_evaluations, l.n_rate_evaluations + 3);
     lazy.ensure_dense(&mut rates).expect("finite");
-    assert_eq!(lazy.stats().n_rates, l.n_rates + 3, "built once");
+    assert_eq!(
+        lazy.stats().n_rate_evaluations,
+        l.n_rate_evaluations + 3,
+        "built once"
+    );
 }

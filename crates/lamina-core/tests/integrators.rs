@@ -408,7 +408,7 @@ fn evaluation_counts_follow_first_same_as_last() {
         }
         let s = integrator.stats();
         let expected = 2 + per_attempt * (s.n_accepted + s.n_rejected) + per_accept * s.n_accepted;
-        assert_eq!(s.n_rates, expected, "{method:?}: {s:?}");
+        assert_eq!(s.n_rate_evaluations, expected, "{method:?}: {s:?}");
     }
 }
 

@@ -368,7 +368,7 @@ fn numerical_trouble_ends_the_run_with_its_time() {
         &ExponentSettings::all(),
     );
     assert!(
-        matches!(s.reason, StopReason::Escaped { t } if t > 0.99 && t < 1.0),
+        matches!(s.reason, StopReason::Escaped { t, .. } if t > 0.99 && t < 1.0),
         "{:?}",
         s.reason
     );
@@ -380,7 +380,7 @@ fn numerical_trouble_ends_the_run_with_its_time() {
         &spec(Method::Dp853, 1e-9, 0.5, 5.0),
         &ExponentSettings::all(),
     );
-    let StopReason::Escaped { t } = s.reason else {
+    let StopReason::Escaped { t, .. } = s.reason else {
         panic!("expected an escape, got {:?}", s.reason)
     };
     assert!(t > 0.99 && t < 1.0, "t = {t}");

@@ -43,7 +43,7 @@ fn a_sweep_through_the_logistic_doublings_is_labelled_as_its_orbit_diagram() {
         parameter: 0,
         from: 2.75,
         to: 3.5,
-        steps: 3,
+        values: 4,
         settle: 400.0,
         keep: 40,
         span: 50.0,
@@ -83,11 +83,18 @@ fn a_sweep_through_the_logistic_doublings_is_labelled_as_its_orbit_diagram() {
     let found = changes(&labels);
     assert_eq!(found.len(), 3);
     assert_eq!((found[0].below, found[0].to), (2.75, NotSettled));
-    assert_eq!((found[2].below, found[2].above), (labels[2].0, 3.5));
+    assert_eq!((found[2].below, found[2].above), (3.25, 3.5));
     let lines = describe("r", &labels);
-    assert_eq!(lines[0], "4 value(s) of r, 3 change(s) of behaviour:");
-    assert_eq!(lines[4], "  r = 3.5: 4 returns");
-    assert!(lines[5].starts_with("1 value(s) not settled"), "{lines:?}");
+    assert_eq!(
+        lines[..4],
+        [
+            "r = 2.75: 1-return orbit",
+            "1-return orbit to not settled between r = 2.75 and 3",
+            "not settled to 2-return orbit between r = 3 and 3.25",
+            "2-return orbit to 4-return orbit between r = 3.25 and 3.5",
+        ]
+    );
+    assert!(lines[4].starts_with("1 value(s) not settled"), "{lines:?}");
 }
 
 /// Run settings for the sweeps: DOP853 at `tol`.

@@ -26,7 +26,15 @@ fn escape_is_reported_with_its_time() {
     let m = model(&[("x", 1.0, "x^2")], &[]);
     let (_, outcome) = collect(m, spec(Method::Dp853, 1e-9, 0.0, 5.0), None, None);
     match outcome.reason {
-        StopReason::Escaped { t } => assert!(t > 0.99 && t < 1.0, "t = {t}"),
+        StopReason::Escaped { t, escape } => {
+            assert!(t > 0.99 && t < 1.0, "t = {t}");
+            assert_eq!(escape, 1e6);
+            let message = outcome.reason.to_string();
+            assert!(
+                message.starts_with("a state passed the escape size 1e6 at t = 0.99"),
+                "{message}"
+            );
+        }
         other => panic!("expected an escape, got {other:?}"),
     }
 }

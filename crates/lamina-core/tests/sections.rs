@@ -230,7 +230,7 @@ fn henon_heiles_energy_is_kept_at_the_cut() {
         &[],
     );
     let rtol = 1e-12;
-    for method in [Method::Dp853, Method::Auto] {
+    for method in [Method::Dp853, Method::Automatic] {
         let cut = plane(&m, &[("x", 1.0)], 0.0, Direction::Rising);
         let (points, outcome) =
             collect(m.clone(), spec(method, rtol, 0.0, 2200.0), Some(cut), None);
@@ -293,7 +293,7 @@ fn strobe_of_harmonic_oscillator_is_the_rotation_matrix() {
             }
         }
         for q in p {
-            // the sample lies exactly at phase + k T
+            // the sample lies exactly at first_at + k T
             assert_eq!(q.t, 0.25 + q.index as f64);
         }
     }

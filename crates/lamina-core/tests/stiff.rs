@@ -212,7 +212,7 @@ fn difference_jacobian_gives_the_same_solution_as_the_exact_one() {
     assert_eq!(s1.n_jacobians, s1.n_accepted);
     // per Jacobian the closure costs one evaluation per state and one for d/dt
     assert_eq!(
-        s2.n_rates,
+        s2.n_rate_evaluations,
         2 + 5 * (s2.n_accepted + s2.n_rejected) + s2.n_accepted + 2 * s2.n_jacobians
     );
     assert!(s1.n_decompositions == s1.n_accepted + s1.n_rejected);

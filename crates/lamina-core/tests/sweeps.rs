@@ -23,12 +23,12 @@ fn brusselator() -> Model {
     )
 }
 
-fn sweep_spec(from: f64, to: f64, steps: u32, follow: bool) -> SweepSpec {
+fn sweep_spec(from: f64, to: f64, values: u32, follow: bool) -> SweepSpec {
     SweepSpec {
         parameter: 1,
         from,
         to,
-        steps,
+        values,
         settle: 1500.0,
         keep: 8,
         span: 400.0,
@@ -74,7 +74,7 @@ fn spec_for_sweep() -> lamina_core::run::RunSpec {
 #[test]
 fn brusselator_cycle_is_born_at_b_equal_2_and_grows_like_a_square_root() {
     // values 1.84, 1.92, 2.00, 2.08, 2.16
-    let columns = restart(&sweep_spec(1.84, 2.16, 4, false));
+    let columns = restart(&sweep_spec(1.84, 2.16, 5, false));
     assert_eq!(columns.len(), 5);
     for c in &columns[..2] {
         // [analytic] REFERENCES case 12: below the Hopf value B = 1 + A^2 = 2 the equilibrium
@@ -98,7 +98,7 @@ fn brusselator_cycle_is_born_at_b_equal_2_and_grows_like_a_square_root() {
 
 #[test]
 fn follow_and_restart_agree_on_a_unique_cycle() {
-    let follow_spec = sweep_spec(2.1, 2.3, 2, true);
+    let follow_spec = sweep_spec(2.1, 2.3, 3, true);
     let m = brusselator();
     let cut = plane(&m, &[("x", 1.0)], 1.0, Direction::Rising);
     let mut followed = Vec::new();
@@ -116,7 +116,7 @@ fn follow_and_restart_agree_on_a_unique_cycle() {
         },
     )
     .expect("sweep runs");
-    let restarted = restart(&sweep_spec(2.1, 2.3, 2, false));
+    let restarted = restart(&sweep_spec(2.1, 2.3, 3, false));
     for (f, r) in followed.iter().zip(&restarted) {
         assert_eq!(f.value, r.value);
         // a stable cycle crosses x = 1 (rising) at one point, whichever way it was reached
@@ -136,7 +136,7 @@ fn follow_and_restart_agree_on_a_unique_cycle() {
 
 #[test]
 fn shards_together_equal_the_whole_sweep() {
-    let spec = sweep_spec(2.05, 2.25, 5, false);
+    let spec = sweep_spec(2.05, 2.25, 6, false);
     let whole = restart(&spec);
     let m = brusselator();
     let cut = plane(&m, &[("x", 1.0)], 1.0, Direction::Rising);
@@ -162,16 +162,38 @@ fn shards_together_equal_the_whole_sweep() {
 
 #[test]
 fn values_are_exact_at_both_ends_and_evenly_spaced() {
-    let spec = sweep_spec(0.1, 0.7, 6, false);
+    let spec = sweep_spec(0.1, 0.7, 7, false);
+    assert_eq!(spec.n_values(), 7);
     assert_eq!(spec.value(0), 0.1);
     assert_eq!(spec.value(6), 0.7);
-    assert!((spec.value(3) - 0.4).abs() < 1e-15);
+    // [analytic] 0.1 + 3 * 0.1 = 0.4, landed on the nearest binary64 of the decimal
+    assert_eq!(spec.value(3), 0.4);
     assert_eq!(spec.shard_indices(1, 3), vec![1, 4]);
 }
 
 #[test]
+fn values_between_decimal_ends_are_the_decimals() {
+    // [analytic] 0.15 + 63 * 0.4 / 300 = 0.234; unrounded, the arithmetic gives
+    // 0.23399999999999999
+    let spec = sweep_spec(0.15, 0.55, 301, false);
+    assert_eq!(spec.value(63), 0.234);
+    assert_eq!(format!("{}", spec.value(63)), "0.234");
+    // [analytic] the middle of -1 to 1 is 0, not a rounding residue
+    assert_eq!(sweep_spec(-1.0, 1.0, 3, false).value(1), 0.0);
+    // [analytic] each value is within 1e-15 of the decimal grid, even for tiny or huge ends
+    for (from, to) in [(1e-300, 3e-300), (2e300, 1e300), (-7.0, 13.0)] {
+        let spec = sweep_spec(from, to, 11, false);
+        for idx in 0..11 {
+            let ideal = from + (to - from) * idx as f64 / 10.0;
+            let scale = f64::max(from.abs(), to.abs());
+            assert!((spec.value(idx) - ideal).abs() <= 1e-14 * scale, "{idx}");
+        }
+    }
+}
+
+#[test]
 fn a_raised_interrupt_stops_the_sweep() {
-    let spec = sweep_spec(2.1, 2.3, 20, false);
+    let spec = sweep_spec(2.1, 2.3, 21, false);
     let m = brusselator();
     let cut = plane(&m, &[("x", 1.0)], 1.0, Direction::Rising);
     let interrupt = Interrupt::new();
@@ -199,7 +221,7 @@ fn a_raised_interrupt_stops_the_sweep() {
 fn a_sweep_without_its_source_is_refused() {
     let spec = SweepSpec {
         source: SweepSource::Strobe,
-        ..sweep_spec(2.1, 2.3, 2, false)
+        ..sweep_spec(2.1, 2.3, 3, false)
     };
     let m = brusselator();
     let result = sweep_restart(

@@ -11,7 +11,12 @@ use lamina_core::integrate::Method;
 use lamina_core::run::{Collect, Direction, Run, StopReason};
 
 /// Every method, explicit, stiff and automatic.
-const ALL_METHODS: [Method; 4] = [Method::Dp5, Method::Dp853, Method::Rodas4, Method::Auto];
+const ALL_METHODS: [Method; 4] = [
+    Method::Dp5,
+    Method::Dp853,
+    Method::Rodas4,
+    Method::Automatic,
+];
 
 #[test]
 fn relay_oscillator_amplitude_and_period_through_the_cut() {

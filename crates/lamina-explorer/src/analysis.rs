@@ -19,6 +19,7 @@ use lamina_core::run::{Cut, Strobe};
 
 use crate::app::ExplorerApp;
 use crate::results::PointCloud;
+use crate::widgets::unit_suffix;
 
 /// Which map the orbit is sought on.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -121,10 +122,13 @@ impl ExplorerApp {
         {
             self.analysis.cycle_job = None;
             match &result {
-                Ok((r, _)) => self.note(format!(
-                    "periodic orbit: period {} over {} return(s), {}",
-                    r.period, r.k, r.verdict
-                )),
+                Ok((r, _)) => {
+                    let time_unit = unit_suffix(self.doc.scenario.time.unit.as_deref());
+                    self.note(format!(
+                        "{}-return orbit, period {}{time_unit}, {}",
+                        r.k, r.period, r.verdict
+                    ));
+                }
                 Err(e) => self.note(format!("no periodic orbit: {e}")),
             }
             self.analysis.orbit_path = result
@@ -219,9 +223,7 @@ impl ExplorerApp {
             });
         if spawned.is_ok() {
             self.analysis.cycle_job = Some(rx);
-            self.note(format!(
-                "looking for a periodic orbit of {k} return(s) ({recurrence})"
-            ));
+            self.note(format!("looking for a {k}-return orbit ({recurrence})"));
         }
     }
 
@@ -324,6 +326,8 @@ impl ExplorerApp {
             self.start_cycle_search(ctx);
         }
         let names = self.results.names.clone();
+        let scenario = &self.doc.scenario;
+        let time_unit = unit_suffix(scenario.time.unit.as_deref());
         match &self.analysis.cycle {
             None => {}
             Some(Err(e)) => {
@@ -332,17 +336,20 @@ impl ExplorerApp {
             Some(Ok(r)) => {
                 ui.label(
                     RichText::new(format!(
-                        "period {:.10} ({} return{})",
-                        r.period,
-                        r.k,
-                        if r.k == 1 { "" } else { "s" }
+                        "{}-return orbit, period {:.10}{time_unit}",
+                        r.k, r.period
                     ))
                     .strong(),
                 );
                 let point: Vec<String> = names
                     .iter()
                     .zip(&r.point.state)
-                    .map(|(n, v)| format!("{n} = {v:.10}"))
+                    .map(|(n, v)| {
+                        let unit = scenario
+                            .state_index(n)
+                            .and_then(|i| scenario.states[i].unit.as_deref());
+                        format!("{n} = {v:.10}{}", unit_suffix(unit))
+                    })
                     .collect();
                 ui.label(RichText::new(point.join(", ")).monospace().small());
                 ui.label(format!("verdict: {}", r.verdict));

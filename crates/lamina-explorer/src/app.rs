@@ -43,8 +43,8 @@ pub enum Action {
     Run,
     /// Stop the run.
     Stop,
-    /// Continue a finished run.
-    Continue,
+    /// Run on: integrate another span from where the finished run ended.
+    RunOn,
     /// New scenario.
     New,
     /// Open (asks for a file).
@@ -119,6 +119,11 @@ impl ExplorerApp {
         }
     }
 
+    /// The axis labels of the run's states and the time, with the scenario's units.
+    pub(crate) fn axis_labels(&self) -> crate::results::AxisLabels {
+        crate::results::AxisLabels::new(&self.doc.scenario, &self.results.names)
+    }
+
     /// State names of the current scenario.
     pub(crate) fn state_names(&self) -> Vec<String> {
         self.doc
@@ -183,13 +188,13 @@ impl ExplorerApp {
         app.results = Results::new(names);
         let mut state = [0.0; 2];
         for k in 0..n_points {
-            let phase = k as f64 * 0.618_033_988_75 * std::f64::consts::TAU;
+            let angle = k as f64 * 0.618_033_988_75 * std::f64::consts::TAU;
             let wobble = 1.0 + 0.05 * ((k as f64 * 0.37).sin());
-            state[0] = wobble * phase.cos();
-            state[1] = wobble * phase.sin();
+            state[0] = wobble * angle.cos();
+            state[1] = wobble * angle.sin();
             let point = lamina_core::run::CutPoint {
                 t: k as f64,
-                return_time: Some(1.0 + 0.1 * phase.sin()),
+                return_time: Some(1.0 + 0.1 * angle.sin()),
                 state: state.to_vec(),
             };
             app.results.cut.push_cut(&point);
@@ -294,8 +299,8 @@ impl ExplorerApp {
         let mut actions = Vec::new();
         let shortcut = |m: Modifiers, k: Key| KeyboardShortcut::new(m, k);
         ctx.input_mut(|i| {
-            if i.consume_shortcut(&shortcut(Modifiers::SHIFT, Key::F5)) {
-                actions.push(Action::Continue);
+            if i.consume_shortcut(&shortcut(Modifiers::NONE, Key::F6)) {
+                actions.push(Action::RunOn);
             }
             if i.consume_shortcut(&shortcut(Modifiers::NONE, Key::F5))
                 || i.consume_shortcut(&shortcut(Modifiers::COMMAND, Key::R))
@@ -346,7 +351,7 @@ impl ExplorerApp {
         match action {
             Action::Run => self.start_run(ctx),
             Action::Stop => self.stop_run(),
-            Action::Continue => self.continue_run(ctx),
+            Action::RunOn => self.run_on(ctx),
             Action::New => self.request_new(),
             Action::Open => self.request_open(),
             Action::OpenPath(path) => self.request_open_path(path),

@@ -8,31 +8,32 @@ use lamina_scenario::{Problem, Scenario};
 /// The built-in demo scenario, shown on first start.
 pub const DEMO_SCENARIO: &str = include_str!("../../../demo_scenarios/clocked_resonator.ron");
 
-/// Every demo scenario shipped with Lamina: menu name and text.
+/// Every demo scenario shipped with Lamina: menu name and text. The menu name is the
+/// scenario's title, and the file is the title in lower case with `_` for spaces (tested).
 pub const DEMOS: &[(&str, &str)] = &[
-    ("Clocked buckled MEMS beam", DEMO_SCENARIO),
+    ("Clocked resonator", DEMO_SCENARIO),
     (
-        "Negative-resistance relaxation oscillator",
+        "Tunnel diode oscillator",
         include_str!("../../../demo_scenarios/tunnel_diode_oscillator.ron"),
     ),
     (
-        "Three-state piecewise-linear circuit",
+        "Piecewise circuit",
         include_str!("../../../demo_scenarios/piecewise_circuit.ron"),
     ),
     (
-        "Relay loop with hysteresis",
+        "Relay loop",
         include_str!("../../../demo_scenarios/relay_loop.ron"),
     ),
     (
-        "Two coupled LC oscillators",
+        "Coupled oscillators",
         include_str!("../../../demo_scenarios/coupled_oscillators.ron"),
     ),
     (
-        "Op-amp astable multivibrator (stiff)",
+        "Astable multivibrator",
         include_str!("../../../demo_scenarios/astable_multivibrator.ron"),
     ),
     (
-        "Clocked buck converter (switching)",
+        "Clocked buck converter",
         include_str!("../../../demo_scenarios/clocked_buck_converter.ron"),
     ),
 ];
@@ -138,22 +139,26 @@ fn blank_scenario() -> Scenario {
                 name: "x".into(),
                 start: 1.0,
                 rate: "v".into(),
+                unit: None,
             },
             State {
                 name: "v".into(),
                 start: 0.0,
                 rate: "-x - c*v".into(),
+                unit: None,
             },
         ],
         vec![Parameter {
             name: "c".into(),
             value: 0.1,
             range: (0.0, 1.0),
+            unit: None,
         }],
         Time {
             start: 0.0,
             settle: 0.0,
             span: 100.0,
+            unit: None,
         },
     )
 }
@@ -243,7 +248,34 @@ pub fn rename_everywhere(scenario: &mut Scenario, old: &str, new: &str) {
 
 #[cfg(test)]
 mod tests {
-    use super::rename_in_expression;
+    use super::{DEMOS, rename_in_expression};
+
+    #[test]
+    fn demo_names_titles_and_files_agree() {
+        let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../../demo_scenarios");
+        let mut files: Vec<String> = std::fs::read_dir(&dir)
+            .expect("demo_scenarios/")
+            .map(|e| e.expect("entry").file_name().to_string_lossy().into_owned())
+            .filter(|name| name.ends_with(".ron"))
+            .collect();
+        files.sort();
+        let mut listed: Vec<String> = Vec::new();
+        for (name, text) in DEMOS {
+            let scenario = lamina_scenario::load_str(text).expect("demo loads");
+            assert_eq!(scenario.title, *name);
+            assert_eq!(
+                scenario.format_read(),
+                Some(lamina_scenario::FORMAT),
+                "{name}"
+            );
+            let file = format!("{}.ron", name.to_lowercase().replace(' ', "_"));
+            let on_disk = std::fs::read_to_string(dir.join(&file)).expect("the demo's file");
+            assert_eq!(on_disk, *text, "{file}");
+            listed.push(file);
+        }
+        listed.sort();
+        assert_eq!(listed, files, "every demo file is in the menu");
+    }
 
     #[test]
     fn renames_whole_words_only() {

@@ -1,4 +1,4 @@
-//! Starting, stopping and continuing runs; applying the worker's events; re-slicing the
+//! Starting, stopping and running on; applying the worker's events; re-slicing the
 //! stored run when the cut moves and re-sampling it when the strobe changes; the debounced
 //! re-run after a parameter slider rests.
 
@@ -82,11 +82,11 @@ impl ExplorerApp {
                     self.results.n_steps = outcome.stats.n_accepted;
                     self.results.state = match outcome.reason {
                         StopReason::Finished => RunState::Finished,
-                        StopReason::Cancelled { .. } => RunState::Cancelled,
-                        other => RunState::Stopped(other),
+                        StopReason::Cancelled { .. } => RunState::Stopped,
+                        other => RunState::EndedEarly(other),
                     };
                     let message = format!(
-                        "run {}: {} cut points, {} strobe samples, {} steps, {} right-hand-side evaluations in {:.2} s",
+                        "run {}: {} cut points, {} strobe samples, {} steps, {} rate evaluations in {:.2} s",
                         match outcome.reason {
                             StopReason::Finished => "finished".to_string(),
                             other => other.to_string(),
@@ -94,7 +94,7 @@ impl ExplorerApp {
                         self.results.cut.len(),
                         self.results.strobe.len(),
                         outcome.stats.n_accepted,
-                        outcome.stats.n_rates,
+                        outcome.stats.n_rate_evaluations,
                         elapsed.as_secs_f64()
                     );
                     for change in outcome.method_changes.iter().take(20) {
@@ -205,8 +205,8 @@ impl ExplorerApp {
         }
     }
 
-    /// Continues the finished run for another span.
-    pub(crate) fn continue_run(&mut self, ctx: &egui::Context) {
+    /// Runs on: integrates the finished run for another span from where it ended.
+    pub(crate) fn run_on(&mut self, ctx: &egui::Context) {
         if self.execution.worker.is_running() {
             self.note("the run is still going");
             return;
@@ -216,18 +216,18 @@ impl ExplorerApp {
             return;
         }
         let Some(mut run) = self.results.run.take() else {
-            self.note("nothing to continue: press Run first");
+            self.note("nothing to run on: press Run first");
             return;
         };
-        if matches!(self.results.state, RunState::Stopped(reason) if reason.is_trouble()) {
-            self.note("this run stopped on numerical trouble; it cannot be continued");
+        if matches!(self.results.state, RunState::EndedEarly(reason) if reason.is_trouble()) {
+            self.note("this run ended early on numerical trouble; it cannot run on");
             self.results.run = Some(run);
             return;
         }
         if run.t() >= run.t_end() {
             run.extend(self.doc.scenario.time.span.max(0.0));
         }
-        self.launch(ctx, run, "continuing the run");
+        self.launch(ctx, run, "running on");
     }
 
     /// Acts on what the model panel changed.

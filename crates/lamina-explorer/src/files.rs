@@ -259,10 +259,14 @@ impl ExplorerApp {
         match lamina_scenario::load_file(&path) {
             Ok(scenario) => {
                 self.stop_run();
+                let format_note = scenario.format_note();
                 self.doc = Document::new(scenario, Some(path.clone()));
                 self.results = Results::new(self.state_names());
                 self.settings.remember(path.clone());
                 self.note(format!("opened {}", path.display()));
+                if let Some(note) = format_note {
+                    self.note(note);
+                }
                 self.apply_view_block();
                 self.queue_run();
             }
@@ -286,7 +290,8 @@ impl ExplorerApp {
             });
         } else {
             let n = self.doc.scenario.states.len();
-            // a forced model with two states: the drive phase (or time) as the third axis
+            // a forced model with two states: the time within the period (or the time) as the
+            // third axis
             let third = if n >= 3 {
                 2
             } else if self.doc.scenario.strobe.is_some() {

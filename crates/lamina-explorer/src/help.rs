@@ -2,6 +2,11 @@
 
 use egui::{Context, RichText};
 
+/// Lamina's tagline: the package description, the first line of `lamina --help` and the About
+/// box's first line (tested to agree).
+pub const TAGLINE: &str =
+    "Poincaré sections, strobe maps, periodic orbits and orbit diagrams of typed nonlinear models";
+
 /// The caution paragraph of the README, shown in the About box.
 pub const CAUTION: &str = "Lamina's results are numerical approximations of the model you typed, not a certification of \
 hardware: a design decision about equipment that can hurt someone (power electronics, actuators, medical or vehicle \
@@ -11,7 +16,10 @@ systems) needs measurement, the applicable codes and standards, and review by a 
 pub const SHORTCUTS: &[(&str, &str)] = &[
     ("F5  or  Ctrl+R", "Run the scenario from the start"),
     ("Esc", "Stop the run"),
-    ("Shift+F5", "Continue a finished run for another span"),
+    (
+        "F6",
+        "Run on: integrate another span from where the run ended",
+    ),
     ("Ctrl+N", "New scenario"),
     ("Ctrl+O", "Open a scenario"),
     ("Ctrl+S", "Save"),
@@ -51,7 +59,8 @@ pub fn about_window(ctx: &Context, open: &mut bool) {
         ui.heading("Lamina");
         ui.label(format!("version {}", env!("CARGO_PKG_VERSION")));
         ui.add_space(6.0);
-        ui.label("Poincaré sections, strobe maps and return times of typed nonlinear models, for engineers who need to know what their system settles into.");
+        ui.label(TAGLINE);
+        ui.label("For engineers who need to know what their system settles into, and where that changes as a parameter moves.");
         ui.add_space(8.0);
         ui.label(RichText::new("Caution").strong());
         ui.label(CAUTION);

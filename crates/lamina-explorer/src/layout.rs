@@ -7,10 +7,11 @@ use lamina_scenario::Surface;
 use crate::app::{Action, ExplorerApp};
 use crate::document::DEMOS;
 use crate::export::PointSet;
-use crate::results::{CloudAxis, RunState};
+use crate::results::{AxisLabels, CloudAxis, RunState};
 use crate::views::cloud::{CloudView, ColourBy};
 use crate::views::series;
 use crate::views::space::{PlaneGeometry, SpaceColours, SpaceScene};
+use crate::widgets::unit_suffix;
 
 /// The views that can be exported.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
@@ -30,15 +31,16 @@ pub enum ViewKind {
 }
 
 impl ViewKind {
-    /// Name in menus.
+    /// Name in menus and in picture titles (the command line's pictures use the same).
     pub fn title(self) -> &'static str {
+        use lamina_render::view_names;
         match self {
-            Self::Trajectory => "Trajectory (3D)",
-            Self::Cut => "Cut points",
-            Self::Strobe => "Strobe samples",
-            Self::ReturnTimes => "Return times",
-            Self::ReturnMap => "First-return map",
-            Self::Orbit => "Orbit diagram",
+            Self::Trajectory => view_names::TRAJECTORY,
+            Self::Cut => view_names::CUT,
+            Self::Strobe => view_names::STROBE,
+            Self::ReturnTimes => view_names::RETURN_TIMES,
+            Self::ReturnMap => view_names::RETURN_MAP,
+            Self::Orbit => view_names::ORBIT,
         }
     }
 
@@ -95,20 +97,20 @@ fn default_cut_axes(app: &ExplorerApp) -> Option<[CloudAxis; 2]> {
 fn cloud_axes_ui(
     ui: &mut Ui,
     id: &str,
-    names: &[String],
+    labels: &AxisLabels,
     axes: [CloudAxis; 2],
 ) -> Option<[CloudAxis; 2]> {
     let mut chosen = axes;
-    let mut options: Vec<CloudAxis> = (0..names.len()).map(CloudAxis::State).collect();
+    let mut options: Vec<CloudAxis> = (0..labels.states.len()).map(CloudAxis::State).collect();
     options.push(CloudAxis::Time);
     options.push(CloudAxis::ReturnTime);
     for (k, tip) in [(0, "Horizontal coordinate"), (1, "Vertical coordinate")] {
         egui::ComboBox::from_id_salt((id, k))
-            .selected_text(chosen[k].label(names))
+            .selected_text(chosen[k].label(labels))
             .width(70.0)
             .show_ui(ui, |ui| {
                 for o in &options {
-                    ui.selectable_value(&mut chosen[k], *o, o.label(names));
+                    ui.selectable_value(&mut chosen[k], *o, o.label(labels));
                 }
             })
             .response
@@ -210,15 +212,15 @@ pub fn menu_bar(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
                     }
                 });
             });
-            ui.menu_button("Simulation", |ui| {
+            ui.menu_button("Run", |ui| {
                 if ui.button("Run from the start   F5").clicked() {
                     actions.push(Action::Run);
                 }
                 if ui.button("Stop   Esc").clicked() {
                     actions.push(Action::Stop);
                 }
-                if ui.button("Continue   Shift+F5").clicked() {
-                    actions.push(Action::Continue);
+                if ui.button("Run on   F6").on_hover_text(RUN_ON_TIP).clicked() {
+                    actions.push(Action::RunOn);
                 }
             });
             ui.menu_button("Help", |ui| {
@@ -239,6 +241,10 @@ pub fn menu_bar(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
         });
     });
 }
+
+/// What "Run on" does.
+const RUN_ON_TIP: &str =
+    "Run on: integrate another span from where the run ended, keeping what it found (F6)";
 
 fn run_buttons(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
     let running = app.is_running();
@@ -266,13 +272,13 @@ fn run_buttons(app: &mut ExplorerApp, ui: &mut Ui, actions: &mut Vec<Action>) {
     {
         actions.push(Action::Stop);
     }
-    let can_continue = !running && app.results.run.is_some();
+    let can_run_on = !running && app.results.run.is_some();
     if ui
-        .add_enabled(can_continue, egui::Button::new("Continue"))
-        .on_hover_text("Integrate another span from where the run ended (Shift+F5)")
+        .add_enabled(can_run_on, egui::Button::new("Run on"))
+        .on_hover_text(RUN_ON_TIP)
         .clicked()
     {
-        actions.push(Action::Continue);
+        actions.push(Action::RunOn);
     }
     if let Some(reason) = error {
         let first_line = reason.lines().next().unwrap_or("").to_string();
@@ -299,13 +305,14 @@ pub fn status_bar(app: &ExplorerApp, ui: &mut Ui) {
                     Color32::from_rgb(120, 190, 240),
                 ),
                 RunState::Finished => ("finished".to_string(), Color32::from_rgb(120, 200, 140)),
-                RunState::Cancelled => (
-                    format!("cancelled at t = {:.6}", r.t_reached),
+                RunState::Stopped => (
+                    format!("stopped at t = {:.6}", r.t_reached),
                     Color32::from_rgb(220, 180, 90),
                 ),
-                RunState::Stopped(reason) => {
-                    (format!("stopped: {reason}"), crate::widgets::ERROR_COLOUR)
-                }
+                RunState::EndedEarly(reason) => (
+                    format!("ended early: {reason}"),
+                    crate::widgets::ERROR_COLOUR,
+                ),
             };
             ui.label(RichText::new(text).color(colour).strong());
             ui.separator();
@@ -315,7 +322,8 @@ pub fn status_bar(app: &ExplorerApp, ui: &mut Ui) {
             ui.separator();
             ui.label(format!("{} steps", r.n_steps));
             ui.separator();
-            ui.label(format!("t = {:.6}", r.t_reached));
+            let time_unit = unit_suffix(app.doc.scenario.time.unit.as_deref());
+            ui.label(format!("t = {:.6}{time_unit}", r.t_reached));
             ui.separator();
             ui.label(format!("{:.2} s", r.elapsed.as_secs_f64()));
         });
@@ -352,11 +360,10 @@ pub fn lower_views(app: &mut ExplorerApp, ui: &mut Ui) {
                         } else {
                             &app.results.strobe
                         };
-                        series::return_times_ui(
-                            ui,
-                            cloud,
-                            if source_is_cut { "cut" } else { "strobe" },
-                        );
+                        let source = if source_is_cut { "cut" } else { "strobe" };
+                        let unit = app.doc.scenario.time.unit.as_deref();
+                        let label = unit.map_or(source.to_owned(), |u| format!("{source}, {u}"));
+                        series::return_times_ui(ui, cloud, &label);
                     },
                 );
                 ui.separator();
@@ -373,7 +380,7 @@ pub fn lower_views(app: &mut ExplorerApp, ui: &mut Ui) {
                         series::first_return_map_ui(
                             ui,
                             cloud,
-                            &app.results.names,
+                            &app.axis_labels(),
                             &mut app.settings.map_coordinate,
                         );
                     },
@@ -607,8 +614,9 @@ fn tile_ui(
                 .iter()
                 .map(|p| (p.t, p.state.clone()))
                 .collect();
+            let labels = app.axis_labels();
             let scene = SpaceScene {
-                names: &app.results.names,
+                labels: &labels,
                 trajectory: &app.results.trajectory,
                 cut_points: &app.results.cut,
                 plane: plane.as_ref().map(|(p, _)| p),
@@ -637,9 +645,10 @@ fn tile_ui(
             } else {
                 "strobe_axes_pick"
             };
+            let labels = app.axis_labels();
             let axes = scenario_axes.map(|axes| {
                 let picked = ui
-                    .horizontal(|ui| cloud_axes_ui(ui, picker_id, &app.results.names, axes))
+                    .horizontal(|ui| cloud_axes_ui(ui, picker_id, &labels, axes))
                     .inner;
                 if let Some(new) = picked {
                     app.choose_cloud_axes(kind, new);
@@ -677,19 +686,13 @@ fn tile_ui(
             let mut clicked = None;
             ui.allocate_ui(vec2(ui.available_width(), height.max(40.0)), |ui| {
                 clicked = view
-                    .ui(ui, id, &app.results.names, cloud, axes, colour, &marks)
+                    .ui(ui, id, &labels, cloud, axes, colour, &marks)
                     .clicked;
             });
             let selected = clicked.or(view.selected).filter(|&s| s < cloud.len());
             ui.horizontal(|ui| match selected {
                 Some(k) => {
-                    let mut text = format!("k = {k}, t = {}", cloud.t[k]);
-                    if cloud.return_time[k].is_finite() {
-                        text.push_str(&format!(", return time = {}", cloud.return_time[k]));
-                    }
-                    for (name, v) in app.results.names.iter().zip(cloud.state(k)) {
-                        text.push_str(&format!(", {name} = {v}"));
-                    }
+                    let text = cloud.readout(k, &app.results.names, &app.doc.scenario);
                     ui.label(RichText::new(&text).monospace().small());
                     if ui
                         .small_button("copy")

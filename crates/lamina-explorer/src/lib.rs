@@ -26,7 +26,7 @@ use std::path::PathBuf;
 
 pub use app::{ExplorerApp, Options};
 pub use document::DEMO_SCENARIO;
-pub use help::CAUTION;
+pub use help::{CAUTION, TAGLINE};
 pub use layout::ViewKind;
 pub use results::RunState;
 

@@ -7,7 +7,7 @@ use lamina_scenario::{
 };
 
 use crate::document::{Document, rename_everywhere};
-use crate::widgets::{ERROR_COLOUR, number_field, problems_ui};
+use crate::widgets::{ERROR_COLOUR, number_field, problems_ui, unit_field, unit_suffix};
 
 /// What the user changed in the panel this frame; the app acts on it after drawing.
 #[must_use]
@@ -145,11 +145,12 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
     let mut rename = None;
     let n_states = doc.scenario.states.len();
     egui::Grid::new("states_grid")
-        .num_columns(4)
+        .num_columns(5)
         .spacing([6.0, 4.0])
         .show(ui, |ui| {
             ui.label(RichText::new("name").weak());
             ui.label(RichText::new("start").weak());
+            ui.label(RichText::new("unit").weak());
             ui.label(RichText::new("rate").weak());
             ui.end_row();
             for idx in 0..n_states {
@@ -166,6 +167,11 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                 {
                     changes.model = true;
                 }
+                changes.view |= unit_field(
+                    ui,
+                    &mut doc.scenario.states[idx].unit,
+                    &format!("Unit of {name}, shown beside its values and on axes (free text)"),
+                );
                 ui.horizontal(|ui| {
                     let label = ui.label(format!("d{name}/dt ="));
                     let state = &mut doc.scenario.states[idx];
@@ -196,6 +202,7 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                 if doc.problems_at(&field).next().is_some() {
                     ui.label("");
                     ui.label("");
+                    ui.label("");
                     ui.vertical(|ui| problems_ui(ui, doc.problems_at(&field)));
                     ui.end_row();
                 }
@@ -211,6 +218,7 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             name,
             start: 0.0,
             rate: "0".into(),
+            unit: None,
         });
         changes.model = true;
     }
@@ -258,8 +266,9 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             let p = &mut doc.scenario.parameters[idx];
             let (lo, hi) = p.range;
             if lo < hi {
-                let slider =
-                    egui::Slider::new(&mut p.value, lo..=hi).clamping(egui::SliderClamping::Never);
+                let slider = egui::Slider::new(&mut p.value, lo..=hi)
+                    .clamping(egui::SliderClamping::Never)
+                    .suffix(unit_suffix(p.unit.as_deref()));
                 let response = ui
                     .add(slider)
                     .labelled_by(label.id)
@@ -296,6 +305,13 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             if lo.changed() || hi.changed() {
                 changes.view = true;
             }
+            changes.view |= unit_field(
+                ui,
+                &mut p.unit,
+                &format!(
+                    "Unit of {name}, shown beside its value, on axes and in captions (free text)"
+                ),
+            );
         });
         problems_ui(ui, doc.problems_at(&format!("parameters[{idx}]")));
     }
@@ -309,6 +325,7 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             name,
             value: 1.0,
             range: (0.0, 2.0),
+            unit: None,
         });
         changes.model = true;
     }
@@ -330,13 +347,13 @@ fn integrator_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         ComboBox::from_id_salt("method")
             .selected_text(method_label(s.integrator.method))
             .show_ui(ui, |ui| {
-                for m in [MethodChoice::Auto, MethodChoice::Dp853, MethodChoice::Dp5, MethodChoice::Stiff] {
+                for m in [MethodChoice::Automatic, MethodChoice::Dp853, MethodChoice::Dp5, MethodChoice::Stiff] {
                     ui.selectable_value(&mut s.integrator.method, m, method_label(m));
                 }
             })
             .response
             .labelled_by(label.id)
-            .on_hover_text("Auto starts with Dormand–Prince 8(5,3) and changes to Rodas4 where the model turns stiff (and back); Stiff uses Rodas4 throughout");
+            .on_hover_text("automatic starts with the explicit Dormand–Prince 8(5,3) and changes to the stiff Rodas4 where the model turns stiff (and back); stiff uses Rodas4 throughout");
         if s.integrator.method != before {
             changes.model = true;
         }
@@ -370,6 +387,9 @@ fn integrator_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         ui.label("span");
         changes.model |= number_field(ui, Id::unique("span"), &mut s.time.span, 80.0).on_hover_text("Length of the recorded window after the transient").changed();
         ui.end_row();
+        ui.label("time unit");
+        changes.view |= unit_field(ui, &mut s.time.unit, "Unit of time, shown beside times, on axes and in captions (free text)");
+        ui.end_row();
     });
     problems_ui(
         ui,
@@ -381,10 +401,10 @@ fn integrator_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
 
 fn method_label(m: MethodChoice) -> &'static str {
     match m {
-        MethodChoice::Auto => "Auto",
+        MethodChoice::Automatic => "automatic (explicit / stiff)",
         MethodChoice::Dp5 => "Dormand–Prince 5(4)",
         MethodChoice::Dp853 => "Dormand–Prince 8(5,3)",
-        MethodChoice::Stiff => "Stiff (Rodas4)",
+        MethodChoice::Stiff => "stiff (Rodas4)",
     }
 }
 
@@ -545,14 +565,14 @@ fn strobe_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
     let mut enabled = doc.scenario.strobe.is_some();
     if ui
         .checkbox(&mut enabled, "sample at a fixed period")
-        .on_hover_text("Record the state at phase + k × period")
+        .on_hover_text("Record the state at first at + k × period")
         .changed()
     {
         let first = names.first().cloned().unwrap_or_default();
         let second = names.get(1).cloned().unwrap_or_else(|| first.clone());
         doc.scenario.strobe = enabled.then(|| Strobe {
             period: "1".into(),
-            phase: 0.0,
+            first_at: 0.0,
             axes: (first, second),
         });
         changes.strobe = true;
@@ -571,10 +591,15 @@ fn strobe_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             .labelled_by(label.id)
             .on_hover_text("An expression in parameters and constants, e.g. 2*pi/w")
             .changed();
-        ui.label("phase");
-        changes.strobe |= number_field(ui, Id::unique("strobe_phase"), &mut strobe.phase, 56.0)
-            .on_hover_text("Time of sample 0")
-            .changed();
+        ui.label("first at");
+        changes.strobe |= number_field(
+            ui,
+            Id::unique("strobe_first_at"),
+            &mut strobe.first_at,
+            56.0,
+        )
+        .on_hover_text("Time of sample 0; the samples are at first at + k × period")
+        .changed();
     });
     changes.view |= axes_ui(ui, "strobe_axes", &names, &mut strobe.axes);
     problems_ui(ui, doc.problems_at("strobe"));

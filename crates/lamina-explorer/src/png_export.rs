@@ -6,7 +6,9 @@
 use std::path::PathBuf;
 use std::sync::mpsc::{Receiver, channel};
 
-use lamina_render::{Figure, orbit_diagram_png, scatter_png, split_where_it_wraps, trajectory_png};
+use lamina_render::{
+    Figure, orbit_diagram_png, picture_title, scatter_png, split_where_it_wraps, trajectory_png,
+};
 
 use crate::app::ExplorerApp;
 use crate::layout::ViewKind;
@@ -73,7 +75,9 @@ impl ExplorerApp {
     /// The picture of `view` as it is on screen, at the chosen export size; why not, if the
     /// view has nothing to draw.
     pub(crate) fn png_job(&self, view: ViewKind, path: PathBuf) -> Result<PngJob, String> {
-        let names = &self.results.names;
+        let labels = self.axis_labels();
+        let scenario = &self.doc.scenario;
+        let title = |view: ViewKind| picture_title(&scenario.title, view.title());
         let [w, h] = self.settings.png_size;
         let figure = |title: String, x_label: String, y_label: String| Figure {
             size: (w, h),
@@ -103,11 +107,7 @@ impl ExplorerApp {
                     ColourBy::ReturnTime => cloud.return_time.clone(),
                 };
                 (
-                    figure(
-                        format!("{} — {}", view.title(), self.doc.scenario.title),
-                        a.label(names),
-                        b.label(names),
-                    ),
+                    figure(title(view), a.label(&labels), b.label(&labels)),
                     Drawing::Scatter {
                         points,
                         keys: Some(keys),
@@ -126,7 +126,7 @@ impl ExplorerApp {
                         .map(|i| (i as f64, cloud.return_time[i]))
                         .collect();
                     (
-                        figure(view.title().into(), "n".into(), "return time".into()),
+                        figure(title(view), "n".into(), labels.return_time()),
                         Drawing::Scatter { points, keys: None },
                     )
                 } else {
@@ -136,16 +136,25 @@ impl ExplorerApp {
                         MapCoordinate::State(_) => f64::NAN,
                         MapCoordinate::ReturnTime => cloud.return_time[i],
                     };
-                    let name = match coordinate {
-                        MapCoordinate::State(k) => names.get(k).cloned().unwrap_or_default(),
-                        MapCoordinate::ReturnTime => "return time".into(),
+                    let (name, unit) = match coordinate {
+                        MapCoordinate::State(k) => {
+                            let name = self.results.names.get(k).cloned().unwrap_or_default();
+                            let unit = scenario
+                                .state_index(&name)
+                                .and_then(|i| scenario.states[i].unit.clone());
+                            (name, unit)
+                        }
+                        MapCoordinate::ReturnTime => {
+                            ("return time".to_owned(), scenario.time.unit.clone())
+                        }
                     };
+                    let unit = unit.map(|u| format!(" ({u})")).unwrap_or_default();
                     let points = (1..cloud.len()).map(|i| (value(i - 1), value(i))).collect();
                     (
                         figure(
-                            view.title().into(),
-                            format!("{name}(n)"),
-                            format!("{name}(n+1)"),
+                            title(view),
+                            format!("{name}(n){unit}"),
+                            format!("{name}(n+1){unit}"),
                         ),
                         Drawing::Scatter { points, keys: None },
                     )
@@ -163,17 +172,17 @@ impl ExplorerApp {
                     let [a, b, c] = axes.map(|axis| axis_value(axis, s, t, period));
                     (a, b, c)
                 });
-                // a new piece of line wherever the drive phase wraps around
-                let phase_axis = axes.iter().position(|&a| a == traj.dim() + 1);
-                let pieces = split_where_it_wraps(points, phase_axis);
+                // a new piece of line wherever the time within the period wraps around
+                let wrapping_axis = axes.iter().position(|&a| a == traj.dim() + 1);
+                let pieces = split_where_it_wraps(points, wrapping_axis);
                 (
                     figure(
-                        format!("{} — {}", view.title(), self.doc.scenario.title),
-                        axis_name(axes[0], names),
-                        axis_name(axes[1], names),
+                        title(view),
+                        axis_name(axes[0], &labels),
+                        axis_name(axes[1], &labels),
                     ),
                     Drawing::Trajectory {
-                        z_label: axis_name(axes[2], names),
+                        z_label: axis_name(axes[2], &labels),
                         pieces,
                     },
                 )
@@ -199,9 +208,9 @@ impl ExplorerApp {
                 let kinds = self.sweep.columns.iter().map(|(_, k)| *k).collect();
                 (
                     figure(
-                        format!("Orbit diagram — {}", self.doc.scenario.title),
-                        self.swept_parameter_name(),
-                        names.get(coordinate).cloned().unwrap_or_default(),
+                        title(view),
+                        self.swept_parameter_label(),
+                        labels.state(coordinate),
                     ),
                     Drawing::Orbit { columns, kinds },
                 )

@@ -1,9 +1,12 @@
 //! What the current run has produced, as the views need it: point clouds, the trajectory,
-//! the run's state, and the finished run itself (kept for re-slicing and continuing).
+//! the run's state, and the finished run itself (kept for re-slicing and running on).
 
 use std::time::Duration;
 
 use lamina_core::run::{CutPoint, Run, StopReason, StrobeSample};
+use lamina_scenario::Scenario;
+
+use crate::widgets::unit_suffix;
 
 /// A coordinate of a point cloud view: a state, the time, or the return time.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -17,13 +20,90 @@ pub enum CloudAxis {
 }
 
 impl CloudAxis {
-    /// Name shown on the axis.
-    pub fn label(self, names: &[String]) -> String {
+    /// Name shown on the axis, with its unit.
+    pub fn label(self, labels: &AxisLabels) -> String {
         match self {
-            Self::State(i) => names.get(i).cloned().unwrap_or_default(),
-            Self::Time => "t".into(),
-            Self::ReturnTime => "return time".into(),
+            Self::State(i) => labels.state(i),
+            Self::Time => labels.time(),
+            Self::ReturnTime => labels.return_time(),
         }
+    }
+}
+
+/// What the views write on their axes: each state's name with its unit (`x (um)`), and the
+/// time's labels with the unit of time.
+#[derive(Clone, Debug, Default, PartialEq, Eq)]
+pub struct AxisLabels {
+    /// The states' labels, in the order of the run's states.
+    pub states: Vec<String>,
+    /// The unit of time, if the scenario gives one.
+    pub time_unit: Option<String>,
+}
+
+impl AxisLabels {
+    /// The labels of the run's states `names`, with the units the scenario gives them (a
+    /// name the scenario no longer has is shown plain).
+    pub fn new(scenario: &Scenario, names: &[String]) -> Self {
+        let states = names
+            .iter()
+            .map(|name| match scenario.state_index(name) {
+                Some(idx) => scenario.state_label(idx),
+                None => name.clone(),
+            })
+            .collect();
+        Self {
+            states,
+            time_unit: scenario.time.unit.clone(),
+        }
+    }
+
+    /// The label of state `idx` (empty past the last).
+    pub fn state(&self, idx: usize) -> String {
+        self.states.get(idx).cloned().unwrap_or_default()
+    }
+
+    /// `t`, or `t (us)`.
+    pub fn time(&self) -> String {
+        self.with_time_unit("t")
+    }
+
+    /// `return time`, or `return time (us)`.
+    pub fn return_time(&self) -> String {
+        self.with_time_unit("return time")
+    }
+
+    /// The time within the strobe period: `t mod T`, or `t mod T (us)`.
+    pub fn time_within_period(&self) -> String {
+        self.with_time_unit("t mod T")
+    }
+
+    fn with_time_unit(&self, label: &str) -> String {
+        match self.time_unit.as_deref() {
+            Some(unit) if !unit.trim().is_empty() => format!("{label} ({unit})"),
+            _ => label.to_owned(),
+        }
+    }
+}
+
+impl PointCloud {
+    /// Point `k` in words, with the scenario's units: `k = 3, t = 12.5 us, return time =
+    /// 10 us, il = 2 A, vo = 4.9 V`.
+    pub fn readout(&self, k: usize, names: &[String], scenario: &Scenario) -> String {
+        let time_unit = unit_suffix(scenario.time.unit.as_deref());
+        let mut text = format!("k = {k}, t = {}{time_unit}", self.t[k]);
+        if self.return_time[k].is_finite() {
+            text.push_str(&format!(
+                ", return time = {}{time_unit}",
+                self.return_time[k]
+            ));
+        }
+        for (name, v) in names.iter().zip(self.state(k)) {
+            let unit = scenario
+                .state_index(name)
+                .and_then(|i| scenario.states[i].unit.as_deref());
+            text.push_str(&format!(", {name} = {v}{}", unit_suffix(unit)));
+        }
+        text
     }
 }
 
@@ -246,9 +326,9 @@ pub enum RunState {
     /// The run reached the end of its window.
     Finished,
     /// The user stopped it.
-    Cancelled,
-    /// It stopped early for the reason given.
-    Stopped(StopReason),
+    Stopped,
+    /// It ended early for the reason given (numerical trouble, the point limit).
+    EndedEarly(StopReason),
 }
 
 /// Everything the current run has produced.
@@ -273,7 +353,7 @@ pub struct Results {
     pub elapsed: Duration,
     /// The finished (or stopped) run, with its stored steps; `None` while running.
     pub run: Option<Box<Run>>,
-    /// The strobe period of the run, for the drive-phase axis.
+    /// The strobe period of the run, for the axis of the time within the period.
     pub strobe_period: Option<f64>,
 }
 

@@ -52,7 +52,7 @@ pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChan
                 parameter: p.map(|p| p.name.clone()).unwrap_or_default(),
                 from: p.map_or(0.0, |p| p.range.0),
                 to: p.map_or(1.0, |p| p.range.1),
-                steps: 200,
+                values: 201,
                 settle: 200.0,
                 keep: 32,
                 follow: true,
@@ -85,8 +85,8 @@ pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChan
             changed |= number_field(ui, egui::Id::unique("sweep_to"), &mut sweep.to, 64.0).on_hover_text("Last value").changed();
         });
         ui.end_row();
-        ui.label("steps");
-        changed |= ui.add(egui::DragValue::new(&mut sweep.steps).range(1..=100_000)).on_hover_text("Intervals between from and to").changed();
+        ui.label("values");
+        changed |= ui.add(egui::DragValue::new(&mut sweep.values).range(2..=100_001)).on_hover_text("Number of parameter values, from and to included").changed();
         ui.end_row();
         ui.label("settle per value");
         changed |= number_field(ui, egui::Id::unique("sweep_settle"), &mut sweep.settle, 64.0).on_hover_text("Transient at each value, not kept").changed();
@@ -96,8 +96,8 @@ pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChan
         ui.end_row();
         ui.label("points from");
         ui.horizontal(|ui| {
-            changed |= ui.selectable_value(&mut sweep.source, SweepSource::Strobe, "strobe").changed();
             changed |= ui.selectable_value(&mut sweep.source, SweepSource::Cut, "cut").changed();
+            changed |= ui.selectable_value(&mut sweep.source, SweepSource::Strobe, "strobe").changed();
         });
         ui.end_row();
         ui.label("plotted");
@@ -127,6 +127,11 @@ impl ExplorerApp {
             .get(self.sweep.axes.0)
             .map(|p| p.name.clone())
             .unwrap_or_default()
+    }
+
+    /// The swept parameter's name with its unit, for axes.
+    pub(crate) fn swept_parameter_label(&self) -> String {
+        self.doc.scenario.parameter_label(self.sweep.axes.0)
     }
 
     /// Starts the scenario's sweep.
@@ -196,13 +201,14 @@ impl ExplorerApp {
                             .map(|(c, k)| (c.value, *k))
                             .collect();
                         self.note(format!(
-                            "sweep done: {} of {} values",
+                            "sweep done: {} of {} values, {} change(s) of behaviour",
                             self.sweep.columns.len(),
-                            self.sweep.total
+                            self.sweep.total,
+                            lamina_core::sweep::changes(&labels).len()
                         ));
                         let name = self.swept_parameter_name();
                         for line in describe(&name, &labels).into_iter().take(14) {
-                            self.note(line);
+                            self.note(format!("  {line}"));
                         }
                     }
                 },
@@ -253,19 +259,14 @@ impl ExplorerApp {
         }
         let (parameter, coordinate) = self.sweep.axes;
         let pname = self.swept_parameter_name();
-        let cname = self
-            .doc
-            .scenario
-            .states
-            .get(coordinate)
-            .map(|s| s.name.clone())
-            .unwrap_or_default();
+        let plabel = self.swept_parameter_label();
+        let clabel = self.doc.scenario.state_label(coordinate);
         let current = self.doc.scenario.parameters.get(parameter).map(|p| p.value);
         let clicked = orbit_diagram_ui(
             ui,
             &self.sweep.columns,
             coordinate,
-            (&pname, &cname),
+            (&plabel, &clabel),
             current,
         );
         if let Some(value) = clicked

@@ -1,5 +1,5 @@
-//! Small widgets shared by the panels: a number field that accepts any float notation, and
-//! the in-place problem message.
+//! Small widgets shared by the panels: a number field that accepts any float notation, a unit
+//! field, and the in-place problem message.
 
 use egui::{Color32, Response, RichText, Ui};
 use lamina_scenario::Problem;
@@ -41,6 +41,33 @@ pub fn number_field(ui: &mut Ui, id: egui::Id, value: &mut f64, width: f32) -> R
         response.flags.remove(egui::response::Flags::CHANGED);
     }
     response
+}
+
+/// A short text field for an optional unit (free text; empty means none). Returns whether the
+/// unit changed.
+pub fn unit_field(ui: &mut Ui, unit: &mut Option<String>, hint: &str) -> bool {
+    let mut text = unit.clone().unwrap_or_default();
+    let response = ui
+        .add(
+            egui::TextEdit::singleline(&mut text)
+                .desired_width(40.0)
+                .hint_text("unit"),
+        )
+        .on_hover_text(hint);
+    if response.changed() {
+        *unit = (!text.trim().is_empty()).then_some(text);
+        true
+    } else {
+        false
+    }
+}
+
+/// ` um` for a unit, nothing without one: what follows a value shown with its unit.
+pub fn unit_suffix(unit: Option<&str>) -> String {
+    match unit {
+        Some(unit) if !unit.trim().is_empty() => format!(" {unit}"),
+        _ => String::new(),
+    }
 }
 
 /// Shortest text that reads back as `v`.

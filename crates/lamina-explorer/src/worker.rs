@@ -54,7 +54,7 @@ pub enum WorkerEvent {
     Finished {
         /// Job number.
         job: u64,
-        /// The run, to re-slice or continue.
+        /// The run, to re-slice or run on.
         run: Box<Run>,
         /// How it ended.
         outcome: RunOutcome,

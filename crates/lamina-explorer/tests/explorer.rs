@@ -48,8 +48,13 @@ fn steps(h: &mut Harness<'static, ExplorerApp>, n: usize) {
     }
 }
 
+/// The Run button beside the menus (the menu of that name comes first).
+fn run_button<'h>(h: &'h Harness<'static, ExplorerApp>) -> egui_kittest::Node<'h> {
+    h.get_all_by_label("Run").last().expect("the Run button")
+}
+
 fn click_run(h: &mut Harness<'static, ExplorerApp>) {
-    h.get_by_label("Run").click();
+    run_button(h).click();
     h.step();
     h.step();
 }
@@ -87,7 +92,7 @@ fn a_bad_rate_shows_its_message_and_turns_run_off() {
     assert!(h.state().document().first_error().is_some());
     // shown in place under the field (and repeated beside the switched-off Run button)
     assert!(h.get_all_by_label_contains("unknown name 'q9'").count() >= 1);
-    let run = h.get_by_label("Run");
+    let run = run_button(&h);
     assert!(
         run.accesskit_node().is_disabled(),
         "Run must be off while a rate is wrong"
@@ -206,10 +211,7 @@ fn opening_a_demo_file_and_saving_it_gives_the_same_scenario() {
     steps(&mut h, 3);
     h.get_by_label("OK").click();
     steps(&mut h, 3);
-    assert_eq!(
-        h.state().scenario().title,
-        "Relay temperature loop with hysteresis"
-    );
+    assert_eq!(h.state().scenario().title, "Relay loop");
     let saved = dir.path().join("relay_saved.ron");
     h.get_by_label("File").click();
     steps(&mut h, 3);
@@ -233,7 +235,7 @@ fn the_sweep_fills_the_orbit_diagram() {
     let mut app = app();
     app.edit_scenario(|s| {
         if let Some(sweep) = &mut s.sweep {
-            sweep.steps = 6;
+            sweep.values = 7;
             sweep.keep = 8;
             sweep.settle = 60.0;
             sweep.follow = false;
@@ -250,7 +252,7 @@ fn the_sweep_fills_the_orbit_diagram() {
         std::thread::sleep(Duration::from_millis(5));
     }
     steps(&mut h, 2);
-    assert_eq!(h.state().n_sweep_values(), 7, "steps = 6 gives 7 values");
+    assert_eq!(h.state().n_sweep_values(), 7, "values = 7 gives 7 values");
     h.get_by_label("7 values");
     assert!(
         h.state().n_runs_started() <= 1,
@@ -273,6 +275,7 @@ fn model_app(
                 name: n.to_string(),
                 start: *start,
                 rate: rate.to_string(),
+                unit: None,
             })
             .collect();
         s.parameters = parameters
@@ -281,6 +284,7 @@ fn model_app(
                 name: n.to_string(),
                 value: *v,
                 range: (v - 1.0, v + 1.0),
+                unit: None,
             })
             .collect();
         s.cut = Some(lamina_scenario::Cut {
@@ -438,4 +442,75 @@ fn a_view_exported_as_png_is_drawn_at_the_chosen_size() {
         names,
         ["cut.png", "map.png", "strobe.png", "trajectory.png"]
     );
+}
+
+#[test]
+fn run_on_integrates_another_span_from_the_menu_and_with_f6() {
+    let mut h = harness(app());
+    steps(&mut h, 2);
+    click_run(&mut h);
+    wait_for_run(&mut h);
+    let last = |h: &Harness<'static, ExplorerApp>| {
+        h.state()
+            .cut_times()
+            .iter()
+            .copied()
+            .fold(f64::NEG_INFINITY, f64::max)
+    };
+    // [analytic] the run records t from settle 50 to 50 + span 400
+    let first_end = last(&h);
+    assert!(first_end <= 450.0, "{first_end}");
+    let n_first = h.state().n_cut_points();
+    // the Run menu (the button of that name comes after it)
+    h.get_all_by_label("Run")
+        .next()
+        .expect("the Run menu")
+        .click();
+    steps(&mut h, 3);
+    h.get_by_label("Run on   F6").click();
+    wait_for_run(&mut h);
+    let second_end = last(&h);
+    assert!(second_end > 450.0 && second_end <= 850.0, "{second_end}");
+    assert!(h.state().n_cut_points() > n_first);
+    h.key_press(egui::Key::F6);
+    steps(&mut h, 2);
+    wait_for_run(&mut h);
+    let third_end = last(&h);
+    assert!(third_end > 850.0 && third_end <= 1250.0, "{third_end}");
+    // the keys are listed in F1
+    h.key_press(egui::Key::F1);
+    steps(&mut h, 3);
+    h.get_by_label("F6");
+    h.get_by_label_contains("Run on: integrate another span");
+}
+
+#[test]
+fn a_format1_file_opens_says_so_and_saves_as_format2() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let path = dir.path().join("old.ron");
+    std::fs::copy(
+        concat!(
+            env!("CARGO_MANIFEST_DIR"),
+            "/../lamina-scenario/tests/fixtures/format1/clocked_mems_beam.ron"
+        ),
+        &path,
+    )
+    .expect("copy");
+    let options = Options {
+        autostart: false,
+        ..Options::default()
+    };
+    let app = ExplorerApp::new(Some(path.clone()), Default::default(), options);
+    let mut h = harness(app);
+    steps(&mut h, 3);
+    assert_eq!(h.state().scenario().format_read(), Some(1));
+    h.get_by_label_contains("read format 1 (its old words are mapped to format 2's)");
+    let opened = h.state().scenario().clone();
+    h.get_by_label("File").click();
+    steps(&mut h, 3);
+    h.get_by_label("Save").click_accesskit();
+    steps(&mut h, 3);
+    let text = std::fs::read_to_string(&path).expect("saved");
+    assert!(text.starts_with("(\n    format: 2,\n"), "{text}");
+    assert_eq!(lamina_scenario::load_str(&text).expect("loads"), opened);
 }

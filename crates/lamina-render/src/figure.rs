@@ -50,6 +50,28 @@ pub(crate) fn register_font() {
     });
 }
 
+/// The title of a picture, in the one order the command line and the window use: the
+/// scenario's title, then the view (`Clocked resonator — Cut points`).
+pub fn picture_title(scenario_title: &str, view: &str) -> String {
+    format!("{scenario_title} — {view}")
+}
+
+/// The view names of pictures, as the window's views are titled.
+pub mod view_names {
+    /// The 3D trajectory.
+    pub const TRAJECTORY: &str = "Trajectory (3D)";
+    /// The cut points.
+    pub const CUT: &str = "Cut points";
+    /// The strobe samples.
+    pub const STROBE: &str = "Strobe samples";
+    /// The return times.
+    pub const RETURN_TIMES: &str = "Return times";
+    /// The first-return map.
+    pub const RETURN_MAP: &str = "First-return map";
+    /// The orbit diagram of a sweep.
+    pub const ORBIT: &str = "Orbit diagram";
+}
+
 impl Figure {
     /// Checks the size.
     pub(crate) fn check(&self) -> Result<(), RenderError> {

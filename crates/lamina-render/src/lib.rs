@@ -7,6 +7,6 @@ mod figure;
 mod orbit;
 mod plots;
 
-pub use figure::{Figure, RenderError};
+pub use figure::{Figure, RenderError, picture_title, view_names};
 pub use orbit::{orbit_diagram_png, recurrence_colour};
 pub use plots::{scatter_png, split_where_it_wraps, trajectory_png};

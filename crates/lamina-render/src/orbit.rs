@@ -18,7 +18,7 @@ pub fn recurrence_colour(kind: RecurrenceKind) -> [u8; 3] {
             let RGBColor(r, g, b) = ramp(((k.max(1) as f64).log2() / 4.0).min(0.85));
             [r, g, b]
         }
-        RecurrenceKind::NoRepeat => [228, 96, 70],
+        RecurrenceKind::NoRepeat { .. } => [228, 96, 70],
         RecurrenceKind::NotSettled => [150, 152, 160],
         RecurrenceKind::TooFewPoints => [200, 202, 208],
     }
@@ -28,7 +28,7 @@ pub fn recurrence_colour(kind: RecurrenceKind) -> [u8; 3] {
 fn legend_order(kind: &RecurrenceKind) -> (usize, usize) {
     match kind {
         RecurrenceKind::Returns(k) => (0, *k),
-        RecurrenceKind::NoRepeat => (1, 0),
+        RecurrenceKind::NoRepeat { max_k } => (1, *max_k),
         RecurrenceKind::NotSettled => (2, 0),
         RecurrenceKind::TooFewPoints => (3, 0),
     }
@@ -115,7 +115,7 @@ mod tests {
             RecurrenceKind::Returns(1),
             RecurrenceKind::Returns(2),
             RecurrenceKind::Returns(4),
-            RecurrenceKind::NoRepeat,
+            RecurrenceKind::NoRepeat { max_k: 12 },
             RecurrenceKind::NotSettled,
         ];
         for (i, a) in kinds.iter().enumerate() {

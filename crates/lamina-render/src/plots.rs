@@ -178,7 +178,7 @@ pub fn scatter_png(
 }
 
 /// A 3D trajectory in orthographic projection: pieces of line (each a list of (across, depth,
-/// up) points; a wrapping drive phase starts a new piece).
+/// up) points; the time within the drive period starts a new piece where it wraps around).
 pub fn trajectory_png(
     figure: &Figure,
     z_label: &str,
@@ -240,7 +240,7 @@ pub fn trajectory_png(
 }
 
 /// Splits a line of 3D points into pieces wherever coordinate `axis` (0, 1 or 2) falls
-/// from one point to the next, as a drive phase does when it wraps around; with no axis, one
+/// from one point to the next, as the time within the drive period does when it wraps around; with no axis, one
 /// piece.
 pub fn split_where_it_wraps(
     points: impl IntoIterator<Item = (f64, f64, f64)>,
@@ -268,9 +268,9 @@ mod tests {
     use super::*;
 
     #[test]
-    fn a_line_splits_where_its_phase_wraps() {
-        // [analytic] phase 0.5, 0.9, then 0.1 (wrapped), 0.4: two pieces of two points
-        let points = [0.5, 0.9, 0.1, 0.4].map(|phase| (1.0, 2.0, phase));
+    fn a_line_splits_where_its_third_coordinate_wraps() {
+        // [analytic] 0.5, 0.9, then 0.1 (wrapped), 0.4: two pieces of two points
+        let points = [0.5, 0.9, 0.1, 0.4].map(|within| (1.0, 2.0, within));
         let pieces = split_where_it_wraps(points, Some(2));
         assert_eq!(pieces.len(), 2);
         assert_eq!(pieces[0], vec![(1.0, 2.0, 0.5), (1.0, 2.0, 0.9)]);

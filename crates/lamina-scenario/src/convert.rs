@@ -1,10 +1,11 @@
-//! From the file's blocks to the core's plain specifications, and from names to indices.
+//! From the file's blocks to the core's plain specifications (and the regime map's plain
+//! settings, [`RegimeMapSpec`]), and from names to indices.
 
 use lamina_core::integrate::{Method, StepControl};
 use lamina_core::model::{ModelSpec, ParameterSpec, StateSpec};
 use lamina_core::run::{self, CutSpec, RunSpec, StrobeSpec, SurfaceSpec};
 
-use crate::scenario::{Direction, MethodChoice, Scenario, Surface};
+use crate::scenario::{Direction, MapAxis, MethodChoice, Scenario, Surface, SweepSource};
 
 impl From<Direction> for run::Direction {
     fn from(direction: Direction) -> Self {
@@ -26,6 +27,65 @@ impl From<run::Direction> for Direction {
     }
 }
 
+impl From<SweepSource> for lamina_core::sweep::SweepSource {
+    fn from(source: SweepSource) -> Self {
+        match source {
+            SweepSource::Cut => Self::Cut,
+            SweepSource::Strobe => Self::Strobe,
+        }
+    }
+}
+
+/// The regime map of a scenario (its `map` block) with the parameters as indices: two
+/// parameters on a grid, each cell integrated from the scenario's start for `settle`, then
+/// recorded for `span` and classified from its cut points or strobe samples.
+#[derive(Clone, Debug, PartialEq)]
+pub struct RegimeMapSpec {
+    /// The parameter across.
+    pub x: MapAxisSpec,
+    /// The parameter up.
+    pub y: MapAxisSpec,
+    /// Transient per cell, integrated but not recorded.
+    pub settle: f64,
+    /// Recorded time per cell, after the transient.
+    pub span: f64,
+    /// Cut points or strobe samples.
+    pub source: lamina_core::sweep::SweepSource,
+}
+
+impl RegimeMapSpec {
+    /// Number of cells, `x.values * y.values`.
+    pub fn n_cells(&self) -> usize {
+        self.x.n_values() * self.y.n_values()
+    }
+}
+
+/// One axis of a [`RegimeMapSpec`].
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct MapAxisSpec {
+    /// Index of the parameter varied along this axis.
+    pub parameter: usize,
+    /// First value.
+    pub from: f64,
+    /// Last value.
+    pub to: f64,
+    /// Number of values, both ends included.
+    pub values: u32,
+}
+
+impl MapAxisSpec {
+    /// Number of values.
+    pub fn n_values(&self) -> usize {
+        self.values as usize
+    }
+
+    /// Value `idx` along the axis, spaced as a sweep's values
+    /// ([`lamina_core::sweep::grid_value`]).
+    pub fn value(&self, idx: usize) -> f64 {
+        lamina_core::sweep::grid_value(self.from, self.to, self.values, idx)
+    }
+}
+
 /// One coordinate of the 3D view.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum ViewAxis {
@@ -40,7 +100,7 @@ impl MethodChoice {
     /// is kept for a choice a later file format might name that a build does not have).
     pub fn method(self) -> Option<Method> {
         Some(match self {
-            Self::Auto => Method::Auto,
+            Self::Automatic => Method::Automatic,
             Self::Dp853 => Method::Dp853,
             Self::Dp5 => Method::Dp5,
             Self::Stiff => Method::Rodas4,
@@ -88,7 +148,7 @@ impl Scenario {
             t_start: self.time.start,
             settle: self.time.settle,
             span: self.time.span,
-            bound: self.limits.bound,
+            escape: self.limits.escape,
             max_points: usize::try_from(self.limits.max_points).unwrap_or(usize::MAX),
             ..RunSpec::default()
         }
@@ -115,7 +175,7 @@ impl Scenario {
         let strobe = self.strobe.as_ref()?;
         Some(StrobeSpec {
             period: strobe.period.clone(),
-            phase: strobe.phase,
+            first_at: strobe.first_at,
         })
     }
 
@@ -143,15 +203,33 @@ impl Scenario {
             parameter: self.sweep_parameter_index()?,
             from: sweep.from,
             to: sweep.to,
-            steps: sweep.steps,
+            values: sweep.values,
             settle: sweep.settle,
             keep: sweep.keep as usize,
             span: self.time.span,
             follow: sweep.follow,
-            source: match sweep.source {
-                crate::SweepSource::Cut => lamina_core::sweep::SweepSource::Cut,
-                crate::SweepSource::Strobe => lamina_core::sweep::SweepSource::Strobe,
-            },
+            source: sweep.source.into(),
+        })
+    }
+
+    /// The regime map as plain settings with the parameters as indices (`None` without a
+    /// map, or with an axis whose parameter is not one).
+    pub fn map_spec(&self) -> Option<RegimeMapSpec> {
+        let map = self.map.as_ref()?;
+        let axis = |axis: &MapAxis| {
+            Some(MapAxisSpec {
+                parameter: self.parameter_index(&axis.parameter)?,
+                from: axis.from,
+                to: axis.to,
+                values: axis.values,
+            })
+        };
+        Some(RegimeMapSpec {
+            x: axis(&map.x)?,
+            y: axis(&map.y)?,
+            settle: map.settle,
+            span: map.span,
+            source: map.source.into(),
         })
     }
 

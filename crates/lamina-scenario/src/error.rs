@@ -1,4 +1,4 @@
-//! What can go wrong with a scenario file: it cannot be read, it is not well-formed format-1
+//! What can go wrong with a scenario file: it cannot be read, it is not well-formed scenario
 //! RON, it is of a newer format, or it reads but does not make sense ([`Problem`]s).
 
 use std::fmt;
@@ -61,7 +61,7 @@ pub enum ScenarioError {
         /// The underlying error.
         source: std::io::Error,
     },
-    /// The text is not well-formed format-1 RON: a syntax error, an unknown or missing field,
+    /// The text is not a well-formed scenario in RON: a syntax error, an unknown or missing field,
     /// or a value of the wrong type.
     #[error("{location}: {message}")]
     Syntax {
@@ -74,7 +74,7 @@ pub enum ScenarioError {
     },
     /// The file is of a newer format than this version reads.
     #[error(
-        "this file is format {found}; this Lamina reads format {supported} (the file was written by a newer Lamina)"
+        "this file is format {found}; this Lamina reads format {supported} and older (the file was written by a newer Lamina)"
     )]
     NewerFormat {
         /// The format the file states.

@@ -1,5 +1,6 @@
-//! Loading a scenario: check the format version first, then parse with `ron` and turn its
-//! errors into located messages that name the field in the file's own terms.
+//! Loading a scenario: check the format version first, then parse with `ron` (format 2, or
+//! format 1 through its own types and the mapping of its old words) and turn its errors into
+//! located messages that name the field in the file's own terms.
 
 use std::path::Path;
 
@@ -7,24 +8,32 @@ use ron::error::{Error as RonError, SpannedError};
 use ron::extensions::Extensions;
 
 use crate::error::ScenarioError;
-use crate::scenario::{FORMAT, Scenario};
+use crate::format1;
+use crate::scenario::{FORMAT, FormatRead, OLDEST_FORMAT, Scenario};
 use crate::source::{Location, SourceMap, context_at};
 
 /// Reads a scenario from RON text.
 ///
 /// Refuses a file of a newer format (naming both versions) before looking at anything else,
 /// and reports syntax errors, unknown or missing fields and wrong types with their line and
-/// column. Does not check that the scenario makes sense: see [`Scenario::check`].
+/// column. A file of format 1 is read with format 1's words and converted to format 2
+/// ([`Scenario::format_read`] says so). Does not check that the scenario makes sense: see
+/// [`Scenario::check`].
 ///
 /// `Some(...)` around optional blocks may be left out (`max_step: 0.01` reads like
 /// `max_step: Some(0.01)`).
 pub fn load_str(text: &str) -> Result<Scenario, ScenarioError> {
     let source = SourceMap::scan(text);
-    check_format(text, &source)?;
     let options = ron::Options::default().with_default_extension(Extensions::IMPLICIT_SOME);
+    if stated_format(text, &source)? == Some(OLDEST_FORMAT) {
+        return match options.from_str::<format1::Scenario>(text) {
+            Ok(old) => Ok(old.into_current(source)),
+            Err(err) => Err(syntax_error(text, &err, OLDEST_FORMAT)),
+        };
+    }
     match options.from_str::<Scenario>(text) {
         Ok(mut scenario) => {
-            // a format written in a way the pre-check does not read (e.g. `0x2`)
+            // a format written in a way the pre-check does not read
             if scenario.format > FORMAT {
                 let found = u64::from(scenario.format);
                 return Err(ScenarioError::NewerFormat {
@@ -33,9 +42,10 @@ pub fn load_str(text: &str) -> Result<Scenario, ScenarioError> {
                 });
             }
             scenario.source = source;
+            scenario.format_read = FormatRead(Some(scenario.format));
             Ok(scenario)
         }
-        Err(err) => Err(syntax_error(text, &err)),
+        Err(err) => Err(syntax_error(text, &err, FORMAT)),
     }
 }
 
@@ -48,14 +58,12 @@ pub fn load_file(path: &Path) -> Result<Scenario, ScenarioError> {
     load_str(&text)
 }
 
-/// Refuses formats other than [`FORMAT`] from the `format` field alone, so that a newer file
-/// is recognised however its other fields changed.
-fn check_format(text: &str, source: &SourceMap) -> Result<(), ScenarioError> {
-    let Some(token) = source.token(text, "format") else {
-        return Ok(()); // missing: the full parse says so
-    };
-    let Ok(found) = token.replace('_', "").parse::<u64>() else {
-        return Ok(()); // not a whole number: the full parse says so
+/// The format the `format` field states, read before anything else so that a newer file is
+/// recognised however its other fields changed; refuses formats this version does not read.
+/// `None` when the field is missing or not a whole number (the full parse says so).
+fn stated_format(text: &str, source: &SourceMap) -> Result<Option<u32>, ScenarioError> {
+    let Some(found) = source.token(text, "format").and_then(parse_whole_number) else {
+        return Ok(None);
     };
     if found > u64::from(FORMAT) {
         return Err(ScenarioError::NewerFormat {
@@ -63,7 +71,7 @@ fn check_format(text: &str, source: &SourceMap) -> Result<(), ScenarioError> {
             supported: FORMAT,
         });
     }
-    if found < u64::from(FORMAT) {
+    if found < u64::from(OLDEST_FORMAT) {
         let location = source
             .location("format")
             .unwrap_or(Location { line: 1, column: 1 });
@@ -71,15 +79,28 @@ fn check_format(text: &str, source: &SourceMap) -> Result<(), ScenarioError> {
             location,
             field: Some("format".to_owned()),
             message: format!(
-                "there is no format {found}; this Lamina reads format {FORMAT}, the first"
+                "there is no format {found}; this Lamina reads formats {OLDEST_FORMAT} and {FORMAT}"
             ),
         });
     }
-    Ok(())
+    Ok(u32::try_from(found).ok())
+}
+
+/// A whole number as RON writes it: decimal, or `0x`, `0o`, `0b` with digits, `_` anywhere.
+fn parse_whole_number(token: &str) -> Option<u64> {
+    let token = token.replace('_', "");
+    let token = token.strip_prefix('+').unwrap_or(&token);
+    let (digits, radix) = match token.get(..2) {
+        Some("0x") => (&token[2..], 16),
+        Some("0o") => (&token[2..], 8),
+        Some("0b") => (&token[2..], 2),
+        _ => (token, 10),
+    };
+    u64::from_str_radix(digits, radix).ok()
 }
 
 /// A `ron` error as a located message naming the field.
-fn syntax_error(text: &str, err: &SpannedError) -> ScenarioError {
+fn syntax_error(text: &str, err: &SpannedError, format: u32) -> ScenarioError {
     let location = Location {
         line: err.span.start.line,
         column: err.span.start.col,
@@ -94,8 +115,9 @@ fn syntax_error(text: &str, err: &SpannedError) -> ScenarioError {
         } => (
             container.clone(),
             format!(
-                "unknown field '{found}' in {block}; {}",
-                one_of(expected, "fields")
+                "unknown field '{found}' in {block}; {}{}",
+                one_of(expected, "fields"),
+                renamed_hint(found, expected, format)
             ),
         ),
         RonError::MissingStructField { field, .. } => (
@@ -111,9 +133,10 @@ fn syntax_error(text: &str, err: &SpannedError) -> ScenarioError {
         } => (
             value.clone(),
             format!(
-                "unknown choice '{found}' for {}; {}",
+                "unknown choice '{found}' for {}; {}{}",
                 describe_block(&value),
-                one_of(expected, "choices")
+                one_of(expected, "choices"),
+                renamed_hint(found, expected, format)
             ),
         ),
         RonError::InvalidValueForType { expected, found } => (
@@ -199,6 +222,26 @@ fn syntax_error(text: &str, err: &SpannedError) -> ScenarioError {
         field: (!field.is_empty()).then_some(field),
         message,
     }
+}
+
+/// A hint when `found` is the other format's word for one of the `expected` ones: a format-2
+/// file using a format-1 word, or the other way round.
+fn renamed_hint(found: &str, expected: &[&str], format: u32) -> String {
+    let old_to_new = format1::RENAMED_WORDS
+        .iter()
+        .find(|(old, new)| format == FORMAT && *old == found && expected.contains(new));
+    if let Some((old, new)) = old_to_new {
+        return format!(" ('{old}' is the format-1 word; format {FORMAT} says '{new}')");
+    }
+    let new_to_old = format1::RENAMED_WORDS
+        .iter()
+        .find(|(old, new)| format == OLDEST_FORMAT && *new == found && expected.contains(old));
+    if let Some((old, new)) = new_to_old {
+        return format!(
+            " ('{new}' is format {FORMAT}'s word; this file says format: {OLDEST_FORMAT}, which says '{old}')"
+        );
+    }
+    String::new()
 }
 
 /// When the parser stopped inside a number (`3.5` where a whole number was read as `3`), that

@@ -6,19 +6,33 @@ use std::path::Path;
 use ron::ser::PrettyConfig;
 
 use crate::error::ScenarioError;
-use crate::scenario::Scenario;
+use crate::scenario::{FORMAT, Scenario};
 
-/// The scenario as format-1 RON text: fields in the file's order, one state, parameter or
-/// block per line, numbers with the fewest digits that read back to the same value.
+/// The scenario as format-2 RON text (whatever its `format` field says: a scenario read from a
+/// format-1 file saves in the current format): fields in the file's order, one state,
+/// parameter or block per line, numbers with the fewest digits that read back to the same
+/// value.
 pub fn to_ron_string(scenario: &Scenario) -> String {
     // Serializing plain strings, numbers and enums into a string does not fail; should `ron`
     // ever refuse, fall back to its compact form.
     render(scenario)
-        .or_else(|_| ron::ser::to_string(scenario))
+        .or_else(|_| {
+            ron::ser::to_string(&Scenario {
+                format: FORMAT,
+                ..scenario.clone()
+            })
+        })
         .unwrap_or_default()
 }
 
 fn render(scenario: &Scenario) -> Result<String, ron::Error> {
+    if scenario.format != FORMAT {
+        let current = Scenario {
+            format: FORMAT,
+            ..scenario.clone()
+        };
+        return render(&current);
+    }
     let config = PrettyConfig::new()
         .depth_limit(2)
         .new_line("\n")

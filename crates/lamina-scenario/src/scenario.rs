@@ -1,7 +1,8 @@
-//! The scenario document, format 1: serde types that mirror the file field for field.
+//! The scenario document, format 2: serde types that mirror the file field for field.
 //!
 //! These are the only serializable copies of Lamina's settings; the core types they convert
-//! into (see [`crate::convert`]) know nothing of files.
+//! into (see [`crate::convert`]) know nothing of files. Files of format 1 are read through
+//! their own types (`crate::format1`) and converted into these.
 
 use std::fmt;
 
@@ -11,13 +12,18 @@ use serde::{Deserialize, Deserializer, Serialize, Serializer};
 
 use crate::source::SourceMap;
 
-/// The scenario format this version of Lamina reads and writes.
-pub const FORMAT: u32 = 1;
+/// The scenario format this version of Lamina writes (and reads, besides [`OLDEST_FORMAT`]).
+pub const FORMAT: u32 = 2;
 
-/// One scenario: the model, how to integrate it, how to cut and strobe it, what to sweep,
-/// and optionally how to look at it.
+/// The oldest format this version of Lamina reads: format 1, the first, whose old words the
+/// loader maps to format 2's.
+pub const OLDEST_FORMAT: u32 = 1;
+
+/// One scenario: the model, how to integrate it, how to cut and strobe it, what to sweep and
+/// map, and optionally how to look at it.
 ///
-/// Equality compares the scenario's content only, not where its fields were in a file.
+/// Equality compares the scenario's content only, not where its fields were in a file nor
+/// which format the file was.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct Scenario {
@@ -45,6 +51,9 @@ pub struct Scenario {
     /// The parameter sweep, if any.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub sweep: Option<Sweep>,
+    /// The regime map over two parameters, if any.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub map: Option<RegimeMap>,
     /// Run limits; [`Limits::default`] when left out.
     #[serde(default)]
     pub limits: Limits,
@@ -54,6 +63,20 @@ pub struct Scenario {
     /// Where each field was in the text this scenario was loaded from.
     #[serde(skip)]
     pub(crate) source: SourceMap,
+    /// The format of the text this scenario was loaded from.
+    #[serde(skip)]
+    pub(crate) format_read: FormatRead,
+}
+
+/// The format a scenario's text was written in, when it was loaded from text; equal to every
+/// other (a converted format-1 scenario equals its format-2 twin).
+#[derive(Clone, Copy, Debug, Default)]
+pub(crate) struct FormatRead(pub(crate) Option<u32>);
+
+impl PartialEq for FormatRead {
+    fn eq(&self, _other: &Self) -> bool {
+        true
+    }
 }
 
 /// One state variable.
@@ -66,6 +89,13 @@ pub struct State {
     pub start: f64,
     /// Rate expression `d name / dt`.
     pub rate: String,
+    /// Unit, free text shown beside values, on axes and in captions (no unit arithmetic).
+    #[serde(
+        default,
+        skip_serializing_if = "Option::is_none",
+        serialize_with = "plain_text"
+    )]
+    pub unit: Option<String>,
 }
 
 /// One named parameter with its slider range.
@@ -78,6 +108,13 @@ pub struct Parameter {
     pub value: f64,
     /// Slider range `(low, high)`.
     pub range: (f64, f64),
+    /// Unit, free text shown beside values, on axes and in captions (no unit arithmetic).
+    #[serde(
+        default,
+        skip_serializing_if = "Option::is_none",
+        serialize_with = "plain_text"
+    )]
+    pub unit: Option<String>,
 }
 
 /// Integration method as chosen in the file.
@@ -85,7 +122,7 @@ pub struct Parameter {
 pub enum MethodChoice {
     /// Let Lamina choose: Dormand–Prince 8(5,3), changing to the stiff method while the
     /// model is stiff.
-    Auto,
+    Automatic,
     /// Dormand–Prince 5(4).
     Dp5,
     /// Dormand–Prince 8(5,3).
@@ -119,6 +156,13 @@ pub struct Time {
     pub settle: f64,
     /// Length of the recorded window.
     pub span: f64,
+    /// Unit of time, free text shown beside times, on axes and in captions.
+    #[serde(
+        default,
+        skip_serializing_if = "Option::is_none",
+        serialize_with = "plain_text"
+    )]
+    pub unit: Option<String>,
 }
 
 /// Plane normal weights by state name, in the file's order.
@@ -202,13 +246,13 @@ pub struct Cut {
 pub struct Strobe {
     /// Period expression in parameters and constants, e.g. `2*pi/w`.
     pub period: String,
-    /// Absolute time of sample 0.
-    pub phase: f64,
+    /// Absolute time of sample 0; samples at `first_at + k * period`.
+    pub first_at: f64,
     /// The two state names plotted for the samples.
     pub axes: (String, String),
 }
 
-/// Which points a sweep keeps.
+/// Which points a sweep or a regime map keeps.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
 pub enum SweepSource {
     /// Cut points.
@@ -227,8 +271,8 @@ pub struct Sweep {
     pub from: f64,
     /// Last value.
     pub to: f64,
-    /// Number of steps between `from` and `to` (`steps + 1` values).
-    pub steps: u32,
+    /// Number of parameter values, both ends included.
+    pub values: u32,
     /// Transient per value, not recorded.
     pub settle: f64,
     /// Points kept per value (the last ones).
@@ -241,22 +285,52 @@ pub struct Sweep {
     pub coordinate: String,
 }
 
+/// One axis of a regime map: a parameter over a range of values.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct MapAxis {
+    /// The parameter varied along this axis.
+    pub parameter: String,
+    /// First value.
+    pub from: f64,
+    /// Last value.
+    pub to: f64,
+    /// Number of parameter values, both ends included.
+    pub values: u32,
+}
+
+/// A regime map: two parameters on a grid, each cell run and classified.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RegimeMap {
+    /// The parameter across.
+    pub x: MapAxis,
+    /// The parameter up.
+    pub y: MapAxis,
+    /// Transient per cell, not recorded.
+    pub settle: f64,
+    /// Recorded time per cell, after the transient.
+    pub span: f64,
+    /// Cut points or strobe samples.
+    pub source: SweepSource,
+}
+
 /// Run limits.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields, default)]
 pub struct Limits {
     /// A run stops after this many cut points or strobe samples.
     pub max_points: u64,
-    /// A run stops when a state's magnitude exceeds this.
-    pub bound: f64,
+    /// The escape size: a run stops when a state's magnitude passes it.
+    pub escape: f64,
 }
 
 impl Default for Limits {
-    /// 200 000 points, bound 1e6.
+    /// 200 000 points, escape size 1e6.
     fn default() -> Self {
         Self {
             max_points: 200_000,
-            bound: 1e6,
+            escape: 1e6,
         }
     }
 }
@@ -303,13 +377,13 @@ pub struct Colours {
     pub cut_points: Option<String>,
     /// Strobe samples.
     #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub strobe_points: Option<String>,
+    pub strobe_samples: Option<String>,
 }
 
 impl Scenario {
     /// A scenario of format [`FORMAT`] with the given model and time window and nothing else:
-    /// no notes, cut, strobe, sweep or view, default limits, method `Auto`, tolerances 1e-9 and
-    /// 1e-12.
+    /// no notes, units, cut, strobe, sweep, map or view, default limits, method `Automatic`,
+    /// tolerances 1e-9 and 1e-12.
     pub fn new(title: &str, states: Vec<State>, parameters: Vec<Parameter>, time: Time) -> Self {
         Self {
             format: FORMAT,
@@ -318,7 +392,7 @@ impl Scenario {
             states,
             parameters,
             integrator: Integrator {
-                method: MethodChoice::Auto,
+                method: MethodChoice::Automatic,
                 rtol: 1e-9,
                 atol: 1e-12,
                 max_step: None,
@@ -327,23 +401,31 @@ impl Scenario {
             cut: None,
             strobe: None,
             sweep: None,
+            map: None,
             limits: Limits::default(),
             view: None,
             source: SourceMap::default(),
+            format_read: FormatRead::default(),
         }
     }
 
-    /// One line for a picture's caption: the parameter values, the recorded time window and
-    /// the tolerances.
+    /// One line for a picture's caption: the parameter values with their units, the recorded
+    /// time window and the tolerances.
     pub fn caption(&self) -> String {
         let params: Vec<String> = self
             .parameters
             .iter()
-            .map(|p| format!("{} = {}", p.name, p.value))
+            .map(|p| format!("{} = {}", p.name, with_unit(p.value, p.unit.as_deref())))
             .collect();
         let t0 = self.time.start + self.time.settle;
+        let unit = self
+            .time
+            .unit
+            .as_deref()
+            .map(|u| format!(" {u}"))
+            .unwrap_or_default();
         format!(
-            "{}   |   t from {} to {}, rtol {:e}, atol {:e}",
+            "{}   |   t from {} to {}{unit}, rtol {:e}, atol {:e}",
             params.join(", "),
             t0,
             t0 + self.time.span,
@@ -352,9 +434,74 @@ impl Scenario {
         )
     }
 
+    /// The axis label of state `idx`: its name, with its unit in parentheses if it has one
+    /// (`x (um)`); empty for an index that is not a state.
+    pub fn state_label(&self, idx: usize) -> String {
+        self.states
+            .get(idx)
+            .map(|s| label(&s.name, s.unit.as_deref()))
+            .unwrap_or_default()
+    }
+
+    /// The axis label of parameter `idx`, like [`Scenario::state_label`].
+    pub fn parameter_label(&self, idx: usize) -> String {
+        self.parameters
+            .get(idx)
+            .map(|p| label(&p.name, p.unit.as_deref()))
+            .unwrap_or_default()
+    }
+
+    /// The axis label of the time: `t`, or `t (us)` with a unit.
+    pub fn time_label(&self) -> String {
+        label("t", self.time.unit.as_deref())
+    }
+
+    /// The format of the text this scenario was loaded from: [`FORMAT`], or 1 for a file of
+    /// the first format (converted on loading; it saves as format 2). `None` for a scenario
+    /// made in code.
+    pub fn format_read(&self) -> Option<u32> {
+        self.format_read.0
+    }
+
+    /// What to tell the user about the format the scenario was read from, if anything: for a
+    /// format-1 file, that its old words were mapped and that saving writes format 2.
+    pub fn format_note(&self) -> Option<String> {
+        match self.format_read() {
+            Some(found) if found < FORMAT => Some(format!(
+                "read format {found} (its old words are mapped to format {FORMAT}'s); saving writes format {FORMAT}"
+            )),
+            _ => None,
+        }
+    }
+
     /// Forgets where the fields were in the loaded text (for example after editing, when the
     /// old lines no longer match).
     pub fn forget_source(&mut self) {
         self.source = SourceMap::default();
+    }
+}
+
+/// A unit written as the text alone (`unit: "um"`, not `unit: Some("um")`); the loader reads
+/// both.
+fn plain_text<S: Serializer>(text: &Option<String>, serializer: S) -> Result<S::Ok, S::Error> {
+    match text {
+        Some(text) => serializer.serialize_str(text),
+        None => serializer.serialize_none(),
+    }
+}
+
+/// `name (unit)`, or `name` without a unit (or with an empty one).
+fn label(name: &str, unit: Option<&str>) -> String {
+    match unit {
+        Some(unit) if !unit.trim().is_empty() => format!("{name} ({unit})"),
+        _ => name.to_owned(),
+    }
+}
+
+/// `0.3 N`, or `0.3` without a unit.
+fn with_unit(value: f64, unit: Option<&str>) -> String {
+    match unit {
+        Some(unit) if !unit.trim().is_empty() => format!("{value} {unit}"),
+        _ => value.to_string(),
     }
 }

@@ -84,6 +84,14 @@ impl SourceMap {
         }
     }
 
+    /// Files the value recorded at `old` under `new` instead (a field renamed since the
+    /// text's format).
+    pub(crate) fn rename(&mut self, old: &str, new: &str) {
+        if let Some(entry) = self.entries.remove(old) {
+            self.entries.insert(new.to_owned(), entry);
+        }
+    }
+
     /// The text of the first token of the value at `path`.
     pub(crate) fn token<'a>(&self, text: &'a str, path: &str) -> Option<&'a str> {
         let (start, end) = self.entry(path)?.token;
@@ -518,7 +526,7 @@ mod tests {
     use super::*;
 
     const TEXT: &str = r#"(
-    format: 1,
+    format: 2,
     states: [
         (name: "x", start: 0.1, rate: "v"),  // comment, with: colon
         (name: "v", start: 0.0, rate: "-x"),
@@ -550,7 +558,7 @@ mod tests {
         assert_eq!(map.location("cut.axes.1"), Some(loc(10, 21)));
         assert_eq!(map.location("strobe.period"), Some(loc(12, 27)));
         assert_eq!(map.location("strobe.surface.0"), Some(loc(12, 52)));
-        assert_eq!(map.token(TEXT, "format"), Some("1"));
+        assert_eq!(map.token(TEXT, "format"), Some("2"));
     }
 
     #[test]

@@ -29,8 +29,8 @@ fn the_example_has_no_problems() {
 
 #[test]
 fn every_method_choice_is_accepted() {
-    for method in ["Auto", "Dp5", "Dp853", "Stiff"] {
-        let text = edit(EXAMPLE, "method: Auto", &format!("method: {method}"));
+    for method in ["Automatic", "Dp5", "Dp853", "Stiff"] {
+        let text = edit(EXAMPLE, "method: Automatic", &format!("method: {method}"));
         assert_eq!(load(&text).check(), [], "{method}");
     }
 }
@@ -113,8 +113,8 @@ fn field_problems_name_the_field_and_its_location() {
             "\"y\"",
         ),
         (
-            "phase: 0.0, axes: (\"x\", \"v\")",
-            "phase: 0.0, axes: (\"q\", \"v\")",
+            "first_at: 0.0, axes: (\"x\", \"v\")",
+            "first_at: 0.0, axes: (\"q\", \"v\")",
             "strobe.axes.0",
             "'q' is not a state",
             22,
@@ -182,7 +182,7 @@ fn field_problems_name_the_field_and_its_location() {
             "time.span",
             "must be a positive number",
             16,
-            "0.0)",
+            "0.0, unit",
         ),
         (
             "span: 2000.0",
@@ -241,33 +241,33 @@ fn field_problems_name_the_field_and_its_location() {
             "(1.0",
         ),
         (
-            "parameter: \"a\"",
-            "parameter: \"b\"",
+            "Some((parameter: \"a\"",
+            "Some((parameter: \"b\"",
             "sweep.parameter",
             "'b' is not a parameter (parameters: zeta, k3, a, w)",
             23,
             "\"b\"",
         ),
         (
-            "to: 0.6",
-            "to: 0.1",
+            "to: 0.6, values: 301",
+            "to: 0.1, values: 301",
             "sweep.to",
-            "another value than it starts",
+            "the sweep must end at another value than it starts",
             23,
-            "0.1, steps",
+            "0.1, values",
         ),
         (
-            "steps: 300",
-            "steps: 0",
-            "sweep.steps",
-            "at least 1",
+            "values: 301",
+            "values: 1",
+            "sweep.values",
+            "must be at least 2 (from and to), not 1",
             23,
-            "0, settle",
+            "1, settle",
         ),
         ("keep: 64", "keep: 0", "sweep.keep", "at least 1", 24, "0,"),
         (
-            "settle: 300.0",
-            "settle: -300.0",
+            "values: 301, settle: 300.0",
+            "values: 301, settle: -300.0",
             "sweep.settle",
             "0 or a positive number",
             23,
@@ -286,16 +286,72 @@ fn field_problems_name_the_field_and_its_location() {
             "max_points: 0",
             "limits.max_points",
             "at least 1",
-            25,
+            28,
             "0,",
         ),
         (
-            "bound: 1e6",
-            "bound: 0.0",
-            "limits.bound",
+            "escape: 1e6",
+            "escape: 0.0",
+            "limits.escape",
             "must be a positive number",
-            25,
+            28,
             "0.0",
+        ),
+        (
+            "(parameter: \"w\"",
+            "(parameter: \"b\"",
+            "map.y.parameter",
+            "'b' is not a parameter (parameters: zeta, k3, a, w)",
+            26,
+            "\"b\"",
+        ),
+        (
+            "(parameter: \"w\"",
+            "(parameter: \"a\"",
+            "map.y.parameter",
+            "the map's two axes both vary 'a'; choose two different parameters",
+            26,
+            "\"a\"",
+        ),
+        (
+            "from: 0.8, to: 1.6",
+            "from: 0.8, to: 0.8",
+            "map.y.to",
+            "the map's y axis must end at another value than it starts (0.8)",
+            26,
+            "0.8, values",
+        ),
+        (
+            "to: 0.6, values: 101",
+            "to: 0.6, values: 0",
+            "map.x.values",
+            "must be at least 2 (from and to), not 0",
+            25,
+            "0)",
+        ),
+        (
+            "from: 0.1, to: 0.6, values: 101",
+            "from: NaN, to: 0.6, values: 101",
+            "map.x.from",
+            "must be a finite number",
+            25,
+            "NaN",
+        ),
+        (
+            "settle: 300.0, span: 300.0",
+            "settle: -1.0, span: 300.0",
+            "map.settle",
+            "must be 0 or a positive number, not -1",
+            27,
+            "-1.0",
+        ),
+        (
+            "span: 300.0",
+            "span: 0.0",
+            "map.span",
+            "must be a positive number, not 0",
+            27,
+            "0.0, source",
         ),
     ];
     for (from, to, field, message, line, located) in cases {
@@ -352,23 +408,36 @@ fn a_value_outside_its_range_is_only_a_warning() {
 
 #[test]
 fn a_sweep_needs_the_block_it_keeps_points_of() {
-    let problems = field_problems("source: Strobe", "source: Cut");
+    let problems = field_problems("source: Strobe, coordinate", "source: Cut, coordinate");
     assert_eq!(problems, []);
     let text = edit(
         EXAMPLE,
-        "    strobe: Some((period: \"2*pi/w\", phase: 0.0, axes: (\"x\", \"v\"))),\n",
+        "    strobe: Some((period: \"2*pi/w\", first_at: 0.0, axes: (\"x\", \"v\"))),",
         "",
     );
     let problems = load(&text).check_fields();
     let problem = problem_on(&problems, "sweep.source");
-    assert!(problem.message.contains("no strobe"), "{problem}");
+    assert!(
+        problem
+            .message
+            .contains("the sweep keeps strobe samples, but the scenario has no strobe"),
+        "{problem}"
+    );
+    let problem = problem_on(&problems, "map.source");
+    assert!(
+        problem
+            .message
+            .contains("the map keeps strobe samples, but the scenario has no strobe"),
+        "{problem}"
+    );
+    assert_eq!(problems.len(), 2, "{problems:#?}");
 }
 
 #[test]
 fn view_problems() {
     let text = edit(
         EXAMPLE,
-        "    limits: (max_points: 200000, bound: 1e6),\n",
+        "    limits: (max_points: 200000, escape: 1e6),",
         "    view: Some((camera: Some((yaw_deg: 30.0, pitch_deg: 95.0, zoom: 0.0)), axes: Some((\"x\", \"t\", \"q\")), colours: Some((surface: Some(\"blue\"))))),\n",
     );
     let problems = load(&text).check_fields();
@@ -464,7 +533,7 @@ fn a_repeated_name_is_named_and_lists_of_names_do_not_repeat_it() {
     // gone, and a parameter repeats too
     let text = edit(EXAMPLE, "(name: \"v\", start", "(name: \"x\", start");
     let text = edit(&text, "(name: \"w\", ", "(name: \"a\", ");
-    let text = edit(&text, "parameter: \"a\"", "parameter: \"b\"");
+    let text = edit(&text, "Some((parameter: \"a\"", "Some((parameter: \"b\"");
     let problems = load(&text).check();
     assert!(
         problem_on(&problems, "states[1].name")

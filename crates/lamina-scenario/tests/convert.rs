@@ -5,7 +5,8 @@ mod common;
 use common::{EXAMPLE, MINIMAL, edit, load};
 use lamina_core::integrate::Method;
 use lamina_core::run::{self, SurfaceSpec};
-use lamina_scenario::{MethodChoice, ViewAxis};
+use lamina_core::sweep::SweepSource;
+use lamina_scenario::{MapAxisSpec, MethodChoice, RegimeMapSpec, ViewAxis};
 
 #[test]
 fn the_model_spec_keeps_names_values_and_order() {
@@ -28,18 +29,18 @@ fn the_model_spec_keeps_names_values_and_order() {
 #[test]
 fn the_run_spec() {
     let run = load(EXAMPLE).run_spec();
-    assert_eq!(run.method, Method::Auto);
+    assert_eq!(run.method, Method::Automatic);
     assert_eq!((run.control.rtol, run.control.atol), (1e-9, 1e-12));
     assert_eq!(run.control.max_step, None);
     assert_eq!((run.t_start, run.settle, run.span), (0.0, 200.0, 2000.0));
-    assert_eq!((run.max_points, run.bound), (200_000, 1e6));
+    assert_eq!((run.max_points, run.escape), (200_000, 1e6));
 
     let run = load(MINIMAL).run_spec();
     assert_eq!(run.method, Method::Dp5);
-    assert_eq!((run.max_points, run.bound), (200_000, 1e6)); // limits left out
+    assert_eq!((run.max_points, run.escape), (200_000, 1e6)); // limits left out
     let text = edit(
         EXAMPLE,
-        "method: Auto, rtol: 1e-9, atol: 1e-12",
+        "method: Automatic, rtol: 1e-9, atol: 1e-12",
         "method: Dp853, rtol: 1e-9, atol: 1e-12, max_step: 0.5",
     );
     let run = load(&text).run_spec();
@@ -51,7 +52,7 @@ fn the_run_spec() {
 
 #[test]
 fn method_choices() {
-    assert_eq!(MethodChoice::Auto.method(), Some(Method::Auto));
+    assert_eq!(MethodChoice::Automatic.method(), Some(Method::Automatic));
     assert_eq!(MethodChoice::Dp5.method(), Some(Method::Dp5));
     assert_eq!(MethodChoice::Dp853.method(), Some(Method::Dp853));
     assert_eq!(MethodChoice::Stiff.method(), Some(Method::Rodas4));
@@ -70,7 +71,7 @@ fn cut_and_strobe_specs() {
     );
     assert_eq!(cut.direction, run::Direction::Falling);
     let strobe = scenario.strobe_spec().expect("strobe");
-    assert_eq!((strobe.period.as_str(), strobe.phase), ("2*pi/w", 0.0));
+    assert_eq!((strobe.period.as_str(), strobe.first_at), ("2*pi/w", 0.0));
 
     let text = edit(
         EXAMPLE,
@@ -108,8 +109,8 @@ fn indices_by_name() {
 
     let text = edit(
         EXAMPLE,
-        "    limits: (max_points: 200000, bound: 1e6),\n",
-        "    view: Some((axes: Some((\"v\", \"t\", \"x\")))),\n",
+        "    limits: (max_points: 200000, escape: 1e6),",
+        "    view: Some((axes: Some((\"v\", \"t\", \"x\")))),",
     );
     assert_eq!(
         load(&text).view_axes(),
@@ -126,4 +127,70 @@ fn directions_convert_both_ways() {
     ] {
         assert_eq!(run::Direction::from(lamina_scenario::Direction::from(d)), d);
     }
+}
+
+#[test]
+fn the_sweep_spec_counts_values() {
+    let sweep = load(EXAMPLE).sweep_spec().expect("sweep");
+    assert_eq!(
+        (sweep.parameter, sweep.values, sweep.n_values()),
+        (2, 301, 301)
+    );
+    assert_eq!((sweep.from, sweep.to, sweep.keep), (0.1, 0.6, 64));
+    assert_eq!((sweep.settle, sweep.span), (300.0, 2000.0));
+    assert_eq!(sweep.source, SweepSource::Strobe);
+    // [analytic] 0.1 + 150 * 0.5 / 300 = 0.35
+    assert_eq!(sweep.value(150), 0.35);
+}
+
+#[test]
+fn the_map_spec_names_its_parameters_by_index() {
+    let map = load(EXAMPLE).map_spec().expect("map");
+    assert_eq!(
+        map,
+        RegimeMapSpec {
+            x: MapAxisSpec {
+                parameter: 2,
+                from: 0.1,
+                to: 0.6,
+                values: 101,
+            },
+            y: MapAxisSpec {
+                parameter: 3,
+                from: 0.8,
+                to: 1.6,
+                values: 81,
+            },
+            settle: 300.0,
+            span: 300.0,
+            source: SweepSource::Strobe,
+        }
+    );
+    assert_eq!(map.n_cells(), 101 * 81);
+    // [analytic] 0.8 + 40 * 0.8 / 80 = 1.2, and the ends exactly
+    assert_eq!(map.y.value(40), 1.2);
+    assert_eq!((map.x.value(0), map.x.value(100)), (0.1, 0.6));
+    assert_eq!(load(MINIMAL).map_spec(), None);
+    let text = edit(EXAMPLE, "(parameter: \"w\"", "(parameter: \"q\"");
+    assert_eq!(load(&text).map_spec(), None);
+}
+
+#[test]
+fn labels_carry_units() {
+    let scenario = load(EXAMPLE);
+    assert_eq!(scenario.state_label(0), "x (um)");
+    assert_eq!(scenario.state_label(1), "v");
+    assert_eq!(scenario.parameter_label(2), "a (N)");
+    assert_eq!(scenario.parameter_label(3), "w");
+    assert_eq!(scenario.time_label(), "t (us)");
+    assert_eq!(
+        scenario.caption(),
+        "zeta = 0.05, k3 = 1, a = 0.3 N, w = 1.2   |   t from 200 to 2200 us, rtol 1e-9, atol 1e-12"
+    );
+    let minimal = load(MINIMAL);
+    assert_eq!(minimal.time_label(), "t");
+    assert_eq!(
+        minimal.caption(),
+        "c = 0.2   |   t from 0 to 50, rtol 1e-8, atol 1e-10"
+    );
 }

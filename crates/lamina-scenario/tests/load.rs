@@ -1,18 +1,21 @@
 //! Loading scenario files: the example and the minimal file load; malformed files give
-//! located errors naming the field; newer formats are refused naming both versions.
+//! located errors naming the field; newer formats are refused naming both versions. (Format 1
+//! files: `format1.rs`.)
 
 mod common;
 
 use common::{EXAMPLE, MINIMAL, edit, load, syntax_error};
 use lamina_scenario::{
-    Direction, FORMAT, Limits, MethodChoice, ScenarioError, Surface, SweepSource, load_file,
-    load_str,
+    Direction, FORMAT, Limits, MapAxis, MethodChoice, RegimeMap, ScenarioError, Surface,
+    SweepSource, load_file, load_str,
 };
 
 #[test]
 fn the_example_loads() {
     let scenario = load(EXAMPLE);
-    assert_eq!(scenario.format, 1);
+    assert_eq!(scenario.format, 2);
+    assert_eq!(scenario.format_read(), Some(2));
+    assert_eq!(scenario.format_note(), None);
     assert_eq!(scenario.title, "Clocked resonator, soft spring");
     assert_eq!(scenario.notes, "free text");
     let names: Vec<&str> = scenario.states.iter().map(|s| s.name.as_str()).collect();
@@ -23,7 +26,16 @@ fn the_example_loads() {
     );
     assert_eq!(scenario.parameters.len(), 4);
     assert_eq!(scenario.parameters[3].range, (0.1, 3.0));
-    assert_eq!(scenario.integrator.method, MethodChoice::Auto);
+    let units: Vec<Option<&str>> = scenario.states.iter().map(|s| s.unit.as_deref()).collect();
+    assert_eq!(units, [Some("um"), None]);
+    let units: Vec<Option<&str>> = scenario
+        .parameters
+        .iter()
+        .map(|p| p.unit.as_deref())
+        .collect();
+    assert_eq!(units, [None, None, Some("N"), None]);
+    assert_eq!(scenario.time.unit.as_deref(), Some("us"));
+    assert_eq!(scenario.integrator.method, MethodChoice::Automatic);
     assert_eq!(scenario.integrator.atol, 1e-12);
     assert_eq!(scenario.integrator.max_step, None);
     assert_eq!(scenario.time.span, 2000.0);
@@ -38,15 +50,35 @@ fn the_example_loads() {
     assert_eq!(cut.direction, Direction::Falling);
     assert_eq!(cut.axes, ("x".to_owned(), "v".to_owned()));
     let strobe = scenario.strobe.as_ref().expect("strobe");
-    assert_eq!(strobe.period, "2*pi/w");
+    assert_eq!((strobe.period.as_str(), strobe.first_at), ("2*pi/w", 0.0));
     let sweep = scenario.sweep.as_ref().expect("sweep");
-    assert_eq!((sweep.steps, sweep.keep, sweep.follow), (300, 64, true));
+    assert_eq!((sweep.values, sweep.keep, sweep.follow), (301, 64, true));
     assert_eq!(sweep.source, SweepSource::Strobe);
+    assert_eq!(
+        scenario.map,
+        Some(RegimeMap {
+            x: MapAxis {
+                parameter: "a".to_owned(),
+                from: 0.1,
+                to: 0.6,
+                values: 101
+            },
+            y: MapAxis {
+                parameter: "w".to_owned(),
+                from: 0.8,
+                to: 1.6,
+                values: 81
+            },
+            settle: 300.0,
+            span: 300.0,
+            source: SweepSource::Strobe,
+        })
+    );
     assert_eq!(
         scenario.limits,
         Limits {
             max_points: 200_000,
-            bound: 1e6
+            escape: 1e6
         }
     );
     assert_eq!(scenario.view, None);
@@ -59,14 +91,17 @@ fn a_minimal_file_loads_with_defaults() {
     assert_eq!(scenario.cut, None);
     assert_eq!(scenario.strobe, None);
     assert_eq!(scenario.sweep, None);
+    assert_eq!(scenario.map, None);
     assert_eq!(scenario.view, None);
+    assert_eq!(scenario.time.unit, None);
+    assert!(scenario.states.iter().all(|s| s.unit.is_none()));
     assert_eq!(scenario.integrator.max_step, None);
     assert_eq!(scenario.integrator.method, MethodChoice::Dp5);
     assert_eq!(
         scenario.limits,
         Limits {
             max_points: 200_000,
-            bound: 1e6
+            escape: 1e6
         }
     );
 }
@@ -75,14 +110,14 @@ fn a_minimal_file_loads_with_defaults() {
 fn limits_may_give_only_one_value() {
     let text = edit(
         EXAMPLE,
-        "limits: (max_points: 200000, bound: 1e6)",
-        "limits: (bound: 50.0)",
+        "limits: (max_points: 200000, escape: 1e6)",
+        "limits: (escape: 50.0)",
     );
     assert_eq!(
         load(&text).limits,
         Limits {
             max_points: 200_000,
-            bound: 50.0
+            escape: 50.0
         }
     );
 }
@@ -99,8 +134,8 @@ fn some_may_be_left_out_around_optional_values() {
     assert_eq!(load(&text).integrator.max_step, Some(0.05));
     let text = edit(
         EXAMPLE,
-        "strobe: Some((period: \"2*pi/w\", phase: 0.0, axes: (\"x\", \"v\"))),",
-        "strobe: (period: \"2*pi/w\", phase: 0.0, axes: (\"x\", \"v\")),",
+        "strobe: Some((period: \"2*pi/w\", first_at: 0.0, axes: (\"x\", \"v\"))),",
+        "strobe: (period: \"2*pi/w\", first_at: 0.0, axes: (\"x\", \"v\")),",
     );
     assert_eq!(
         load(&text).strobe.map(|s| s.period),
@@ -123,8 +158,8 @@ fn a_level_surface_loads() {
 fn a_view_block_may_follow() {
     let text = edit(
         EXAMPLE,
-        "    limits: (max_points: 200000, bound: 1e6),\n",
-        "    limits: (max_points: 200000, bound: 1e6),\n    view: Some((\n        camera: Some((yaw_deg: 30.0, pitch_deg: 15.0, zoom: 1.5)),\n        axes: Some((\"x\", \"v\", \"t\")),\n        colours: Some((cut_points: Some(\"#d1495b\"))),\n    )),\n",
+        "    limits: (max_points: 200000, escape: 1e6),",
+        "    limits: (max_points: 200000, escape: 1e6),\n    view: Some((\n        camera: Some((yaw_deg: 30.0, pitch_deg: 15.0, zoom: 1.5)),\n        axes: Some((\"x\", \"v\", \"t\")),\n        colours: Some((cut_points: Some(\"#d1495b\"), strobe_samples: Some(\"#00798c\"))),\n    )),",
     );
     let view = load(&text).view.expect("view");
     assert_eq!(view.camera.map(|c| c.zoom), Some(1.5));
@@ -134,12 +169,13 @@ fn a_view_block_may_follow() {
     );
     let colours = view.colours.expect("colours");
     assert_eq!(colours.cut_points.as_deref(), Some("#d1495b"));
+    assert_eq!(colours.strobe_samples.as_deref(), Some("#00798c"));
     assert_eq!(colours.trajectory, None);
     // every part of the view may be left out
     let text = edit(
         EXAMPLE,
-        "    limits: (max_points: 200000, bound: 1e6),\n",
-        "    view: Some(()),\n",
+        "    limits: (max_points: 200000, escape: 1e6),",
+        "    view: Some(()),",
     );
     assert_eq!(load(&text).view, Some(Default::default()));
 }
@@ -163,7 +199,7 @@ fn malformed_files_give_located_errors_naming_the_field() {
             "rtol: 1e-9",
             "rtoll: 1e-9",
             15,
-            32,
+            37,
             Some("integrator"),
             "unknown field 'rtoll' in integrator; expected one of method, rtol, atol, max_step",
         ),
@@ -187,10 +223,10 @@ fn malformed_files_give_located_errors_naming_the_field() {
         ),
         (
             "missing field",
-            ", rate: \"v\")",
-            ")",
+            ", rate: \"v\", unit",
+            ", unit",
             6,
-            31,
+            43,
             Some("states[0]"),
             "missing field 'rate' in states[0]",
         ),
@@ -199,7 +235,7 @@ fn malformed_files_give_located_errors_naming_the_field() {
             "settle: 200.0, ",
             "",
             16,
-            36,
+            48,
             Some("time"),
             "missing field 'settle' in time",
         ),
@@ -223,21 +259,21 @@ fn malformed_files_give_located_errors_naming_the_field() {
         ),
         (
             "negative count",
-            "steps: 300",
-            "steps: -3",
+            "values: 301",
+            "values: -3",
             23,
-            62,
-            Some("sweep.steps"),
-            "sweep.steps: expected a whole number",
+            63,
+            Some("sweep.values"),
+            "sweep.values: expected a whole number",
         ),
         (
             "fractional count",
-            "steps: 300",
-            "steps: 3.5",
+            "values: 301",
+            "values: 3.5",
             23,
-            62,
-            Some("sweep.steps"),
-            "sweep.steps: expected a whole number, 0 or more, but found 3.5",
+            63,
+            Some("sweep.values"),
+            "sweep.values: expected a whole number, 0 or more, but found 3.5",
         ),
         (
             "number for a boolean",
@@ -259,12 +295,57 @@ fn malformed_files_give_located_errors_naming_the_field() {
         ),
         (
             "unknown method",
-            "method: Auto",
+            "method: Automatic",
             "method: Rk4",
             15,
             26,
             Some("integrator.method"),
-            "expected one of Auto, Dp5, Dp853, Stiff",
+            "expected one of Automatic, Dp5, Dp853, Stiff",
+        ),
+        (
+            "format-1 word for a method",
+            "method: Automatic",
+            "method: Auto",
+            15,
+            26,
+            Some("integrator.method"),
+            "unknown choice 'Auto' for integrator.method; expected one of Automatic, Dp5, Dp853, Stiff ('Auto' is the format-1 word; format 2 says 'Automatic')",
+        ),
+        (
+            "format-1 word for a field",
+            "first_at: 0.0",
+            "phase: 0.0",
+            22,
+            37,
+            Some("strobe"),
+            "unknown field 'phase' in strobe; expected one of period, first_at, axes ('phase' is the format-1 word; format 2 says 'first_at')",
+        ),
+        (
+            "unknown field in the map",
+            "settle: 300.0, span: 300.0",
+            "settle: 300.0, spam: 300.0",
+            27,
+            31,
+            Some("map"),
+            "unknown field 'spam' in map; expected one of x, y, settle, span, source",
+        ),
+        (
+            "unknown field in a map axis",
+            "(parameter: \"w\"",
+            "(param: \"w\"",
+            26,
+            20,
+            Some("map.y"),
+            "unknown field 'param' in map.y; expected one of parameter, from, to, values",
+        ),
+        (
+            "number for a unit",
+            "unit: \"N\"",
+            "unit: 3",
+            12,
+            61,
+            Some("parameters[2].unit"),
+            "expected a string",
         ),
         (
             "string for a weight",
@@ -318,26 +399,25 @@ fn malformed_files_give_located_errors_naming_the_field() {
 fn a_truncated_file_says_where_it_ends() {
     let text = &EXAMPLE[..EXAMPLE.find("limits").expect("limits")];
     let (line, column, _, message, display) = syntax_error(text);
-    // the parser stops after the last complete value, at the end of line 24
-    assert_eq!((line, column), (24, 76), "{display}");
+    // the parser stops after the last complete value, at the end of line 27
+    assert_eq!((line, column), (27, 61), "{display}");
     assert!(message.contains("ends too early"), "{message}");
 }
 
 #[test]
 fn a_newer_format_is_refused_naming_both_versions() {
-    let text = edit(EXAMPLE, "format: 1", "format: 2");
-    let err = load_str(&text).expect_err("format 2");
+    let text = edit(EXAMPLE, "format: 2", "format: 3");
+    let err = load_str(&text).expect_err("format 3");
     assert!(matches!(
         err,
         ScenarioError::NewerFormat {
-            found: 2,
+            found: 3,
             supported: FORMAT
         }
     ));
-    assert!(
-        err.to_string()
-            .starts_with("this file is format 2; this Lamina reads format 1"),
-        "{err}"
+    assert_eq!(
+        err.to_string(),
+        "this file is format 3; this Lamina reads format 2 and older (the file was written by a newer Lamina)"
     );
 
     // whatever else changed: new fields, fields gone, new syntax further down
@@ -349,36 +429,41 @@ fn a_newer_format_is_refused_naming_both_versions() {
             err,
             ScenarioError::NewerFormat {
                 found: 7,
-                supported: 1
+                supported: 2
             }
         ),
         "{err}"
     );
 
-    let text = edit(EXAMPLE, "format: 1", "format: 0x2");
-    let err = load_str(&text).expect_err("format 2 in hexadecimal");
-    assert!(
-        matches!(
-            err,
-            ScenarioError::NewerFormat {
-                found: 2,
-                supported: 1
-            }
-        ),
-        "{err}"
-    );
+    for written in ["0x3", "0b11", "0o3", "+3", "0_3"] {
+        let text = edit(EXAMPLE, "format: 2", &format!("format: {written}"));
+        let err = load_str(&text).expect_err("format 3 written otherwise");
+        assert!(
+            matches!(
+                err,
+                ScenarioError::NewerFormat {
+                    found: 3,
+                    supported: 2
+                }
+            ),
+            "{written}: {err}"
+        );
+    }
 }
 
 #[test]
 fn format_zero_is_refused() {
-    let (line, column, field, message, _) = syntax_error(&edit(EXAMPLE, "format: 1", "format: 0"));
+    let (line, column, field, message, _) = syntax_error(&edit(EXAMPLE, "format: 2", "format: 0"));
     assert_eq!((line, column, field.as_deref()), (2, 13, Some("format")));
-    assert!(message.contains("this Lamina reads format 1"), "{message}");
+    assert_eq!(
+        message,
+        "there is no format 0; this Lamina reads formats 1 and 2"
+    );
 }
 
 #[test]
 fn a_missing_format_is_a_missing_field() {
-    let (_, _, field, message, _) = syntax_error(&edit(EXAMPLE, "    format: 1,\n", ""));
+    let (_, _, field, message, _) = syntax_error(&edit(EXAMPLE, "    format: 2,\n", ""));
     assert_eq!(field, None);
     assert!(message.contains("missing field 'format'"), "{message}");
 }
@@ -387,11 +472,11 @@ fn a_missing_format_is_a_missing_field() {
 fn view_fields_are_checked_too() {
     let text = edit(
         EXAMPLE,
-        "    limits: (max_points: 200000, bound: 1e6),\n",
-        "    view: Some((camera: Some((yaw_deg: 30.0, pitch: 15.0, zoom: 1.5)))),\n",
+        "    limits: (max_points: 200000, escape: 1e6),",
+        "    view: Some((camera: Some((yaw_deg: 30.0, pitch: 15.0, zoom: 1.5)))),",
     );
     let (line, _, field, message, _) = syntax_error(&text);
-    assert_eq!(line, 25);
+    assert_eq!(line, 28);
     assert_eq!(field.as_deref(), Some("view.camera"));
     assert!(
         message.starts_with(
@@ -411,6 +496,9 @@ fn garbage_never_panics() {
         "format: 1",
         "(format: 1",
         "(format: 1,",
+        "(format: 2",
+        "(format: 2,",
+        "(format: 2, states: [(",
         "\"",
         "(format: 1, states: [(",
         "(((((((((((",

@@ -2,11 +2,11 @@
 
 mod common;
 
-use common::{EXAMPLE, MINIMAL, load};
+use common::{EXAMPLE, EXAMPLE_FORMAT1, MINIMAL, load};
 use lamina_scenario::{
-    Camera, Colours, Cut, Direction, Integrator, Limits, MethodChoice, Parameter, Scenario, State,
-    Strobe, Surface, Sweep, SweepSource, Time, View, Weights, load_file, load_str, save_file,
-    to_ron_string,
+    Camera, Colours, Cut, Direction, Integrator, Limits, MapAxis, MethodChoice, Parameter,
+    RegimeMap, Scenario, State, Strobe, Surface, Sweep, SweepSource, Time, View, Weights,
+    load_file, load_str, save_file, to_ron_string,
 };
 use proptest::prelude::*;
 
@@ -32,6 +32,31 @@ fn the_example_saves_in_a_stable_readable_layout() {
     assert_eq!(to_ron_string(&scenario), EXAMPLE_SAVED);
     round_trip(&scenario);
     round_trip(&load(MINIMAL));
+}
+
+#[test]
+fn a_format1_scenario_saves_as_format2() {
+    let scenario = load(EXAMPLE_FORMAT1);
+    assert_eq!(scenario.format_read(), Some(1));
+    let text = to_ron_string(&scenario);
+    assert!(text.starts_with("(\n    format: 2,\n"), "{text}");
+    for word in ["Auto,", "phase", "steps", "bound"] {
+        assert!(!text.contains(word), "'{word}' in\n{text}");
+    }
+    assert!(
+        text.contains("method: Automatic,")
+            && text.contains("first_at: 0.0,")
+            && text.contains("values: 301,")
+            && text.contains("escape: 1000000.0,"),
+        "{text}"
+    );
+    let back = round_trip(&scenario);
+    assert_eq!(back.format_read(), Some(2));
+
+    // a scenario whose format field says otherwise still saves as the current format
+    let mut scenario = load(MINIMAL);
+    scenario.format = 1;
+    assert!(to_ron_string(&scenario).starts_with("(\n    format: 2,\n"));
 }
 
 #[test]
@@ -225,6 +250,15 @@ fn text() -> BoxedStrategy<String> {
     prop_oneof![any::<String>(), "[a-z \"\\\\\n#/*()]{0,20}"].boxed()
 }
 
+/// A unit, or none: free text.
+fn unit() -> impl Strategy<Value = Option<String>> {
+    prop::option::of(prop_oneof![
+        prop::sample::select(vec!["us", "uH", "uF", "A", "V", "N/m^2", "°C", ""])
+            .prop_map(String::from),
+        text(),
+    ])
+}
+
 fn colour() -> impl Strategy<Value = Option<String>> {
     prop::option::of("#[0-9a-fA-F]{6}([0-9a-fA-F]{2})?")
 }
@@ -249,28 +283,29 @@ fn scenario() -> impl Strategy<Value = Scenario> {
     (1usize..5, 0usize..4).prop_flat_map(|(n_states, n_params)| {
         (names(n_states, "s"), names(n_params, "p")).prop_flat_map(move |(states, params)| {
             let state_list = (
-                prop::collection::vec((number(), 0usize..n_states), n_states),
+                prop::collection::vec((number(), 0usize..n_states, unit()), n_states),
                 Just(states.clone()),
             )
                 .prop_map(|(values, names)| {
                     names
                         .iter()
                         .zip(values)
-                        .map(|(name, (start, other))| State {
+                        .map(|(name, (start, other, unit))| State {
                             name: name.clone(),
                             start,
                             rate: format!("-{} + 0.5*{}", name, names[other]),
+                            unit,
                         })
                         .collect::<Vec<_>>()
                 })
                 .boxed();
             let param_list = (
-                prop::collection::vec((number(), number(), 0u8..3), n_params),
+                prop::collection::vec((number(), number(), 0u8..3, unit()), n_params),
                 Just(params.clone()),
             )
                 .prop_filter_map("distinct range ends", |(values, names)| {
                     let mut out = Vec::new();
-                    for (name, (a, b, which)) in names.iter().zip(values) {
+                    for (name, (a, b, which, unit)) in names.iter().zip(values) {
                         if a == b {
                             return None;
                         }
@@ -284,6 +319,7 @@ fn scenario() -> impl Strategy<Value = Scenario> {
                             name: name.clone(),
                             value,
                             range: (low, high),
+                            unit,
                         });
                     }
                     Some(out)
@@ -291,9 +327,10 @@ fn scenario() -> impl Strategy<Value = Scenario> {
                 .boxed();
             let integrator = (
                 prop::sample::select(vec![
-                    MethodChoice::Auto,
+                    MethodChoice::Automatic,
                     MethodChoice::Dp5,
                     MethodChoice::Dp853,
+                    MethodChoice::Stiff,
                 ]),
                 positive(),
                 positive(),
@@ -306,11 +343,12 @@ fn scenario() -> impl Strategy<Value = Scenario> {
                     max_step,
                 })
                 .boxed();
-            let time = (number(), not_negative(), positive())
-                .prop_map(|(start, settle, span)| Time {
+            let time = (number(), not_negative(), positive(), unit())
+                .prop_map(|(start, settle, span, unit)| Time {
                     start,
                     settle,
                     span,
+                    unit,
                 })
                 .boxed();
             let direction =
@@ -344,15 +382,14 @@ fn scenario() -> impl Strategy<Value = Scenario> {
                 },
             ))
             .boxed();
-            let strobe =
-                prop::option::of((text(), number(), axes).prop_map(|(period, phase, axes)| {
-                    Strobe {
-                        period,
-                        phase,
-                        axes,
-                    }
-                }))
-                .boxed();
+            let strobe = prop::option::of((text(), number(), axes).prop_map(
+                |(period, first_at, axes)| Strobe {
+                    period,
+                    first_at,
+                    axes,
+                },
+            ))
+            .boxed();
             let sweep_parts = (
                 if params.is_empty() {
                     Just(String::new()).boxed()
@@ -361,7 +398,7 @@ fn scenario() -> impl Strategy<Value = Scenario> {
                 },
                 number(),
                 number(),
-                1u32..=u32::MAX,
+                2u32..=u32::MAX,
                 not_negative(),
                 1u32..1000,
                 any::<bool>(),
@@ -369,6 +406,26 @@ fn scenario() -> impl Strategy<Value = Scenario> {
                 any::<bool>(),
             )
                 .boxed();
+            // two different parameters when there are two, else none (the map is left out)
+            let map_parameters = if params.len() >= 2 {
+                prop::sample::subsequence(params.clone(), 2)
+                    .prop_shuffle()
+                    .boxed()
+            } else {
+                Just(Vec::new()).boxed()
+            };
+            let map_axis = || {
+                (number(), number(), 2u32..=u32::MAX)
+                    .prop_filter("distinct ends", |(from, to, _)| from != to)
+            };
+            let map_parts = prop::option::of((
+                map_parameters,
+                map_axis(),
+                map_axis(),
+                not_negative(),
+                positive(),
+            ))
+            .boxed();
             let view_axis = prop_oneof![pick(&states), Just("t".to_owned())];
             let view = prop::option::of(
                 (
@@ -381,11 +438,11 @@ fn scenario() -> impl Strategy<Value = Scenario> {
                     )),
                     prop::option::of((view_axis.clone(), view_axis.clone(), view_axis)),
                     prop::option::of((colour(), colour(), colour(), colour()).prop_map(
-                        |(trajectory, surface, cut_points, strobe_points)| Colours {
+                        |(trajectory, surface, cut_points, strobe_samples)| Colours {
                             trajectory,
                             surface,
                             cut_points,
-                            strobe_points,
+                            strobe_samples,
                         },
                     )),
                 )
@@ -397,16 +454,16 @@ fn scenario() -> impl Strategy<Value = Scenario> {
             )
             .boxed();
             let limits = (1u64..=u64::MAX, positive())
-                .prop_map(|(max_points, bound)| Limits { max_points, bound })
+                .prop_map(|(max_points, escape)| Limits { max_points, escape })
                 .boxed();
             (
                 (text(), text(), state_list, param_list, integrator, time),
-                (cut, strobe, sweep_parts, limits, view),
+                (cut, strobe, sweep_parts, map_parts, limits, view),
             )
                 .prop_map(
                     |(
                         (title, notes, states, parameters, integrator, time),
-                        (cut, strobe, sweep, limits, view),
+                        (cut, strobe, sweep, map, limits, view),
                     )| {
                         let mut scenario = Scenario::new(&title, states, parameters, time);
                         scenario.notes = notes;
@@ -415,7 +472,7 @@ fn scenario() -> impl Strategy<Value = Scenario> {
                             parameter,
                             from,
                             to,
-                            steps,
+                            values,
                             settle,
                             keep,
                             follow,
@@ -437,12 +494,41 @@ fn scenario() -> impl Strategy<Value = Scenario> {
                                 parameter,
                                 from,
                                 to,
-                                steps,
+                                values,
                                 settle,
                                 keep,
                                 follow,
                                 source,
                                 coordinate,
+                            }),
+                            _ => None,
+                        };
+                        scenario.map = match (map, source) {
+                            (
+                                Some((
+                                    axes,
+                                    (x_from, x_to, x_values),
+                                    (y_from, y_to, y_values),
+                                    settle,
+                                    span,
+                                )),
+                                Some(source),
+                            ) if axes.len() == 2 => Some(RegimeMap {
+                                x: MapAxis {
+                                    parameter: axes[0].clone(),
+                                    from: x_from,
+                                    to: x_to,
+                                    values: x_values,
+                                },
+                                y: MapAxis {
+                                    parameter: axes[1].clone(),
+                                    from: y_from,
+                                    to: y_to,
+                                    values: y_values,
+                                },
+                                settle,
+                                span,
+                                source,
                             }),
                             _ => None,
                         };

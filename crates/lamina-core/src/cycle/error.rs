@@ -64,11 +64,11 @@ pub enum CycleError {
         /// Estimated size of the orbit (speed at the point times the period over 2 pi).
         size: f64,
     },
-    /// A state left the bound of the scenario while following the orbit.
-    #[error("a state left the bound {bound} at t = {t} while following the orbit")]
+    /// A state passed the scenario's escape size while following the orbit.
+    #[error("a state passed the escape size {} at t = {t} while following the orbit", crate::run::Size(*escape))]
     Escaped {
-        /// The bound (`limits.bound`).
-        bound: f64,
+        /// The escape size (`limits.escape`).
+        escape: f64,
         /// Time at the end of the step where it happened.
         t: f64,
     },

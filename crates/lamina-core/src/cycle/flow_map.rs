@@ -40,20 +40,20 @@ pub struct MapSettings {
     pub method: Method,
     /// Tolerances (applied to the states and to the variational matrix alike).
     pub control: StepControl,
-    /// Following the orbit fails when a state's magnitude exceeds this.
-    pub bound: f64,
+    /// Following the orbit fails when a state's magnitude passes this escape size.
+    pub escape: f64,
     /// Longest time allowed between two crossings of the cut before the crossing counts as
     /// lost.
     pub max_return_time: f64,
 }
 
 impl MapSettings {
-    /// The integrator and bound of a run's settings, with the given longest return time.
+    /// The integrator and escape size of a run's settings, with the given longest return time.
     pub fn from_run(spec: &RunSpec, max_return_time: f64) -> Self {
         Self {
             method: spec.method,
             control: spec.control,
-            bound: spec.bound,
+            escape: spec.escape,
             max_return_time,
         }
     }
@@ -387,17 +387,17 @@ impl FlowMap {
         Ok(())
     }
 
-    /// One step no further than `t_limit`, with the bound check.
+    /// One step no further than `t_limit`, with the escape check.
     pub(super) fn step(&mut self, t_limit: f64) -> Result<(), CycleError> {
         let mut rates = Variational::new(&mut self.model, self.with_matrix);
         self.integrator.step(&mut rates, t_limit)?;
-        let bound = self.settings.bound;
+        let escape = self.settings.escape;
         if self.integrator.x()[..self.n]
             .iter()
-            .any(|v| v.abs() > bound)
+            .any(|v| v.abs() > escape)
         {
             return Err(CycleError::Escaped {
-                bound,
+                escape,
                 t: self.integrator.t(),
             });
         }

@@ -1,4 +1,4 @@
-//! The automatic method and going back inside a step: `Auto` changes between DOP853 and
+//! The automatic method and going back inside a step: `Automatic` changes between DOP853 and
 //! Rodas4 after accepted steps; [`Integrator::shorten_last_step`],
 //! [`Integrator::undo_last_step`] and [`Integrator::restart`] let a driver end a step at a
 //! switching time of the model and go on with other rates from there.
@@ -9,7 +9,7 @@ use super::stiffness::MethodChange;
 use super::{Integrator, Method, Rates, StepError};
 
 impl Integrator {
-    /// Under `Auto`, feeds the stiffness measure of the step of size `h` just accepted to the
+    /// Under `Automatic`, feeds the stiffness measure of the step of size `h` just accepted to the
     /// counters, and schedules a change of method when they say so.
     pub(super) fn watch_stiffness(&mut self, h: f64) {
         let measure = self.stepper.stiffness_measure();
@@ -41,12 +41,12 @@ impl Integrator {
         }
     }
 
-    /// Under `Auto`, goes back to DOP853 if Rodas4 is in use, and clears the counters.
+    /// Under `Automatic`, goes back to DOP853 if Rodas4 is in use, and clears the counters.
     pub(super) fn restore_starting_method(&mut self) {
         self.pending = None;
         self.change = None;
         self.watch.reset();
-        if self.method == Method::Auto && self.stepper.method() != Method::Dp853 {
+        if self.method == Method::Automatic && self.stepper.method() != Method::Dp853 {
             self.swap_steppers();
         }
     }

@@ -40,7 +40,7 @@ impl PiController {
     pub(crate) fn for_method(method: Method) -> Self {
         let (alpha0, beta, beta_weight, min_factor, max_factor) = match method {
             Method::Dp5 => (0.2, 0.04, 0.75, 0.2, 10.0),
-            Method::Dp853 | Method::Auto | Method::Rodas4 => {
+            Method::Dp853 | Method::Automatic | Method::Rodas4 => {
                 (1.0 / 8.0, DP853_BETA, 0.2, 0.333, 6.0)
             }
         };
@@ -104,7 +104,7 @@ pub(crate) enum StepRule {
 }
 
 impl StepRule {
-    /// The rule used for `method` (`Auto` starts with DOP853's).
+    /// The rule used for `method` (`Automatic` starts with DOP853's).
     pub(crate) fn for_method(method: Method) -> Self {
         match method {
             Method::Rodas4 => Self::Predictive(PredictiveController::new()),

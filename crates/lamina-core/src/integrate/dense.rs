@@ -4,7 +4,7 @@
 ///
 /// Every method's interpolant has one nested form: with `s = (t - t0) / h` and
 /// `r = 1 - s`, `y(t) = c0 + s (c1 + r (c2 + s (c3 + r (c4 + ...))))`, alternating `s` and `r`.
-/// Dormand–Prince 5(4) has 5 coefficient vectors, DOP853 8, Rodas4 4 (8 under `Auto`, the
+/// Dormand–Prince 5(4) has 5 coefficient vectors, DOP853 8, Rodas4 4 (8 under `Automatic`, the
 /// last four zero). `c0` is the state at `t0` and
 /// `c0 + c1` the state at `t0 + h`.
 #[derive(Clone, Debug, Default, PartialEq)]

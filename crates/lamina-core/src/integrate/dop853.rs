@@ -9,7 +9,7 @@ use super::dop853_tableau::*;
 pub(super) const N_TERMS: usize = 8;
 /// Classical order, used by the automatic initial step.
 pub(super) const ORDER: i32 = 8;
-/// Right-hand-side evaluations of one step attempt (stages 2 to 12).
+/// Rate evaluations of one step attempt (stages 2 to 12).
 pub(super) const EVALS_PER_ATTEMPT: u64 = 11;
 /// Further evaluations for the dense output of an accepted step (stages 14–16); stage 13,
 /// `f` at the new state, is needed anyway as the first stage of the next step.
@@ -105,16 +105,16 @@ impl Dop853 {
         h: f64,
         rtol: f64,
         atol: f64,
-        n_rates: &mut u64,
+        n_rate_evaluations: &mut u64,
     ) -> f64 {
         // the stage loops compiled for the common small sizes run fully unrolled, with the
         // states in registers (about a fifth less time per step for three states)
         match x.len() {
-            1 => self.attempt_sized::<R, 1>(rates, t, x, h, rtol, atol, n_rates),
-            2 => self.attempt_sized::<R, 2>(rates, t, x, h, rtol, atol, n_rates),
-            3 => self.attempt_sized::<R, 3>(rates, t, x, h, rtol, atol, n_rates),
-            4 => self.attempt_sized::<R, 4>(rates, t, x, h, rtol, atol, n_rates),
-            _ => self.attempt_sized::<R, 0>(rates, t, x, h, rtol, atol, n_rates),
+            1 => self.attempt_sized::<R, 1>(rates, t, x, h, rtol, atol, n_rate_evaluations),
+            2 => self.attempt_sized::<R, 2>(rates, t, x, h, rtol, atol, n_rate_evaluations),
+            3 => self.attempt_sized::<R, 3>(rates, t, x, h, rtol, atol, n_rate_evaluations),
+            4 => self.attempt_sized::<R, 4>(rates, t, x, h, rtol, atol, n_rate_evaluations),
+            _ => self.attempt_sized::<R, 0>(rates, t, x, h, rtol, atol, n_rate_evaluations),
         }
     }
 
@@ -129,7 +129,7 @@ impl Dop853 {
         h: f64,
         rtol: f64,
         atol: f64,
-        n_rates: &mut u64,
+        n_rate_evaluations: &mut u64,
     ) -> f64 {
         let x = if D == 0 { x } else { &x[..D] };
         let [k1, k2, k3, k4, k5, k6, k7, k8, k9, k10, k11, k12, ..] = &mut self.k;
@@ -158,7 +158,7 @@ impl Dop853 {
         combine!(ys = x + h * (A121, k1; A124, k4; A125, k5; A126, k6; A127, k7; A128, k8; A129, k9;
             A1210, k10; A1211, k11));
         rates.rates(t + h, ys, k12);
-        *n_rates += EVALS_PER_ATTEMPT;
+        *n_rate_evaluations += EVALS_PER_ATTEMPT;
 
         let n = x.len();
         let x = &x[..n];
@@ -218,11 +218,11 @@ impl Dop853 {
         t: f64,
         x: &[f64],
         h: f64,
-        n_rates: &mut u64,
+        n_rate_evaluations: &mut u64,
         dense: bool,
     ) -> bool {
         rates.rates(t + h, &self.x_new, &mut self.k[12]);
-        *n_rates += 1;
+        *n_rate_evaluations += 1;
         if !self.k[12].iter().all(|v| v.is_finite()) {
             return false;
         }
@@ -243,7 +243,15 @@ impl Dop853 {
         }
         if dense {
             let mut coeffs = std::mem::take(&mut self.dense);
-            let finite = self.interpolant(rates, t, x, h, n_rates, Order::BeforeSwap, &mut coeffs);
+            let finite = self.interpolant(
+                rates,
+                t,
+                x,
+                h,
+                n_rate_evaluations,
+                Order::BeforeSwap,
+                &mut coeffs,
+            );
             self.dense = coeffs;
             if !finite {
                 return false;
@@ -262,10 +270,18 @@ impl Dop853 {
         t: f64,
         start: &[f64],
         h: f64,
-        n_rates: &mut u64,
+        n_rate_evaluations: &mut u64,
         coeffs: &mut [f64],
     ) -> bool {
-        self.interpolant(rates, t, start, h, n_rates, Order::AfterSwap, coeffs)
+        self.interpolant(
+            rates,
+            t,
+            start,
+            h,
+            n_rate_evaluations,
+            Order::AfterSwap,
+            coeffs,
+        )
     }
 
     /// Stages 14–16 and the interpolant coefficients. Stage 1 and stage 13 trade places when
@@ -277,7 +293,7 @@ impl Dop853 {
         t: f64,
         x: &[f64],
         h: f64,
-        n_rates: &mut u64,
+        n_rate_evaluations: &mut u64,
         order: Order,
         coeffs: &mut [f64],
     ) -> bool {
@@ -313,7 +329,7 @@ impl Dop853 {
         combine!(ys = x + h * (A161, k1; A166, k6; A167, k7; A168, k8; A169, k9; A1613, k13;
             A1614, k14; A1615, k15));
         rates.rates(t + C16 * h, ys, k16);
-        *n_rates += EVALS_FOR_DENSE;
+        *n_rate_evaluations += EVALS_FOR_DENSE;
 
         let n = x.len();
         let (x, x_new) = (&x[..n], &self.x_new[..n]);

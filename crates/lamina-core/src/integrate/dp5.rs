@@ -52,7 +52,7 @@ pub(super) const D7: f64 = 69997945.0 / 29380423.0;
 pub(super) const N_TERMS: usize = 5;
 /// Classical order, used by the automatic initial step.
 pub(super) const ORDER: i32 = 5;
-/// Right-hand-side evaluations of one step attempt (stages 2 to 7).
+/// Rate evaluations of one step attempt (stages 2 to 7).
 pub(super) const EVALS_PER_ATTEMPT: u64 = 6;
 
 /// Stage vectors and scratch of the Dormand–Prince 5(4) stepper, allocated once.
@@ -125,7 +125,7 @@ impl Dp5 {
         h: f64,
         rtol: f64,
         atol: f64,
-        n_rates: &mut u64,
+        n_rate_evaluations: &mut u64,
     ) -> f64 {
         let [k1, k2, k3, k4, k5, k6, k7] = &mut self.k;
         let ys = &mut self.y_stage;
@@ -143,7 +143,7 @@ impl Dp5 {
         let x_new = &mut self.x_new;
         combine!(x_new = x + h * (A71, k1; A73, k3; A74, k4; A75, k5; A76, k6));
         rates.rates(t_end, x_new, k7);
-        *n_rates += EVALS_PER_ATTEMPT;
+        *n_rate_evaluations += EVALS_PER_ATTEMPT;
 
         let n = x.len();
         let (x, x_new) = (&x[..n], &x_new[..n]);

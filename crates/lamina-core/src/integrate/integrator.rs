@@ -15,14 +15,14 @@ const NON_FINITE_SHRINK: f64 = 0.25;
 
 /// An adaptive integrator of any [`Method`], stepping one accepted step at a time.
 ///
-/// With [`Method::Auto`] it holds both DOP853 and Rodas4, starts with DOP853 and changes
+/// With [`Method::Automatic`] it holds both DOP853 and Rodas4, starts with DOP853 and changes
 /// between them after accepted steps (see [`Integrator::take_method_change`]); every step's
 /// dense output then has DOP853's eight terms.
 ///
 /// Time runs forward only. After every successful [`Integrator::step`] or
 /// [`Integrator::step_fixed`], [`Integrator::segment`] holds the dense output of that step.
 /// [`Integrator::step_lazy`] takes the same step without building the dense output (for
-/// DOP853 that saves three of its fifteen right-hand-side evaluations per step);
+/// DOP853 that saves three of its fifteen rate evaluations per step);
 /// [`Integrator::ensure_dense`] builds it afterwards, for that step, when it is wanted.
 /// All storage is allocated in [`Integrator::new`] (and again in [`Integrator::reset`] only if
 /// the state length changes); stepping allocates nothing.
@@ -43,10 +43,10 @@ pub struct Integrator {
     pub(super) f0_valid: bool,
     /// The stepper of the method in use.
     pub(super) stepper: Stepper,
-    /// With `Auto`, the stepper of the other method.
+    /// With `Automatic`, the stepper of the other method.
     pub(super) spare: Option<Stepper>,
     pub(super) controller: StepRule,
-    /// With `Auto`, the counters that decide a change of method.
+    /// With `Automatic`, the counters that decide a change of method.
     pub(super) watch: StiffnessWatch,
     /// A change of method decided on the last step, made before the next one.
     pub(super) pending: Option<MethodChange>,
@@ -71,7 +71,7 @@ impl Integrator {
             h_chosen: false,
             f0_valid: false,
             stepper: Stepper::new(method, dim),
-            spare: (method == Method::Auto).then(|| Stepper::stiff_partner(dim)),
+            spare: (method == Method::Automatic).then(|| Stepper::stiff_partner(dim)),
             controller: StepRule::for_method(method),
             watch: StiffnessWatch::default(),
             pending: None,
@@ -96,7 +96,7 @@ impl Integrator {
         self.method
     }
 
-    /// The method taking the steps now: the one it was made with, or under `Auto` DOP853 or
+    /// The method taking the steps now: the one it was made with, or under `Automatic` DOP853 or
     /// Rodas4.
     pub fn active_method(&self) -> Method {
         self.stepper.method()
@@ -115,14 +115,14 @@ impl Integrator {
     /// Evaluates the rates once at the new state. The step history of the controller is
     /// forgotten; the work counters keep counting. A state of a different length than before
     /// re-sizes the integrator to it. The segment becomes a zero-length one at `t0` whose
-    /// start state is `x0`. `Auto` starts again with DOP853.
+    /// start state is `x0`. `Automatic` starts again with DOP853.
     pub fn reset<R: Rates + ?Sized>(&mut self, rates: &mut R, t0: f64, x0: &[f64]) {
         let dim = x0.len();
         if dim != self.x.len() {
             self.x = vec![0.0; dim];
             self.x_start = vec![0.0; dim];
             self.stepper = Stepper::new(self.method, dim);
-            self.spare = (self.method == Method::Auto).then(|| Stepper::stiff_partner(dim));
+            self.spare = (self.method == Method::Automatic).then(|| Stepper::stiff_partner(dim));
         }
         self.restore_starting_method();
         self.dense_ready = true;
@@ -150,7 +150,7 @@ impl Integrator {
             }
         }
         rates.rates(t0, &self.x, self.stepper.f0_mut());
-        self.stats.n_rates += 1;
+        self.stats.n_rate_evaluations += 1;
         self.f0_valid = true;
     }
 
@@ -191,7 +191,7 @@ impl Integrator {
     }
 
     /// Builds the dense output of the last step if [`Integrator::step_lazy`] left it out
-    /// (three right-hand-side evaluations for DOP853, none for Dormand–Prince 5(4)).
+    /// (three rate evaluations for DOP853, none for Dormand–Prince 5(4)).
     ///
     /// # Errors
     /// [`StepError::NotFinite`] (at the step's start time) when the dense output is not
@@ -206,7 +206,7 @@ impl Integrator {
             segment.t0,
             &self.x_start,
             segment.h,
-            &mut self.stats.n_rates,
+            &mut self.stats.n_rate_evaluations,
             &mut segment.coeffs,
         );
         if !finite {
@@ -234,7 +234,7 @@ impl Integrator {
         self.dense_ready
     }
 
-    /// The change of method that `Auto` made after the last step, if any; each change is
+    /// The change of method that `Automatic` made after the last step, if any; each change is
     /// returned once.
     pub fn take_method_change(&mut self) -> Option<MethodChange> {
         self.change.take()
@@ -276,9 +276,12 @@ impl Integrator {
             let err = self
                 .stepper
                 .attempt(rates, t, &self.x, h, &self.control, &mut self.stats);
-            let n_rates = &mut self.stats.n_rates;
+            let n_rate_evaluations = &mut self.stats.n_rate_evaluations;
             let finite = err.is_finite()
-                && (err > 1.0 || self.stepper.finish(rates, t, &self.x, h, n_rates, dense));
+                && (err > 1.0
+                    || self
+                        .stepper
+                        .finish(rates, t, &self.x, h, n_rate_evaluations, dense));
             if !finite {
                 self.stats.n_rejected += 1;
                 n_non_finite += 1;
@@ -309,7 +312,7 @@ impl Integrator {
             } else {
                 self.commit_lazy(h, t_end);
             }
-            if self.method == Method::Auto {
+            if self.method == Method::Automatic {
                 self.watch_stiffness(h);
             }
             return Ok(());
@@ -336,8 +339,12 @@ impl Integrator {
         let err = self
             .stepper
             .attempt(rates, t, &self.x, h, &self.control, &mut self.stats);
-        let n_rates = &mut self.stats.n_rates;
-        if !(err.is_finite() && self.stepper.finish(rates, t, &self.x, h, n_rates, true)) {
+        let n_rate_evaluations = &mut self.stats.n_rate_evaluations;
+        if !(err.is_finite()
+            && self
+                .stepper
+                .finish(rates, t, &self.x, h, n_rate_evaluations, true))
+        {
             return Err(StepError::NotFinite { t });
         }
         self.commit(h, t + h);
@@ -375,7 +382,7 @@ impl Integrator {
     fn ensure_f0<R: Rates + ?Sized>(&mut self, rates: &mut R) -> Result<(), StepError> {
         if !self.f0_valid {
             rates.rates(self.t, &self.x, self.stepper.f0_mut());
-            self.stats.n_rates += 1;
+            self.stats.n_rate_evaluations += 1;
             self.f0_valid = true;
         }
         let finite = |v: &[f64]| v.iter().all(|z| z.is_finite());
@@ -391,7 +398,7 @@ impl Integrator {
         let order = self.stepper.order();
         let (f0, y1, f1) = self.stepper.f0_and_scratch();
         let (rtol, atol) = (self.control.rtol, self.control.atol);
-        self.stats.n_rates += 1;
+        self.stats.n_rate_evaluations += 1;
         initial_step(rates, self.t, &self.x, f0, y1, f1, order, h_max, rtol, atol)
     }
 

@@ -103,7 +103,7 @@ pub enum Method {
     /// Starts with DOP853, changes to Rodas4 when the step size is held down by stability
     /// (Hairer's stiffness test) and back when it no longer is; see
     /// [`Integrator::take_method_change`].
-    Auto,
+    Automatic,
 }
 
 impl Method {
@@ -113,7 +113,7 @@ impl Method {
             Self::Dp5 => "Dormand–Prince 5(4)",
             Self::Dp853 => "DOP853",
             Self::Rodas4 => "Rodas4",
-            Self::Auto => "automatic (DOP853 / Rodas4)",
+            Self::Automatic => "automatic (DOP853 / Rodas4)",
         }
     }
 }
@@ -164,8 +164,8 @@ pub enum StepError {
 /// Counters of work done by an integrator.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub struct Stats {
-    /// Right-hand-side evaluations.
-    pub n_rates: u64,
+    /// Rate evaluations (of the right-hand side `f(t, x)`).
+    pub n_rate_evaluations: u64,
     /// Accepted steps.
     pub n_accepted: u64,
     /// Rejected step attempts.

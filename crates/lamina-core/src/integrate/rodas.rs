@@ -1,12 +1,12 @@
 //! Rodas4, the stiffly accurate, L-stable Rosenbrock method of order 4(3) with third-order
 //! dense output: E. Hairer & G. Wanner, Solving Ordinary Differential Equations II (2nd ed.,
 //! 1996), sec. IV.7 and VI.4, as in their code RODAS. Six stages, one Jacobian and one LU
-//! decomposition of `I / (h gamma) - J` per step, five right-hand-side evaluations per
+//! decomposition of `I / (h gamma) - J` per step, five rate evaluations per
 //! attempt and one for `f` at the accepted state.
 //!
 //! The dense output `y(s) = (1 - s) y0 + s (y1 + (1 - s) (q2 + s q3))` is the nested form of
 //! [`super::DenseSegment`] with terms `y0, y1 - y0, q2, q3`; a stepper paired with DOP853
-//! (method `Auto`) pads them with zero terms to DOP853's eight.
+//! (method `Automatic`) pads them with zero terms to DOP853's eight.
 
 use super::Stats;
 use super::linear::Lu;
@@ -17,7 +17,7 @@ use super::{Rates, StepControl};
 pub(super) const N_TERMS: usize = 4;
 /// Classical order, used by the automatic initial step.
 pub(super) const ORDER: i32 = 4;
-/// Right-hand-side evaluations of one step attempt (stages 2 to 6).
+/// Rate evaluations of one step attempt (stages 2 to 6).
 pub(super) const EVALS_PER_ATTEMPT: u64 = 5;
 
 /// Smallest increment scale of the difference Jacobian (Hairer's `MAX(1D-5, |y|)`).
@@ -203,7 +203,7 @@ impl Rodas {
         ];
         stage_rhs(u6, fs, 0.0, f_t, inv_h, &earlier);
         lu.solve(u6);
-        stats.n_rates += EVALS_PER_ATTEMPT;
+        stats.n_rate_evaluations += EVALS_PER_ATTEMPT;
 
         let (rtol, atol) = (control.rtol, control.atol);
         let mut err_sq = 0.0;
@@ -244,12 +244,12 @@ impl Rodas {
                 }
                 self.y_stage[j] = xj;
             }
-            stats.n_rates += n as u64;
+            stats.n_rate_evaluations += n as u64;
         }
         if !rates.exact_time_derivative(t, x, &mut self.f_t) {
             let t1 = t + (f64::EPSILON * t.abs().max(DIFFERENCE_FLOOR)).sqrt();
             rates.rates(t1, x, &mut self.f_stage);
-            stats.n_rates += 1;
+            stats.n_rate_evaluations += 1;
             let delta = t1 - t;
             for ((d, f1), f0) in self.f_t.iter_mut().zip(&self.f_stage).zip(&self.f0) {
                 *d = (f1 - f0) / delta;
@@ -269,11 +269,11 @@ impl Rodas {
         t: f64,
         x: &[f64],
         h: f64,
-        n_rates: &mut u64,
+        n_rate_evaluations: &mut u64,
         dense: bool,
     ) -> bool {
         rates.rates(t + h, &self.x_new, &mut self.f_new);
-        *n_rates += 1;
+        *n_rate_evaluations += 1;
         if !self.f_new.iter().all(|v| v.is_finite()) {
             return false;
         }

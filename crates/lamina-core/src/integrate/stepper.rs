@@ -16,14 +16,14 @@ pub(super) enum Stepper {
 }
 
 impl Stepper {
-    /// The stepper that `method` starts with (`Auto` starts with DOP853, measuring
+    /// The stepper that `method` starts with (`Automatic` starts with DOP853, measuring
     /// stiffness), writing `n_terms` interpolation terms (see [`Stepper::n_terms`]).
     pub(super) fn new(method: Method, dim: usize) -> Self {
         match method {
             Method::Dp5 => Self::Dp5(Dp5::new(dim)),
             Method::Dp853 => Self::Dp853(Dop853::new(dim)),
             Method::Rodas4 => Self::Rodas(Rodas::new(dim, rodas::N_TERMS)),
-            Method::Auto => {
+            Method::Automatic => {
                 let mut explicit = Dop853::new(dim);
                 explicit.measure_stiffness();
                 Self::Dp853(explicit)
@@ -31,18 +31,18 @@ impl Stepper {
         }
     }
 
-    /// The stiff stepper that `Auto` changes to, writing as many terms as DOP853.
+    /// The stiff stepper that `Automatic` changes to, writing as many terms as DOP853.
     pub(super) fn stiff_partner(dim: usize) -> Self {
         Self::Rodas(Rodas::new(dim, dop853::N_TERMS))
     }
 
-    /// Interpolation terms per step of a run with `method`: with `Auto` every step has
+    /// Interpolation terms per step of a run with `method`: with `Automatic` every step has
     /// DOP853's eight (Rodas4's four padded with zero terms), so that stored runs keep one
     /// layout.
     pub(super) fn n_terms(method: Method) -> usize {
         match method {
             Method::Dp5 => dp5::N_TERMS,
-            Method::Dp853 | Method::Auto => dop853::N_TERMS,
+            Method::Dp853 | Method::Automatic => dop853::N_TERMS,
             Method::Rodas4 => rodas::N_TERMS,
         }
     }
@@ -144,10 +144,10 @@ impl Stepper {
         stats: &mut Stats,
     ) -> f64 {
         let (rtol, atol) = (control.rtol, control.atol);
-        let n_rates = &mut stats.n_rates;
+        let n_rate_evaluations = &mut stats.n_rate_evaluations;
         match self {
-            Self::Dp5(s) => s.attempt(rates, t, x, h, rtol, atol, n_rates),
-            Self::Dp853(s) => s.attempt(rates, t, x, h, rtol, atol, n_rates),
+            Self::Dp5(s) => s.attempt(rates, t, x, h, rtol, atol, n_rate_evaluations),
+            Self::Dp853(s) => s.attempt(rates, t, x, h, rtol, atol, n_rate_evaluations),
             Self::Rodas(s) => s.attempt(rates, t, x, h, control, stats),
         }
     }
@@ -161,13 +161,13 @@ impl Stepper {
         t: f64,
         x: &[f64],
         h: f64,
-        n_rates: &mut u64,
+        n_rate_evaluations: &mut u64,
         dense: bool,
     ) -> bool {
         match self {
             Self::Dp5(s) => s.finish(x, h, dense),
-            Self::Dp853(s) => s.finish(rates, t, x, h, n_rates, dense),
-            Self::Rodas(s) => s.finish(rates, t, x, h, n_rates, dense),
+            Self::Dp853(s) => s.finish(rates, t, x, h, n_rate_evaluations, dense),
+            Self::Rodas(s) => s.finish(rates, t, x, h, n_rate_evaluations, dense),
         }
     }
 
@@ -180,12 +180,12 @@ impl Stepper {
         t: f64,
         start: &[f64],
         h: f64,
-        n_rates: &mut u64,
+        n_rate_evaluations: &mut u64,
         coeffs: &mut [f64],
     ) -> bool {
         match self {
             Self::Dp5(s) => s.build_dense(start, h, coeffs),
-            Self::Dp853(s) => s.build_dense(rates, t, start, h, n_rates, coeffs),
+            Self::Dp853(s) => s.build_dense(rates, t, start, h, n_rate_evaluations, coeffs),
             Self::Rodas(s) => s.build_dense(start, coeffs),
         }
     }

@@ -35,7 +35,7 @@ const PROGRESS_EVERY_STEPS: u64 = 256;
 /// (`rates_jump`).
 ///
 /// Cancellation: `interrupt` is checked once per step. Numerical trouble (a state beyond
-/// `run.bound`, a value not finite, a collapsing step) ends the run with its reason and
+/// `run.escape`, a value not finite, a collapsing step) ends the run with its reason and
 /// time; the estimates up to the last good step are returned.
 ///
 /// # Errors
@@ -147,14 +147,14 @@ impl Work {
 
     /// Integrates the settle time without tangent vectors; a reason if the run ends in it.
     fn settle(&mut self, sink: &mut dyn ExponentSink, interrupt: &Interrupt) -> Option<StopReason> {
-        if let Some(reason) = check_state(self.run.bound, self.t, &self.x) {
+        if let Some(reason) = check_state(self.run.escape, self.t, &self.x) {
             return Some(reason);
         }
         let t_record = self.run.t_record();
         if self.t >= t_record {
             return None;
         }
-        let bound = self.run.bound;
+        let escape = self.run.escape;
         let model = self.tangent.model_mut();
         let mut integrator = Integrator::new(self.run.method, self.run.control, self.n);
         integrator.reset(model, self.t, &self.x);
@@ -171,7 +171,7 @@ impl Work {
             }
             self.n_steps += 1;
             let t1 = integrator.t();
-            if let Some(reason) = check_state(bound, t1, integrator.x()) {
+            if let Some(reason) = check_state(escape, t1, integrator.x()) {
                 break Some(reason);
             }
             if self.n_steps.is_multiple_of(PROGRESS_EVERY_STEPS) {
@@ -212,7 +212,7 @@ impl Work {
             self.n_steps += 1;
             let t1 = integrator.t();
             let (x, vectors) = integrator.x().split_at(n);
-            if let Some(reason) = check_state(self.run.bound, t1, x) {
+            if let Some(reason) = check_state(self.run.escape, t1, x) {
                 break reason;
             }
             side.copy_from_slice(vectors);
@@ -324,19 +324,19 @@ fn fraction_done(run: &RunSpec, t: f64) -> f64 {
 }
 
 /// Escape and non-finite checks of the model's state `x` at `t`.
-fn check_state(bound: f64, t: f64, x: &[f64]) -> Option<StopReason> {
+fn check_state(escape: f64, t: f64, x: &[f64]) -> Option<StopReason> {
     if x.iter().any(|v| !v.is_finite()) {
         return Some(StopReason::NotFinite { t });
     }
-    if x.iter().any(|v| v.abs() > bound) {
-        return Some(StopReason::Escaped { t });
+    if x.iter().any(|v| v.abs() > escape) {
+        return Some(StopReason::Escaped { t, escape });
     }
     None
 }
 
 /// Adds the work counters of `more` to `total`.
 fn add_stats(total: &mut Stats, more: Stats) {
-    total.n_rates += more.n_rates;
+    total.n_rate_evaluations += more.n_rate_evaluations;
     total.n_accepted += more.n_accepted;
     total.n_rejected += more.n_rejected;
 }

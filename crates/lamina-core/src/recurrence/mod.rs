@@ -124,8 +124,11 @@ pub enum RecurrenceKind {
     Returns(usize),
     /// Not settled.
     NotSettled,
-    /// No repeat up to the largest k tried.
-    NoRepeat,
+    /// No repeat within the largest number of returns tried.
+    NoRepeat {
+        /// The most returns tried.
+        max_k: usize,
+    },
     /// Too few points to judge.
     TooFewPoints,
 }
@@ -133,10 +136,9 @@ pub enum RecurrenceKind {
 impl fmt::Display for RecurrenceKind {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
-            Self::Returns(1) => write!(f, "1 return"),
-            Self::Returns(k) => write!(f, "{k} returns"),
+            Self::Returns(k) => write!(f, "{k}-return orbit"),
             Self::NotSettled => write!(f, "not settled"),
-            Self::NoRepeat => write!(f, "no repeat"),
+            Self::NoRepeat { max_k } => write!(f, "no repeat within {max_k} returns"),
             Self::TooFewPoints => write!(f, "too few points"),
         }
     }
@@ -156,7 +158,7 @@ impl Recurrence {
         match self {
             Self::Repeats { k, .. } => RecurrenceKind::Returns(*k),
             Self::NotSettled { .. } => RecurrenceKind::NotSettled,
-            Self::NoRepeat { .. } => RecurrenceKind::NoRepeat,
+            Self::NoRepeat { max_k, .. } => RecurrenceKind::NoRepeat { max_k: *max_k },
             Self::TooFewPoints { .. } => RecurrenceKind::TooFewPoints,
         }
     }
@@ -199,8 +201,8 @@ impl fmt::Display for Recurrence {
                 tolerance,
             } => write!(
                 f,
-                "no repeat up to {max_k} returns (closest: every {closest_k}, spread {spread:.1e} \
-                 against a tolerance of {tolerance:.1e}): a torus or chaos"
+                "no repeat within {max_k} returns (closest: every {closest_k}, spread \
+                 {spread:.1e} against a tolerance of {tolerance:.1e}): a torus or chaos"
             ),
             Self::TooFewPoints { n_points } => write!(
                 f,

@@ -224,7 +224,7 @@ pub(crate) fn plane_value(normal: &[f64], offset: f64, x: &[f64]) -> f64 {
     normal.iter().zip(x).map(|(n, x)| n * x).sum::<f64>() - offset
 }
 
-/// Most interpolation terms a projected plane holds (DOP853 and `Auto` have 8, Dormand–Prince
+/// Most interpolation terms a projected plane holds (DOP853 and `Automatic` have 8, Dormand–Prince
 /// 5(4) 5, Rodas4 4).
 const MAX_TERMS: usize = 8;
 

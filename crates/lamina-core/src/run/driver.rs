@@ -67,10 +67,12 @@ pub enum StopReason {
         /// Time reached.
         t: f64,
     },
-    /// A state's magnitude exceeded the bound.
+    /// A state's magnitude passed the escape size.
     Escaped {
         /// Time at the end of the step where it happened.
         t: f64,
+        /// The escape size that was passed (`RunSpec::escape`).
+        escape: f64,
     },
     /// A value became NaN or infinite.
     NotFinite {
@@ -117,8 +119,12 @@ impl std::fmt::Display for StopReason {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match self {
             Self::Finished => write!(f, "finished"),
-            Self::Cancelled { t } => write!(f, "cancelled at t = {t}"),
-            Self::Escaped { t } => write!(f, "a state left the bound at t = {t}"),
+            Self::Cancelled { t } => write!(f, "stopped at t = {t}"),
+            Self::Escaped { t, escape } => write!(
+                f,
+                "a state passed the escape size {} at t = {t}",
+                Size(*escape)
+            ),
             Self::NotFinite { t } => write!(f, "a value became NaN or infinite at t = {t}"),
             Self::StepTooSmall { t } => write!(
                 f,
@@ -130,6 +136,22 @@ impl std::fmt::Display for StopReason {
                 f,
                 "the model chatters at t = {t}: its switches pile up with vanishing time between them (a sliding mode)"
             ),
+        }
+    }
+}
+
+/// A size as one would type it in a scenario: plainly from 0.001 to below 10 000 (`50`,
+/// `0.5`), in exponent form otherwise (`1e6`, `2.5e-7`).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Size(pub f64);
+
+impl std::fmt::Display for Size {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let magnitude = self.0.abs();
+        if magnitude == 0.0 || (1e-3..1e4).contains(&magnitude) || !magnitude.is_finite() {
+            write!(f, "{}", self.0)
+        } else {
+            write!(f, "{:e}", self.0)
         }
     }
 }
@@ -436,8 +458,9 @@ impl Run {
         if x.iter().any(|v| !v.is_finite()) {
             return Some(StopReason::NotFinite { t });
         }
-        if x.iter().any(|v| v.abs() > self.spec.bound) {
-            return Some(StopReason::Escaped { t });
+        let escape = self.spec.escape;
+        if x.iter().any(|v| v.abs() > escape) {
+            return Some(StopReason::Escaped { t, escape });
         }
         None
     }

@@ -10,7 +10,7 @@ mod stored;
 mod strobe;
 
 pub use cut::{Cut, CutPoint, Direction, Surface};
-pub use driver::{Collect, Run, RunOutcome, Sink, StopReason, run_once};
+pub use driver::{Collect, Run, RunOutcome, Sink, Size, StopReason, run_once};
 pub use spec::{CutSpec, RunSpec, SpecError, StrobeSpec, SurfaceSpec};
 pub use stored::StoredRun;
 pub use strobe::{Strobe, StrobeSample};

@@ -17,8 +17,8 @@ pub struct RunSpec {
     pub settle: f64,
     /// Length of the recorded window after the transient.
     pub span: f64,
-    /// A run stops when any state's magnitude exceeds this.
-    pub bound: f64,
+    /// The escape size: a run stops when any state's magnitude passes it.
+    pub escape: f64,
     /// A run stops after this many cut points or strobe samples (of either kind).
     pub max_points: usize,
     /// Memory budget for the stored steps, in bytes; storing stops beyond it.
@@ -33,7 +33,7 @@ impl Default for RunSpec {
             t_start: 0.0,
             settle: 0.0,
             span: 100.0,
-            bound: 1e6,
+            escape: 1e6,
             max_points: 200_000,
             store_bytes: 512 << 20,
         }
@@ -79,8 +79,8 @@ pub struct CutSpec {
 pub struct StrobeSpec {
     /// Period expression in parameters (for example `2*pi/w`).
     pub period: String,
-    /// Absolute time of sample 0; samples at `phase + k * period`.
-    pub phase: f64,
+    /// Absolute time of sample 0; samples at `first_at + k * period`.
+    pub first_at: f64,
 }
 
 /// A cut or strobe setting that does not fit the model.

@@ -1,4 +1,4 @@
-//! The strobe (time-T map): samples at `phase + k T` taken from the dense output.
+//! The strobe (time-T map): samples at `first_at + k T` taken from the dense output.
 
 use super::{SpecError, StrobeSpec};
 use crate::expr::Program;
@@ -10,7 +10,7 @@ pub struct Strobe {
     /// Sampling period, positive.
     pub period: f64,
     /// Absolute time of sample index 0.
-    pub phase: f64,
+    pub first_at: f64,
 }
 
 impl Strobe {
@@ -35,19 +35,19 @@ impl Strobe {
         }
         Ok(Self {
             period,
-            phase: spec.phase,
+            first_at: spec.first_at,
         })
     }
 
     /// Time of sample `index`, computed afresh (never accumulated) so it does not drift.
     #[inline]
     pub fn time_of(&self, index: i64) -> f64 {
-        self.phase + index as f64 * self.period
+        self.first_at + index as f64 * self.period
     }
 
     /// The first sample index whose time is at or after `t`.
     pub fn first_index_from(&self, t: f64) -> i64 {
-        let mut k = ((t - self.phase) / self.period).ceil() as i64;
+        let mut k = ((t - self.first_at) / self.period).ceil() as i64;
         while self.time_of(k - 1) >= t {
             k -= 1;
         }
@@ -61,7 +61,7 @@ impl Strobe {
 /// One strobe sample.
 #[derive(Clone, Debug, PartialEq)]
 pub struct StrobeSample {
-    /// Absolute sample index: `t = phase + index * period`.
+    /// Absolute sample index: `t = first_at + index * period`.
     pub index: i64,
     /// Sample time.
     pub t: f64,

@@ -20,8 +20,8 @@ pub struct SweepSpec {
     pub from: f64,
     /// Last value.
     pub to: f64,
-    /// Number of intervals: `steps + 1` values from `from` to `to`.
-    pub steps: u32,
+    /// Number of parameter values, both ends included (at least 2 for a sweep that moves).
+    pub values: u32,
     /// Transient per value, integrated but not kept.
     pub settle: f64,
     /// Points kept per value.
@@ -37,19 +37,12 @@ pub struct SweepSpec {
 impl SweepSpec {
     /// Number of parameter values.
     pub fn n_values(&self) -> usize {
-        self.steps as usize + 1
+        self.values as usize
     }
 
-    /// The parameter value of index `idx`: `from + idx (to - from) / steps`, computed afresh
-    /// so that every shard of a sweep gets bit-identical values.
+    /// The parameter value of index `idx`; see [`grid_value`].
     pub fn value(&self, idx: usize) -> f64 {
-        if self.steps == 0 {
-            return self.from;
-        }
-        if idx == self.steps as usize {
-            return self.to;
-        }
-        self.from + (self.to - self.from) * (idx as f64 / f64::from(self.steps))
+        grid_value(self.from, self.to, self.values, idx)
     }
 
     /// Indices of shard `shard` of `n_shards`: every `n_shards`-th value starting at `shard`.
@@ -58,6 +51,39 @@ impl SweepSpec {
             .filter(|i| n_shards > 0 && i % n_shards == shard)
             .collect()
     }
+}
+
+/// Value `idx` of `values` values from `from` to `to`, both ends included:
+/// `from + idx (to - from) / (values - 1)`, computed afresh (so every shard of a sweep or map
+/// gets bit-identical values) and rounded to 15 significant digits of the larger end, so that
+/// a range between decimal ends lands on the decimal values: 0.234 (which prints as `0.234`),
+/// not the 0.23399999999999999 the arithmetic leaves, and 0 in the middle of -1 to 1, not
+/// 1e-17. The ends are `from` and `to` exactly; one value is `from`.
+pub fn grid_value(from: f64, to: f64, values: u32, idx: usize) -> f64 {
+    let last = (values as usize).saturating_sub(1);
+    if idx == 0 || last == 0 {
+        return from;
+    }
+    if idx >= last {
+        return to;
+    }
+    let exact = from + (to - from) * (idx as f64 / last as f64);
+    round_to_digits_of(exact, from.abs().max(to.abs()))
+}
+
+/// `value` rounded to 15 significant digits of `scale` (the most that every decimal of that
+/// length keeps through a binary64 round trip [common practice: DBL_DIG = 15]), by way of
+/// its decimal text so that the rounding is correctly rounded.
+fn round_to_digits_of(value: f64, scale: f64) -> f64 {
+    if !value.is_finite() || !scale.is_finite() || scale == 0.0 {
+        return value;
+    }
+    let decimals = 14 - scale.log10().floor() as i32;
+    let text = match usize::try_from(decimals) {
+        Ok(decimals) if decimals <= 330 => format!("{value:.decimals$}"),
+        _ => format!("{value:.14e}"),
+    };
+    text.parse().unwrap_or(value)
 }
 
 /// The kept points of one parameter value.

@@ -4,13 +4,13 @@
 //! (values independent, run in parallel through rayon, whose pool the caller configures).
 //!
 //! Each value's kept points are labelled by the one recurrence detector
-//! ([`column_recurrence`]); [`stretches`], [`changes`] and [`describe`] say where the label
-//! changes along the sweep.
+//! ([`column_recurrence`]); [`changes`] and [`describe`] say where the label changes along the
+//! sweep.
 
 mod changes;
 mod column;
 mod driver;
 
-pub use changes::{Change, Stretch, changes, column_recurrence, describe, stretches};
-pub use column::{SweepColumn, SweepSource, SweepSpec};
+pub use changes::{Change, changes, column_recurrence, describe};
+pub use column::{SweepColumn, SweepSource, SweepSpec, grid_value};
 pub use driver::{SweepError, run_value, sweep_follow, sweep_restart};

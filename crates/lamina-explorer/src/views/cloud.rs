@@ -7,7 +7,7 @@ use egui::{Color32, ColorImage, Mesh, Pos2, Rect, TextureHandle, TextureOptions,
 use egui_plot::{Plot, PlotPoint, PlotPoints, Points};
 
 use super::palette::ramp;
-use crate::results::{CloudAxis, PointCloud};
+use crate::results::{AxisLabels, CloudAxis, PointCloud};
 
 /// Clouds up to this size are drawn point by point.
 pub const MESH_LIMIT: usize = 40_000;
@@ -56,13 +56,13 @@ pub struct Mark {
 }
 
 impl CloudView {
-    /// Draws `cloud` in coordinates `axes` with axis labels from `names`.
+    /// Draws `cloud` in coordinates `axes` with axis labels from `labels`.
     #[allow(clippy::too_many_arguments)]
     pub fn ui(
         &mut self,
         ui: &mut Ui,
         id: &str,
-        names: &[String],
+        labels: &AxisLabels,
         cloud: &PointCloud,
         axes: [CloudAxis; 2],
         colour_by: ColourBy,
@@ -72,8 +72,8 @@ impl CloudView {
         let (colour_key, key_range) = colour_keys(cloud, colour_by);
         let extent = extent(cloud, axes);
         let plot = Plot::new(id)
-            .x_axis_label(axes[0].label(names))
-            .y_axis_label(axes[1].label(names))
+            .x_axis_label(axes[0].label(labels))
+            .y_axis_label(axes[1].label(labels))
             .allow_double_click_reset(true)
             .show_crosshair(false);
         let response = plot.show(ui, |plot_ui| {

@@ -4,7 +4,7 @@
 use egui::Ui;
 use egui_plot::{Line, Plot, PlotPoints, Points};
 
-use crate::results::PointCloud;
+use crate::results::{AxisLabels, PointCloud};
 
 /// Most points drawn in a small view; longer series are thinned evenly for drawing.
 const MAX_SERIES_POINTS: usize = 8_000;
@@ -72,22 +72,22 @@ pub enum MapCoordinate {
 pub fn first_return_map_ui(
     ui: &mut Ui,
     cloud: &PointCloud,
-    names: &[String],
+    labels: &AxisLabels,
     coordinate: &mut MapCoordinate,
 ) {
     ui.horizontal(|ui| {
         ui.label("s =");
         let current = match *coordinate {
-            MapCoordinate::State(i) => names.get(i).cloned().unwrap_or_default(),
-            MapCoordinate::ReturnTime => "return time".into(),
+            MapCoordinate::State(i) => labels.state(i),
+            MapCoordinate::ReturnTime => labels.return_time(),
         };
         egui::ComboBox::from_id_salt("map_coordinate")
             .selected_text(current)
             .show_ui(ui, |ui| {
-                for (i, n) in names.iter().enumerate() {
+                for (i, n) in labels.states.iter().enumerate() {
                     ui.selectable_value(coordinate, MapCoordinate::State(i), n);
                 }
-                ui.selectable_value(coordinate, MapCoordinate::ReturnTime, "return time");
+                ui.selectable_value(coordinate, MapCoordinate::ReturnTime, labels.return_time());
             })
             .response
             .on_hover_text("Coordinate s of the first-return map s(n) to s(n+1)");

@@ -4,7 +4,7 @@
 
 use egui::{Color32, Pos2, Rect, Sense, Shape, Stroke, Ui, Vec2, pos2, vec2};
 
-use crate::results::{PointCloud, Trajectory};
+use crate::results::{AxisLabels, PointCloud, Trajectory};
 
 /// Camera and axis choice of the 3D view.
 #[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
@@ -30,7 +30,7 @@ impl Default for SpaceView {
     }
 }
 
-/// Value of a 3D-view axis: a state (index below `dim`), the time (`dim`), or the phase of
+/// Value of a 3D-view axis: a state (index below `dim`), the time (`dim`), or the time within
 /// the strobe period (`dim + 1`, the time modulo the period).
 pub fn axis_value(axis: usize, state: &[f64], t: f64, period: Option<f64>) -> f64 {
     let dim = state.len();
@@ -43,15 +43,15 @@ pub fn axis_value(axis: usize, state: &[f64], t: f64, period: Option<f64>) -> f6
     }
 }
 
-/// Name of a 3D-view axis.
-pub fn axis_name(axis: usize, names: &[String]) -> String {
-    let dim = names.len();
+/// Name of a 3D-view axis, with its unit.
+pub fn axis_name(axis: usize, labels: &AxisLabels) -> String {
+    let dim = labels.states.len();
     if axis < dim {
-        names[axis].clone()
+        labels.state(axis)
     } else if axis == dim {
-        "t".into()
+        labels.time()
     } else {
-        "drive phase".into()
+        labels.time_within_period()
     }
 }
 
@@ -188,8 +188,8 @@ impl Projection {
 /// What the 3D view draws.
 #[derive(Clone, Copy)]
 pub struct SpaceScene<'a> {
-    /// State names.
-    pub names: &'a [String],
+    /// Axis labels of the states and the time.
+    pub labels: &'a AxisLabels,
     /// The trajectory.
     pub trajectory: &'a Trajectory,
     /// Cut points, drawn as dots.
@@ -198,7 +198,7 @@ pub struct SpaceScene<'a> {
     pub plane: Option<&'a PlaneGeometry>,
     /// Colours.
     pub colours: &'a SpaceColours,
-    /// The strobe period, for the drive-phase axis.
+    /// The strobe period, for the axis of the time within the period.
     pub period: Option<f64>,
     /// A periodic orbit to draw over the trajectory: times and states.
     pub orbit: &'a [(f64, Vec<f64>)],
@@ -215,7 +215,7 @@ impl SpaceView {
     /// Draws the view into the available space.
     pub fn ui(&mut self, ui: &mut Ui, scene: &SpaceScene<'_>) -> SpaceResponse {
         let SpaceScene {
-            names,
+            labels,
             trajectory,
             cut_points,
             plane,
@@ -224,17 +224,17 @@ impl SpaceView {
             orbit,
         } = *scene;
         let mut out = SpaceResponse::default();
-        let dim = names.len();
+        let dim = labels.states.len();
         let n_axes = dim + if period.is_some() { 2 } else { 1 };
         ui.horizontal(|ui| {
             for (k, label) in ["across", "depth", "up"].into_iter().enumerate() {
-                let current = axis_name(self.axes[k], names);
+                let current = axis_name(self.axes[k], labels);
                 egui::ComboBox::from_id_salt(("space_axis", k))
                     .selected_text(current)
                     .width(56.0)
                     .show_ui(ui, |ui| {
                         for idx in 0..n_axes {
-                            ui.selectable_value(&mut self.axes[k], idx, axis_name(idx, names));
+                            ui.selectable_value(&mut self.axes[k], idx, axis_name(idx, labels));
                         }
                     })
                     .response
@@ -252,7 +252,7 @@ impl SpaceView {
                 };
             }
         });
-        // the drive-phase axis may wait for the run to know its period
+        // the axis of the time within the period may wait for the run to know its period
         for a in &mut self.axes {
             if *a >= dim + 2 {
                 *a = 0;
@@ -316,13 +316,13 @@ impl SpaceView {
             };
         }
         let projection = Projection::new(rect, self);
-        draw_box(&painter, &projection, names, self.axes);
-        let phase_axis = self.axes.iter().position(|&a| a == dim + 1);
+        draw_box(&painter, &projection, labels, self.axes);
+        let wrapping_axis = self.axes.iter().position(|&a| a == dim + 1);
         // trajectory, older parts fainter
         let n = trajectory.len();
         let stride = n.div_ceil(MAX_DRAWN_SAMPLES).max(1);
         let mut prev: Option<Pos2> = None;
-        let mut prev_phase = f64::NEG_INFINITY;
+        let mut prev_within = f64::NEG_INFINITY;
         let mut segments = Vec::with_capacity(n / stride + 1);
         for i in (0..n).step_by(stride) {
             let s = trajectory.state(i);
@@ -330,9 +330,9 @@ impl SpaceView {
             let v = self.axes.map(|a| axis_value(a, s, t, period));
             let u = data_box.unit(v);
             let (q, _) = projection.screen_from_unit(u);
-            // the drive phase wraps around: do not draw a line back across the box
-            let wrapped = phase_axis.is_some_and(|k| v[k] < prev_phase);
-            prev_phase = phase_axis.map_or(f64::NEG_INFINITY, |k| v[k]);
+            // the time within the period wraps around: do not draw a line back across the box
+            let wrapped = wrapping_axis.is_some_and(|k| v[k] < prev_within);
+            prev_within = wrapping_axis.map_or(f64::NEG_INFINITY, |k| v[k]);
             if wrapped {
                 prev = None;
             }
@@ -414,7 +414,12 @@ pub struct SpaceColours {
     pub cut_points: Color32,
 }
 
-fn draw_box(painter: &egui::Painter, projection: &Projection, names: &[String], axes: [usize; 3]) {
+fn draw_box(
+    painter: &egui::Painter,
+    projection: &Projection,
+    labels: &AxisLabels,
+    axes: [usize; 3],
+) {
     let stroke = Stroke::new(0.5, Color32::from_gray(90));
     let corners = |i: usize| {
         [
@@ -442,11 +447,10 @@ fn draw_box(painter: &egui::Painter, projection: &Projection, names: &[String], 
     .enumerate()
     {
         let p = projection.screen_from_unit(end).0;
-        let name = names.get(axes[k]).map_or("", String::as_str);
         painter.text(
             p,
             egui::Align2::CENTER_CENTER,
-            name,
+            axis_name(axes[k], labels),
             font.clone(),
             Color32::from_gray(170),
         );

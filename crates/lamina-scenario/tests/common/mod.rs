@@ -3,10 +3,13 @@
 
 use lamina_scenario::{Location, Problem, Scenario, ScenarioError, load_str};
 
-/// The example scenario of the product brief (invented values).
+/// The example scenario of the product brief, format 2 (invented values).
 pub const EXAMPLE: &str = include_str!("../fixtures/clocked_resonator.ron");
-/// A scenario with every optional block left out.
+/// A format-2 scenario with every optional block left out.
 pub const MINIMAL: &str = include_str!("../fixtures/minimal.ron");
+/// The example of the first release, format 1; its format-2 twin is
+/// `fixtures/format2/clocked_resonator.ron`.
+pub const EXAMPLE_FORMAT1: &str = include_str!("../fixtures/format1/clocked_resonator.ron");
 
 /// `text` with the single occurrence of `from` replaced by `to`.
 pub fn edit(text: &str, from: &str, to: &str) -> String {
@@ -62,7 +65,9 @@ pub fn problem_on<'a>(problems: &'a [Problem], field: &str) -> &'a Problem {
 /// 1-based column of the first `needle` on 1-based `line` of `text`.
 pub fn column_of(text: &str, line: usize, needle: &str) -> usize {
     let content = text.lines().nth(line - 1).expect("line exists");
-    let byte = content.find(needle).expect("needle on line");
+    let Some(byte) = content.find(needle) else {
+        panic!("'{needle}' is not on line {line}: {content}")
+    };
     content[..byte].chars().count() + 1
 }
 

@@ -13,7 +13,9 @@ use lamina_core::model::{Model, ModelSpec};
 use lamina_core::run::{Cut as CoreCut, CutSpec, SpecError, Strobe as CoreStrobe, SurfaceSpec};
 
 use crate::error::{Problem, Severity};
-use crate::scenario::{FORMAT, Scenario, Surface, SweepSource};
+use crate::scenario::{FORMAT, Scenario, Surface};
+
+mod grids;
 
 impl Scenario {
     /// Every problem of the scenario, errors and warnings, in file order of the checks.
@@ -83,7 +85,7 @@ impl<'a> Checker<'a> {
             let found = self.scenario.format;
             self.error(
                 "format",
-                format!("format {found} is not format {FORMAT}, the one this Lamina reads"),
+                format!("format {found} is not format {FORMAT}, the one this Lamina writes"),
             );
         }
         self.names();
@@ -93,6 +95,7 @@ impl<'a> Checker<'a> {
         self.cut();
         self.strobe();
         self.sweep();
+        self.map();
         self.limits();
         self.view();
         self.problems
@@ -408,62 +411,9 @@ impl<'a> Checker<'a> {
         {
             self.spec_error("strobe.period", "strobe.period", &err);
         }
-        self.finite("strobe.phase", strobe.phase);
+        self.finite("strobe.first_at", strobe.first_at);
         self.state_ref("strobe.axes.0", &strobe.axes.0);
         self.state_ref("strobe.axes.1", &strobe.axes.1);
-    }
-
-    fn sweep(&mut self) {
-        let scenario = self.scenario;
-        let Some(sweep) = &scenario.sweep else { return };
-        if !scenario
-            .parameters
-            .iter()
-            .any(|p| p.name == sweep.parameter)
-        {
-            let message = if scenario.parameters.is_empty() {
-                format!(
-                    "'{}' is not a parameter; the scenario has no parameters",
-                    sweep.parameter
-                )
-            } else {
-                format!(
-                    "'{}' is not a parameter (parameters: {})",
-                    sweep.parameter,
-                    name_list(scenario.parameters.iter().map(|p| p.name.as_str()))
-                )
-            };
-            self.error("sweep.parameter", message);
-        }
-        let from_ok = self.finite("sweep.from", sweep.from);
-        if self.finite("sweep.to", sweep.to) && from_ok && sweep.from == sweep.to {
-            self.error(
-                "sweep.to",
-                format!(
-                    "the sweep must end at another value than it starts ({})",
-                    sweep.from
-                ),
-            );
-        }
-        if sweep.steps < 1 {
-            self.error("sweep.steps", "must be at least 1".to_owned());
-        }
-        if sweep.keep < 1 {
-            self.error("sweep.keep", "must be at least 1".to_owned());
-        }
-        self.not_negative("sweep.settle", sweep.settle);
-        self.state_ref("sweep.coordinate", &sweep.coordinate);
-        match sweep.source {
-            SweepSource::Cut if scenario.cut.is_none() => self.error(
-                "sweep.source",
-                "the sweep keeps cut points, but the scenario has no cut".to_owned(),
-            ),
-            SweepSource::Strobe if scenario.strobe.is_none() => self.error(
-                "sweep.source",
-                "the sweep keeps strobe samples, but the scenario has no strobe".to_owned(),
-            ),
-            _ => {}
-        }
     }
 
     fn limits(&mut self) {
@@ -471,10 +421,10 @@ impl<'a> Checker<'a> {
         if limits.max_points < 1 {
             self.error("limits.max_points", "must be at least 1".to_owned());
         }
-        if limits.bound.is_nan() || limits.bound <= 0.0 {
+        if limits.escape.is_nan() || limits.escape <= 0.0 {
             self.error(
-                "limits.bound",
-                format!("must be a positive number, not {}", limits.bound),
+                "limits.escape",
+                format!("must be a positive number, not {}", limits.escape),
             );
         }
     }
@@ -511,7 +461,7 @@ impl<'a> Checker<'a> {
                 ("view.colours.trajectory", &colours.trajectory),
                 ("view.colours.surface", &colours.surface),
                 ("view.colours.cut_points", &colours.cut_points),
-                ("view.colours.strobe_points", &colours.strobe_points),
+                ("view.colours.strobe_samples", &colours.strobe_samples),
             ];
             for (field, colour) in fields {
                 if let Some(colour) = colour
