@@ -52,7 +52,7 @@ pub struct CycleArgs {
 
 /// The `--map` choices.
 #[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
-enum MapArg {
+pub enum MapArg {
     /// The cut map (Poincaré map).
     Cut,
     /// The strobe map (time-T map).
@@ -192,7 +192,7 @@ impl Sink for CloudSink {
 
 /// Runs the scenario, finds the repeat in its settled points and picks the closest returns
 /// as seeds. Returns the seeds, k, where they came from and the longest return time allowed.
-fn seeds_from_run(
+pub(super) fn seeds_from_run(
     prepared: Prepared,
     choice: MapArg,
     returns: Option<usize>,

@@ -35,9 +35,11 @@ struct Json<'a> {
 }
 
 /// A state as an object of state names, in the model's order.
-struct NamedState<'a> {
-    names: &'a [String],
-    values: &'a [f64],
+pub struct NamedState<'a> {
+    /// The state names.
+    pub names: &'a [String],
+    /// The values, in the same order.
+    pub values: &'a [f64],
 }
 
 impl Serialize for NamedState<'_> {
@@ -50,10 +52,13 @@ impl Serialize for NamedState<'_> {
     }
 }
 
+/// A complex number in JSON.
 #[derive(Serialize)]
-struct JsonComplex {
-    re: f64,
-    im: f64,
+pub struct JsonComplex {
+    /// Real part.
+    pub re: f64,
+    /// Imaginary part.
+    pub im: f64,
 }
 
 fn complex(values: &[Multiplier]) -> Vec<JsonComplex> {
@@ -61,6 +66,16 @@ fn complex(values: &[Multiplier]) -> Vec<JsonComplex> {
         .iter()
         .map(|m| JsonComplex { re: m.re, im: m.im })
         .collect()
+}
+
+/// Writes `value` as one line of JSON. The text is made first and written as bytes, so a
+/// reader that closed the pipe shows as the `io::Error` it is (serde_json's own writer hides
+/// it), and the command ends quietly.
+pub fn write_json_line(out: &mut impl Write, value: &impl Serialize) -> Result<()> {
+    let mut text = serde_json::to_string(value).context("writing JSON")?;
+    text.push('\n');
+    out.write_all(text.as_bytes())?;
+    Ok(())
 }
 
 /// Writes the report as one JSON line (serde_json writes the shortest text that reads back
@@ -87,8 +102,7 @@ pub fn write_json(
         margin: report.outlook.to_string(),
         recheck: recheck.map(JsonRecheck::of),
     };
-    serde_json::to_writer(&mut *out, &json).context("writing JSON")?;
-    writeln!(out).context("writing to stdout")?;
+    write_json_line(&mut *out, &json)?;
     Ok(())
 }
 

@@ -37,7 +37,7 @@ pub(crate) fn ramp(u: f64) -> RGBColor {
     RGBColor(228, 96, 70)
 }
 
-fn range_of(values: impl Iterator<Item = f64>) -> (f64, f64) {
+pub(crate) fn range_of(values: impl Iterator<Item = f64>) -> (f64, f64) {
     let (lo, hi) = values
         .filter(|v| v.is_finite())
         .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {

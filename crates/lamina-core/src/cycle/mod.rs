@@ -17,7 +17,7 @@ mod cut_map;
 mod differences;
 mod error;
 mod flow_map;
-mod linalg;
+pub(crate) mod linalg;
 mod newton;
 mod report;
 mod search;
