@@ -152,10 +152,15 @@ pub fn settled_orbit(
         SeedOrigin::Start => "the start state",
         SeedOrigin::CloseReturn { .. } => "the closest return of the run's settled points",
     };
-    let how = format!(
-        "the {k}-return orbit of the {map_words} (period {}) found by Newton's method from \
+    // the orbit as it is: fewer returns than asked when no seed gave k distinct ones
+    let mut how = format!(
+        "the {}-return orbit of the {map_words} (period {}) found by Newton's method from \
          {seed_words}",
+        report.k,
         Number(report.period)
     );
+    if let Some(note) = report.search_note() {
+        how.push_str(&format!(" ({note})"));
+    }
     Ok((orbit_map, OrbitStart::from_report(&report), how))
 }

@@ -4,11 +4,13 @@ use std::io::Write;
 
 use anyhow::{Context, Result};
 use lamina_core::cycle::{CycleReport, MapChoice, Multiplier, Number};
+use lamina_core::recheck::{Recheck, RecheckError};
 use lamina_scenario::{Scenario, State};
 use serde::Serialize;
 use serde::ser::{SerializeMap, Serializer};
 
 use super::cycle::SeedOrigin;
+use super::recheck::{JsonRecheck, recheck_lines};
 
 /// The JSON document of the product brief.
 #[derive(Serialize)]
@@ -21,6 +23,15 @@ struct Json<'a> {
     k: usize,
     #[serde(skip_serializing_if = "Option::is_none")]
     floquet: Option<Vec<JsonComplex>>,
+    /// Returns asked for (differs from `k` when only an orbit of fewer returns was found).
+    asked_k: usize,
+    /// How the search went, when it did not simply find what was asked.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    note: Option<String>,
+    /// The stability margin in words.
+    margin: String,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    recheck: Option<JsonRecheck>,
 }
 
 /// A state as an object of state names, in the model's order.
@@ -69,7 +80,12 @@ pub fn write_json_line(out: &mut impl Write, value: &impl Serialize) -> Result<(
 
 /// Writes the report as one JSON line (serde_json writes the shortest text that reads back
 /// to the same f64).
-pub fn write_json(out: &mut impl Write, report: &CycleReport, names: &[String]) -> Result<()> {
+pub fn write_json(
+    out: &mut impl Write,
+    report: &CycleReport,
+    names: &[String],
+    recheck: Option<&Result<Recheck, RecheckError>>,
+) -> Result<()> {
     let json = Json {
         period: report.period,
         point: NamedState {
@@ -81,6 +97,10 @@ pub fn write_json(out: &mut impl Write, report: &CycleReport, names: &[String]) 
         residual: report.residual,
         k: report.k,
         floquet: report.floquet.as_deref().map(complex),
+        asked_k: report.search.asked,
+        note: report.search_note(),
+        margin: report.outlook.to_string(),
+        recheck: recheck.map(JsonRecheck::of),
     };
     write_json_line(&mut *out, &json)?;
     Ok(())
@@ -92,6 +112,7 @@ pub fn write_human(
     report: &CycleReport,
     scenario: &Scenario,
     origin: &SeedOrigin,
+    recheck: Option<&Result<Recheck, RecheckError>>,
 ) -> Result<()> {
     let time_unit = unit_suffix(scenario.time.unit.as_deref());
     let states = &scenario.states;
@@ -108,6 +129,9 @@ pub fn write_human(
         "{}-return orbit of the {map}, period {}{time_unit}",
         report.k, report.period
     ));
+    if let Some(note) = report.search_note() {
+        line(format!("  note          {note}"));
+    }
     line(format!(
         "  point         {}  (t = {}{time_unit})",
         named(states, &report.point.state),
@@ -157,14 +181,7 @@ pub fn write_human(
         }
     ));
     line(format!("  verdict       {}", report.verdict));
-    if let Some(nearest) = &report.nearest {
-        line(format!(
-            "  nearest the unit circle: {} (|m| - 1 = {}); stability would change there {}",
-            nearest.multiplier,
-            Number(nearest.distance),
-            nearest.loss
-        ));
-    }
+    line(format!("  margin        {}", report.outlook));
     match origin {
         SeedOrigin::Start => line("  seed          the start state".to_string()),
         SeedOrigin::CloseReturn {
@@ -174,6 +191,11 @@ pub fn write_human(
         } => line(format!(
             "  seed          closest return of {n_points} settled points (distance {distance:.1e}); {recurrence}"
         )),
+    }
+    if let Some(recheck) = recheck {
+        for l in recheck_lines(recheck) {
+            line(format!("  {l}"));
+        }
     }
     out.write_all(text.as_bytes())
         .context("writing to stdout")?;

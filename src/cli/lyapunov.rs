@@ -7,6 +7,7 @@ use std::process::ExitCode;
 
 use anyhow::{Context, Result};
 use lamina_core::lyapunov::{ExponentSettings, ExponentSink, Spectrum, spectrum, workspace_bytes};
+use lamina_core::recheck::{self, Recheck, RecheckError};
 use lamina_core::run::StopReason;
 use lamina_export::{AtomicFile, TrajectoryCsv, format_number};
 
@@ -15,6 +16,7 @@ use super::memory;
 use super::outputs::{self, check_paths};
 use super::prepare::prepare;
 use super::progress::Progress;
+use super::recheck::{JsonRecheck, recheck_lines};
 use super::signals::interrupt_on_signal;
 
 /// Arguments of `lyapunov`.
@@ -31,6 +33,11 @@ pub struct LyapunovArgs {
     /// Compute only the N largest exponents (1 is the cheapest); default: all.
     #[arg(long, value_name = "N")]
     exponents: Option<usize>,
+    /// Compute the exponents again with both integrator tolerances divided by 100 and report
+    /// the significant digits on which the two agree (each exponent judged with the spread
+    /// of its running estimate), with the exponent that agrees least.
+    #[arg(long)]
+    recheck: bool,
 }
 
 impl LyapunovArgs {
@@ -87,7 +94,7 @@ pub fn lyapunov(args: &LyapunovArgs) -> Result<ExitCode> {
         fraction: 0.0,
     };
     let result = spectrum(
-        prepared.model,
+        prepared.model.clone(),
         &prepared.spec,
         &settings,
         &mut bar,
@@ -104,15 +111,47 @@ pub fn lyapunov(args: &LyapunovArgs) -> Result<ExitCode> {
         ))
         .into());
     }
+    let recheck = args.recheck.then(|| {
+        let mut bar = Bar {
+            bar: Progress::new("recheck"),
+            t: prepared.spec.t_start,
+            fraction: 0.0,
+        };
+        let recheck = recheck::exponents(
+            prepared.model,
+            &prepared.spec,
+            &settings,
+            &result,
+            &mut bar,
+            &interrupt,
+        );
+        bar.bar.finish();
+        recheck
+    });
+    if interrupt.is_raised() {
+        let written: Vec<&Path> = args.trace.iter().map(PathBuf::as_path).collect();
+        return Err(Interrupted(format!(
+            "stopped on a signal during the recheck: no exponents printed; {}",
+            outputs::nothing_written(&written)
+        ))
+        .into());
+    }
     let finished = result.reason == StopReason::Finished;
     let trace_note = match trace_file {
         Some(file) => Some(write_trace(file, &result, finished)?),
         None => None,
     };
     let text = if args.json {
-        json(&result)?
+        json(&result, recheck.as_ref())?
     } else {
-        plain(&result, settings.tail_fraction)
+        let mut text = plain(&result, settings.tail_fraction);
+        if let Some(recheck) = &recheck {
+            for line in recheck_lines(recheck) {
+                text.push('\n');
+                text.push_str(&line);
+            }
+        }
+        text
     };
     let mut stdout = std::io::stdout().lock();
     writeln!(stdout, "{text}")
@@ -120,6 +159,10 @@ pub fn lyapunov(args: &LyapunovArgs) -> Result<ExitCode> {
         .context("writing to stdout")?;
     if let Some(note) = trace_note {
         eprintln!("{note}");
+    }
+    if let Some(Err(err)) = &recheck {
+        eprintln!("the recheck failed, so the exponents above are not confirmed: {err}");
+        return Ok(ExitCode::FAILURE);
     }
     if finished {
         Ok(ExitCode::SUCCESS)
@@ -154,8 +197,8 @@ fn write_trace(file: AtomicFile, result: &Spectrum, finished: bool) -> Result<St
 /// The JSON of the product brief (`exponents`, `time`) with the rest of the result. Numbers
 /// are written in shortest round-trip form; a number that is not finite (an exponent when
 /// nothing was averaged, a spread with too few samples) is written as `null`.
-fn json(result: &Spectrum) -> Result<String> {
-    let value = serde_json::json!({
+fn json(result: &Spectrum, recheck: Option<&Result<Recheck, RecheckError>>) -> Result<String> {
+    let mut value = serde_json::json!({
         "exponents": result.exponents,
         "time": result.time,
         "spread": result.spread,
@@ -171,7 +214,6 @@ fn json(result: &Spectrum) -> Result<String> {
         "reorthonormalisations": result.n_reorthonormalisations,
         "rate_evaluations": result.stats.n_rate_evaluations,
     });
-    let mut value = value;
     if result.reason != StopReason::Finished
         && let Some(object) = value.as_object_mut()
     {
@@ -180,6 +222,10 @@ fn json(result: &Spectrum) -> Result<String> {
             "error".into(),
             serde_json::Value::String(format!("the run ended early: {}", result.reason)),
         );
+    }
+    if let Some(recheck) = recheck {
+        value["recheck"] =
+            serde_json::to_value(JsonRecheck::of(recheck)).context("writing JSON")?;
     }
     let text = serde_json::to_string(&value).context("writing JSON")?;
     Ok(text)

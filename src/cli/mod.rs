@@ -15,6 +15,7 @@ mod outputs;
 mod points;
 mod prepare;
 mod progress;
+mod recheck;
 mod render;
 mod rest;
 mod signals;

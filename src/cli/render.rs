@@ -6,6 +6,7 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 
 use anyhow::{Context, Result, bail};
+use lamina_core::recurrence::RecurrenceKind;
 use lamina_core::run::{CutPoint, Run, Sink, StopReason, StrobeSample};
 use lamina_core::sweep::{SweepColumn, SweepSpec};
 use lamina_export::AtomicFile;
@@ -93,13 +94,14 @@ impl Sink for Everything {
     }
 }
 
-/// The orbit diagram of a finished sweep as PNG bytes.
+/// The orbit diagram of a finished sweep as PNG bytes, each value coloured by its label.
 pub fn orbit_diagram_png(
     size: (u32, u32),
     scenario: &Scenario,
     spec: &SweepSpec,
     coordinate: usize,
     columns: &[SweepColumn],
+    kinds: &[RecurrenceKind],
 ) -> Result<Vec<u8>> {
     let data: Vec<(f64, Vec<f64>)> = columns
         .iter()
@@ -112,7 +114,11 @@ pub fn orbit_diagram_png(
         x_label: scenario.parameter_label(spec.parameter),
         y_label: scenario.state_label(coordinate),
     };
-    Ok(lamina_render::orbit_diagram_png(&figure, &data, None)?)
+    Ok(lamina_render::orbit_diagram_png(
+        &figure,
+        &data,
+        Some(kinds),
+    )?)
 }
 
 /// `lamina render`.
@@ -139,12 +145,14 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
             let parameter = &run.scenario.parameters[run.spec.parameter].name;
             return Err(super::sweep::stopped_sweep(&run, parameter, &[&args.png]).into());
         }
+        let kinds = super::sweep::labels(&run.scenario, &run.columns);
         let bytes = orbit_diagram_png(
             args.size,
             &run.scenario,
             &run.spec,
             run.coordinate,
             &run.columns,
+            &kinds,
         )?;
         let succeeded = run.columns.iter().all(|c| !c.reason.is_trouble());
         return finish(png, bytes, &size_text(args), succeeded);

@@ -9,11 +9,10 @@ use std::time::Instant;
 use cpu_time::ProcessTime;
 use lamina_core::Interrupt;
 use lamina_core::branch::{BranchRange, BranchSettings, OrbitMap, OrbitStart, follow_orbit_branch};
-use lamina_core::cycle::{
-    FlowMap, MapKind, MapPoint, MapSettings, NewtonSettings, close_returns, find_cycle,
-};
+use lamina_core::cycle::{FlowMap, MapKind, MapPoint, MapSettings, NewtonSettings, find_cycle};
 use lamina_core::integrate::{Method, StepControl};
 use lamina_core::model::{Model, ModelSpec, ParameterSpec, StateSpec};
+use lamina_core::recurrence::close_returns;
 use lamina_core::run::{Collect, Cut, Direction, Run, RunSpec};
 
 fn model() -> Model {

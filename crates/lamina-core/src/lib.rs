@@ -18,6 +18,8 @@ pub mod integrate;
 pub mod lyapunov;
 pub mod memory;
 pub mod model;
+pub mod recheck;
+pub mod recurrence;
 pub mod rest;
 pub mod run;
 pub mod sweep;

@@ -5,8 +5,10 @@
 
 mod branch;
 mod figure;
+mod orbit;
 mod plots;
 
 pub use branch::{BranchLine, BranchMark, branch_png};
 pub use figure::{Figure, RenderError, picture_title, view_names};
-pub use plots::{orbit_diagram_png, scatter_png, split_where_it_wraps, trajectory_png};
+pub use orbit::{orbit_diagram_png, recurrence_colour};
+pub use plots::{scatter_png, split_where_it_wraps, trajectory_png};
