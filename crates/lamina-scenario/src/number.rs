@@ -1,5 +1,6 @@
 //! Numbers in messages: the shortest digits that read back as the same number, in scientific
-//! notation when very large or small (`1e308`, `1e-300`, not hundreds of digits).
+//! notation when very large or small (`1e308`, `1e-300`, not hundreds of digits); estimates
+//! to three digits.
 
 use std::fmt;
 
@@ -20,9 +21,30 @@ impl fmt::Display for Short {
     }
 }
 
+/// An estimate or a derived quantity as messages show it: three significant digits, then
+/// as [`Short`] (`2.22`, `0.000122`, `1e12`).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(crate) struct About(pub f64);
+
+impl fmt::Display for About {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let rounded = format!("{:.2e}", self.0).parse().unwrap_or(self.0);
+        write!(f, "{}", Short(rounded))
+    }
+}
+
 #[cfg(test)]
 mod tests {
-    use super::Short;
+    use super::{About, Short};
+
+    #[test]
+    fn estimates_show_three_digits() {
+        assert_eq!(About(2.2204460492571965).to_string(), "2.22");
+        assert_eq!(About(0.0001220703125).to_string(), "0.000122");
+        assert_eq!(About(1.0000000031e12).to_string(), "1e12");
+        assert_eq!(About(16384.0).to_string(), "16400");
+        assert_eq!(About(f64::INFINITY).to_string(), "inf");
+    }
 
     #[test]
     fn numbers_are_short_and_read_back_exactly() {
