@@ -91,21 +91,32 @@ fn a_step_limit_the_time_cannot_carry_is_refused() {
 #[test]
 fn times_far_from_zero_are_named() {
     // [analytic] doubles between 2^49 and 2^50 (1e15 is about 2^49.8) are 2^-3 = 0.125 apart,
-    // and 10 * 2^-52 * 1e15 = 2.22: steps of the damped spring's time scale (about 1) no
-    // longer change t there
-    let problems = problems_after(MINIMAL, "time: (start: 0.0", "time: (start: 1e15");
+    // and 10 * 2^-52 * 1e15 = 2.22: the damped spring (time scale 1) needs far smaller steps,
+    // so its run stops at once there (a trial run shows it), while from t = 0 it steps on
+    let text = edit(MINIMAL, "time: (start: 0.0", "time: (start: 1e15");
+    let problems = load(&text).check();
     let problem = problem_on(&problems, "time.start");
-    assert_eq!(problem.severity, Severity::Warning, "{problem}");
+    assert_eq!(problem.severity, Severity::Error, "{problem}");
     for part in [
-        "at t = 1e15 no step below 2.22 changes the time",
+        "the run stops at its start: its step size collapses at t = 1e15",
+        "no step below 2.22 changes the time there",
         "0.125 apart",
-        "step size collapsed",
+        "while the same run started at t = 0 steps on",
         "start the time nearer 0",
     ] {
         assert!(problem.message.contains(part), "'{problem}' lacks '{part}'");
     }
-    let text = edit(MINIMAL, "time: (start: 0.0", "time: (start: 1e15");
     assert_eq!(problem.location, at(&text, 13, "1e15"));
+    // a span that long: the run starts well and may stop near its end, a warning on the span
+    let problems = problems_after(MINIMAL, "span: 50.0", "span: 1e15");
+    let problem = problem_on(&problems, "time.span");
+    assert_eq!(problem.severity, Severity::Warning, "{problem}");
+    assert!(
+        problem
+            .message
+            .starts_with("near the end of the window, at t = 1e15, no step below 2.22"),
+        "{problem}"
+    );
 
     // [analytic] at 1e17 doubles are 16 apart: a span of 50 comes out as 48, at 1e20 (16384
     // apart) as 0

@@ -21,6 +21,7 @@ mod grids;
 mod integration;
 mod start;
 mod time_window;
+mod trial;
 
 impl Scenario {
     /// Every problem of the scenario, errors and warnings, in file order of the checks.

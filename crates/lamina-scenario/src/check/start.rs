@@ -1,7 +1,7 @@
 //! Checks at the start state, where every run begins: rates that are not a number there
 //! (the run could not take a step), a level surface that never changes or is not a number
-//! (the run would find no crossing and give no reason), and an estimate of the model's time
-//! scale for the time-resolution warning.
+//! (the run would find no crossing and give no reason), and estimates of the model's time
+//! scale and of how fast its rates change with `t`, for the time-resolution warning.
 
 use lamina_core::integrate::Rates;
 use lamina_core::run::{Cut as CoreCut, Surface as CoreSurface};
@@ -24,6 +24,11 @@ const PROBES: [(f64, f64); 7] = [
 ];
 /// The time-scale estimate moves the state by this fraction of its size (or of 1).
 const PROBE_MOVE: f64 = 1e-7;
+/// Times at which the rates' change with `t` is sampled (spread so that a periodic forcing
+/// of any frequency is caught away from its turning points at some of them).
+const PROBE_TIMES: [f64; 8] = [0.0, 0.3, 0.7, 1.1, 1.9, 3.1, 5.3, 8.9];
+/// Half the time difference of the central differences in `t`.
+const PROBE_DT: f64 = 1e-6;
 
 /// `t = 0, x = 1, v = 0` (the first few states).
 fn describe_start(scenario: &Scenario, t: f64, start: &[f64]) -> String {
@@ -143,6 +148,31 @@ impl Checker<'_> {
             (Some(a), Some(b)) => Some(a.min(b)),
             (a, b) => a.or(b),
         }
+    }
+
+    /// For a model whose rates use `t`: for each state, how fast its rate changes with `t`
+    /// at the start state (the largest of central differences at a few times near 0).
+    /// `None` for a model that does not use `t`.
+    pub(super) fn rates_change_with_time(&mut self) -> Option<Vec<f64>> {
+        if !self.rates_compiled {
+            return None;
+        }
+        let (_, start) = self.start_point()?;
+        let model = self.model.as_mut().filter(|m| m.uses_time())?;
+        let n = start.len();
+        let (mut before, mut after) = (vec![0.0; n], vec![0.0; n]);
+        let mut largest = vec![0.0_f64; n];
+        for t in PROBE_TIMES {
+            model.rates(t - PROBE_DT, &start, &mut before);
+            model.rates(t + PROBE_DT, &start, &mut after);
+            for ((slope, a), b) in largest.iter_mut().zip(&after).zip(&before) {
+                let change = ((a - b) / (2.0 * PROBE_DT)).abs();
+                if change.is_finite() {
+                    *slope = slope.max(change);
+                }
+            }
+        }
+        Some(largest)
     }
 
     fn flow_time_scale(&mut self) -> Option<f64> {

@@ -4,8 +4,12 @@
 //! Far from `t = 0` floating-point times are coarse (about 16 significant digits): at
 //! `t = 1e15` they are 0.125 apart and no step below 2.2 changes the time, at `t = 1e20` they
 //! are 16384 apart. A window whose settle time or span is lost in rounding, or strobe times
-//! that cannot be formed, is an error; a time so far out that the steps the model needs no
-//! longer change it is a warning (the run may stop with its step size collapsed).
+//! that cannot be formed, is an error. Where the time comes near being too coarse for the
+//! steps the model needs (estimated from its time scale, and for a model whose rates use `t`
+//! from the error that rounding the time puts into a step), trial runs decide: a run that
+//! collapses at its start but steps on from `t = 0` is an error, one that collapses at the
+//! far end of its window or an estimate past the limit a warning (the run may stop with its
+//! step size collapsed).
 //!
 //! The error rule is the run's own ([`window_problem`] mirrors the core's check of a run's
 //! time resolution, thresholds and all): `check` refuses what a run would stop on.
@@ -13,6 +17,7 @@
 use lamina_core::run::Strobe as CoreStrobe;
 
 use super::Checker;
+use super::trial::{MAX_TRIAL_STATES, Trial};
 use crate::number::{About, Short};
 
 /// A part of the window may come out this much shorter or longer in rounding.
@@ -23,6 +28,9 @@ const STROBE_TIME_FRACTION: f64 = 1e-3;
 const MAX_STROBE_INDEX: f64 = 4_503_599_627_370_496.0; // 2^52
 /// The steps a model needs: this many per time scale.
 const STEPS_PER_TIME_SCALE: f64 = 100.0;
+/// Trial runs are made when the smallest step that changes the time comes within this factor
+/// of the estimated steps the model needs.
+const TRIAL_MARGIN: f64 = 1e4;
 
 /// The smallest step that changes the time `t` in a run: ten units in the last place of `t`,
 /// and never below 1e-300 (the integrators' own floor).
@@ -260,39 +268,142 @@ impl Checker<'_> {
         }
     }
 
-    /// Warns when the steps the model needs no longer change the time where the runs go.
+    /// The time too coarse where the runs go, for the model's steps: when an estimate of the
+    /// steps it needs comes near the smallest step that changes the time there, trial runs
+    /// tell. A run that collapses at its start but steps on from `t = 0` is an error (the real
+    /// run takes the same first steps); one that collapses at the far end of its window, or an
+    /// estimate beyond the smallest step, is a warning.
     fn time_precision(&mut self, t_start: f64) {
         let Some((t_far, _)) = self.time_extent() else {
             return;
         };
-        let Some(scale) = self.time_scale() else {
+        let smallest = smallest_step_at(t_far);
+        let spacing = time_spacing(t_far);
+        let Some((needed, reason)) = self.needed_step(spacing) else {
             return;
         };
-        let needed = scale / STEPS_PER_TIME_SCALE;
-        let smallest = smallest_step_at(t_far);
-        if !(needed > 0.0 && smallest > needed) {
+        if smallest * TRIAL_MARGIN <= needed {
             return;
         }
+        let (field, cure) = self.blamed_for_time(t_start);
+        if self.scenario.states.len() <= MAX_TRIAL_STATES
+            && let Some(Trial::Stepped { mean_step }) = self.trial(0.0)
+        {
+            if let Some(Trial::Collapsed { t }) = self.trial(t_start) {
+                let message = format!(
+                    "the run stops at its start: its step size collapses at t = {} (no step \
+                     below {} changes the time there; floating-point times are {} apart), \
+                     while the same run started at t = 0 steps on with steps of about {}; start \
+                     the time nearer 0",
+                    Short(t),
+                    About(smallest_step_at(t)),
+                    Short(time_spacing(t)),
+                    About(mean_step)
+                );
+                self.error("time.start", message);
+                return;
+            }
+            let far = self.far_time();
+            if far.abs() > 2.0 * t_start.abs()
+                && let Some(Trial::Collapsed { .. }) = self.trial(far)
+            {
+                let message = format!(
+                    "near the end of the window, at t = {}, no step below {} changes the time \
+                     (floating-point times there are {} apart), but the model takes steps of \
+                     about {} (started at t = 0): the run may stop there with its step size \
+                     collapsed; {cure}",
+                    About(t_far),
+                    About(smallest),
+                    Short(spacing),
+                    About(mean_step)
+                );
+                self.warning(field, message);
+                return;
+            }
+        }
+        if smallest > needed {
+            let message = format!(
+                "at t = {} no step below {} changes the time (floating-point times there are {} \
+                 apart), but {reason}: the run may stop with its step size collapsed; {cure}",
+                About(t_far),
+                About(smallest),
+                Short(spacing),
+            );
+            self.warning(field, message);
+        }
+    }
+
+    /// The field to blame for times too far from 0, and the cure: the start, the settle
+    /// time or the span, whichever puts the window's end furthest out.
+    fn blamed_for_time(&self, t_start: f64) -> (&'static str, &'static str) {
         let time = &self.scenario.time;
         let settle = self.windows().iter().map(|w| w.settle).fold(0.0, f64::max);
-        let (field, cure) = if t_start.abs() >= settle.max(time.span) {
+        if t_start.abs() >= settle.max(time.span) {
             ("time.start", "start the time nearer 0")
         } else if settle >= time.span {
             ("time.settle", "a shorter settle time keeps the times finer")
         } else {
             ("time.span", "a shorter span keeps the times finer")
-        };
-        let message = format!(
-            "at t = {} no step below {} changes the time (floating-point times there are {} \
-             apart), but the model's time scale is about {}, so it needs steps near {}: the run \
-             may stop with its step size collapsed, and what depends on t is evaluated at \
-             rounded times; {cure}",
-            About(t_far),
-            About(smallest),
-            Short(time_spacing(t_far)),
-            About(scale),
-            About(needed)
-        );
-        self.warning(field, message);
+        }
+    }
+
+    /// The end of a window furthest from 0, with its sign.
+    fn far_time(&self) -> f64 {
+        let t_start = self.scenario.time.start;
+        self.windows()
+            .iter()
+            .map(|w| t_start + w.settle + w.span)
+            .fold(t_start, |far, t| if t.abs() > far.abs() { t } else { far })
+    }
+
+    /// An estimate of the steps the model needs, and why: a hundredth of its time scale, or
+    /// (for a model whose rates use `t`) the longest step whose error from rounding the time
+    /// to `spacing` the tolerances allow, whichever is smaller.
+    fn needed_step(&mut self, spacing: f64) -> Option<(f64, String)> {
+        let from_scale = self.time_scale().map(|scale| {
+            let needed = scale / STEPS_PER_TIME_SCALE;
+            let reason = format!(
+                "the model's time scale is about {}, so it needs steps near {}",
+                About(scale),
+                About(needed)
+            );
+            (needed, reason)
+        });
+        let from_rounding = self
+            .step_limited_by_rounding(spacing)
+            .map(|(state, slope, needed)| {
+                let reason = format!(
+                    "the rate of {state} changes with t by up to {} per unit time, so rounding \
+                     the time there puts more error than atol and rtol allow into any step \
+                     longer than {}",
+                    About(slope),
+                    About(needed)
+                );
+                (needed, reason)
+            });
+        match (from_scale, from_rounding) {
+            (Some(a), Some(b)) => Some(if b.0 < a.0 { b } else { a }),
+            (a, b) => a.or(b),
+        }
+    }
+
+    /// For a model whose rates use `t`: the longest step whose error from rounding the time
+    /// (`spacing` times how fast a rate changes with `t`, per unit step) the tolerances still
+    /// allow, with the state that limits it and its rate's change with `t`.
+    fn step_limited_by_rounding(&mut self, spacing: f64) -> Option<(String, f64, f64)> {
+        let slopes = self.rates_change_with_time()?;
+        let integrator = &self.scenario.integrator;
+        let (atol, rtol) = (integrator.atol, integrator.rtol);
+        let scenario = self.scenario;
+        scenario
+            .states
+            .iter()
+            .zip(slopes)
+            .filter(|(_, slope)| *slope > 0.0)
+            .map(|(state, slope)| {
+                let tolerance = atol + rtol * state.start.abs();
+                (state.name.clone(), slope, tolerance / (slope * spacing))
+            })
+            .min_by(|a, b| a.2.total_cmp(&b.2))
     }
 }
