@@ -35,10 +35,15 @@ enum Command {
     Strobe(cli::PointsArgs),
     /// Sweep one parameter (the scenario's sweep block) into an orbit diagram: CSV and PNG.
     Sweep(cli::SweepArgs),
-    /// Draw a view (trajectory, cut, strobe, sweep) into a PNG without a window.
+    /// Draw a view (trajectory, cut, strobe, sweep, branch) into a PNG without a window.
     Render(cli::RenderArgs),
     /// Find a periodic orbit of the cut or strobe map: period, point, multipliers, verdict.
     Cycle(cli::CycleArgs),
+    /// Find every resting point: eigenvalues, stability and kind.
+    Rest(cli::RestArgs),
+    /// Follow a resting point or periodic orbit through the sweep's parameter range and locate
+    /// where the behaviour changes (fold, Hopf, period doubling, torus birth, branch point).
+    Branch(cli::BranchArgs),
     /// Compute Lyapunov exponents (the spectrum, its spread, Kaplan–Yorke dimension, verdict).
     Lyapunov(cli::LyapunovArgs),
 }
@@ -54,6 +59,8 @@ fn main() -> ExitCode {
         Some(Command::Sweep(args)) => cli::sweep(&args),
         Some(Command::Render(args)) => cli::render(&args),
         Some(Command::Cycle(args)) => cli::cycle(&args),
+        Some(Command::Rest(args)) => cli::rest(&args),
+        Some(Command::Branch(args)) => cli::branch(&args),
         Some(Command::Lyapunov(args)) => cli::lyapunov(&args),
     };
     match result {

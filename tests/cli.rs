@@ -223,7 +223,11 @@ fn help_lists_the_commands_and_options() {
             .args([command, "--help"])
             .assert()
             .success()
-            .stdout(predicate::str::contains("--count").and(predicate::str::contains("--out")));
+            .stdout(
+                predicate::str::contains("--count")
+                    .and(predicate::str::contains("--out"))
+                    .and(predicate::str::contains("--recheck")),
+            );
     }
 }
 
@@ -875,4 +879,81 @@ fn linear_decay_strobe_matches_the_exact_map_factor() {
         // REFERENCES.md case 1 [A]: map factor exp(-1.4).
         assert_rel(pair[1][0] / pair[0][0], 0.2465969639416065, 1e-10, "ratio");
     }
+}
+
+#[test]
+fn recheck_of_cut_points_and_strobe_samples_goes_to_stderr() {
+    let dir = TempDir::new().unwrap();
+    let text = with(
+        &limit_cycle(0.5),
+        "rtol: 1e-12, atol: 1e-12",
+        "rtol: 1e-9, atol: 1e-9",
+    );
+    let path = write(dir.path(), "cycle.ron", &text);
+    let plain = lamina()
+        .arg("cut")
+        .arg(&path)
+        .args(["--count", "8"])
+        .assert()
+        .success()
+        .get_output()
+        .clone();
+    let rechecked = lamina()
+        .arg("cut")
+        .arg(&path)
+        .args(["--count", "8", "--recheck"])
+        .assert()
+        .success()
+        .get_output()
+        .clone();
+    // the CSV is the same; the recheck is a line on stderr
+    assert_eq!(stdout_of(&plain), stdout_of(&rechecked));
+    let err = stderr_of(&rechecked);
+    assert!(
+        err.contains("recheck: ") && err.contains("significant digit(s) agree"),
+        "{err}"
+    );
+    // [analytic] both tolerances divided by 100
+    assert!(err.contains("rtol 1.0e-11, atol 1.0e-11"), "{err}");
+    assert!(
+        err.contains("all 7 points after the common start compared"),
+        "{err}"
+    );
+    let digits: u32 = err
+        .split("recheck: ")
+        .nth(1)
+        .and_then(|rest| rest.split(' ').next())
+        .and_then(|d| d.parse().ok())
+        .unwrap_or_else(|| panic!("no digits in {err}"));
+    // [analytic] REFERENCES case 3: the points converge onto r = 1 with return time pi; at
+    // rtol 1e-9 a handful of digits agree, never all of them
+    assert!((5..15).contains(&digits), "{err}");
+
+    // a strobe: REFERENCES case 1, linear decay sampled every 2
+    let decay = r#"(
+    format: 2,
+    title: "Linear decay",
+    states: [
+        (name: "x", start: 1.0, rate: "-k*x"),
+    ],
+    parameters: [
+        (name: "k", value: 0.7, range: (0.0, 1.0)),
+    ],
+    integrator: (method: Automatic, rtol: 1e-8, atol: 1e-14),
+    time: (start: 0.0, settle: 0.0, span: 20.0),
+    strobe: Some((period: "2", first_at: 0.0, axes: ("x", "x"))),
+)
+"#;
+    let path = write(dir.path(), "decay.ron", decay);
+    lamina()
+        .arg("strobe")
+        .arg(&path)
+        .arg("--recheck")
+        .assert()
+        .success()
+        .stderr(
+            predicate::str::contains("recheck: ").and(predicate::str::contains(
+                "all 10 points after the common start",
+            )),
+        );
 }

@@ -81,7 +81,8 @@ fn help_lists_the_options() {
             predicate::str::contains("--map")
                 .and(predicate::str::contains("--returns"))
                 .and(predicate::str::contains("--from-start"))
-                .and(predicate::str::contains("--json")),
+                .and(predicate::str::contains("--json"))
+                .and(predicate::str::contains("--recheck")),
         );
 }
 
@@ -227,7 +228,8 @@ fn rossler_saddle_orbit_through_the_command_line() {
             .iter()
             .any(|&(re, im)| (re - 1.0).abs() < 1e-8 && im == 0.0)
     );
-    // the readable report says how unstable and where stability would change
+    // the readable report says how unstable; how stability would be lost is no question for
+    // an unstable orbit (its second multiplier, near zero, says nothing about it)
     lamina()
         .arg("cycle")
         .arg(&path)
@@ -237,8 +239,116 @@ fn rossler_saddle_orbit_through_the_command_line() {
         .stdout(
             predicate::str::starts_with("1-return orbit of the cut map, period 5.881088455")
                 .and(predicate::str::contains("unstable, 1 unstable direction"))
-                .and(predicate::str::contains("period doubling"))
-                .and(predicate::str::contains("trivial")),
+                .and(predicate::str::contains("unstable: |m| = 2.40395"))
+                .and(predicate::str::contains("trivial"))
+                .and(predicate::str::contains("period doubling").not())
+                .and(predicate::str::contains("through -1").not()),
+        );
+}
+
+#[test]
+fn rossler_two_returns_are_never_the_one_return_orbit_run_twice() {
+    let dir = TempDir::new().unwrap();
+    let path = write(dir.path(), "rossler.ron", ROSSLER);
+    let doc = cycle_json(&path, &["--returns", "2"]);
+    let multipliers = check_document(&doc, &["x", "y", "z"], 2);
+    let period = number(&doc["period"], "period");
+    assert_eq!(doc["asked_k"], 2);
+    match doc["k"].as_u64() {
+        Some(2) => {
+            // REFERENCES case 18 [A]: not the period-1 orbit twice (period 2 x 5.88108845586,
+            // multiplier (-2.403953527)^2)
+            assert!((period - 2.0 * 5.88108845586).abs() > 1e-3, "{period}");
+            assert!((multipliers[0].0 - 5.7790).abs() > 1e-2, "{multipliers:?}");
+            // P. Cvitanović et al., ChaosBook.org, "Rössler's model": the 2-cycle has
+            // period 11.758626 and the Floquet multiplier -3.512 [from memory]
+            assert!((period - 11.758626).abs() < 1e-5, "{period}");
+            assert!((multipliers[0].0 - -3.512).abs() < 1e-3, "{multipliers:?}");
+        }
+        Some(1) => {
+            // the orbit it really is, said as such
+            assert!((period - 5.88108845586).abs() < 1e-8, "{period}");
+            assert!(doc["note"].as_str().is_some(), "{doc}");
+        }
+        other => panic!("k = {other:?}: {doc}"),
+    }
+    // the readable report says when seeds were set aside
+    let output = lamina()
+        .arg("cycle")
+        .arg(&path)
+        .args(["--returns", "2"])
+        .assert()
+        .success()
+        .get_output()
+        .clone();
+    let text = String::from_utf8(output.stdout).expect("UTF-8");
+    assert!(
+        text.contains("-return orbit of the cut map, period "),
+        "{text}"
+    );
+    if doc["k"] == 2 {
+        assert!(!text.contains("period 11.762177"), "{text}");
+    }
+}
+
+#[test]
+fn recheck_reports_the_digits_that_agree() {
+    let text = r#"(
+    format: 2,
+    title: "Planar limit cycle",
+    states: [
+        (name: "x", start: 0.5, rate: "x*(1 - x^2 - y^2) - w*y"),
+        (name: "y", start: 0.0, rate: "y*(1 - x^2 - y^2) + w*x"),
+    ],
+    parameters: [
+        (name: "w", value: 2.0, range: (0.5, 3.0)),
+    ],
+    integrator: (method: Automatic, rtol: 1e-8, atol: 1e-10),
+    time: (start: 0.0, settle: 0.0, span: 30.0),
+    cut: Some((
+        surface: Plane(normal: {"y": 1.0}, offset: 0.0),
+        direction: Rising,
+        axes: ("x", "y"),
+    )),
+)
+"#;
+    let dir = TempDir::new().unwrap();
+    let path = write(dir.path(), "cycle.ron", text);
+    let doc = cycle_json(&path, &["--from-start", "--recheck"]);
+    let recheck = &doc["recheck"];
+    // the keys of the product brief; the tolerances divided by 100 [analytic]
+    assert!(
+        (number(&recheck["rtol"], "rtol") - 1e-10).abs() < 1e-24,
+        "{recheck}"
+    );
+    assert!(
+        (number(&recheck["atol"], "atol") - 1e-12).abs() < 1e-26,
+        "{recheck}"
+    );
+    let digits = recheck["digits"].as_u64().expect("digits");
+    let worst = recheck["worst"].as_str().expect("worst");
+    assert!(
+        ["period", "x", "y", "multiplier 1"].contains(&worst),
+        "{recheck}"
+    );
+    // [analytic] REFERENCES case 3: the period pi is right to the digits claimed
+    let period = number(&doc["period"], "period");
+    let error = ((period - std::f64::consts::PI) / std::f64::consts::PI).abs();
+    assert!(
+        error <= 10f64.powi(1 - digits as i32),
+        "{period}, {recheck}"
+    );
+    assert!((4..15).contains(&digits), "{recheck}");
+    lamina()
+        .arg("cycle")
+        .arg(&path)
+        .args(["--from-start", "--recheck"])
+        .assert()
+        .success()
+        .stdout(
+            predicate::str::contains("recheck: ").and(predicate::str::contains(
+                "significant digit(s) agree with a second computation at rtol 1.0e-10",
+            )),
         );
 }
 

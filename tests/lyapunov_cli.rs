@@ -89,7 +89,8 @@ fn help_lists_the_command_and_its_options() {
         .stdout(
             predicate::str::contains("--json")
                 .and(predicate::str::contains("--trace"))
-                .and(predicate::str::contains("--exponents")),
+                .and(predicate::str::contains("--exponents"))
+                .and(predicate::str::contains("--recheck")),
         );
 }
 
@@ -295,4 +296,40 @@ fn a_missing_file_is_an_error() {
         .code(1)
         .stdout("")
         .stderr(predicate::str::contains("no_such_file.ron"));
+}
+
+#[test]
+fn recheck_compares_the_exponents_with_their_spread() {
+    let dir = TempDir::new().unwrap();
+    let path = write(
+        dir.path(),
+        "driven.ron",
+        &DRIVEN.replace("span: 1000.0", "span: 300.0"),
+    );
+    let result = json_of(&path, &["--recheck"]);
+    let recheck = &result["recheck"];
+    // the keys of the product brief; the tolerances divided by 100 [analytic]
+    assert!((recheck["rtol"].as_f64().expect("rtol") - 1e-11).abs() < 1e-25);
+    assert!((recheck["atol"].as_f64().expect("atol") - 1e-14).abs() < 1e-28);
+    let digits = recheck["digits"].as_u64().expect("digits");
+    assert!(["l1", "l2"].contains(&recheck["worst"].as_str().expect("worst")));
+    // [analytic] a linear oscillator damped by c: both exponents are -c / 2 = -0.15; the
+    // recheck's digits must be right for them
+    let exponents = numbers(&result, "exponents");
+    for l in exponents {
+        assert!(
+            ((l + 0.15) / 0.15).abs() <= 10f64.powi(1 - digits as i32),
+            "{l}: {recheck}"
+        );
+    }
+    let note = recheck["note"].as_str().expect("note");
+    assert!(note.contains("spread"), "{note}");
+    // and a line in the text
+    lamina()
+        .arg("lyapunov")
+        .arg(&path)
+        .arg("--recheck")
+        .assert()
+        .success()
+        .stdout(predicate::str::contains("recheck: ").and(predicate::str::contains("worst: l")));
 }

@@ -66,7 +66,13 @@ fn sweep_csv_has_the_product_columns_and_every_value() {
         for part in [words.split(" to ").next(), words.split(" to ").nth(1)] {
             let part = part.expect("two sides");
             assert!(
-                part.ends_with("-return orbit") || part == "no repeat within 12 returns",
+                part.ends_with("-return orbit")
+                    || [
+                        "no repeat within 12 returns",
+                        "not settled",
+                        "too few points"
+                    ]
+                    .contains(&part),
                 "{line}"
             );
         }
@@ -232,4 +238,53 @@ fn sweep_png_is_written_beside_the_csv() {
             .expect("csv")
             .starts_with("b,k,x,y\n")
     );
+}
+
+#[test]
+fn the_listed_behaviour_follows_the_one_recurrence_detector() {
+    // Brusselator (REFERENCES case 12) sampled once per time unit, B = 1.7, 1.9, 2.1, 2.3
+    let text = r#"(
+    format: 2,
+    title: "Brusselator strobed",
+    states: [
+        (name: "x", start: 1.3, rate: "a - (b + 1)*x + x^2*y"),
+        (name: "y", start: 2.0, rate: "b*x - x^2*y"),
+    ],
+    parameters: [
+        (name: "a", value: 1.0, range: (0.5, 2.0)),
+        (name: "b", value: 2.2, range: (1.0, 3.0)),
+    ],
+    integrator: (method: Automatic, rtol: 1e-9, atol: 1e-12),
+    time: (start: 0.0, settle: 0.0, span: 100.0),
+    strobe: Some((period: "1", first_at: 0.0, axes: ("x", "y"))),
+    sweep: Some((parameter: "b", from: 1.7, to: 2.3, values: 4, settle: 600.0,
+                 keep: 32, follow: false, source: Strobe, coordinate: "y")),
+)"#;
+    let dir = tempfile::tempdir().expect("tempdir");
+    let path = dir.path().join("strobed.ron");
+    std::fs::write(&path, text).expect("write");
+    let png = dir.path().join("diagram.png");
+    let output = lamina()
+        .arg("sweep")
+        .arg(&path)
+        .arg("--png")
+        .arg(&png)
+        .assert()
+        .success()
+        .get_output()
+        .clone();
+    let err = String::from_utf8(output.stderr).expect("utf8");
+    // [analytic] REFERENCES case 12: below B = 2 every sample sits on the equilibrium (a
+    // 1-return orbit); above it the samples go round the cycle without closing (no repeat)
+    assert!(err.contains("b = 1.7: 1-return orbit\n"), "{err}");
+    let changes: Vec<&str> = err
+        .lines()
+        .filter(|l| l.contains(" between b = "))
+        .collect();
+    assert_eq!(
+        changes,
+        ["1-return orbit to no repeat within 12 returns between b = 1.9 and 2.1"],
+        "{err}"
+    );
+    assert_eq!(png_size(&png), (1200, 900));
 }

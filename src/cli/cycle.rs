@@ -8,18 +8,18 @@ use std::process::ExitCode;
 
 use anyhow::{Context, Result, bail};
 use lamina_core::Interrupt;
-use lamina_core::cycle::{
-    FlowMap, MapKind, MapPoint, MapSettings, NewtonSettings, Recurrence, RecurrenceSettings,
-    close_returns, find_cycle, find_recurrence,
-};
+use lamina_core::cycle::{FlowMap, MapKind, MapPoint, MapSettings, NewtonSettings, find_cycle};
+use lamina_core::recheck::{self, Recheck, RecheckError};
+use lamina_core::recurrence::{Recurrence, RecurrenceSettings, close_returns, find_recurrence};
 use lamina_core::run::{CutPoint, Run, Sink, StrobeSample};
 
 use super::cycle_output::{write_human, write_json};
 use super::prepare::{Prepared, prepare};
 use super::progress::Progress;
 
-/// Seeds tried, closest return first.
-const MAX_SEEDS: usize = 4;
+/// Seeds tried, closest return first (more are tried only when the first ones fail or close
+/// after fewer returns than asked).
+const MAX_SEEDS: usize = 8;
 /// The longest return time allowed is this many times the longest one seen in the run.
 const RETURN_TIME_MARGIN: f64 = 10.0;
 
@@ -43,11 +43,16 @@ pub struct CycleArgs {
     /// Write the result as JSON on stdout.
     #[arg(long)]
     json: bool,
+    /// Find the orbit again with both integrator tolerances divided by 100 (and Newton's
+    /// tolerance with them) and report the significant digits on which the two agree, with
+    /// the number that agrees least.
+    #[arg(long)]
+    recheck: bool,
 }
 
 /// The `--map` choices.
 #[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
-enum MapArg {
+pub enum MapArg {
     /// The cut map (Poincaré map).
     Cut,
     /// The strobe map (time-T map).
@@ -104,17 +109,26 @@ pub fn cycle(args: &CycleArgs) -> Result<ExitCode> {
     };
 
     let settings = MapSettings::from_run(&prepared.spec, max_return_time);
-    let mut map = FlowMap::new(prepared.model, kind, settings)?;
+    let mut map = FlowMap::new(prepared.model.clone(), kind.clone(), settings)?;
     let report = find_cycle(&mut map, &seeds, k, &NewtonSettings::for_rtol(rtol))
         .with_context(|| format!("no {k}-return orbit found from {} seed(s)", seeds.len()))?;
+    let recheck: Option<Result<Recheck, RecheckError>> = args
+        .recheck
+        .then(|| recheck::cycle(prepared.model, kind, &settings, &report, &names));
     let mut out = std::io::stdout().lock();
     if args.json {
-        write_json(&mut out, &report, &names)?;
+        write_json(&mut out, &report, &names, recheck.as_ref())?;
     } else {
-        write_human(&mut out, &report, &scenario, &origin)?;
+        write_human(&mut out, &report, &scenario, &origin, recheck.as_ref())?;
     }
     out.flush().context("writing to stdout")?;
-    Ok(ExitCode::SUCCESS)
+    match recheck {
+        Some(Err(err)) => {
+            eprintln!("the recheck failed, so the orbit above is not confirmed: {err}");
+            Ok(ExitCode::FAILURE)
+        }
+        _ => Ok(ExitCode::SUCCESS),
+    }
 }
 
 /// The map asked for, or the default: the cut for an autonomous model that has one, else the
@@ -178,13 +192,14 @@ impl Sink for CloudSink {
 
 /// Runs the scenario, finds the repeat in its settled points and picks the closest returns
 /// as seeds. Returns the seeds, k, where they came from and the longest return time allowed.
-fn seeds_from_run(
+pub(super) fn seeds_from_run(
     prepared: Prepared,
     choice: MapArg,
     returns: Option<usize>,
     path: &Path,
 ) -> Result<(Vec<MapPoint>, usize, SeedOrigin, f64)> {
     let span = prepared.spec.t_end() - prepared.spec.t_start;
+    let prepared_control = prepared.spec.control;
     let (cut, strobe) = match choice {
         MapArg::Cut => (prepared.cut, None),
         MapArg::Strobe => (None, prepared.strobe),
@@ -218,8 +233,8 @@ fn seeds_from_run(
             points.len()
         );
     }
-    let recurrence = find_recurrence(&points, &RecurrenceSettings::default());
-    let k = match (returns, recurrence.k()) {
+    let recurrence = find_recurrence(&points, &RecurrenceSettings::for_control(&prepared_control));
+    let k = match (returns, recurrence.search_k()) {
         (Some(k), _) | (None, Some(k)) => k,
         (None, None) => bail!(
             "{} {label}: {recurrence}; give --returns K to look for a K-return orbit \

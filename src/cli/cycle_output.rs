@@ -4,11 +4,13 @@ use std::io::Write;
 
 use anyhow::{Context, Result};
 use lamina_core::cycle::{CycleReport, MapChoice, Multiplier, Number};
+use lamina_core::recheck::{Recheck, RecheckError};
 use lamina_scenario::{Scenario, State};
 use serde::Serialize;
 use serde::ser::{SerializeMap, Serializer};
 
 use super::cycle::SeedOrigin;
+use super::recheck::{JsonRecheck, recheck_lines};
 
 /// The JSON document of the product brief.
 #[derive(Serialize)]
@@ -21,12 +23,23 @@ struct Json<'a> {
     k: usize,
     #[serde(skip_serializing_if = "Option::is_none")]
     floquet: Option<Vec<JsonComplex>>,
+    /// Returns asked for (differs from `k` when only an orbit of fewer returns was found).
+    asked_k: usize,
+    /// How the search went, when it did not simply find what was asked.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    note: Option<String>,
+    /// The stability margin in words.
+    margin: String,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    recheck: Option<JsonRecheck>,
 }
 
 /// A state as an object of state names, in the model's order.
-struct NamedState<'a> {
-    names: &'a [String],
-    values: &'a [f64],
+pub struct NamedState<'a> {
+    /// The state names.
+    pub names: &'a [String],
+    /// The values, in the same order.
+    pub values: &'a [f64],
 }
 
 impl Serialize for NamedState<'_> {
@@ -39,10 +52,13 @@ impl Serialize for NamedState<'_> {
     }
 }
 
+/// A complex number in JSON.
 #[derive(Serialize)]
-struct JsonComplex {
-    re: f64,
-    im: f64,
+pub struct JsonComplex {
+    /// Real part.
+    pub re: f64,
+    /// Imaginary part.
+    pub im: f64,
 }
 
 fn complex(values: &[Multiplier]) -> Vec<JsonComplex> {
@@ -52,9 +68,24 @@ fn complex(values: &[Multiplier]) -> Vec<JsonComplex> {
         .collect()
 }
 
+/// Writes `value` as one line of JSON. The text is made first and written as bytes, so a
+/// reader that closed the pipe shows as the `io::Error` it is (serde_json's own writer hides
+/// it), and the command ends quietly.
+pub fn write_json_line(out: &mut impl Write, value: &impl Serialize) -> Result<()> {
+    let mut text = serde_json::to_string(value).context("writing JSON")?;
+    text.push('\n');
+    out.write_all(text.as_bytes())?;
+    Ok(())
+}
+
 /// Writes the report as one JSON line (serde_json writes the shortest text that reads back
 /// to the same f64).
-pub fn write_json(out: &mut impl Write, report: &CycleReport, names: &[String]) -> Result<()> {
+pub fn write_json(
+    out: &mut impl Write,
+    report: &CycleReport,
+    names: &[String],
+    recheck: Option<&Result<Recheck, RecheckError>>,
+) -> Result<()> {
     let json = Json {
         period: report.period,
         point: NamedState {
@@ -66,9 +97,12 @@ pub fn write_json(out: &mut impl Write, report: &CycleReport, names: &[String]) 
         residual: report.residual,
         k: report.k,
         floquet: report.floquet.as_deref().map(complex),
+        asked_k: report.search.asked,
+        note: report.search_note(),
+        margin: report.outlook.to_string(),
+        recheck: recheck.map(JsonRecheck::of),
     };
-    serde_json::to_writer(&mut *out, &json).context("writing JSON")?;
-    writeln!(out).context("writing to stdout")?;
+    write_json_line(&mut *out, &json)?;
     Ok(())
 }
 
@@ -78,6 +112,7 @@ pub fn write_human(
     report: &CycleReport,
     scenario: &Scenario,
     origin: &SeedOrigin,
+    recheck: Option<&Result<Recheck, RecheckError>>,
 ) -> Result<()> {
     let time_unit = unit_suffix(scenario.time.unit.as_deref());
     let states = &scenario.states;
@@ -94,6 +129,9 @@ pub fn write_human(
         "{}-return orbit of the {map}, period {}{time_unit}",
         report.k, report.period
     ));
+    if let Some(note) = report.search_note() {
+        line(format!("  note          {note}"));
+    }
     line(format!(
         "  point         {}  (t = {}{time_unit})",
         named(states, &report.point.state),
@@ -143,14 +181,7 @@ pub fn write_human(
         }
     ));
     line(format!("  verdict       {}", report.verdict));
-    if let Some(nearest) = &report.nearest {
-        line(format!(
-            "  nearest the unit circle: {} (|m| - 1 = {}); stability would change there {}",
-            nearest.multiplier,
-            Number(nearest.distance),
-            nearest.loss
-        ));
-    }
+    line(format!("  margin        {}", report.outlook));
     match origin {
         SeedOrigin::Start => line("  seed          the start state".to_string()),
         SeedOrigin::CloseReturn {
@@ -160,6 +191,11 @@ pub fn write_human(
         } => line(format!(
             "  seed          closest return of {n_points} settled points (distance {distance:.1e}); {recurrence}"
         )),
+    }
+    if let Some(recheck) = recheck {
+        for l in recheck_lines(recheck) {
+            line(format!("  {l}"));
+        }
     }
     out.write_all(text.as_bytes())
         .context("writing to stdout")?;

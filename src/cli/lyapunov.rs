@@ -8,11 +8,13 @@ use std::process::ExitCode;
 use anyhow::{Context, Result};
 use lamina_core::Interrupt;
 use lamina_core::lyapunov::{ExponentSettings, ExponentSink, Spectrum, spectrum};
+use lamina_core::recheck::{self, Recheck, RecheckError};
 use lamina_core::run::StopReason;
 use lamina_export::{AtomicFile, TrajectoryCsv, format_number};
 
 use super::prepare::prepare;
 use super::progress::Progress;
+use super::recheck::{JsonRecheck, recheck_lines};
 
 /// Arguments of `lyapunov`.
 #[derive(clap::Args, Debug)]
@@ -28,6 +30,11 @@ pub struct LyapunovArgs {
     /// Compute only the N largest exponents (1 is the cheapest); default: all.
     #[arg(long, value_name = "N")]
     exponents: Option<usize>,
+    /// Compute the exponents again with both integrator tolerances divided by 100 and report
+    /// the significant digits on which the two agree (each exponent judged with the spread
+    /// of its running estimate), with the exponent that agrees least.
+    #[arg(long)]
+    recheck: bool,
 }
 
 /// Progress on the terminal's bar.
@@ -48,7 +55,7 @@ pub fn lyapunov(args: &LyapunovArgs) -> Result<ExitCode> {
     };
     let mut bar = Bar(Progress::new("lyapunov"));
     let result = spectrum(
-        prepared.model,
+        prepared.model.clone(),
         &prepared.spec,
         &settings,
         &mut bar,
@@ -59,15 +66,39 @@ pub fn lyapunov(args: &LyapunovArgs) -> Result<ExitCode> {
     if let Some(path) = &args.trace {
         write_trace(path, &result)?;
     }
+    let recheck = args.recheck.then(|| {
+        let mut bar = Bar(Progress::new("recheck"));
+        let recheck = recheck::exponents(
+            prepared.model,
+            &prepared.spec,
+            &settings,
+            &result,
+            &mut bar,
+            &Interrupt::new(),
+        );
+        bar.0.finish();
+        recheck
+    });
     let text = if args.json {
-        json(&result)?
+        json(&result, recheck.as_ref())?
     } else {
-        plain(&result, settings.tail_fraction)
+        let mut text = plain(&result, settings.tail_fraction);
+        if let Some(recheck) = &recheck {
+            for line in recheck_lines(recheck) {
+                text.push('\n');
+                text.push_str(&line);
+            }
+        }
+        text
     };
     let mut stdout = std::io::stdout().lock();
     writeln!(stdout, "{text}")
         .and_then(|()| stdout.flush())
         .context("writing to stdout")?;
+    if let Some(Err(err)) = &recheck {
+        eprintln!("the recheck failed, so the exponents above are not confirmed: {err}");
+        return Ok(ExitCode::FAILURE);
+    }
     match result.reason {
         StopReason::Finished => Ok(ExitCode::SUCCESS),
         other => {
@@ -100,8 +131,8 @@ fn write_trace(path: &Path, result: &Spectrum) -> Result<()> {
 /// The JSON of the product brief (`exponents`, `time`) with the rest of the result. Numbers
 /// are written in shortest round-trip form; a number that is not finite (an exponent when
 /// nothing was averaged, a spread with too few samples) is written as `null`.
-fn json(result: &Spectrum) -> Result<String> {
-    let value = serde_json::json!({
+fn json(result: &Spectrum, recheck: Option<&Result<Recheck, RecheckError>>) -> Result<String> {
+    let mut value = serde_json::json!({
         "exponents": result.exponents,
         "time": result.time,
         "spread": result.spread,
@@ -117,6 +148,10 @@ fn json(result: &Spectrum) -> Result<String> {
         "reorthonormalisations": result.n_reorthonormalisations,
         "rate_evaluations": result.stats.n_rate_evaluations,
     });
+    if let Some(recheck) = recheck {
+        value["recheck"] =
+            serde_json::to_value(JsonRecheck::of(recheck)).context("writing JSON")?;
+    }
     let text = serde_json::to_string(&value).context("writing JSON")?;
     Ok(text)
 }

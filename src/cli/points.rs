@@ -7,6 +7,8 @@ use std::process::ExitCode;
 
 use anyhow::{Context, Result, bail};
 use lamina_core::Interrupt;
+use lamina_core::cycle::{MapKind, MapPoint};
+use lamina_core::recheck::{self, RecheckError};
 use lamina_core::run::{CutPoint, Run, Sink, StopReason, StrobeSample};
 use lamina_export::{AtomicFile, CutCsv, ExportError, StrobeCsv};
 
@@ -25,6 +27,11 @@ pub struct PointsArgs {
     /// Write CSV to this file (atomically) instead of stdout.
     #[arg(long, value_name = "FILE.csv")]
     out: Option<PathBuf>,
+    /// Integrate again from the first point with both tolerances divided by 100 and report on
+    /// stderr the significant digits on which the two agree (for a chaotic run over the first
+    /// 20 points only, and said), with the number that agrees least.
+    #[arg(long)]
+    recheck: bool,
 }
 
 /// Which point set a command writes.
@@ -48,13 +55,26 @@ struct CsvSink<W: Write> {
     written: usize,
     error: Option<ExportError>,
     progress: Progress,
+    /// Every point written, kept for a recheck.
+    kept: Option<Vec<MapPoint>>,
 }
 
 impl<W: Write> CsvSink<W> {
-    fn after_row(&mut self, result: Result<(), ExportError>) -> ControlFlow<()> {
+    fn after_row(
+        &mut self,
+        result: Result<(), ExportError>,
+        t: f64,
+        state: &[f64],
+    ) -> ControlFlow<()> {
         if let Err(err) = result {
             self.error = Some(err);
             return ControlFlow::Break(());
+        }
+        if let Some(kept) = &mut self.kept {
+            kept.push(MapPoint {
+                t,
+                state: state.to_vec(),
+            });
         }
         self.written += 1;
         match self.count {
@@ -69,7 +89,7 @@ impl<W: Write> Sink for CsvSink<W> {
         match &mut self.writer {
             Writer::Cut(w) => {
                 let result = w.write(point);
-                self.after_row(result)
+                self.after_row(result, point.t, &point.state)
             }
             Writer::Strobe(_) => ControlFlow::Continue(()),
         }
@@ -78,7 +98,7 @@ impl<W: Write> Sink for CsvSink<W> {
         match &mut self.writer {
             Writer::Strobe(w) => {
                 let result = w.write(sample);
-                self.after_row(result)
+                self.after_row(result, sample.t, &sample.state)
             }
             Writer::Cut(_) => ControlFlow::Continue(()),
         }
@@ -113,6 +133,14 @@ pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
         PointKind::Cut => (prepared.cut, None),
         PointKind::Strobe => (None, prepared.strobe),
     };
+    // what a recheck integrates again: the same model, window and cut or strobe
+    let again = match (&cut, strobe) {
+        (Some(cut), _) => Some(MapKind::Cut(cut.clone())),
+        (None, Some(strobe)) => Some(MapKind::Strobe(strobe)),
+        (None, None) => None,
+    }
+    .filter(|_| args.recheck)
+    .map(|map| (prepared.model.clone(), prepared.spec.clone(), map));
     let mut run = Run::new(prepared.model, prepared.spec, cut, strobe, false);
     let label = match kind {
         PointKind::Cut => "cut",
@@ -121,11 +149,17 @@ pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
     // Ctrl-C stops the run at its next step instead of ending the process, so the output is
     // left in order; installed before the temporary output file exists.
     let interrupt = interrupt_on_signal()?;
-    match &args.out {
+    let setup = Setup {
+        kind,
+        count: args.count,
+        names: &names,
+        keep: again.is_some(),
+        label,
+    };
+    let (code, kept) = match &args.out {
         Some(path) => {
             let file = AtomicFile::create(path)?;
-            let (reason, written, file) =
-                execute(kind, args.count, &names, file, &mut run, &interrupt, label)?;
+            let (reason, kept, file) = execute(&setup, file, &mut run, &interrupt)?;
             if let StopReason::Cancelled { .. } = reason {
                 // a stopped run is not a result: the temporary file goes, the target
                 // stays as it was
@@ -134,39 +168,79 @@ pub fn points(kind: PointKind, args: &PointsArgs) -> Result<ExitCode> {
                 // A run stopped by numerical trouble still keeps the valid points it found.
                 file.commit()?;
             }
-            report(reason, written, label, Some(path))
+            (report(reason, kept.len(), label, Some(path))?, kept)
         }
         None => {
             let stdout = std::io::stdout().lock();
-            let (reason, written, mut out) = execute(
-                kind, args.count, &names, stdout, &mut run, &interrupt, label,
-            )?;
+            let (reason, kept, mut out) = execute(&setup, stdout, &mut run, &interrupt)?;
             // the rows so far, also of a stopped run: each is a whole, valid row
             out.flush().context("writing to stdout")?;
-            report(reason, written, label, None)
+            (report(reason, kept.len(), label, None)?, kept)
         }
+    };
+    match again {
+        Some((model, spec, map)) if code != ExitCode::from(INTERRUPTED) => {
+            let result = recheck::points(&model, &spec, &map, &kept.points, &names, &interrupt);
+            match result {
+                Ok(recheck) => {
+                    for line in super::recheck::recheck_lines(&Ok(recheck)) {
+                        eprintln!("{line}");
+                    }
+                    Ok(code)
+                }
+                Err(RecheckError::Cancelled { t }) => {
+                    eprintln!("recheck: stopped at t = {t} on a signal");
+                    Ok(ExitCode::from(INTERRUPTED))
+                }
+                Err(err) => {
+                    eprintln!("recheck: failed, so the points are not confirmed: {err}");
+                    Ok(ExitCode::FAILURE)
+                }
+            }
+        }
+        _ => Ok(code),
+    }
+}
+
+/// What `execute` writes and keeps.
+struct Setup<'a> {
+    kind: PointKind,
+    count: Option<usize>,
+    names: &'a [String],
+    /// Keep the points for a recheck.
+    keep: bool,
+    label: &'a str,
+}
+
+/// The points written: their number, and the points themselves when kept for a recheck.
+struct Written {
+    count: usize,
+    points: Vec<MapPoint>,
+}
+
+impl Written {
+    fn len(&self) -> usize {
+        self.count
     }
 }
 
 fn execute<W: Write>(
-    kind: PointKind,
-    count: Option<usize>,
-    names: &[String],
+    setup: &Setup<'_>,
     out: W,
     run: &mut Run,
     interrupt: &Interrupt,
-    label: &str,
-) -> Result<(StopReason, usize, W)> {
-    let writer = match kind {
-        PointKind::Cut => Writer::Cut(CutCsv::new(out, names)?),
-        PointKind::Strobe => Writer::Strobe(StrobeCsv::new(out, names)?),
+) -> Result<(StopReason, Written, W)> {
+    let writer = match setup.kind {
+        PointKind::Cut => Writer::Cut(CutCsv::new(out, setup.names)?),
+        PointKind::Strobe => Writer::Strobe(StrobeCsv::new(out, setup.names)?),
     };
     let mut sink = CsvSink {
         writer,
-        count,
+        count: setup.count,
         written: 0,
         error: None,
-        progress: Progress::new(label),
+        progress: Progress::new(setup.label),
+        kept: setup.keep.then(Vec::new),
     };
     let outcome = run.execute(&mut sink, interrupt);
     sink.progress.finish();
@@ -184,7 +258,11 @@ fn execute<W: Write>(
         Writer::Cut(w) => w.finish()?,
         Writer::Strobe(w) => w.finish()?,
     };
-    Ok((outcome.reason, sink.written, out))
+    let written = Written {
+        count: sink.written,
+        points: sink.kept.unwrap_or_default(),
+    };
+    Ok((outcome.reason, written, out))
 }
 
 fn report(

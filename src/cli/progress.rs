@@ -17,7 +17,7 @@ impl Progress {
         }
         let bar = ProgressBar::with_draw_target(Some(1000), ProgressDrawTarget::stderr());
         let style =
-            ProgressStyle::with_template("{msg} [{bar:40}] {percent}% t = {prefix} ({elapsed})")
+            ProgressStyle::with_template("{msg} [{bar:40}] {percent}% {prefix} ({elapsed})")
                 .unwrap_or_else(|_| ProgressStyle::default_bar())
                 .progress_chars("=> ");
         bar.set_style(style);
@@ -29,7 +29,21 @@ impl Progress {
     pub fn update(&self, t: f64, fraction: f64) {
         if let Some(bar) = &self.bar {
             bar.set_position((fraction * 1000.0) as u64);
-            bar.set_prefix(format!("{t:.6}"));
+            bar.set_prefix(format!("t = {t:.6}"));
+        }
+    }
+
+    /// Updates the bar to `fraction` (for work measured in other units than time).
+    pub fn update_fraction(&self, fraction: f64) {
+        if let Some(bar) = &self.bar {
+            bar.set_position((fraction.clamp(0.0, 1.0) * 1000.0) as u64);
+        }
+    }
+
+    /// Shows `label` where the bar shows the time (for example the parameter value reached).
+    pub fn show(&self, label: &str) {
+        if let Some(bar) = &self.bar {
+            bar.set_prefix(label.to_string());
         }
     }
 

@@ -6,12 +6,15 @@ use std::process::ExitCode;
 
 use anyhow::{Context, Result, bail};
 use lamina_core::Interrupt;
+use lamina_core::recurrence::RecurrenceKind;
 use lamina_core::run::{CutPoint, Run, Sink, StrobeSample};
 use lamina_core::sweep::{SweepColumn, SweepSpec};
 use lamina_export::write_bytes_atomically;
 use lamina_render::{Figure, picture_title, view_names};
 use lamina_scenario::Scenario;
 
+use super::branch::{OfArg, StartArg};
+use super::branch_picture::branch_picture;
 use super::prepare::prepare;
 
 /// Which view to draw.
@@ -25,6 +28,8 @@ pub enum View {
     Strobe,
     /// The orbit diagram of the scenario's sweep.
     Sweep,
+    /// A branch of resting points or orbits over the orbit diagram.
+    Branch,
 }
 
 /// Arguments of `lamina render`.
@@ -41,6 +46,10 @@ pub struct RenderArgs {
     /// Picture size in pixels.
     #[arg(long, value_name = "WxH", default_value = "1200x900", value_parser = parse_size)]
     size: (u32, u32),
+    /// For the branch view: follow a resting point or an orbit. Default: a resting point if
+    /// the run settles at one, else the orbit it settles into.
+    #[arg(long, value_enum)]
+    of: Option<OfArg>,
 }
 
 fn parse_size(text: &str) -> Result<(u32, u32), String> {
@@ -86,7 +95,7 @@ impl Sink for Everything {
     }
 }
 
-/// Draws the orbit diagram of a finished sweep.
+/// Draws the orbit diagram of a finished sweep, each value coloured by its label.
 pub fn write_orbit_diagram(
     path: &Path,
     size: (u32, u32),
@@ -94,6 +103,7 @@ pub fn write_orbit_diagram(
     spec: &SweepSpec,
     coordinate: usize,
     columns: &[SweepColumn],
+    kinds: &[RecurrenceKind],
 ) -> Result<()> {
     let data: Vec<(f64, Vec<f64>)> = columns
         .iter()
@@ -106,15 +116,32 @@ pub fn write_orbit_diagram(
         x_label: scenario.parameter_label(spec.parameter),
         y_label: scenario.state_label(coordinate),
     };
-    let bytes = lamina_render::orbit_diagram_png(&figure, &data, None)?;
+    let bytes = lamina_render::orbit_diagram_png(&figure, &data, Some(kinds))?;
     write_png(path, &bytes)
 }
 
 /// `lamina render`.
 pub fn render(args: &RenderArgs) -> Result<ExitCode> {
+    if args.view == View::Branch {
+        let prepared = prepare(&args.file)?;
+        let of = match args.of {
+            Some(of) => of,
+            None if super::branch_start::run_settles_at_rest(&prepared) => OfArg::Rest,
+            None => OfArg::Cycle,
+        };
+        let followed =
+            super::branch::follow(&prepared, &args.file, of, None, None, StartArg::Settled)?;
+        let (bytes, note) = branch_picture(&prepared, &args.file, &followed, args.size)?;
+        write_png(&args.png, &bytes)?;
+        eprintln!("wrote {} ({note})", args.png.display());
+        return Ok(ExitCode::SUCCESS);
+    }
     if args.view == View::Sweep {
         let (scenario, spec, coordinate, columns) = super::sweep::run_sweep(&args.file, None)?;
-        write_orbit_diagram(&args.png, args.size, &scenario, &spec, coordinate, &columns)?;
+        let kinds = super::sweep::labels(&scenario, &columns);
+        write_orbit_diagram(
+            &args.png, args.size, &scenario, &spec, coordinate, &columns, &kinds,
+        )?;
         eprintln!("wrote {}", args.png.display());
         return Ok(ExitCode::SUCCESS);
     }
@@ -216,13 +243,13 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
                 Some(&order),
             )?
         }
-        View::Sweep => unreachable_sweep()?,
+        View::Sweep | View::Branch => drawn_above()?,
     };
     finish(args, bytes, outcome.reason)
 }
 
-fn unreachable_sweep() -> Result<Vec<u8>> {
-    bail!("the sweep view is drawn above")
+fn drawn_above() -> Result<Vec<u8>> {
+    bail!("the sweep and branch views are drawn above")
 }
 
 fn finish(

@@ -8,8 +8,11 @@ use std::sync::Mutex;
 use anyhow::{Context, Result, bail};
 use lamina_core::Interrupt;
 use lamina_core::model::Model;
+use lamina_core::recurrence::{RecurrenceKind, RecurrenceSettings};
 use lamina_core::run::Strobe;
-use lamina_core::sweep::{SweepColumn, SweepSpec, sweep_follow, sweep_restart};
+use lamina_core::sweep::{
+    SweepColumn, SweepSpec, column_recurrence, describe, sweep_follow, sweep_restart,
+};
 use lamina_export::{AtomicFile, SweepCsv};
 use lamina_scenario::Scenario;
 
@@ -158,6 +161,7 @@ pub fn sweep(args: &SweepArgs) -> Result<ExitCode> {
             stdout.flush()?;
         }
     }
+    let kinds = labels(&scenario, &columns);
     if let Some(png) = &args.png {
         super::render::write_orbit_diagram(
             png,
@@ -166,9 +170,17 @@ pub fn sweep(args: &SweepArgs) -> Result<ExitCode> {
             &spec,
             coordinate,
             &columns,
+            &kinds,
         )?;
     }
-    report_changes(&parameter, &columns);
+    let labelled: Vec<(f64, RecurrenceKind)> = columns
+        .iter()
+        .zip(&kinds)
+        .map(|(c, k)| (c.value, *k))
+        .collect();
+    for line in describe(&parameter, &labelled) {
+        eprintln!("{line}");
+    }
     let troubled: Vec<String> = columns
         .iter()
         .filter(|c| c.reason.is_trouble())
@@ -198,29 +210,12 @@ pub fn sweep(args: &SweepArgs) -> Result<ExitCode> {
     Ok(ExitCode::SUCCESS)
 }
 
-/// Tolerance of the repeat test, relative to the size of the kept points.
-pub const REPEAT_TOLERANCE: f64 = 1e-5;
-
-/// The most returns a repeat is looked for.
-const MAX_RETURNS: usize = 12;
-
-/// Prints after how many returns each value repeats at the first value and where that
-/// changes along the sweep (stderr).
-fn report_changes(parameter: &str, columns: &[SweepColumn]) {
-    let periods: Vec<(f64, Option<usize>)> = columns
+/// Every value's label from the one recurrence detector, judged with the scenario's
+/// integrator tolerances: what the list, the colours and the legend all show.
+pub fn labels(scenario: &Scenario, columns: &[SweepColumn]) -> Vec<RecurrenceKind> {
+    let settings = RecurrenceSettings::for_control(&scenario.run_spec().control);
+    columns
         .iter()
-        .map(|c| {
-            (
-                c.value,
-                lamina_core::sweep::repeat_period(&c.points, MAX_RETURNS, REPEAT_TOLERANCE),
-            )
-        })
-        .collect();
-    if let Some(first) = periods.first() {
-        let returns = lamina_core::sweep::returns_text(first.1, MAX_RETURNS);
-        eprintln!("{parameter} = {}: {returns}", first.0);
-    }
-    for change in lamina_core::sweep::period_changes(&periods) {
-        eprintln!("{}", change.describe(parameter, MAX_RETURNS));
-    }
+        .map(|c| column_recurrence(c, &settings).kind())
+        .collect()
 }

@@ -4,10 +4,11 @@
 
 use lamina_core::Interrupt;
 use lamina_core::cycle::{
-    CycleReport, FlowMap, MapKind, MapPoint, MapSettings, NewtonSettings, close_returns, find_cycle,
+    CycleReport, FlowMap, MapKind, MapPoint, MapSettings, NewtonSettings, find_cycle,
 };
 use lamina_core::integrate::{Method, StepControl};
 use lamina_core::model::{Model, ModelSpec, ParameterSpec, StateSpec};
+use lamina_core::recurrence::close_returns;
 use lamina_core::run::{
     Collect, Cut, CutSpec, Direction, Run, RunOutcome, RunSpec, Strobe, StrobeSpec, SurfaceSpec,
 };

@@ -8,9 +8,10 @@ use std::f64::consts::PI;
 
 use common::*;
 use lamina_core::cycle::{
-    FlowMap, Loss, MapChoice, MapKind, MapPoint, MapSettings, NewtonSettings, Recurrence,
-    RecurrenceSettings, Verdict, find_cycle, find_recurrence,
+    FlowMap, MapChoice, MapKind, MapPoint, MapSettings, NewtonSettings, Outlook, Verdict,
+    find_cycle,
 };
+use lamina_core::recurrence::{Recurrence, RecurrenceSettings, find_recurrence};
 use lamina_core::run::Direction;
 
 #[test]
@@ -125,8 +126,13 @@ fn planar_limit_cycle_multiplier_is_exp_minus_two_pi() {
     // [analytic] the trivial Floquet multiplier along the flow is 1
     assert!((floquet[0].re - 1.0).abs() < 1e-8 && floquet[0].im == 0.0);
     assert!(rel(floquet[1].re, 1.86744273171e-3) < 1e-6);
-    let nearest = report.nearest.expect("one multiplier");
-    assert_eq!(nearest.loss, Loss::ThroughPlusOne);
+    // [analytic] exp(-2 pi) is far inside the unit circle: no loss of stability to name
+    assert!(
+        matches!(report.outlook, Outlook::WellInside { .. }),
+        "{}",
+        report.outlook
+    );
+    assert_eq!(report.outlook.loss(), None);
 
     // the orbit over one period, for drawing: on the circle r = 1 and back at the start
     let settings = MapSettings::from_run(&run, 10.0);
@@ -213,7 +219,7 @@ fn rossler_period_one_saddle() {
     let cut = plane(&m, &[("x", 1.0)], 0.0, Direction::Falling);
     let run = window(1e-12, 100.0, 600.0);
     let cloud = cut_cloud(&m, &cut, &run);
-    let found = find_recurrence(&cloud, &RecurrenceSettings::default());
+    let found = find_recurrence(&cloud, &RecurrenceSettings::for_control(&run.control));
     // [common practice] a chaotic attractor has no repeat
     assert!(matches!(found, Recurrence::NoRepeat { .. }), "{found}");
     let report = cycle_from(&m, MapKind::Cut(cut), &run, &cloud, 1);
@@ -234,7 +240,6 @@ fn rossler_period_one_saddle() {
         report.multipliers[0]
     );
     assert_eq!(report.verdict, Verdict::Unstable { n_unstable: 1 });
-    let nearest = report.nearest.expect("two multipliers");
     let floquet = report.floquet.as_ref().expect("Floquet");
     // ChaosBook.org (REFERENCES case 10): the trivial multiplier 1 +- 1e-8
     assert!(
@@ -243,7 +248,19 @@ fn rossler_period_one_saddle() {
             .any(|mu| (mu.re - 1.0).abs() < 1e-8 && mu.im == 0.0),
         "{floquet:?}"
     );
-    assert_eq!(nearest.loss, Loss::ThroughMinusOne);
+    // [analytic] an unstable orbit: how it repels, not how a far multiplier would cross
+    assert!(
+        matches!(report.outlook, Outlook::Unstable { n_unstable: 1, .. }),
+        "{}",
+        report.outlook
+    );
+    assert_eq!(report.outlook.loss(), None);
+    assert!(
+        report
+            .outlook
+            .to_string()
+            .starts_with("unstable: |m| = 2.40395")
+    );
 }
 
 #[test]

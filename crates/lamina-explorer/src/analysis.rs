@@ -10,11 +10,11 @@ use egui::{Color32, RichText, Ui};
 use egui_plot::{Line, Plot, PlotPoints, Points};
 use lamina_core::Interrupt;
 use lamina_core::cycle::{
-    CycleReport, FlowMap, MapKind, MapPoint, MapSettings, NewtonSettings, RecurrenceSettings,
-    close_returns, find_cycle, find_recurrence,
+    CycleReport, FlowMap, MapKind, MapPoint, MapSettings, NewtonSettings, find_cycle,
 };
 use lamina_core::lyapunov::{ExponentSettings, Spectrum, spectrum};
 use lamina_core::model::Model;
+use lamina_core::recurrence::{RecurrenceSettings, close_returns, find_recurrence};
 use lamina_core::run::{Cut, Strobe};
 
 use crate::app::ExplorerApp;
@@ -178,13 +178,13 @@ impl ExplorerApp {
             return;
         };
         let points = map_points(cloud);
-        let recurrence = find_recurrence(&points, &RecurrenceSettings::default());
-        let k = recurrence.k().unwrap_or(1);
+        let run = scenario.run_spec();
+        let recurrence = find_recurrence(&points, &RecurrenceSettings::for_control(&run.control));
+        let k = recurrence.search_k().unwrap_or(1);
         let seeds: Vec<MapPoint> = close_returns(&points, k, 4)
             .iter()
             .map(|r| points[r.index].clone())
             .collect();
-        let run = scenario.run_spec();
         let longest = cloud
             .return_time
             .iter()
@@ -293,10 +293,12 @@ impl ExplorerApp {
                 "run first: the search starts from the points of the run".to_string()
             } else {
                 let points = map_points(cloud);
+                let settings =
+                    RecurrenceSettings::for_control(&self.doc.scenario.run_spec().control);
                 format!(
                     "{} points: {}",
                     points.len(),
-                    find_recurrence(&points, &RecurrenceSettings::default())
+                    find_recurrence(&points, &settings)
                 )
             };
             self.analysis.summary = Some((key, text));
@@ -351,15 +353,9 @@ impl ExplorerApp {
                     .collect();
                 ui.label(RichText::new(point.join(", ")).monospace().small());
                 ui.label(format!("verdict: {}", r.verdict));
-                if let Some(n) = &r.nearest {
-                    ui.label(
-                        RichText::new(format!(
-                            "nearest the circle: |m| = {}, would lose stability {}",
-                            num(n.multiplier.re.hypot(n.multiplier.im)),
-                            n.loss
-                        ))
-                        .small(),
-                    );
+                ui.label(RichText::new(r.outlook.to_string()).small());
+                if let Some(note) = r.search_note() {
+                    ui.label(RichText::new(note).small());
                 }
                 ui.label(
                     RichText::new(format!(

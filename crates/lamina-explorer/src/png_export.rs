@@ -29,10 +29,10 @@ enum Drawing {
         z_label: String,
         pieces: Vec<Vec<(f64, f64, f64)>>,
     },
-    /// Columns of an orbit diagram with their repeat periods.
+    /// Columns of an orbit diagram with their labels from the recurrence detector.
     Orbit {
         columns: Vec<(f64, Vec<f64>)>,
-        periods: Vec<usize>,
+        kinds: Vec<lamina_core::recurrence::RecurrenceKind>,
     },
 }
 
@@ -51,8 +51,8 @@ impl PngJob {
             Drawing::Trajectory { z_label, pieces } => {
                 trajectory_png(&self.figure, z_label, pieces)
             }
-            Drawing::Orbit { columns, periods } => {
-                orbit_diagram_png(&self.figure, columns, Some(periods))
+            Drawing::Orbit { columns, kinds } => {
+                orbit_diagram_png(&self.figure, columns, Some(kinds))
             }
         }
         .map_err(|e| e.to_string())?;
@@ -205,19 +205,14 @@ impl ExplorerApp {
                         (c.value, values)
                     })
                     .collect();
-                let periods = self
-                    .sweep
-                    .columns
-                    .iter()
-                    .map(|(_, p)| p.unwrap_or(0))
-                    .collect();
+                let kinds = self.sweep.columns.iter().map(|(_, k)| *k).collect();
                 (
                     figure(
                         title(view),
                         self.swept_parameter_label(),
                         labels.state(coordinate),
                     ),
-                    Drawing::Orbit { columns, periods },
+                    Drawing::Orbit { columns, kinds },
                 )
             }
         };

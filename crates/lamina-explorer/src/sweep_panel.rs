@@ -3,8 +3,9 @@
 
 use egui::{ComboBox, RichText, Ui};
 use lamina_core::model::Model;
+use lamina_core::recurrence::{RecurrenceKind, RecurrenceSettings};
 use lamina_core::run::Cut;
-use lamina_core::sweep::{SweepColumn, repeat_period};
+use lamina_core::sweep::{SweepColumn, column_recurrence, describe};
 use lamina_scenario::{Sweep, SweepSource};
 
 use crate::app::ExplorerApp;
@@ -14,19 +15,16 @@ use crate::sweep_worker::{SweepEvent, SweepJob, SweepWorker};
 use crate::views::orbit::orbit_diagram_ui;
 use crate::widgets::{number_field, problems_ui};
 
-/// Tolerance of the repeat test, relative to the size of the kept points.
-const REPEAT_TOLERANCE: f64 = 1e-5;
-
-/// The most returns a repeat is looked for.
-const MAX_RETURNS: usize = 12;
-
 /// The sweep's job and what it has produced.
 #[derive(Default)]
 pub struct SweepState {
     /// The background job.
     pub worker: SweepWorker,
-    /// Finished values with their repeat period, in parameter order.
-    pub columns: Vec<(SweepColumn, Option<usize>)>,
+    /// Finished values with their label from the recurrence detector, in parameter order.
+    pub columns: Vec<(SweepColumn, RecurrenceKind)>,
+    /// The recurrence detector's settings for the running or last sweep (its integrator
+    /// tolerances).
+    pub recurrence: RecurrenceSettings,
     /// Number of values of the running or last sweep.
     pub total: usize,
     /// Parameter and coordinate of the last sweep (indices).
@@ -168,6 +166,7 @@ impl ExplorerApp {
             spec,
         };
         self.sweep.columns.clear();
+        self.sweep.recurrence = RecurrenceSettings::for_control(&job.run.control);
         self.sweep.total = job.spec.n_values();
         self.sweep.axes = (parameter, coordinate);
         let repaint = ctx.clone();
@@ -185,36 +184,31 @@ impl ExplorerApp {
         for event in self.sweep.worker.drain() {
             match event {
                 SweepEvent::Column(column) => {
-                    let period = repeat_period(&column.points, MAX_RETURNS, REPEAT_TOLERANCE);
+                    let kind = column_recurrence(&column, &self.sweep.recurrence).kind();
                     let at = self
                         .sweep
                         .columns
                         .partition_point(|(c, _)| c.index < column.index);
-                    self.sweep.columns.insert(at, (column, period));
+                    self.sweep.columns.insert(at, (column, kind));
                 }
                 SweepEvent::Finished { error } => match error {
                     Some(e) => self.note(format!("the sweep could not run: {e}")),
                     None => {
-                        let periods: Vec<(f64, Option<usize>)> = self
+                        let labels: Vec<(f64, RecurrenceKind)> = self
                             .sweep
                             .columns
                             .iter()
-                            .map(|(c, p)| (c.value, *p))
+                            .map(|(c, k)| (c.value, *k))
                             .collect();
-                        let changes = lamina_core::sweep::period_changes(&periods);
                         self.note(format!(
-                            "sweep done: {} of {} values, {} change(s) of the repeat",
+                            "sweep done: {} of {} values, {} change(s) of behaviour",
                             self.sweep.columns.len(),
                             self.sweep.total,
-                            changes.len()
+                            lamina_core::sweep::changes(&labels).len()
                         ));
                         let name = self.swept_parameter_name();
-                        if let Some((first, returns)) = periods.first() {
-                            let returns = lamina_core::sweep::returns_text(*returns, MAX_RETURNS);
-                            self.note(format!("  {name} = {first}: {returns}"));
-                        }
-                        for c in changes.iter().take(12) {
-                            self.note(format!("  {}", c.describe(&name, MAX_RETURNS)));
+                        for line in describe(&name, &labels).into_iter().take(14) {
+                            self.note(format!("  {line}"));
                         }
                     }
                 },

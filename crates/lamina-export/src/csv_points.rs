@@ -1,4 +1,4 @@
-//! CSV writers for cut points, strobe samples, trajectories and sweeps, with the column
+//! CSV writers for cut points, strobe samples, trajectories, sweeps and branches, with the column
 //! layout of the product brief and numbers in shortest round-trip form.
 
 use std::io::Write;
@@ -47,6 +47,8 @@ enum Field {
     Count(u64),
     /// A number, in the form of [`format_number`].
     Number(f64),
+    /// A word.
+    Word(&'static str),
     /// An empty cell.
     Empty,
 }
@@ -80,6 +82,7 @@ impl<W: Write> Rows<W> {
             match field {
                 Field::Count(k) => self.out.write_field(self.integers.format(k)),
                 Field::Number(v) => self.out.write_field(self.floats.format(v)),
+                Field::Word(word) => self.out.write_field(word),
                 Field::Empty => self.out.write_field([]),
             }
             .map_err(output_error)?;
@@ -212,6 +215,40 @@ impl<W: Write> SweepCsv<W> {
                 .write([Field::Number(value), Field::Count(k as u64)], state)?;
         }
         Ok(())
+    }
+
+    /// Flushes and returns the inner writer.
+    pub fn finish(self) -> Result<W, ExportError> {
+        self.rows.finish()
+    }
+}
+
+/// Writes the points of a branch: `<parameter name>,stable,period,<state names>`; `stable` is
+/// `true` or `false`, `period` is empty for a resting point.
+pub struct BranchCsv<W: Write> {
+    rows: Rows<W>,
+}
+
+impl<W: Write> BranchCsv<W> {
+    /// Writes the header for the branch's parameter and `state_names`.
+    pub fn new(out: W, parameter: &str, state_names: &[String]) -> Result<Self, ExportError> {
+        Ok(Self {
+            rows: Rows::new(out, &[parameter, "stable", "period"], state_names)?,
+        })
+    }
+
+    /// Writes one point of the branch.
+    pub fn write_point(
+        &mut self,
+        value: f64,
+        stable: bool,
+        period: Option<f64>,
+        state: &[f64],
+    ) -> Result<(), ExportError> {
+        let stable = Field::Word(if stable { "true" } else { "false" });
+        let period = period.map_or(Field::Empty, Field::Number);
+        self.rows
+            .write([Field::Number(value), stable, period], state)
     }
 
     /// Flushes and returns the inner writer.

@@ -5,7 +5,7 @@ mod atomic;
 mod csv_points;
 
 pub use atomic::{AtomicFile, write_atomically, write_bytes_atomically};
-pub use csv_points::{CutCsv, StrobeCsv, SweepCsv, TrajectoryCsv, format_number};
+pub use csv_points::{BranchCsv, CutCsv, StrobeCsv, SweepCsv, TrajectoryCsv, format_number};
 
 /// Errors of an export.
 #[derive(Debug, thiserror::Error)]

@@ -4,7 +4,7 @@ use std::io::{self, ErrorKind, Write};
 
 use lamina_core::run::{CutPoint, StrobeSample};
 use lamina_export::{
-    AtomicFile, CutCsv, ExportError, StrobeCsv, format_number, write_atomically,
+    AtomicFile, BranchCsv, CutCsv, ExportError, StrobeCsv, format_number, write_atomically,
     write_bytes_atomically,
 };
 
@@ -102,6 +102,22 @@ fn strobe_csv_has_the_product_columns() {
     .expect("row");
     let text = String::from_utf8(csv.finish().expect("flush")).expect("utf8");
     assert_eq!(text, "k,t,x\n0,14.0,0.1\n");
+}
+
+#[test]
+fn branch_csv_has_the_product_columns() {
+    let names = vec!["x".to_string(), "v".to_string()];
+    let mut csv = BranchCsv::new(Vec::new(), "mu", &names).expect("header");
+    csv.write_point(0.5, true, None, &[0.0, 0.0]).expect("row");
+    csv.write_point(0.75, false, Some(6.5), &[2.0, -0.125])
+        .expect("row");
+    let text = String::from_utf8(csv.finish().expect("flush")).expect("utf8");
+    // [common practice] PRODUCT.md: `<parameter>,stable,period,<state names>`, the period
+    // empty for a resting point
+    assert_eq!(
+        text,
+        "mu,stable,period,x,v\n0.5,true,,0.0,0.0\n0.75,false,6.5,2.0,-0.125\n"
+    );
 }
 
 /// An output whose reader has gone: every write fails as a closed pipe does.

@@ -70,6 +70,10 @@ pub mod view_names {
     pub const RETURN_MAP: &str = "First-return map";
     /// The orbit diagram of a sweep.
     pub const ORBIT: &str = "Orbit diagram";
+    /// A branch of resting points over the orbit diagram.
+    pub const RESTING_BRANCH: &str = "Branch of resting points";
+    /// A branch of periodic orbits over the orbit diagram.
+    pub const ORBIT_BRANCH: &str = "Branch of periodic orbits";
 }
 
 impl Figure {

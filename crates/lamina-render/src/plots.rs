@@ -1,15 +1,16 @@
-//! The three kinds of picture: a 3D trajectory, a 2D point cloud, an orbit diagram.
+//! The 3D trajectory and the 2D point cloud, and the frame and axes every 2D picture shares.
 
+use plotters::coord::types::RangedCoordf64;
 use plotters::prelude::*;
 
 use crate::figure::{FONT, Figure, RenderError, draw_error, encode_png, register_font};
 
 const BACKGROUND: RGBColor = RGBColor(255, 255, 255);
-const INK: RGBColor = RGBColor(30, 34, 42);
-const TRACE: RGBColor = RGBColor(36, 98, 160);
+pub(crate) const INK: RGBColor = RGBColor(30, 34, 42);
+pub(crate) const TRACE: RGBColor = RGBColor(36, 98, 160);
 
 /// Lamina's ramp (deep blue to coral) for colouring by order or return time.
-fn ramp(u: f64) -> RGBColor {
+pub(crate) fn ramp(u: f64) -> RGBColor {
     let stops: [(f64, [u8; 3]); 5] = [
         (0.0, [40, 56, 140]),
         (0.3, [34, 132, 160]),
@@ -36,7 +37,7 @@ fn ramp(u: f64) -> RGBColor {
     RGBColor(228, 96, 70)
 }
 
-fn range_of(values: impl Iterator<Item = f64>) -> (f64, f64) {
+pub(crate) fn range_of(values: impl Iterator<Item = f64>) -> (f64, f64) {
     let (lo, hi) = values
         .filter(|v| v.is_finite())
         .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), v| {
@@ -68,13 +69,13 @@ fn caption_area<DB: DrawingBackend>(
     .map_err(draw_error)
 }
 
-fn font_size(figure: &Figure, fraction: f64, min: f64) -> f64 {
+pub(crate) fn font_size(figure: &Figure, fraction: f64, min: f64) -> f64 {
     (f64::from(figure.size.1) * fraction).max(min)
 }
 
 /// The PNG of `figure`: a white canvas of its size with the caption at the bottom, on which
 /// `draw` puts the rest.
-fn picture(
+pub(crate) fn picture(
     figure: &Figure,
     draw: impl FnOnce(
         &DrawingArea<BitMapBackend<'_>, plotters::coord::Shift>,
@@ -94,6 +95,64 @@ fn picture(
     encode_png(buffer, figure.size)
 }
 
+/// The chart of a 2D picture: its title, axes with labels and light grid lines, over the
+/// range of `points`.
+pub(crate) type Chart<'a, 'b> =
+    ChartContext<'a, BitMapBackend<'b>, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
+
+/// Draws the title and the axes of a 2D picture over the range of `points`.
+pub(crate) fn axes<'a, 'b>(
+    figure: &Figure,
+    body: &'a DrawingArea<BitMapBackend<'b>, plotters::coord::Shift>,
+    points: &[(f64, f64)],
+) -> Result<Chart<'a, 'b>, RenderError> {
+    let (w, h) = figure.size;
+    let (x0, x1) = range_of(points.iter().map(|p| p.0));
+    let (y0, y1) = range_of(points.iter().map(|p| p.1));
+    let mut chart = ChartBuilder::on(body)
+        .caption(
+            &figure.title,
+            (FONT, font_size(figure, 0.035, 14.0))
+                .into_font()
+                .color(&INK),
+        )
+        .x_label_area_size((f64::from(h) * 0.08) as u32)
+        .y_label_area_size((f64::from(w) * 0.09) as u32)
+        .build_cartesian_2d(x0..x1, y0..y1)
+        .map_err(draw_error)?;
+    chart
+        .configure_mesh()
+        .x_desc(&figure.x_label)
+        .y_desc(&figure.y_label)
+        .label_style(
+            (FONT, font_size(figure, 0.02, 11.0))
+                .into_font()
+                .color(&INK),
+        )
+        .axis_desc_style(
+            (FONT, font_size(figure, 0.025, 12.0))
+                .into_font()
+                .color(&INK),
+        )
+        .light_line_style(RGBColor(236, 238, 242))
+        .draw()
+        .map_err(draw_error)?;
+    Ok(chart)
+}
+
+/// The drawing area of a 2D picture inside its margins.
+pub(crate) fn body<'b>(
+    figure: &Figure,
+    root: &DrawingArea<BitMapBackend<'b>, plotters::coord::Shift>,
+) -> DrawingArea<BitMapBackend<'b>, plotters::coord::Shift> {
+    root.margin(8, (font_size(figure, 0.05, 20.0)) as u32, 8, 16)
+}
+
+/// Radius of the dots of a scatter of `n` points.
+pub(crate) fn dot_radius(n: usize) -> i32 {
+    if n > 20_000 { 1 } else { 2 }
+}
+
 /// A 2D scatter of `points`, coloured by `colour_keys` (order or return time) if given.
 pub fn scatter_png(
     figure: &Figure,
@@ -101,40 +160,10 @@ pub fn scatter_png(
     colour_keys: Option<&[f64]>,
 ) -> Result<Vec<u8>, RenderError> {
     picture(figure, |root| {
-        let (w, h) = figure.size;
-        let body = root.margin(8, (font_size(figure, 0.05, 20.0)) as u32, 8, 16);
-        let (x0, x1) = range_of(points.iter().map(|p| p.0));
-        let (y0, y1) = range_of(points.iter().map(|p| p.1));
-        let mut chart = ChartBuilder::on(&body)
-            .caption(
-                &figure.title,
-                (FONT, font_size(figure, 0.035, 14.0))
-                    .into_font()
-                    .color(&INK),
-            )
-            .x_label_area_size((f64::from(h) * 0.08) as u32)
-            .y_label_area_size((f64::from(w) * 0.09) as u32)
-            .build_cartesian_2d(x0..x1, y0..y1)
-            .map_err(draw_error)?;
-        chart
-            .configure_mesh()
-            .x_desc(&figure.x_label)
-            .y_desc(&figure.y_label)
-            .label_style(
-                (FONT, font_size(figure, 0.02, 11.0))
-                    .into_font()
-                    .color(&INK),
-            )
-            .axis_desc_style(
-                (FONT, font_size(figure, 0.025, 12.0))
-                    .into_font()
-                    .color(&INK),
-            )
-            .light_line_style(RGBColor(236, 238, 242))
-            .draw()
-            .map_err(draw_error)?;
+        let body = body(figure, root);
+        let mut chart = axes(figure, &body, points)?;
         let (klo, khi) = colour_keys.map_or((0.0, 1.0), |k| range_of(k.iter().copied()));
-        let radius = if points.len() > 20_000 { 1 } else { 2 };
+        let radius = dot_radius(points.len());
         chart
             .draw_series(points.iter().enumerate().map(|(i, &(x, y))| {
                 let colour = match colour_keys {
@@ -232,30 +261,6 @@ pub fn split_where_it_wraps(
         }
     }
     pieces
-}
-
-/// An orbit diagram: for each parameter value, its kept points of one coordinate;
-/// `periods` (one per column, 0 for none found) colour the columns.
-pub fn orbit_diagram_png(
-    figure: &Figure,
-    columns: &[(f64, Vec<f64>)],
-    periods: Option<&[usize]>,
-) -> Result<Vec<u8>, RenderError> {
-    let mut points = Vec::new();
-    let mut keys = Vec::new();
-    for (idx, (value, coords)) in columns.iter().enumerate() {
-        for &c in coords {
-            points.push((*value, c));
-            keys.push(match periods {
-                Some(p) => match p.get(idx).copied().unwrap_or(0) {
-                    0 => 1.0,
-                    k => (k as f64 - 1.0).min(11.0) / 12.0,
-                },
-                None => 0.0,
-            });
-        }
-    }
-    scatter_png(figure, &points, periods.map(|_| keys.as_slice()))
 }
 
 #[cfg(test)]

@@ -1,10 +1,11 @@
 //! Periodic orbits: the variational equations, the cut and strobe maps with their Jacobians,
-//! recurrence in a point cloud, Newton refinement of a period-k point, and the multipliers
-//! with the stability verdict.
+//! Newton refinement of an orbit of k returns (checked to need all k), and the multipliers
+//! with the stability verdict and margin.
 //!
-//! Use: [`find_recurrence`] on the settled cut points or strobe samples gives k (or says there
-//! is none); [`close_returns`] picks seeds; [`find_cycle`] refines a seed with Newton's method
-//! on a [`FlowMap`] and measures the orbit into a [`CycleReport`]. All of it is plain
+//! Use: [`crate::recurrence::find_recurrence`] on the settled cut points or strobe samples
+//! gives k (or says there is none); [`crate::recurrence::close_returns`] picks seeds;
+//! [`find_cycle`] refines the seeds with Newton's method on a [`FlowMap`], checks that the
+//! orbit found needs all k returns, and measures it into a [`CycleReport`]. All of it is plain
 //! functions over plain data, so the command line and a window panel call the same code.
 //!
 //! A cut of a forced model (one whose rates or cut surface use `t`) is refused: its return map
@@ -16,17 +17,19 @@ mod cut_map;
 mod differences;
 mod error;
 mod flow_map;
-mod linalg;
+pub(crate) mod linalg;
 mod newton;
-mod recurrence;
 mod report;
+mod search;
 mod spectrum;
 mod variational;
 
 pub use error::CycleError;
 pub use flow_map::{FlowMap, MapImage, MapKind, MapPoint, MapSettings};
 pub use newton::{NewtonSettings, Refined, refine};
-pub use recurrence::{CloseReturn, Recurrence, RecurrenceSettings, close_returns, find_recurrence};
-pub use report::{CycleReport, MapChoice, find_cycle};
-pub use spectrum::{Loss, Multiplier, Nearest, Number, UNIT_CIRCLE_BAND, Verdict, multipliers};
+pub use report::{CycleReport, MapChoice};
+pub use search::{FewerReturns, Search, find_cycle, least_returns};
+pub use spectrum::{
+    Loss, Multiplier, NEAR_CIRCLE, Number, Outlook, UNIT_CIRCLE_BAND, Verdict, multipliers,
+};
 pub use variational::Variational;

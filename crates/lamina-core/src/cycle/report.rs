@@ -1,9 +1,10 @@
 //! The periodic-orbit report: Newton's point measured (period, multipliers of the map, Floquet
-//! multipliers, verdict), and the search that tries seeds in turn.
+//! multipliers, verdict, stability margin).
 
 use super::flow_map::{FlowMap, MapPoint};
-use super::newton::{NewtonSettings, Refined, refine};
-use super::spectrum::{Multiplier, Nearest, Verdict, multipliers};
+use super::newton::Refined;
+use super::search::Search;
+use super::spectrum::{Multiplier, Outlook, Verdict, multipliers};
 use super::{CycleError, linalg};
 
 /// Which map an orbit was found on.
@@ -20,7 +21,8 @@ pub enum MapChoice {
 pub struct CycleReport {
     /// The map the orbit is a fixed point of (after `k` applications).
     pub map: MapChoice,
-    /// Returns per period (the orbit is a period-k point of the map).
+    /// Returns per period: the least number of returns after which the orbit closes (never
+    /// an orbit of fewer returns run several times; see [`Search`]).
     pub k: usize,
     /// The total time of the `k` returns.
     pub period: f64,
@@ -47,8 +49,12 @@ pub struct CycleReport {
     pub from_differences: bool,
     /// Stable, unstable (with the number of unstable directions) or neutral.
     pub verdict: Verdict,
-    /// The multiplier nearest the unit circle and how stability would change there.
-    pub nearest: Option<Nearest>,
+    /// The stability margin: how far inside the unit circle, how stability would be lost
+    /// where a multiplier is close to it, or how strongly the orbit repels.
+    pub outlook: Outlook,
+    /// How the search went: the returns asked for and the seeds set aside because they
+    /// closed after fewer returns.
+    pub search: Search,
 }
 
 impl CycleReport {
@@ -83,7 +89,8 @@ impl CycleReport {
         } else {
             (MapChoice::Strobe, multipliers(&image.jacobian, n)?, None)
         };
-        let mut orbit = Vec::with_capacity(image.orbit.len());
+        let image_k = image.orbit.len();
+        let mut orbit = Vec::with_capacity(image_k);
         orbit.push(point.clone());
         orbit.extend(
             image
@@ -94,18 +101,19 @@ impl CycleReport {
         );
         Ok(Self {
             map: choice,
-            k: image.orbit.len(),
+            k: image_k,
             period: image.t - image.t_start,
             point,
             orbit,
             verdict: Verdict::of(&map_multipliers),
-            nearest: Nearest::of(&map_multipliers),
+            outlook: Outlook::of(&map_multipliers),
             multipliers: map_multipliers,
             floquet,
             monodromy: image.monodromy,
             residual,
             iterations,
             from_differences: map.uses_differences(),
+            search: Search::direct(image_k),
         })
     }
 
@@ -113,32 +121,10 @@ impl CycleReport {
     pub fn is_stable(&self) -> bool {
         self.verdict.is_stable()
     }
-}
 
-/// Looks for a point of period `k` of `map` from each seed in turn (closest return first, as
-/// [`super::close_returns`] orders them) and reports the first orbit found.
-///
-/// # Errors
-/// [`CycleError::NoSeed`] without seeds; otherwise, when every seed fails, the failure of the
-/// first seed.
-pub fn find_cycle(
-    map: &mut FlowMap,
-    seeds: &[MapPoint],
-    k: usize,
-    settings: &NewtonSettings,
-) -> Result<CycleReport, CycleError> {
-    if k == 0 {
-        return Err(CycleError::ZeroReturns);
+    /// A sentence on how the search went when it did not simply find what was asked (an
+    /// orbit of fewer returns, or seeds set aside because theirs closed early).
+    pub fn search_note(&self) -> Option<String> {
+        self.search.note(self.k)
     }
-    let mut first_error = None;
-    for seed in seeds {
-        match refine(map, seed, k, settings).and_then(|refined| CycleReport::measure(map, refined))
-        {
-            Ok(report) => return Ok(report),
-            Err(err) => {
-                first_error.get_or_insert(err);
-            }
-        }
-    }
-    Err(first_error.unwrap_or(CycleError::NoSeed))
 }

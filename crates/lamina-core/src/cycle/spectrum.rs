@@ -1,5 +1,6 @@
 //! Multipliers of a periodic orbit and what they say: the stability verdict, and the
-//! multiplier nearest the unit circle with the way stability would be lost there.
+//! stability margin (how far inside the unit circle, or how stability would be lost where it is
+//! close).
 
 use std::fmt;
 
@@ -173,41 +174,186 @@ impl fmt::Display for Loss {
         match self {
             Self::ThroughPlusOne => write!(f, "through +1 (fold-like: orbits meet and vanish)"),
             Self::ThroughMinusOne => write!(f, "through -1 (period doubling)"),
-            Self::ComplexPair => write!(f, "a complex pair (torus birth: a second frequency)"),
+            Self::ComplexPair => write!(
+                f,
+                "through the circle as a complex pair (torus birth: a second frequency)"
+            ),
         }
     }
 }
 
-/// The multiplier nearest the unit circle.
+/// A stable orbit whose largest multiplier has a modulus of at least `1 - NEAR_CIRCLE` is
+/// close to losing its stability: small changes of a parameter can carry that multiplier
+/// across the unit circle. Below it the orbit is comfortably stable.
+pub const NEAR_CIRCLE: f64 = 0.1;
+
+/// What the multipliers say about the orbit's stability margin, in words an engineer can use:
+/// how far from the unit circle a stable orbit is, how stability would be lost where that is
+/// close, or how strongly an unstable orbit repels.
+///
+/// How stability would be lost is only said where it means something: for a stable orbit
+/// with a multiplier close to the circle. For an unstable orbit, or a stable one far inside
+/// the circle, the multiplier nearest the circle says nothing about it.
 #[derive(Clone, Copy, Debug, PartialEq)]
-pub struct Nearest {
-    /// The multiplier.
-    pub multiplier: Multiplier,
-    /// `|m| - 1`: negative inside the circle.
-    pub distance: f64,
-    /// How stability would change if it reached the circle here.
-    pub loss: Loss,
+pub enum Outlook {
+    /// Stable with every multiplier well inside the unit circle.
+    WellInside {
+        /// The multiplier of largest modulus.
+        largest: Multiplier,
+    },
+    /// Stable, but a multiplier lies within [`NEAR_CIRCLE`] of the unit circle.
+    NearCircle {
+        /// The multiplier of largest modulus.
+        largest: Multiplier,
+        /// How stability would be lost if it reached the circle.
+        loss: Loss,
+    },
+    /// Neutral: a multiplier on the unit circle (within [`UNIT_CIRCLE_BAND`]), none outside.
+    OnCircle {
+        /// The multiplier of largest modulus.
+        largest: Multiplier,
+    },
+    /// Unstable: some multipliers outside the unit circle.
+    Unstable {
+        /// The multiplier of largest modulus.
+        largest: Multiplier,
+        /// Multipliers outside the circle.
+        n_unstable: usize,
+    },
+    /// No multipliers to judge (a cut map of a model with one state).
+    NoMultipliers,
 }
 
-impl Nearest {
-    /// The multiplier of `multipliers` nearest the unit circle; `None` for an empty list.
-    pub fn of(multipliers: &[Multiplier]) -> Option<Self> {
-        let nearest = multipliers.iter().min_by(|p, q| {
-            (p.modulus() - 1.0)
-                .abs()
-                .total_cmp(&(q.modulus() - 1.0).abs())
-        })?;
-        let loss = if !nearest.is_real() {
-            Loss::ComplexPair
-        } else if nearest.re >= 0.0 {
-            Loss::ThroughPlusOne
-        } else {
-            Loss::ThroughMinusOne
+impl Outlook {
+    /// The outlook for these multipliers (in any order).
+    pub fn of(multipliers: &[Multiplier]) -> Self {
+        let Some(largest) = multipliers
+            .iter()
+            .copied()
+            .max_by(|p, q| p.modulus().total_cmp(&q.modulus()))
+        else {
+            return Self::NoMultipliers;
         };
-        Some(Self {
-            multiplier: *nearest,
-            distance: nearest.modulus() - 1.0,
-            loss,
-        })
+        match Verdict::of(multipliers) {
+            Verdict::Unstable { n_unstable } => Self::Unstable {
+                largest,
+                n_unstable,
+            },
+            Verdict::Neutral { .. } => Self::OnCircle { largest },
+            Verdict::Stable if largest.modulus() >= 1.0 - NEAR_CIRCLE => Self::NearCircle {
+                largest,
+                loss: Loss::at(&largest),
+            },
+            Verdict::Stable => Self::WellInside { largest },
+        }
+    }
+
+    /// How stability would be lost, where that is meaningful (a stable orbit close to the
+    /// circle).
+    pub fn loss(&self) -> Option<Loss> {
+        match self {
+            Self::NearCircle { loss, .. } => Some(*loss),
+            _ => None,
+        }
+    }
+}
+
+impl fmt::Display for Outlook {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Self::WellInside { largest } => write!(
+                f,
+                "all multipliers well inside the unit circle (largest |m| = {})",
+                Number(largest.modulus())
+            ),
+            Self::NearCircle { largest, loss } => write!(
+                f,
+                "close to the unit circle: m = {largest} (|m| = {}); stability would be lost \
+                 there {loss}",
+                Number(largest.modulus())
+            ),
+            Self::OnCircle { largest } => write!(
+                f,
+                "on the unit circle: m = {largest} (|m| = {}); the linear terms do not decide \
+                 stability",
+                Number(largest.modulus())
+            ),
+            Self::Unstable {
+                largest,
+                n_unstable: 1,
+            } => write!(
+                f,
+                "unstable: |m| = {} (m = {largest})",
+                Number(largest.modulus())
+            ),
+            Self::Unstable {
+                largest,
+                n_unstable,
+            } => write!(
+                f,
+                "unstable: {n_unstable} multipliers outside the unit circle, the largest |m| = \
+                 {} (m = {largest})",
+                Number(largest.modulus())
+            ),
+            Self::NoMultipliers => write!(f, "no multipliers to judge"),
+        }
+    }
+}
+
+impl Loss {
+    /// The way a multiplier `m` would cross the unit circle.
+    pub fn at(m: &Multiplier) -> Self {
+        if !m.is_real() {
+            Self::ComplexPair
+        } else if m.re >= 0.0 {
+            Self::ThroughPlusOne
+        } else {
+            Self::ThroughMinusOne
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn real(re: f64) -> Multiplier {
+        Multiplier { re, im: 0.0 }
+    }
+
+    #[test]
+    fn the_outlook_names_the_loss_only_near_the_circle() {
+        // [analytic] an unstable orbit with a tiny second multiplier: the tiny one says
+        // nothing about how stability is lost
+        let outlook = Outlook::of(&[real(5.78), real(-2e-12)]);
+        assert!(matches!(outlook, Outlook::Unstable { n_unstable: 1, .. }));
+        assert_eq!(outlook.loss(), None);
+        let text = outlook.to_string();
+        assert!(text.starts_with("unstable: |m| = 5.78"), "{text}");
+        assert!(!text.contains("-1") && !text.contains("doubling"), "{text}");
+        // [analytic] a stable orbit far inside the circle
+        let outlook = Outlook::of(&[real(1.86744273171e-3)]);
+        assert!(matches!(outlook, Outlook::WellInside { .. }));
+        assert!(outlook.to_string().contains("well inside"), "{outlook}");
+        // [analytic] a stable orbit with a multiplier near -1 would lose stability by period
+        // doubling, near +1 by a fold, a complex pair by a torus birth
+        assert_eq!(
+            Outlook::of(&[real(-0.95), real(0.1)]).loss(),
+            Some(Loss::ThroughMinusOne)
+        );
+        assert_eq!(
+            Outlook::of(&[real(0.97)]).loss(),
+            Some(Loss::ThroughPlusOne)
+        );
+        let pair = [
+            Multiplier { re: 0.6, im: 0.75 },
+            Multiplier { re: 0.6, im: -0.75 },
+        ];
+        assert_eq!(Outlook::of(&pair).loss(), Some(Loss::ComplexPair));
+        assert!(matches!(
+            Outlook::of(&[real(1.0)]),
+            Outlook::OnCircle { .. }
+        ));
+        assert_eq!(Outlook::of(&[]), Outlook::NoMultipliers);
     }
 }

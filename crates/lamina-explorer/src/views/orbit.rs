@@ -1,25 +1,24 @@
 //! The orbit-diagram view: for each parameter value of a sweep its kept points of one
-//! coordinate, coloured by repeat period, filling in live; the model's current value marked;
-//! a click picks a value.
+//! coordinate, coloured by the recurrence detector's label (the colours of the PNG export and
+//! of `lamina sweep --png`), filling in live; the model's current value marked; a click picks
+//! a value.
 
 use egui::{Color32, Mesh, Rect, Ui, vec2};
 use egui_plot::{Plot, PlotPoint, PlotPoints, Points};
+use lamina_core::recurrence::RecurrenceKind;
 use lamina_core::sweep::SweepColumn;
 
-use super::palette::ramp;
-
-/// Colour of a repeat period: 1 deep blue, 2 teal, 4 green, 8 sand..., none coral.
-pub fn period_colour(period: Option<usize>) -> Color32 {
-    match period {
-        Some(k) => ramp(((k as f32).log2() / 4.0).min(0.85)),
-        None => ramp(1.0),
-    }
+/// Colour of a label: orbits of 1, 2, 4, 8 returns deep blue, teal, green, sand; no repeat
+/// coral; not settled grey.
+pub fn recurrence_colour(kind: RecurrenceKind) -> Color32 {
+    let [r, g, b] = lamina_render::recurrence_colour(kind);
+    Color32::from_rgb(r, g, b)
 }
 
 /// Draws the diagram; returns the parameter value clicked, if any.
 pub fn orbit_diagram_ui(
     ui: &mut Ui,
-    columns: &[(SweepColumn, Option<usize>)],
+    columns: &[(SweepColumn, RecurrenceKind)],
     coordinate: usize,
     labels: (&str, &str),
     current: Option<f64>,
@@ -62,8 +61,8 @@ pub fn orbit_diagram_ui(
     let frame = *transform.frame();
     let painter = ui.painter_at(frame);
     let mut mesh = Mesh::default();
-    for (c, period) in columns {
-        let colour = period_colour(*period);
+    for (c, kind) in columns {
+        let colour = recurrence_colour(*kind);
         for p in &c.points {
             let y = p.get(coordinate).copied().unwrap_or(f64::NAN);
             let at = transform.position_from_point(&PlotPoint::new(c.value, y));
