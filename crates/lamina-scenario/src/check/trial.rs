@@ -38,12 +38,17 @@ impl Sink for FirstSteps<'_> {
     }
 }
 
-/// The time where a stop reason says the step size collapsed, if it does.
-fn collapsed_at(reason: StopReason) -> Option<f64> {
-    match reason {
-        StopReason::StepTooSmall { t } => Some(t),
-        _ => None,
-    }
+/// Whether a run that stopped for `reason` stopped because its steps collapsed: trouble that
+/// is not an escape, a value that is not a number or chattering (so a core that names a
+/// collapse lost to the time's resolution on its own counts too).
+fn collapsed(reason: StopReason) -> bool {
+    reason.is_trouble()
+        && !matches!(
+            reason,
+            StopReason::Escaped { .. }
+                | StopReason::NotFinite { .. }
+                | StopReason::Chattering { .. }
+        )
 }
 
 impl Checker<'_> {
@@ -74,8 +79,10 @@ impl Checker<'_> {
         };
         let mut run = Run::new(model, spec, cut, strobe, false);
         let outcome = run.execute(&mut sink, &interrupt);
-        if let Some(t) = collapsed_at(outcome.reason) {
-            return Some(Trial::Collapsed { t });
+        if collapsed(outcome.reason) {
+            return Some(Trial::Collapsed {
+                t: outcome.t_reached,
+            });
         }
         let n_steps = outcome.stats.n_accepted;
         match outcome.reason {
