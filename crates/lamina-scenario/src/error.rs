@@ -62,7 +62,8 @@ pub enum ScenarioError {
         source: std::io::Error,
     },
     /// The text is not a well-formed scenario in RON: a syntax error, an unknown or missing field,
-    /// or a value of the wrong type.
+    /// a value of the wrong type or too large for its field, brackets nested deeper than a
+    /// scenario can use, or bytes that are not UTF-8 text.
     #[error("{location}: {message}")]
     Syntax {
         /// Where the parser stopped.

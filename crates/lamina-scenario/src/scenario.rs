@@ -10,6 +10,7 @@ use serde::de::{MapAccess, Visitor};
 use serde::ser::SerializeMap;
 use serde::{Deserialize, Deserializer, Serialize, Serializer};
 
+use crate::number::Short;
 use crate::source::SourceMap;
 
 /// The scenario format this version of Lamina writes (and reads, besides [`OLDEST_FORMAT`]).
@@ -410,7 +411,7 @@ impl Scenario {
     }
 
     /// One line for a picture's caption: the parameter values with their units, the recorded
-    /// time window and the tolerances.
+    /// time window and the tolerances, numbers in short form.
     pub fn caption(&self) -> String {
         let params: Vec<String> = self
             .parameters
@@ -427,8 +428,8 @@ impl Scenario {
         format!(
             "{}   |   t from {} to {}{unit}, rtol {:e}, atol {:e}",
             params.join(", "),
-            t0,
-            t0 + self.time.span,
+            Short(t0),
+            Short(t0 + self.time.span),
             self.integrator.rtol,
             self.integrator.atol
         )
@@ -498,10 +499,10 @@ fn label(name: &str, unit: Option<&str>) -> String {
     }
 }
 
-/// `0.3 N`, or `0.3` without a unit.
+/// `0.3 N`, or `0.3` without a unit (numbers in short form: `1e308`, not 309 digits).
 fn with_unit(value: f64, unit: Option<&str>) -> String {
     match unit {
-        Some(unit) if !unit.trim().is_empty() => format!("{value} {unit}"),
-        _ => value.to_string(),
+        Some(unit) if !unit.trim().is_empty() => format!("{} {unit}", Short(value)),
+        _ => Short(value).to_string(),
     }
 }

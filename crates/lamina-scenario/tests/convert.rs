@@ -193,4 +193,12 @@ fn labels_carry_units() {
         minimal.caption(),
         "c = 0.2   |   t from 0 to 50, rtol 1e-8, atol 1e-10"
     );
+    // very large and small numbers in short form, not hundreds of digits
+    let mut extreme = minimal;
+    extreme.parameters[0].value = 1e308;
+    extreme.time.start = 1e-300;
+    assert_eq!(
+        extreme.caption(),
+        "c = 1e308   |   t from 1e-300 to 50, rtol 1e-8, atol 1e-10"
+    );
 }

@@ -262,9 +262,9 @@ fn malformed_files_give_located_errors_naming_the_field() {
             "values: 301",
             "values: -3",
             23,
-            63,
+            62,
             Some("sweep.values"),
-            "sweep.values: expected a whole number",
+            "sweep.values: must be 0 or more, not -3",
         ),
         (
             "fractional count",

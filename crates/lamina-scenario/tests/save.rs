@@ -241,6 +241,52 @@ fn positive() -> impl Strategy<Value = f64> {
     ]
 }
 
+/// A relative tolerance: positive and below 1.
+fn relative() -> impl Strategy<Value = f64> {
+    prop_oneof![
+        3 => 1e-15..0.99f64,
+        1 => prop::sample::select(vec![0.5, 1e-300, 5e-324, 1e-12, f64::MIN_POSITIVE]),
+    ]
+}
+
+/// `length` made long enough to survive rounding after `t` (a thousand units in the last
+/// place of `t` or more), so that a window of any magnitude stays valid.
+fn resolvable(t: f64, length: f64) -> f64 {
+    if length == 0.0 {
+        0.0
+    } else {
+        length.max(t.abs() * 1e-12)
+    }
+}
+
+/// Repairs the few combinations of extreme numbers that make a scenario meaningless: windows
+/// lost in rounding, a step limit below the time's resolution, an absolute tolerance beyond
+/// the escape size.
+fn keep_meaningful(scenario: &mut Scenario) {
+    let start = scenario.time.start;
+    scenario.time.settle = resolvable(start, scenario.time.settle);
+    let record = start + scenario.time.settle;
+    scenario.time.span = resolvable(record, scenario.time.span);
+    let mut t_far = (record + scenario.time.span).abs().max(start.abs());
+    if let Some(sweep) = &mut scenario.sweep {
+        sweep.settle = resolvable(start, sweep.settle);
+        let record = start + sweep.settle;
+        scenario.time.span = resolvable(record, scenario.time.span);
+        t_far = t_far.max((record + scenario.time.span).abs());
+    }
+    if let Some(map) = &mut scenario.map {
+        map.settle = resolvable(start, map.settle);
+        map.span = resolvable(start + map.settle, map.span);
+        t_far = t_far.max((start + map.settle + map.span).abs());
+    }
+    if let Some(max_step) = &mut scenario.integrator.max_step {
+        *max_step = max_step.max(t_far * 1e-12);
+    }
+    if scenario.integrator.atol >= scenario.limits.escape {
+        scenario.limits.escape = scenario.integrator.atol * 2.0;
+    }
+}
+
 fn not_negative() -> impl Strategy<Value = f64> {
     prop_oneof![positive(), Just(0.0)]
 }
@@ -332,7 +378,7 @@ fn scenario() -> impl Strategy<Value = Scenario> {
                     MethodChoice::Dp853,
                     MethodChoice::Stiff,
                 ]),
-                positive(),
+                relative(),
                 positive(),
                 prop::option::of(positive()),
             )
@@ -536,6 +582,7 @@ fn scenario() -> impl Strategy<Value = Scenario> {
                         scenario.strobe = strobe;
                         scenario.limits = limits;
                         scenario.view = view;
+                        keep_meaningful(&mut scenario);
                         scenario
                     },
                 )

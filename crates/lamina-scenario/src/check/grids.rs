@@ -2,6 +2,7 @@
 //! parameter) and the regime map (two).
 
 use super::{Checker, name_list};
+use crate::number::Short;
 use crate::scenario::{MapAxis, SweepSource};
 
 impl Checker<'_> {
@@ -30,7 +31,10 @@ impl Checker<'_> {
         if self.finite(&format!("{block}.to"), to) && from_ok && from == to {
             self.error(
                 &format!("{block}.to"),
-                format!("{what} must end at another value than it starts ({from})"),
+                format!(
+                    "{what} must end at another value than it starts ({})",
+                    Short(from)
+                ),
             );
         }
         if values < 2 {

@@ -1,5 +1,6 @@
 //! Semantic checks of a scenario: every problem with its field path and, when the scenario
-//! was loaded from text, its line and column.
+//! was loaded from text, its line and column. Numbers in messages are in their short form
+//! ([`Short`]).
 //!
 //! Range policy: a parameter range with `low >= high` is an error (no slider can be built
 //! from it, and it is almost always a typo), while a value outside its range is only a
@@ -13,13 +14,21 @@ use lamina_core::model::{Model, ModelSpec};
 use lamina_core::run::{Cut as CoreCut, CutSpec, SpecError, Strobe as CoreStrobe, SurfaceSpec};
 
 use crate::error::{Problem, Severity};
+use crate::number::Short;
 use crate::scenario::{FORMAT, Scenario, Surface};
 
 mod grids;
+mod integration;
+mod start;
+mod time_window;
+mod trial;
 
 impl Scenario {
     /// Every problem of the scenario, errors and warnings, in file order of the checks.
-    /// Compiles every expression (rates, level surface, strobe period).
+    /// Compiles every expression (rates, level surface, strobe period) and evaluates them at
+    /// the start state, where a rate or surface that is not a number, or a surface that never
+    /// changes, is found before any run; and estimates the model's time scale to warn when
+    /// the time is too far from 0 for steps of that size.
     pub fn check(&self) -> Vec<Problem> {
         Checker::new(self, true).run()
     }
@@ -67,6 +76,10 @@ struct Checker<'a> {
     /// The model with its real rates, or with rates `0` if those do not compile; `None` until
     /// compiled or when names are broken.
     model: Option<Model>,
+    /// Whether `model` has the scenario's own rates.
+    rates_compiled: bool,
+    /// The strobe, once its period compiled to a positive number.
+    strobe: Option<CoreStrobe>,
 }
 
 impl<'a> Checker<'a> {
@@ -77,6 +90,8 @@ impl<'a> Checker<'a> {
             problems: Vec::new(),
             names_ok: true,
             model: None,
+            rates_compiled: false,
+            strobe: None,
         }
     }
 
@@ -98,6 +113,7 @@ impl<'a> Checker<'a> {
         self.map();
         self.limits();
         self.view();
+        self.time_resolution();
         self.problems
     }
 
@@ -149,6 +165,13 @@ impl<'a> Checker<'a> {
                     self.expression_error(field, string_path, e);
                 }
             }
+            SpecError::BadPeriod { expression, value } => {
+                let message = format!(
+                    "the strobe period '{expression}' evaluates to {}, not a positive number",
+                    describe_value(*value)
+                );
+                self.error(field, message);
+            }
             other => self.error(field, other.to_string()),
         }
     }
@@ -157,7 +180,10 @@ impl<'a> Checker<'a> {
         if value.is_finite() {
             true
         } else {
-            self.error(field, format!("must be a finite number, not {value}"));
+            self.error(
+                field,
+                format!("must be a finite number, not {}", Short(value)),
+            );
             false
         }
     }
@@ -166,7 +192,10 @@ impl<'a> Checker<'a> {
         if value.is_finite() && value > 0.0 {
             true
         } else {
-            self.error(field, format!("must be a positive number, not {value}"));
+            self.error(
+                field,
+                format!("must be a positive number, not {}", Short(value)),
+            );
             false
         }
     }
@@ -177,7 +206,7 @@ impl<'a> Checker<'a> {
         } else {
             self.error(
                 field,
-                format!("must be 0 or a positive number, not {value}"),
+                format!("must be 0 or a positive number, not {}", Short(value)),
             );
             false
         }
@@ -240,24 +269,24 @@ impl<'a> Checker<'a> {
         }
         for (idx, parameter) in scenario.parameters.iter().enumerate() {
             let value_ok = self.finite(&format!("parameters[{idx}].value"), parameter.value);
-            let (low, high) = parameter.range;
+            let (low, high) = (Short(parameter.range.0), Short(parameter.range.1));
             let field = format!("parameters[{idx}].range");
-            if !low.is_finite() || !high.is_finite() {
+            if !low.0.is_finite() || !high.0.is_finite() {
                 self.error(
                     &field,
                     format!("the range ({low}, {high}) must be two finite numbers"),
                 );
-            } else if low >= high {
+            } else if low.0 >= high.0 {
                 self.error(
                     &field,
                     format!(
                         "the range ({low}, {high}) must have its low end first, below its high end"
                     ),
                 );
-            } else if value_ok && !(low..=high).contains(&parameter.value) {
+            } else if value_ok && !(low.0..=high.0).contains(&parameter.value) {
                 let message = format!(
                     "the value {} is outside the range ({low}, {high}); the slider will be widened to include it",
-                    parameter.value
+                    Short(parameter.value)
                 );
                 self.warning(&format!("parameters[{idx}].value"), message);
             }
@@ -273,7 +302,11 @@ impl<'a> Checker<'a> {
         let scenario = self.scenario;
         let spec = scenario.model_spec();
         match Model::compile(&spec) {
-            Ok(model) => self.model = Some(model),
+            Ok(model) => {
+                self.model = Some(model);
+                self.rates_compiled = true;
+                self.rates_at_start();
+            }
             Err(err) => {
                 self.rate_errors(&err);
                 let mut placeholder: ModelSpec = spec;
@@ -309,39 +342,6 @@ impl<'a> Checker<'a> {
                 }
                 None => self.error("states", e.to_string()),
             }
-        }
-    }
-
-    fn integrator(&mut self) {
-        let integrator = &self.scenario.integrator;
-        if self.positive("integrator.rtol", integrator.rtol)
-            && integrator.rtol < 100.0 * f64::EPSILON
-        {
-            // [common practice] relative accuracy below about 100 machine epsilons cannot be
-            // met in double precision; the step size collapses instead.
-            let message = format!(
-                "rtol {} is below what double precision can deliver (about {:e}); the step size may collapse",
-                integrator.rtol,
-                100.0 * f64::EPSILON
-            );
-            self.warning("integrator.rtol", message);
-        }
-        self.positive("integrator.atol", integrator.atol);
-        if let Some(max_step) = integrator.max_step {
-            self.positive("integrator.max_step", max_step);
-        }
-    }
-
-    fn time(&mut self) {
-        let time = &self.scenario.time;
-        let start_ok = self.finite("time.start", time.start);
-        let settle_ok = self.not_negative("time.settle", time.settle);
-        let span_ok = self.positive("time.span", time.span);
-        if start_ok && settle_ok && span_ok && !(time.start + time.settle + time.span).is_finite() {
-            self.error(
-                "time.span",
-                "the run would end beyond the largest representable time".to_owned(),
-            );
         }
     }
 
@@ -390,8 +390,9 @@ impl<'a> Checker<'a> {
                         surface: SurfaceSpec::Level(expression.clone()),
                         direction: cut.direction.into(),
                     };
-                    if let Err(err) = CoreCut::compile(&spec, model) {
-                        self.spec_error("cut.surface", "cut.surface.0", &err);
+                    match CoreCut::compile(&spec, model) {
+                        Ok(compiled) => self.level_surface(expression, compiled),
+                        Err(err) => self.spec_error("cut.surface", "cut.surface.0", &err),
                     }
                 }
             }
@@ -407,9 +408,11 @@ impl<'a> Checker<'a> {
         if self.expressions
             && self.names_ok
             && let (Some(model), Some(spec)) = (&self.model, self.scenario.strobe_spec())
-            && let Err(err) = CoreStrobe::compile(&spec, model)
         {
-            self.spec_error("strobe.period", "strobe.period", &err);
+            match CoreStrobe::compile(&spec, model) {
+                Ok(compiled) => self.strobe = Some(compiled),
+                Err(err) => self.spec_error("strobe.period", "strobe.period", &err),
+            }
         }
         self.finite("strobe.first_at", strobe.first_at);
         self.state_ref("strobe.axes.0", &strobe.axes.0);
@@ -424,7 +427,7 @@ impl<'a> Checker<'a> {
         if limits.escape.is_nan() || limits.escape <= 0.0 {
             self.error(
                 "limits.escape",
-                format!("must be a positive number, not {}", limits.escape),
+                format!("must be a positive number, not {}", Short(limits.escape)),
             );
         }
     }
@@ -440,7 +443,10 @@ impl<'a> Checker<'a> {
             {
                 self.error(
                     "view.camera.pitch_deg",
-                    format!("must be between -90 and 90, not {}", camera.pitch_deg),
+                    format!(
+                        "must be between -90 and 90, not {}",
+                        Short(camera.pitch_deg)
+                    ),
                 );
             }
             self.positive("view.camera.zoom", camera.zoom);
@@ -477,7 +483,17 @@ impl<'a> Checker<'a> {
     }
 }
 
-/// What is wrong with a state or parameter name, if anything.
+/// A value as a message says it: `NaN (not a number)`, `infinite`, or the number.
+fn describe_value(value: f64) -> String {
+    if value.is_nan() {
+        "NaN (not a number)".to_owned()
+    } else if value.is_infinite() {
+        format!("{}infinite", if value < 0.0 { "minus " } else { "" })
+    } else {
+        Short(value).to_string()
+    }
+}
+
 /// The names in order, each once, for a message that lists what is known; a name that is
 /// given more than once is said so after the list (`x, v; 'x' is given twice`), so the list
 /// never reads `x, x`.
@@ -505,6 +521,7 @@ fn name_list<'n>(names: impl Iterator<Item = &'n str>) -> String {
     }
 }
 
+/// What is wrong with a state or parameter name, if anything.
 fn name_problem(name: &str) -> Option<String> {
     if name.is_empty() {
         return Some("the name is empty".to_owned());
