@@ -139,7 +139,7 @@ fn times_far_from_zero_are_named() {
         "settle: 1e20",
         "time.settle",
         Severity::Error,
-        "a shorter settle time keeps it",
+        "a shorter settle time keeps the run nearer 0",
     );
     // a sweep's own settle time
     one_problem(

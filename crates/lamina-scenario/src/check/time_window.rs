@@ -231,7 +231,7 @@ impl Checker<'_> {
                 let cure = if field == "time.start" {
                     "start the time nearer 0"
                 } else {
-                    "a shorter settle time keeps it"
+                    "a shorter settle time keeps the run nearer 0"
                 };
                 let message = format!(
                     "the {part} of {} after t = {} comes out as {} for {}: floating-point \
@@ -341,9 +341,9 @@ impl Checker<'_> {
         if t_start.abs() >= settle.max(time.span) {
             ("time.start", "start the time nearer 0")
         } else if settle >= time.span {
-            ("time.settle", "a shorter settle time keeps the times finer")
+            ("time.settle", "a shorter settle time keeps the run nearer 0, where the times are finer")
         } else {
-            ("time.span", "a shorter span keeps the times finer")
+            ("time.span", "a shorter span keeps the run nearer 0, where the times are finer")
         }
     }
 
