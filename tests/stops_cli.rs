@@ -324,6 +324,10 @@ fn ctrl_c_stops_every_long_command_saying_where_and_what_was_not_written() {
             "stopped at t = ",
         ),
         (vec!["cycle", "--map", "strobe"], "stopped at t = "),
+        (
+            vec!["branch", "--of", "rest", "--out", "OUT", "--png", "PNG"],
+            "stopped on a signal",
+        ),
     ];
     for (args, where_) in cases {
         let args: Vec<&str> = args

@@ -15,9 +15,11 @@ use lamina_core::cycle::Number;
 use super::branch_output::{Outputs, write_outputs};
 use super::branch_start::{map_for, resting_start, settled_orbit};
 use super::cycle::MapArg;
+use super::failure::Interrupted;
 use super::outputs;
 use super::prepare::{Prepared, prepare};
 use super::progress::Progress;
+use super::signals::interrupt_on_signal;
 
 /// Arguments of `lamina branch`.
 #[derive(clap::Args, Debug)]
@@ -127,6 +129,8 @@ pub fn branch(args: &BranchArgs) -> Result<ExitCode> {
         outputs::probe(flag, path)?;
     }
     let prepared = prepare(&args.file)?;
+    // Ctrl-C stops the walk at its next point; nothing is written for a stopped branch
+    let interrupt = interrupt_on_signal()?;
     let followed = follow(
         &prepared,
         &args.file,
@@ -134,7 +138,12 @@ pub fn branch(args: &BranchArgs) -> Result<ExitCode> {
         args.map,
         args.returns,
         args.start,
-    )?;
+        &interrupt,
+    );
+    if interrupt.is_raised() {
+        return Err(stopped_branch(followed.ok().as_ref(), &paths).into());
+    }
+    let followed = followed?;
     write_outputs(
         &prepared,
         &args.file,
@@ -199,6 +208,7 @@ pub fn follow(
     map: Option<MapArg>,
     returns: Option<usize>,
     start: StartArg,
+    interrupt: &Interrupt,
 ) -> Result<Followed> {
     let (range, parameter) = branch_range(prepared)?;
     if returns == Some(0) {
@@ -208,7 +218,6 @@ pub fn follow(
         bail!("a model with one state has no periodic orbits (its states only rise or fall)");
     }
     let settings = BranchSettings::default();
-    let interrupt = Interrupt::new();
     let progress = Progress::new("branch");
     let bar = |part: (f64, f64)| Bar {
         progress: &progress,
@@ -221,7 +230,7 @@ pub fn follow(
             if model.uses_time() {
                 bail!(lamina_core::branch::BranchError::Forced);
             }
-            let (state, origin) = resting_start(prepared)?;
+            let (state, origin) = resting_start(prepared, interrupt)?;
             let how = format!("from {}", origin.words());
             let branch = follow_rest_branch(
                 model,
@@ -229,7 +238,7 @@ pub fn follow(
                 &state,
                 &settings,
                 &mut bar((0.0, 1.0)),
-                &interrupt,
+                interrupt,
             )?;
             Followed {
                 branch,
@@ -242,7 +251,7 @@ pub fn follow(
              --of cycle"
         ),
         (OfArg::Cycle, StartArg::Settled) => {
-            let (orbit_map, orbit, found) = settled_orbit(prepared, path, map, returns)?;
+            let (orbit_map, orbit, found) = settled_orbit(prepared, path, map, returns, interrupt)?;
             let how = format!("from {found}");
             let branch = follow_orbit_branch(
                 model,
@@ -252,7 +261,7 @@ pub fn follow(
                 &orbit,
                 &settings,
                 &mut bar((0.0, 1.0)),
-                &interrupt,
+                interrupt,
             )?;
             Followed {
                 branch,
@@ -262,7 +271,7 @@ pub fn follow(
         }
         (OfArg::Cycle, StartArg::Hopf) => {
             let orbit_map = map_for(prepared, map, true)?;
-            let (state, origin) = resting_start(prepared)?;
+            let (state, origin) = resting_start(prepared, interrupt)?;
             let how = origin.words();
             let resting = follow_rest_branch(
                 model,
@@ -270,7 +279,7 @@ pub fn follow(
                 &state,
                 &settings,
                 &mut bar((0.0, 0.3)),
-                &interrupt,
+                interrupt,
             )?;
             let hopf = nearest(
                 &resting,
@@ -293,7 +302,7 @@ pub fn follow(
                 &hopf,
                 &settings,
                 &mut bar((0.3, 0.7)),
-                &interrupt,
+                interrupt,
             )?;
             Followed {
                 branch,
@@ -302,7 +311,7 @@ pub fn follow(
             }
         }
         (OfArg::Cycle, StartArg::PeriodDoubling) => {
-            let (orbit_map, orbit, how) = settled_orbit(prepared, path, map, returns)?;
+            let (orbit_map, orbit, how) = settled_orbit(prepared, path, map, returns, interrupt)?;
             let single = follow_orbit_branch(
                 model,
                 &orbit_map,
@@ -311,7 +320,7 @@ pub fn follow(
                 &orbit,
                 &settings,
                 &mut bar((0.0, 0.5)),
-                &interrupt,
+                interrupt,
             )?;
             let doubling = nearest(
                 &single,
@@ -333,7 +342,7 @@ pub fn follow(
                 &doubling,
                 &settings,
                 &mut bar((0.5, 0.5)),
-                &interrupt,
+                interrupt,
             )?;
             Followed {
                 branch,
@@ -354,4 +363,29 @@ fn nearest(branch: &Branch, kind: SpecialKind, value: f64) -> Option<SpecialPoin
         .filter(|s| s.kind == kind)
         .min_by(|a, b| (a.value - value).abs().total_cmp(&(b.value - value).abs()))
         .cloned()
+}
+
+/// What a branch stopped on a signal did: where its walk stood (the parameter values its
+/// points reached) and that no output was written.
+fn stopped_branch(followed: Option<&Followed>, outputs: &[(&str, &Path)]) -> Interrupted {
+    let reached = followed
+        .filter(|f| !f.branch.points.is_empty())
+        .map_or_else(
+            || " before the branch had its first point".to_string(),
+            |f| {
+                let values = f.branch.points.iter().map(|p| p.value);
+                let low = values.clone().fold(f64::INFINITY, f64::min);
+                let high = values.fold(f64::NEG_INFINITY, f64::max);
+                format!(
+                    " after {} point(s), {} from {} to {}",
+                    f.branch.points.len(),
+                    f.parameter,
+                    Number(low),
+                    Number(high)
+                )
+            },
+        );
+    let paths: Vec<&Path> = outputs.iter().map(|(_, path)| *path).collect();
+    let written = super::outputs::nothing_written(&paths);
+    Interrupted(format!("stopped on a signal{reached}; {written}"))
 }

@@ -26,9 +26,9 @@ impl Sink for Quiet<'_> {
 
 /// Whether the scenario's run ends at a resting point (Newton's method from its end state
 /// converges next to it).
-pub fn run_settles_at_rest(prepared: &Prepared) -> bool {
+pub fn run_settles_at_rest(prepared: &Prepared, interrupt: &Interrupt) -> bool {
     !prepared.model.uses_time()
-        && resting_start(prepared).is_ok_and(|(_, origin)| origin == RestOrigin::Settled)
+        && resting_start(prepared, interrupt).is_ok_and(|(_, origin)| origin == RestOrigin::Settled)
 }
 
 /// Where the resting point a branch starts from was found.
@@ -52,13 +52,13 @@ impl RestOrigin {
 
 /// The resting point a resting branch starts from: the one the run settles into, else the
 /// one Newton's method reaches from the start state; and how it was found, in words.
-pub fn resting_start(prepared: &Prepared) -> Result<(Vec<f64>, RestOrigin)> {
+pub fn resting_start(prepared: &Prepared, interrupt: &Interrupt) -> Result<(Vec<f64>, RestOrigin)> {
     let mut model = prepared.model.clone();
     let settings = RestNewtonSettings::default();
     let escape = prepared.spec.escape;
     let progress = Progress::new("settling");
     let outcome = Run::new(model.clone(), prepared.spec.clone(), None, None, false)
-        .execute(&mut Quiet(&progress), &Interrupt::new());
+        .execute(&mut Quiet(&progress), interrupt);
     progress.finish();
     if !outcome.reason.is_trouble()
         && let Ok(solved) = solve_resting_point(&mut model, &outcome.final_state, escape, &settings)
@@ -117,6 +117,7 @@ pub fn settled_orbit(
     path: &Path,
     asked: Option<MapArg>,
     returns: Option<usize>,
+    interrupt: &Interrupt,
 ) -> Result<(OrbitMap, OrbitStart, String)> {
     let orbit_map = map_for(prepared, asked, false)?;
     let (choice, kind) = match &orbit_map {
@@ -128,12 +129,10 @@ pub fn settled_orbit(
         OrbitMap::Flow => bail!("the scenario has no cut"),
     };
     let (seeds, k, origin, max_return_time) =
-        seeds_from_run(prepared.clone(), choice, returns, path, &Interrupt::new()).with_context(
-            || {
-                "the start is not near a periodic orbit (if the run settles to rest, follow the \
+        seeds_from_run(prepared.clone(), choice, returns, path, interrupt).with_context(|| {
+            "the start is not near a periodic orbit (if the run settles to rest, follow the \
              orbits born at its Hopf point with --start hopf)"
-            },
-        )?;
+        })?;
     let settings = MapSettings::from_run(&prepared.spec, max_return_time);
     let mut flow_map = FlowMap::new(prepared.model.clone(), kind, settings)?;
     let rtol = prepared.spec.control.rtol;

@@ -131,11 +131,18 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
         let prepared = prepare(&args.file)?;
         let of = match args.of {
             Some(of) => of,
-            None if super::branch_start::run_settles_at_rest(&prepared) => OfArg::Rest,
+            None if super::branch_start::run_settles_at_rest(&prepared, &interrupt) => OfArg::Rest,
             None => OfArg::Cycle,
         };
-        let followed =
-            super::branch::follow(&prepared, &args.file, of, None, None, StartArg::Settled)?;
+        let followed = super::branch::follow(
+            &prepared,
+            &args.file,
+            of,
+            None,
+            None,
+            StartArg::Settled,
+            &interrupt,
+        )?;
         let (bytes, note) = branch_picture(&prepared, &args.file, &followed, args.size)?;
         return finish(png, bytes, &format!("the branch picture ({note})"), true);
     }

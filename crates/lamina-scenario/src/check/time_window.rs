@@ -341,9 +341,15 @@ impl Checker<'_> {
         if t_start.abs() >= settle.max(time.span) {
             ("time.start", "start the time nearer 0")
         } else if settle >= time.span {
-            ("time.settle", "a shorter settle time keeps the run nearer 0, where the times are finer")
+            (
+                "time.settle",
+                "a shorter settle time keeps the run nearer 0, where the times are finer",
+            )
         } else {
-            ("time.span", "a shorter span keeps the run nearer 0, where the times are finer")
+            (
+                "time.span",
+                "a shorter span keeps the run nearer 0, where the times are finer",
+            )
         }
     }
 
