@@ -11,41 +11,23 @@
 //! far end of its window or an estimate past the limit a warning (the run may stop with its
 //! step size collapsed).
 //!
-//! The error rule is the run's own ([`window_problem`] mirrors the core's check of a run's
-//! time resolution, thresholds and all): `check` refuses what a run would stop on.
+//! The error rule is the run's own ([`window_problem`] asks the core's check of a run's time
+//! resolution): `check` refuses what a run would stop on.
 
-use lamina_core::run::Strobe as CoreStrobe;
+use lamina_core::run::{
+    RunSpec, Strobe as CoreStrobe, TimeResolution, WindowPart, check_time_resolution,
+};
+pub(super) use lamina_core::run::{smallest_step_at, time_spacing};
 
 use super::Checker;
 use super::trial::{MAX_TRIAL_STATES, Trial};
 use crate::number::{About, Short};
 
-/// A part of the window may come out this much shorter or longer in rounding.
-const WINDOW_FRACTION: f64 = 1e-2;
-/// Strobe sample times must be formed to this fraction of the period.
-const STROBE_TIME_FRACTION: f64 = 1e-3;
-/// Strobe indices stay below this, where `first_at + k T` is still formed exactly in `k`.
-const MAX_STROBE_INDEX: f64 = 4_503_599_627_370_496.0; // 2^52
 /// The steps a model needs: this many per time scale.
 const STEPS_PER_TIME_SCALE: f64 = 100.0;
 /// Trial runs are made when the smallest step that changes the time comes within this factor
 /// of the estimated steps the model needs.
 const TRIAL_MARGIN: f64 = 1e4;
-
-/// The smallest step that changes the time `t` in a run: ten units in the last place of `t`,
-/// and never below 1e-300 (the integrators' own floor).
-pub(super) fn smallest_step_at(t: f64) -> f64 {
-    (10.0 * f64::EPSILON * t.abs()).max(1e-300)
-}
-
-/// The spacing of floating-point numbers at `t`: the difference to the next one.
-pub(super) fn time_spacing(t: f64) -> f64 {
-    let t = t.abs();
-    if !t.is_finite() {
-        return f64::INFINITY;
-    }
-    f64::from_bits(t.to_bits() + 1) - t
-}
 
 /// One run window: the settle time and the span of a run that starts at `time.start`, with
 /// the fields they come from.
@@ -70,47 +52,42 @@ enum WindowProblem {
     StrobeTimes { t: f64, spacing: f64 },
 }
 
-/// The first problem of a window starting at `t_start`: its parts must keep their length to
-/// 1 % and strobe times be formed to a thousandth of the period with indices that fit.
+/// The first problem of a window starting at `t_start`, by the run's own rule (the core's
+/// check of a run's time resolution): its parts must keep their length to 1 % and strobe
+/// times be formed to a thousandth of the period with indices that fit.
 fn window_problem(
     t_start: f64,
     window: &Window,
     strobe: Option<&CoreStrobe>,
 ) -> Option<WindowProblem> {
-    let t_record = t_start + window.settle;
-    let t_end = t_record + window.span;
-    let parts = [
-        ("settle time", t_start, window.settle),
-        ("span", t_record, window.span),
-    ];
-    for (part, t, length) in parts {
-        if !(t.is_finite() && length.is_finite() && length > 0.0) {
-            continue;
+    let spec = RunSpec {
+        t_start,
+        settle: window.settle,
+        span: window.span,
+        ..RunSpec::default()
+    };
+    match check_time_resolution(&spec, strobe).err()? {
+        TimeResolution::WindowLost {
+            part,
+            t,
+            length,
+            realised,
+            ..
+        } => Some(WindowProblem::Lost {
+            part: match part {
+                WindowPart::Settle => "settle time",
+                WindowPart::Span => "span",
+            },
+            t,
+            length,
+            realised,
+        }),
+        TimeResolution::StrobeTimes { t, spacing, .. } => {
+            Some(WindowProblem::StrobeTimes { t, spacing })
         }
-        let realised = (t + length) - t;
-        if (realised - length).abs() > WINDOW_FRACTION * length {
-            return Some(WindowProblem::Lost {
-                part,
-                t,
-                length,
-                realised,
-            });
-        }
+        // not a window's problem: found only when a step collapses
+        TimeResolution::StepLost { .. } => None,
     }
-    let strobe = strobe?;
-    for t in [t_record, t_end] {
-        if !(t.is_finite() && strobe.first_at.is_finite()) {
-            continue;
-        }
-        let index = ((t - strobe.first_at) / strobe.period).abs();
-        let spacing = time_spacing(strobe.first_at)
-            .max(time_spacing(t - strobe.first_at))
-            .max(time_spacing(t));
-        if index > MAX_STROBE_INDEX || spacing > STROBE_TIME_FRACTION * strobe.period {
-            return Some(WindowProblem::StrobeTimes { t, spacing });
-        }
-    }
-    None
 }
 
 impl Checker<'_> {
