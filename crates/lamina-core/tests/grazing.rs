@@ -145,3 +145,32 @@ fn a_reslice_finds_the_grazing_crossings_of_a_fresh_run() {
     assert!(resliced.len() >= 29, "{}", resliced.len());
     assert_eq!(resliced, fresh.cut_points);
 }
+
+#[test]
+fn a_switch_that_goes_and_comes_back_inside_a_step_is_followed() {
+    // z counts the time the planar cycle spends beyond x = 0.999: [analytic] acos(0.999) / w
+    // per turn of length pi on each side of the crossing, so acos(0.999) a turn
+    // (REFERENCES.md case 17, the switch of a model)
+    for method in [Method::Dp5, Method::Dp853] {
+        let m = model(
+            &[
+                ("x", 1.0, "x*(1 - x^2 - y^2) - w*y"),
+                ("y", 0.0, "y*(1 - x^2 - y^2) + w*x"),
+                ("z", 0.0, "step(x - 0.999)"),
+            ],
+            &[("w", 2.0)],
+        );
+        // start just past the threshold's excursion: x = cos(0.1)
+        let (x0, y0) = (0.1_f64.cos(), 0.1_f64.sin());
+        let mut m = m;
+        m.set_start(&[x0, y0, 0.0]);
+        let (_, outcome) = collect(m, spec(method, 1e-9, 0.0, 40.0 * PI), None, None);
+        let z = outcome.final_state[2];
+        let exact = 40.0 * 0.999_f64.acos();
+        assert!(
+            (z - exact).abs() < 1e-6,
+            "{method:?}: z = {z}, exact {exact}"
+        );
+        assert_eq!(outcome.n_switches, 80, "{method:?}");
+    }
+}

@@ -4,6 +4,7 @@
 use super::{BOUNCE_FRACTION, Switching};
 use crate::integrate::dense::eval_split;
 use crate::integrate::{DenseSegment, Integrator, StepError};
+use crate::run::graze;
 use crate::run::root::brent;
 
 /// A step that crossed into another branch.
@@ -28,22 +29,52 @@ impl Switching {
     pub fn inspect(&mut self, integrator: &mut Integrator) -> Result<Option<Crossing>, StepError> {
         let mut state = std::mem::take(&mut self.state);
         state.copy_from_slice(integrator.x());
-        self.evaluate_margins(integrator.t(), &state);
+        let t1 = integrator.t();
+        let mut f = std::mem::take(&mut self.rates_here);
+        f.copy_from_slice(integrator.rates_here(self)?);
+        self.measure_slopes(t1, &state, &f);
+        self.rates_here = f;
         self.state = state;
-        if !self.margins.iter().any(|&m| m < 0.0) {
+        // a margin of one sign at both ends may still have crossed and come back inside the
+        // step: screened on the margins and their slopes at the ends (run::graze)
+        let h = integrator.segment().h;
+        let mut grazing = false;
+        for k in 0..self.margins.len() {
+            let (g0, g1) = (self.start_margins[k], self.margins[k]);
+            if g1 >= 0.0 && g0 > 0.0 {
+                let (m0, m1) = (h * self.start_slopes[k], h * self.slopes[k]);
+                grazing |= !graze::screen(g0, g1, m0, m1, graze::FIRST_REACH).is_empty();
+            }
+        }
+        if !grazing && !self.margins.iter().any(|&m| m < 0.0) {
             self.start_margins.copy_from_slice(&self.margins);
+            self.start_slopes.copy_from_slice(&self.slopes);
             return Ok(None);
         }
         integrator.ensure_dense(self)?;
         let segment = integrator.segment();
         let (t0, h) = (segment.t0, segment.h);
         let end_margins = self.margins.clone();
+        let end_slopes = self.slopes.clone();
         let mut found: Vec<(usize, f64)> = Vec::new();
         for (k, &g1) in end_margins.iter().enumerate() {
+            let g0 = self.start_margins[k];
             if g1 < 0.0 {
-                let s = self.locate(k, segment, self.start_margins[k], g1);
+                let s = self.locate(k, segment, g0, g1);
                 found.push((k, s));
+            } else if grazing && g0 > 0.0 {
+                let (m0, m1) = (h * self.start_slopes[k], h * end_slopes[k]);
+                let turns = graze::screen(g0, g1, m0, m1, graze::FIRST_REACH);
+                if let Some(s) = self.locate_inside(k, segment, g0, g1, &turns) {
+                    found.push((k, s));
+                }
             }
+        }
+        if found.is_empty() {
+            // the screen's alarm was false: the step stands as it is
+            self.start_margins.copy_from_slice(&end_margins);
+            self.start_slopes.copy_from_slice(&end_slopes);
+            return Ok(None);
         }
         let first = found.iter().map(|&(_, s)| s).fold(1.0, f64::min);
         self.crossing.clear();
@@ -135,6 +166,51 @@ impl Switching {
         self.evaluate_margins(segment.t0 + s * segment.h, &state);
         self.state = state;
         self.margins[k]
+    }
+
+    /// The first fraction of `segment` where switch `k`'s margin, positive at both ends
+    /// (`g0`, `g1`), turns negative inside, given the extrema `turns` of its Hermite
+    /// interpolant; `None` when it stays positive (Shampine and Thompson's check of the
+    /// derivative's sign, see `run::graze`).
+    fn locate_inside(
+        &mut self,
+        k: usize,
+        segment: &DenseSegment,
+        g0: f64,
+        g1: f64,
+        turns: &graze::Turns,
+    ) -> Option<f64> {
+        if turns.is_empty() {
+            return None;
+        }
+        let mut brackets = [graze::Bracket {
+            a: 0.0,
+            b: 1.0,
+            ga: g0,
+            gb: g1,
+        }; 3];
+        let n = graze::brackets(
+            |s| self.margin_at(k, segment, s),
+            g0,
+            g1,
+            turns,
+            &mut brackets,
+        );
+        let bracket = brackets[..n].iter().find(|b| b.ga > 0.0 && b.gb <= 0.0)?;
+        let (a, b) = (bracket.a, bracket.b);
+        let s = brent(
+            |s| self.margin_at(k, segment, s),
+            a,
+            b,
+            bracket.ga,
+            bracket.gb,
+        );
+        // the crossing is where the branch ends: on the negative side
+        if self.margin_at(k, segment, s) < 0.0 {
+            Some(s)
+        } else {
+            Some(s.next_up().min(b))
+        }
     }
 
     /// The first fraction of `segment` where switch `k`'s margin, `g0` at the start and

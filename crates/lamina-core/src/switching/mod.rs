@@ -28,6 +28,8 @@ const CHATTER_COUNT: u32 = 8;
 /// A switch within this fraction of the step that starts at the switch before turns back
 /// at once (so does one the time resolution cannot separate from it).
 const BOUNCE_FRACTION: f64 = 1e-9;
+/// Relative time step of the forward difference that measures how fast the margins move.
+const FLOW_NUDGE: f64 = 1e-7;
 /// Branch combinations whose programs are kept (a model switching back and forth between a
 /// few combinations compiles each once).
 const CACHE_SIZE: usize = 64;
@@ -71,6 +73,12 @@ pub struct Switching {
     scratch: Scratch,
     /// Switching values and margins at the start of the next step.
     start_margins: Vec<f64>,
+    /// The margins' time derivatives along the flow at the start of the next step.
+    start_slopes: Vec<f64>,
+    /// Scratch for the margins' time derivatives and the rates.
+    slopes: Vec<f64>,
+    rates_here: Vec<f64>,
+    nudged: Vec<f64>,
     /// Scratch for values, margins and an interpolated state.
     values: Vec<f64>,
     margins: Vec<f64>,
@@ -105,6 +113,10 @@ impl Switching {
             cache: Vec::new(),
             current: 0,
             start_margins: vec![0.0; n],
+            start_slopes: vec![0.0; n],
+            slopes: vec![0.0; n],
+            rates_here: vec![0.0; x.len()],
+            nudged: vec![0.0; x.len()],
             values: vec![0.0; n],
             margins: vec![0.0; n],
             state: vec![0.0; x.len()],
@@ -191,10 +203,37 @@ impl Switching {
         }
     }
 
-    /// Remembers the margins at `(t, x)` as those at the start of the next step.
+    /// Remembers the margins at `(t, x)` as those at the start of the next step, with their
+    /// time derivatives along the flow of the held rates there (one evaluation of the rates).
     fn update_start(&mut self, t: f64, x: &[f64]) {
+        let mut f = std::mem::take(&mut self.rates_here);
+        self.rates(t, x, &mut f);
+        self.measure_slopes(t, x, &f);
+        self.rates_here = f;
+        self.start_slopes.copy_from_slice(&self.slopes);
         self.evaluate_margins(t, x);
         self.start_margins.copy_from_slice(&self.margins);
+    }
+
+    /// The time derivatives of the margins along the flow at `(t, x)`, where the rates are
+    /// `f`, into `self.slopes` (leaves the margins at `(t, x)` in `self.margins`): a forward
+    /// difference over `FLOW_NUDGE` relative time along `f`, enough for the screen of
+    /// crossings that come and go inside one step.
+    fn measure_slopes(&mut self, t: f64, x: &[f64], f: &[f64]) {
+        let scale = x.iter().chain(f).fold(t.abs(), |m, v| m.max(v.abs()));
+        let speed = f.iter().fold(0.0_f64, |m, v| m.max(v.abs()));
+        let dt = FLOW_NUDGE * (scale / speed.max(f64::MIN_POSITIVE)).clamp(1e-12, 1e12);
+        let mut nudged = std::mem::take(&mut self.nudged);
+        for ((n, &xi), &fi) in nudged.iter_mut().zip(x).zip(f) {
+            *n = xi + dt * fi;
+        }
+        self.evaluate_margins(t + dt, &nudged);
+        self.slopes.copy_from_slice(&self.margins);
+        self.nudged = nudged;
+        self.evaluate_margins(t, x);
+        for (s, &m) in self.slopes.iter_mut().zip(&self.margins) {
+            *s = (*s - m) / dt;
+        }
     }
 
     /// Changes the branches of the switches that crossed at the time located by
