@@ -174,3 +174,24 @@ fn a_switch_that_goes_and_comes_back_inside_a_step_is_followed() {
         assert_eq!(outcome.n_switches, 80, "{method:?}");
     }
 }
+
+#[test]
+fn the_orbit_search_follows_a_cut_at_the_edge_of_the_cycle() {
+    use common::{cut_cloud, cycle_from, rel, window};
+    use lamina_core::cycle::MapKind;
+    let m = planar_cycle();
+    let cut = plane(&m, &[("x", 1.0)], 0.999, Direction::Rising);
+    let run = window(1e-11, 0.0, 20.0);
+    let cloud = cut_cloud(&m, &cut, &run);
+    assert!(cloud.len() >= 5, "{}", cloud.len());
+    let report = cycle_from(&m, MapKind::Cut(cut), &run, &cloud, 1);
+    // [analytic] REFERENCES.md cases 3 and 17: the cycle r = 1 crosses x = 0.999 rising at
+    // y = -0.0447101778 once a period pi; its nontrivial multiplier is exp(-2 pi) on any cut
+    assert!((report.point.state[1] + 0.0447101778).abs() < 1e-9);
+    assert!(rel(report.period, PI) < 1e-9, "{}", report.period);
+    assert!(
+        rel(report.multipliers[0].re, 1.86744273171e-3) < 1e-6,
+        "{}",
+        report.multipliers[0]
+    );
+}

@@ -102,7 +102,7 @@ pub struct FlowMap {
     pub(super) x_cross: Vec<f64>,
     pub(super) z_cross: Vec<f64>,
     /// Whether the variational matrix is integrated in the current pass.
-    with_matrix: bool,
+    pub(super) with_matrix: bool,
     /// Whether derivatives come from central differences (rates that jump with the states).
     differences: bool,
     /// Raised to stop following the orbit at the next step.
