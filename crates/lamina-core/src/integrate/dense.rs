@@ -92,3 +92,19 @@ pub fn slope_split(start: &[f64], terms: &[f64], dim: usize, s: f64, out: &mut [
         *o = acc + s * slope;
     }
 }
+
+/// Evaluates the first `out.len()` states of the nested interpolant of `coeffs` (term-major,
+/// `dim` per term) at the fraction `s` of the step: the model's states of a system that
+/// carries more (tangent vectors).
+pub fn eval_prefix(coeffs: &[f64], dim: usize, s: f64, out: &mut [f64]) {
+    let n_terms = coeffs.len() / dim.max(1);
+    let r = 1.0 - s;
+    for (i, o) in out.iter_mut().enumerate() {
+        let mut acc = coeffs[(n_terms - 1) * dim + i];
+        for j in (1..n_terms - 1).rev() {
+            let w = if j % 2 == 1 { r } else { s };
+            acc = coeffs[j * dim + i] + w * acc;
+        }
+        *o = coeffs[i] + s * acc;
+    }
+}

@@ -16,7 +16,7 @@
 
 mod locate;
 
-pub use locate::Crossing;
+pub use locate::{Crossing, SwitchingRates, inspect_through};
 
 use crate::expr::{Branch, Kernel, Program, Scratch, Switch};
 use crate::integrate::{Integrator, Rates};
@@ -244,7 +244,8 @@ impl Switching {
     /// [`Chattering`] when this was the eighth switch in a row to turn back at once after
     /// the one before.
     pub fn apply(&mut self, integrator: &mut Integrator) -> Result<(), Chattering> {
-        let (t, x) = (integrator.t(), integrator.x());
+        let n = self.state.len();
+        let (t, x) = (integrator.t(), &integrator.x()[..n]);
         self.evaluate_margins(t, x);
         let mut branches = self.branches().to_vec();
         for &k in &self.crossing {
