@@ -15,8 +15,10 @@
 //! followed forever.
 
 mod locate;
+mod tangent;
 
 pub use locate::{Crossing, SwitchingRates, inspect_through};
+pub use tangent::{SwitchedStepError, SwitchedTangent};
 
 use crate::expr::{Branch, Kernel, Program, Scratch, Switch};
 use crate::integrate::{Integrator, Rates};
@@ -175,6 +177,25 @@ impl Switching {
     /// The switches, in program order.
     pub fn switches(&self) -> &[Switch] {
         &self.switches
+    }
+
+    /// The gradient of switch `k`'s value (held as now) with respect to the states at
+    /// `(t, x)` into `out`; returns the value's own change with time there.
+    pub fn value_gradient(&mut self, k: usize, t: f64, x: &[f64], out: &mut [f64]) -> f64 {
+        let n = x.len();
+        let n_switches = self.switches.len();
+        let held = &self.cache[self.current];
+        let mut jacobian = vec![0.0; n_switches * n];
+        held.values
+            .jacobian(&mut self.scratch, t, x, &self.parameters, &mut jacobian);
+        out.copy_from_slice(&jacobian[k * n..(k + 1) * n]);
+        if !held.values.uses_time() {
+            return 0.0;
+        }
+        let mut moving = vec![0.0; n_switches];
+        held.values
+            .time_derivative(&mut self.scratch, t, x, &self.parameters, &mut moving);
+        moving[k]
     }
 
     /// Number of switches made so far.
