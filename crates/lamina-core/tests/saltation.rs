@@ -149,3 +149,36 @@ fn lyapunov_exponents_of_the_relay_oscillator_follow_the_saltation_matrices() {
         s.n_saltations
     );
 }
+
+#[test]
+fn orbit_multipliers_of_the_relay_oscillator_follow_the_saltation_matrices() {
+    use common::{cut_cloud, cycle_from, plane, window};
+    use lamina_core::cycle::MapKind;
+    use lamina_core::run::Direction;
+    let (_, period, monodromy) = exact_orbit();
+    let [m1, m2] = real_eigenvalues(&monodromy);
+    let m = relay_oscillator();
+    let cut = plane(&m, &[("x", 1.0)], 0.0, Direction::Rising);
+    let run = window(1e-12, 200.0, 40.0);
+    let cloud = cut_cloud(&m, &cut, &run);
+    let report = cycle_from(&m, MapKind::Cut(cut), &run, &cloud, 1);
+    // REFERENCES.md case 19 [analytic]: the monodromy built from matrix exponentials and
+    // saltation matrices; the cut map keeps its nontrivial multiplier
+    assert!((report.period - period).abs() < 1e-9, "{}", report.period);
+    assert_eq!(report.multipliers.len(), 1);
+    assert!(
+        (report.multipliers[0].re - m2).abs() < 1e-8,
+        "{} against {m2}",
+        report.multipliers[0]
+    );
+    let floquet = report
+        .floquet
+        .as_ref()
+        .expect("cut map has Floquet multipliers");
+    let mut floquet: Vec<f64> = floquet.iter().map(|f| f.re).collect();
+    floquet.sort_by(|a, b| b.total_cmp(a));
+    assert!((floquet[0] - m1).abs() < 1e-8, "{floquet:?}");
+    assert!((floquet[1] - m2).abs() < 1e-8, "{floquet:?}");
+    assert!(!report.from_differences && !report.sliding);
+    assert_eq!(report.n_saltations, 2, "{}", report.derivatives());
+}

@@ -3,8 +3,7 @@
 //! for the varying return time.
 
 use super::CycleError;
-use super::flow_map::{FlowMap, GRAZING, MapImage, MapKind, MapPoint, ON_CUT, norm};
-use super::variational::Variational;
+use super::flow_map::{FlowMap, GRAZING, MapImage, MapKind, MapPoint, ON_CUT, flow_rates, norm};
 use crate::integrate::Rates;
 use crate::run::graze::{self, Bracket};
 
@@ -88,7 +87,7 @@ impl FlowMap {
     /// with (no evaluation after a step).
     fn end_slope(&mut self) -> Result<f64, CycleError> {
         let n = self.n;
-        let mut rates = Variational::new(&mut self.model, self.with_matrix);
+        let mut rates = flow_rates(&mut self.switched, &mut self.model, self.with_matrix);
         let f = self.integrator.rates_here(&mut rates)?;
         self.rates.copy_from_slice(&f[..n]);
         let t1 = self.integrator.t();

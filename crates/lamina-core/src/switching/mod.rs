@@ -47,7 +47,7 @@ pub struct Chattering {
 }
 
 /// The programs of one combination of branches.
-#[derive(Debug)]
+#[derive(Clone, Debug)]
 struct Held {
     branches: Vec<Branch>,
     /// The rates with every switch held.
@@ -61,7 +61,7 @@ struct Held {
 /// The switching state of a model: its switches, the branch each is held on, and the held
 /// programs. Implements [`Rates`] with the held rates (and their exact Jacobian), for the
 /// integrator to step with.
-#[derive(Debug)]
+#[derive(Clone, Debug)]
 pub struct Switching {
     /// The model's rate program, from which the held programs are made.
     source: Program,
@@ -130,6 +130,16 @@ impl Switching {
         };
         switching.choose_branches(t, x);
         Some(switching)
+    }
+
+    /// Starts again at `(t, x)`: every switch held on the branch its value lies on there, the
+    /// watch for chattering cleared (the held programs compiled so far are kept).
+    pub fn restart_at(&mut self, t: f64, x: &[f64]) {
+        self.crossing.clear();
+        self.last_switch = None;
+        self.bounce = false;
+        self.n_close = 0;
+        self.choose_branches(t, x);
     }
 
     /// Holds every switch on the branch its switching value lies on at `(t, x)`.

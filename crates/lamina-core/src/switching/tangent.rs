@@ -34,7 +34,7 @@ impl From<StepError> for SwitchedStepError {
 
 /// The held rates of a switching model with tangent vectors (stored as `layout` says) as one
 /// system, stepped through the switches with the saltation matrix.
-#[derive(Debug)]
+#[derive(Clone, Debug)]
 pub struct SwitchedTangent {
     switching: Switching,
     layout: TangentLayout,
@@ -62,6 +62,16 @@ impl SwitchedTangent {
             n_not_transversal: 0,
             first_not_transversal: None,
         }
+    }
+
+    /// Starts again at `(t, x)` with tangent vectors laid out as `layout`: branches chosen
+    /// there and the counts cleared (the held programs compiled so far are kept).
+    pub fn restart_at(&mut self, t: f64, x: &[f64], layout: TangentLayout) {
+        self.switching.restart_at(t, x);
+        self.layout = layout;
+        self.n_saltations = 0;
+        self.n_not_transversal = 0;
+        self.first_not_transversal = None;
     }
 
     /// The switching state.
