@@ -252,9 +252,32 @@ fn the_largest_alone_is_one_exponent() {
 }
 
 #[test]
-fn rates_that_jump_get_a_caution() {
+fn the_relay_loop_crosses_its_switches_with_saltation_matrices_and_is_periodic() {
+    // the demo's notes: the loop settles into a relay oscillation, a limit cycle; its
+    // exponents carry the switches by the saltation matrix (REFERENCES.md case 19), so one is
+    // zero and the verdict is periodic, never equilibrium
     let dir = TempDir::new().unwrap();
-    let path = demo_copy(dir.path(), "relay_loop.ron", "span: 200.0", "span: 20.0");
+    let path = demo_copy(dir.path(), "relay_loop.ron", "span: 200.0", "span: 100.0");
+    let result = json_of(&path, &[]);
+    assert_eq!(result["rates_jump"], false);
+    assert_eq!(result["switches_not_transversal"], 0);
+    assert!(result["saltations"].as_u64().unwrap() > 20, "{result}");
+    assert_eq!(result["verdict"], "periodic", "{result}");
+    lamina()
+        .arg("lyapunov")
+        .arg(&path)
+        .assert()
+        .success()
+        .stdout(predicate::str::contains("each with its saltation matrix"))
+        .stdout(predicate::str::contains("verdict: periodic"));
+}
+
+#[test]
+fn a_remainder_that_jumps_gets_a_caution() {
+    let dir = TempDir::new().unwrap();
+    let text = DRIVEN.replace("rate: \"v\"", "rate: \"v + 0.01*(x % 0.5)\"");
+    assert_ne!(text, DRIVEN);
+    let path = write(dir.path(), "remainder.ron", &text);
     let result = json_of(&path, &[]);
     assert_eq!(result["rates_jump"], true);
     lamina()

@@ -30,6 +30,12 @@ struct Json<'a> {
     note: Option<String>,
     /// The stability margin in words.
     margin: String,
+    /// Where the derivatives came from, in words.
+    derivatives: String,
+    /// Switches crossed with a saltation matrix.
+    saltations: u64,
+    /// Whether central differences were used.
+    from_differences: bool,
     #[serde(skip_serializing_if = "Option::is_none")]
     recheck: Option<JsonRecheck>,
 }
@@ -100,6 +106,9 @@ pub fn write_json(
         asked_k: report.search.asked,
         note: report.search_note(),
         margin: report.outlook.to_string(),
+        derivatives: report.derivatives(),
+        saltations: report.n_saltations,
+        from_differences: report.from_differences,
         recheck: recheck.map(JsonRecheck::of),
     };
     write_json_line(&mut *out, &json)?;
@@ -172,14 +181,7 @@ pub fn write_human(
         "  residual      {:e} after {} Newton step(s)",
         report.residual, report.iterations
     ));
-    line(format!(
-        "  derivatives   {}",
-        if report.from_differences {
-            "central differences of the map (the rates jump with the states: sign, step, ...)"
-        } else {
-            "variational equations"
-        }
-    ));
+    line(format!("  derivatives   {}", report.derivatives()));
     line(format!("  verdict       {}", report.verdict));
     line(format!("  margin        {}", report.outlook));
     match origin {

@@ -208,6 +208,8 @@ fn json(result: &Spectrum, recheck: Option<&Result<Recheck, RecheckError>>) -> R
         "verdict_text": result.verdict.to_string(),
         "time_direction_omitted": result.time_direction_omitted,
         "rates_jump": result.rates_jump,
+        "saltations": result.n_saltations,
+        "switches_not_transversal": result.n_not_transversal,
         "t_end": result.t_end,
         "finished": result.reason == StopReason::Finished,
         "stop_reason": result.reason.to_string(),
@@ -260,10 +262,23 @@ fn plain(result: &Spectrum, tail_fraction: f64) -> String {
         None => "Kaplan–Yorke dimension: not determined by these exponents".to_string(),
     });
     lines.push(format!("verdict: {}", result.verdict));
-    if result.rates_jump {
+    if result.n_saltations > 0 {
+        lines.push(format!(
+            "switches: {} crossed, each with its saltation matrix",
+            result.n_saltations
+        ));
+    }
+    if result.n_not_transversal > 0 {
+        lines.push(format!(
+            "caution: {} switches were not crossed transversally (the flow slid along or \
+             grazed the switching surface): the exponents leave out the stretching there and \
+             may be wrong",
+            result.n_not_transversal
+        ));
+    } else if result.rates_jump {
         lines.push(
-            "caution: the rates jump with the state (sign, step, floor, ceil or %): the \
-             exponents leave out the stretching at the switching instants and may be wrong"
+            "caution: the rates jump with the state (%): the exponents leave out the \
+             stretching at the jumps and may be wrong"
                 .to_string(),
         );
     }

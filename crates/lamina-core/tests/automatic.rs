@@ -158,3 +158,37 @@ fn a_model_that_stops_being_stiff_goes_back_to_the_explicit_method() {
         assert!((sample.state[1] - expected).abs() < 1e-8, "{sample:?}");
     }
 }
+
+/// y' = -k (y - cos t) - sin t: its solution from y(0) = 1 is y = cos t for every k
+/// [analytic]; with k = 1e4 it is stiff.
+fn stiffly_forced(k: f64) -> lamina_core::model::Model {
+    model(&[("y", 1.0, "-k*(y - cos(t)) - sin(t)")], &[("k", k)])
+}
+
+#[test]
+fn a_stiffly_forced_scalar_model_goes_stiff_at_loose_tolerances_and_stays_explicit_at_tight_ones() {
+    // loose: stability holds DOP853's steps down, the automatic choice goes stiff and takes a
+    // hundredth of the explicit steps
+    let run = |method: Method, tol: f64| {
+        let (_, outcome) = collect(stiffly_forced(1e4), spec(method, tol, 0.0, 5.0), None, None);
+        // [analytic] y = cos t
+        let error = (outcome.final_state[0] - 5f64.cos()).abs();
+        assert!(error < 1e3 * tol, "{method:?} {tol}: error {error}");
+        outcome
+    };
+    let (automatic, explicit) = (run(Method::Automatic, 1e-6), run(Method::Dp853, 1e-6));
+    assert_eq!(automatic.method_changes.len(), 1);
+    assert_eq!(automatic.method_changes[0].to, Method::Rodas4);
+    assert!(100 * automatic.stats.n_accepted < explicit.stats.n_accepted);
+    // tight: accuracy, not stability, limits the steps (Rodas4 is of order 4, DOP853 of 8), so
+    // the stiff method would need more evaluations, and the automatic choice rightly stays
+    // explicit (ARCHITECTURE.md, known limits)
+    let (automatic, stiff) = (run(Method::Automatic, 1e-12), run(Method::Rodas4, 1e-12));
+    assert!(automatic.method_changes.is_empty());
+    assert!(
+        automatic.stats.n_rate_evaluations < stiff.stats.n_rate_evaluations,
+        "{} against {}",
+        automatic.stats.n_rate_evaluations,
+        stiff.stats.n_rate_evaluations
+    );
+}

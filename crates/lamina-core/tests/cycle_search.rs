@@ -156,9 +156,11 @@ fn failures_say_why() {
 
 #[test]
 #[allow(clippy::excessive_precision)] // the published digits, kept as printed
-fn rates_that_jump_get_their_derivatives_from_differences() {
+fn rates_that_jump_get_their_derivatives_through_the_switches() {
     // the Van der Pol oscillator of REFERENCES case 8 with a term that is zero but jumps in
-    // form: the map is the same, its derivatives now come from central differences
+    // form: the map is the same; its switches are located and crossed with their saltation
+    // matrices (here the identity: the rates do not change), or where the rates jump without
+    // a located switch (%) the derivatives come from central differences
     let m = model(
         &[
             ("x", 2.0, "v"),
@@ -170,7 +172,9 @@ fn rates_that_jump_get_their_derivatives_from_differences() {
     let run = window(1e-12, 30.0, 40.0);
     let cloud = cut_cloud(&m, &cut, &run);
     let report = cycle_from(&m, MapKind::Cut(cut), &run, &cloud, 1);
-    assert!(report.from_differences);
+    assert!(!report.from_differences);
+    // [analytic] x changes sign twice a period
+    assert_eq!(report.n_saltations, 2, "{}", report.derivatives());
     // Hairer, Norsett & Wanner, Solving ODEs I, sec. I.16, ex. 1 (REFERENCES case 8)
     assert!(
         rel(report.period, 6.6632868593231301897) < 1e-9,
@@ -202,8 +206,22 @@ fn rates_that_jump_get_their_derivatives_from_differences() {
     let run = window(1e-12, 150.0, 60.0);
     let cloud = strobe_cloud(&m, strobe, &run);
     let report = cycle_from(&m, MapKind::Strobe(strobe), &run, &cloud, 1);
-    assert!(report.from_differences);
+    assert!(!report.from_differences);
     let modulus = (-c * PI / w).exp();
+    for mu in &report.multipliers {
+        assert!(rel(mu.modulus(), modulus) < 1e-6, "{mu}");
+    }
+    // a jump that is not a located switch (%) is differenced
+    let m = model(
+        &[
+            ("x", 0.0, "v"),
+            ("v", 0.0, "-c*v - x + cos(w*t) + 0*(v % 1)"),
+        ],
+        &[("c", c), ("w", w)],
+    );
+    let cloud = strobe_cloud(&m, strobe, &run);
+    let report = cycle_from(&m, MapKind::Strobe(strobe), &run, &cloud, 1);
+    assert!(report.from_differences && !report.sliding);
     for mu in &report.multipliers {
         assert!(rel(mu.modulus(), modulus) < 1e-6, "{mu}");
     }

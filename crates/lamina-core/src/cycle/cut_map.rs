@@ -3,8 +3,9 @@
 //! for the varying return time.
 
 use super::CycleError;
-use super::flow_map::{FlowMap, GRAZING, MapImage, MapKind, MapPoint, ON_CUT, norm};
+use super::flow_map::{FlowMap, GRAZING, MapImage, MapKind, MapPoint, ON_CUT, flow_rates, norm};
 use crate::integrate::Rates;
+use crate::run::graze::{self, Bracket};
 
 impl FlowMap {
     /// The k-th crossing of the cut after the seed, with the linearised cut map.
@@ -23,6 +24,7 @@ impl FlowMap {
         }
         let mut orbit: Vec<MapPoint> = Vec::with_capacity(k);
         let mut t_last = seed.t;
+        let mut slope_prev = self.end_slope()?;
         loop {
             let t_limit = t_last + max_return_time;
             if self.integrator.t() >= t_limit {
@@ -35,15 +37,37 @@ impl FlowMap {
             }
             self.step(t_limit)?;
             let mut g1 = self.end_value();
+            let mut slope = self.end_slope()?;
+            // a pair of crossings inside the step (a cut near the edge of the orbit) shows in
+            // the screen of run::graze on g and dg/dt at the step's ends
+            let h = self.integrator.segment().h;
+            let mut turns = graze::screen(g_prev, g1, h * slope_prev, h * slope, graze::REACH);
             let mut crosses = self.crosses(g_prev, g1);
             // the crossing is located on the dense output; a stiff step too long for its
             // interpolant is shortened first, and the crossing may then lie beyond it
-            if crosses && self.accurate_dense()? {
+            if (crosses || !turns.is_empty()) && self.accurate_dense()? {
                 g1 = self.end_value();
+                slope = self.end_slope()?;
+                let h = self.integrator.segment().h;
+                turns = graze::screen(g_prev, g1, h * slope_prev, h * slope, graze::REACH);
                 crosses = self.crosses(g_prev, g1);
             }
-            if crosses {
-                let tc = self.locate_crossing(g_prev, g1);
+            let mut brackets = [Bracket {
+                a: 0.0,
+                b: 1.0,
+                ga: g_prev,
+                gb: g1,
+            }; 3];
+            let n_brackets = if turns.is_empty() {
+                usize::from(crosses)
+            } else {
+                self.inside_brackets(g_prev, g1, &turns, &mut brackets)
+            };
+            for bracket in &brackets[..n_brackets] {
+                if !self.crosses(bracket.ga, bracket.gb) {
+                    continue;
+                }
+                let tc = self.locate_crossing(bracket);
                 self.check_transversal(tc)?;
                 orbit.push(MapPoint {
                     t: tc,
@@ -55,7 +79,67 @@ impl FlowMap {
                 }
             }
             g_prev = g1;
+            slope_prev = slope;
         }
+    }
+
+    /// `dg/dt` of the cut at the end of the last step, from the rates the next step starts
+    /// with (no evaluation after a step).
+    fn end_slope(&mut self) -> Result<f64, CycleError> {
+        let n = self.n;
+        let mut rates = flow_rates(&mut self.switched, &mut self.model, self.with_matrix);
+        let f = self.integrator.rates_here(&mut rates)?;
+        self.rates.copy_from_slice(&f[..n]);
+        let t1 = self.integrator.t();
+        self.x_start.copy_from_slice(&self.integrator.x()[..n]);
+        let MapKind::Cut(cut) = &mut self.kind else {
+            return Ok(0.0);
+        };
+        Ok(cut.slope(t1, &self.x_start, &self.rates, self.model.parameters()))
+    }
+
+    /// The pieces of the last step on which the cut's value changes sign, given the extrema
+    /// `turns` of its Hermite interpolant.
+    fn inside_brackets(
+        &mut self,
+        g0: f64,
+        g1: f64,
+        turns: &graze::Turns,
+        out: &mut [Bracket; 3],
+    ) -> usize {
+        self.split_terms();
+        let segment = self.integrator.segment();
+        let (t0, h) = (segment.t0, segment.h);
+        let MapKind::Cut(cut) = &mut self.kind else {
+            return 0;
+        };
+        cut.brackets(
+            &self.x_start,
+            &self.x_terms,
+            t0,
+            h,
+            g0,
+            g1,
+            turns,
+            self.model.parameters(),
+            &mut self.x_cross,
+            out,
+        )
+    }
+
+    /// The dense output of the states alone (without the variational matrix) into
+    /// `x_start` and `x_terms`.
+    fn split_terms(&mut self) {
+        let n = self.n;
+        let segment = self.integrator.segment();
+        let dim = segment.dim;
+        let n_terms = segment.n_terms();
+        self.x_terms.clear();
+        for term in 1..n_terms {
+            self.x_terms
+                .extend_from_slice(&segment.coeffs[term * dim..term * dim + n]);
+        }
+        self.x_start.copy_from_slice(&segment.coeffs[..n]);
     }
 
     /// The cut's value at the end of the last step.
@@ -86,34 +170,41 @@ impl FlowMap {
         cut.value(t, x, parameters)
     }
 
-    /// Locates the crossing inside the last step on the dense output of the states alone and
-    /// evaluates the whole augmented state there (into `x_cross` and `z_cross`).
-    fn locate_crossing(&mut self, g0: f64, g1: f64) -> f64 {
+    /// Locates the crossing inside the piece `bracket` of the last step on the dense output
+    /// of the states alone and evaluates the whole augmented state there (into `x_cross` and
+    /// `z_cross`).
+    fn locate_crossing(&mut self, bracket: &Bracket) -> f64 {
         let n = self.n;
+        self.split_terms();
         let segment = self.integrator.segment();
         let dim = segment.dim;
-        let n_terms = segment.n_terms();
-        self.x_terms.clear();
-        for term in 1..n_terms {
-            self.x_terms
-                .extend_from_slice(&segment.coeffs[term * dim..term * dim + n]);
-        }
-        self.x_start.copy_from_slice(&segment.coeffs[..n]);
         let (t0, h) = (segment.t0, segment.h);
         self.z_cross.resize(dim, 0.0);
+        let whole_step = bracket.a == 0.0 && bracket.b == 1.0;
+        let parameters = self.model.parameters();
         let tc = match &mut self.kind {
-            MapKind::Cut(cut) => cut.locate(
+            MapKind::Cut(cut) if whole_step => cut.locate(
                 &self.x_start,
                 &self.x_terms,
                 t0,
                 h,
-                g0,
-                g1,
-                self.model.parameters(),
+                bracket.ga,
+                bracket.gb,
+                parameters,
+                &mut self.x_cross,
+            ),
+            MapKind::Cut(cut) => cut.locate_in(
+                &self.x_start,
+                &self.x_terms,
+                t0,
+                h,
+                bracket,
+                parameters,
                 &mut self.x_cross,
             ),
             MapKind::Strobe(_) => t0 + h,
         };
+        let segment = self.integrator.segment();
         segment.eval(tc, &mut self.z_cross);
         // the state from the located root, so the point lies on the surface to round-off
         self.z_cross[..n].copy_from_slice(&self.x_cross);

@@ -88,6 +88,14 @@ pub enum CycleError {
         /// Time at the end of the step where it happened.
         t: f64,
     },
+    /// The model's switches piled up while following the orbit (a sliding mode).
+    #[error(
+        "the model chatters at t = {t} while following the orbit: its switches pile up with vanishing time between them (a sliding mode)"
+    )]
+    Chattering {
+        /// Time of the last switch.
+        t: f64,
+    },
     /// The integration of the orbit and its variational equations failed.
     #[error("integrating the orbit and its variational equations failed: {0}")]
     Integration(#[from] StepError),

@@ -6,10 +6,11 @@ use super::CycleError;
 use super::variational::Variational;
 use std::sync::Arc;
 
-use crate::integrate::{Integrator, Interrupt, Method, Rates, StepControl};
+use crate::integrate::{Integrator, Interrupt, Method, Rates, StepControl, TangentLayout};
 use crate::memory;
 use crate::model::Model;
 use crate::run::{Cut, RunSpec, Strobe};
+use crate::switching::{SwitchedStepError, SwitchedTangent, Switching};
 
 /// A point of a return map: a state and its time.
 #[derive(Clone, Debug, PartialEq)]
@@ -102,9 +103,16 @@ pub struct FlowMap {
     pub(super) x_cross: Vec<f64>,
     pub(super) z_cross: Vec<f64>,
     /// Whether the variational matrix is integrated in the current pass.
-    with_matrix: bool,
-    /// Whether derivatives come from central differences (rates that jump with the states).
+    pub(super) with_matrix: bool,
+    /// Whether derivatives come from central differences (rates that jump with the states
+    /// other than at located switches: `%`).
     differences: bool,
+    /// For a model with switches: the held rates with the variational matrix, carried
+    /// through every located switch by its saltation matrix.
+    pub(super) switched: Option<SwitchedTangent>,
+    /// Whether the last application fell back to differences because a switch on the way
+    /// was not crossed transversally (sliding or grazing).
+    fell_back: bool,
     /// Raised to stop following the orbit at the next step.
     interrupt: Option<Arc<Interrupt>>,
 }
@@ -137,6 +145,8 @@ impl FlowMap {
             return Err(CycleError::TooLarge { bytes, n_states: n });
         }
         let model_jumps = model.jumps_with_states();
+        let switched = Switching::new(&model, 0.0, model.start())
+            .map(|switching| SwitchedTangent::new(switching, TangentLayout::matrix_columns(n, n)));
         Ok(Self {
             integrator: Integrator::new(settings.method, settings.control, n + n * n),
             model,
@@ -150,7 +160,9 @@ impl FlowMap {
             x_cross: vec![0.0; n],
             z_cross: vec![0.0; n + n * n],
             with_matrix: true,
-            differences: model_jumps,
+            differences: model_jumps && switched.is_none(),
+            switched,
+            fell_back: false,
             interrupt: None,
         })
     }
@@ -192,7 +204,21 @@ impl FlowMap {
     /// `step`, `floor`, `ceil`, `%` of a state), where the variational equations would miss the
     /// jumps. Its multipliers are then accurate to about `rtol^(2/3)`.
     pub fn uses_differences(&self) -> bool {
-        self.differences
+        self.differences || self.fell_back
+    }
+
+    /// Switches crossed with a saltation matrix in the last application of the map.
+    pub fn n_saltations(&self) -> u64 {
+        self.switched
+            .as_ref()
+            .map_or(0, SwitchedTangent::n_saltations)
+    }
+
+    /// Whether the last application fell back to central differences because a switch on
+    /// the way was not crossed transversally (the flow slid along or grazed the switching
+    /// surface), where no saltation matrix exists.
+    pub fn fell_back_to_differences(&self) -> bool {
+        self.fell_back
     }
 
     /// The model.
@@ -253,10 +279,22 @@ impl FlowMap {
         }
         self.check_seed(&seed.state)?;
         if self.differences {
-            self.apply_by_differences(seed, k)
-        } else {
-            self.follow(seed, k, true)
+            return self.apply_by_differences(seed, k);
         }
+        let image = self.follow(seed, k, true)?;
+        if self
+            .switched
+            .as_ref()
+            .is_some_and(|s| s.n_not_transversal() > 0)
+        {
+            // no saltation matrix where the flow does not cross: difference the map
+            self.fell_back = true;
+            let image = self.apply_by_differences(seed, k);
+            self.fell_back = true;
+            return image;
+        }
+        self.fell_back = false;
+        Ok(image)
     }
 
     /// Follows the orbit of `seed` through `k` applications of the map, with the variational
@@ -403,7 +441,11 @@ impl FlowMap {
     fn reset(&mut self, t0: f64, x0: &[f64], with_matrix: bool) {
         self.with_matrix = with_matrix;
         let z0 = Variational::start(x0, with_matrix);
-        let mut rates = Variational::new(&mut self.model, with_matrix);
+        if let Some(switched) = &mut self.switched {
+            let m = if with_matrix { self.n } else { 0 };
+            switched.restart_at(t0, x0, TangentLayout::matrix_columns(self.n, m));
+        }
+        let mut rates = flow_rates(&mut self.switched, &mut self.model, with_matrix);
         self.integrator.reset(&mut rates, t0, &z0);
     }
 
@@ -423,8 +465,19 @@ impl FlowMap {
                 t: self.integrator.t(),
             });
         }
-        let mut rates = Variational::new(&mut self.model, self.with_matrix);
-        self.integrator.step_lazy(&mut rates, t_limit)?;
+        match &mut self.switched {
+            Some(switched) => match switched.step(&mut self.integrator, t_limit) {
+                Ok(_) => {}
+                Err(SwitchedStepError::Step(err)) => return Err(err.into()),
+                Err(SwitchedStepError::Chattering(c)) => {
+                    return Err(CycleError::Chattering { t: c.t });
+                }
+            },
+            None => {
+                let mut rates = Variational::new(&mut self.model, self.with_matrix);
+                self.integrator.step_lazy(&mut rates, t_limit)?;
+            }
+        }
         let escape = self.settings.escape;
         if self.integrator.x()[..self.n]
             .iter()
@@ -444,7 +497,7 @@ impl FlowMap {
     /// does not resolve the orbit ([`Integrator::ensure_accurate_dense`]); whether the step
     /// was shortened.
     pub(super) fn accurate_dense(&mut self) -> Result<bool, CycleError> {
-        let mut rates = Variational::new(&mut self.model, self.with_matrix);
+        let mut rates = flow_rates(&mut self.switched, &mut self.model, self.with_matrix);
         Ok(self.integrator.ensure_accurate_dense(&mut rates)?)
     }
 }
@@ -452,4 +505,69 @@ impl FlowMap {
 /// Euclidean norm.
 pub(crate) fn norm(v: &[f64]) -> f64 {
     v.iter().map(|x| x * x).sum::<f64>().sqrt()
+}
+
+/// The right-hand side a map integrates: the model's variational equations, or for a model
+/// with switches the held rates with the matrix carried through the switches.
+pub(super) enum FlowRates<'a> {
+    /// The model and (optionally) its variational matrix.
+    Smooth(Variational<'a>),
+    /// The held rates with the matrix, through the switches.
+    Switched(&'a mut SwitchedTangent),
+}
+
+/// The [`FlowRates`] of a map's parts.
+pub(super) fn flow_rates<'a>(
+    switched: &'a mut Option<SwitchedTangent>,
+    model: &'a mut Model,
+    with_matrix: bool,
+) -> FlowRates<'a> {
+    match switched {
+        Some(switched) => FlowRates::Switched(switched),
+        None => FlowRates::Smooth(Variational::new(model, with_matrix)),
+    }
+}
+
+impl Rates for FlowRates<'_> {
+    fn dim(&self) -> usize {
+        match self {
+            Self::Smooth(r) => r.dim(),
+            Self::Switched(r) => r.dim(),
+        }
+    }
+
+    fn rates(&mut self, t: f64, x: &[f64], dx: &mut [f64]) {
+        match self {
+            Self::Smooth(r) => r.rates(t, x, dx),
+            Self::Switched(r) => r.rates(t, x, dx),
+        }
+    }
+
+    fn exact_jacobian(&mut self, t: f64, x: &[f64], jacobian: &mut [f64]) -> bool {
+        match self {
+            Self::Smooth(r) => r.exact_jacobian(t, x, jacobian),
+            Self::Switched(r) => r.exact_jacobian(t, x, jacobian),
+        }
+    }
+
+    fn exact_time_derivative(&mut self, t: f64, x: &[f64], out: &mut [f64]) -> bool {
+        match self {
+            Self::Smooth(r) => r.exact_time_derivative(t, x, out),
+            Self::Switched(r) => r.exact_time_derivative(t, x, out),
+        }
+    }
+
+    fn tangent_layout(&self) -> Option<crate::integrate::TangentLayout> {
+        match self {
+            Self::Smooth(r) => r.tangent_layout(),
+            Self::Switched(r) => r.tangent_layout(),
+        }
+    }
+
+    fn model_jacobian(&mut self, t: f64, x: &[f64], jacobian: &mut [f64]) {
+        match self {
+            Self::Smooth(r) => r.model_jacobian(t, x, jacobian),
+            Self::Switched(r) => r.model_jacobian(t, x, jacobian),
+        }
+    }
 }

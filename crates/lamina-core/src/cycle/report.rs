@@ -47,6 +47,12 @@ pub struct CycleReport {
     /// Whether the derivatives came from central differences of the map (rates that jump
     /// with the states) rather than the variational equations.
     pub from_differences: bool,
+    /// Switches on the orbit, each crossed with its saltation matrix in the variational
+    /// equations (0 for a model without switches, or when differences were used).
+    pub n_saltations: u64,
+    /// Whether differences were used because a switch on the orbit is not crossed
+    /// transversally (the flow slides along or grazes it), where no saltation matrix exists.
+    pub sliding: bool,
     /// Stable, unstable (with the number of unstable directions) or neutral.
     pub verdict: Verdict,
     /// The stability margin: how far inside the unit circle, how stability would be lost
@@ -58,6 +64,23 @@ pub struct CycleReport {
 }
 
 impl CycleReport {
+    /// Where the derivatives came from, in words: the variational equations (with the
+    /// saltation matrices of the switches), or central differences of the map and why.
+    pub fn derivatives(&self) -> String {
+        match (self.from_differences, self.sliding, self.n_saltations) {
+            (true, true, _) => "central differences of the map (a switch on the orbit is not \
+                                crossed transversally: the flow slides along or grazes it)"
+                .to_string(),
+            (true, false, _) => {
+                "central differences of the map (the rates jump with the states: %)".to_string()
+            }
+            (false, _, 0) => "variational equations".to_string(),
+            (false, _, n) => {
+                format!("variational equations, with a saltation matrix at each of {n} switches")
+            }
+        }
+    }
+
     /// Measures a refined point: multipliers, Floquet multipliers, verdict.
     ///
     /// For the cut map the linearised map `(I - f grad g^T / (grad g . f)) Phi` has the
@@ -113,6 +136,12 @@ impl CycleReport {
             residual,
             iterations,
             from_differences: map.uses_differences(),
+            n_saltations: if map.uses_differences() {
+                0
+            } else {
+                map.n_saltations()
+            },
+            sliding: map.fell_back_to_differences(),
             search: Search::direct(image_k),
         })
     }

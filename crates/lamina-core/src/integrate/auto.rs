@@ -155,6 +155,13 @@ impl Integrator {
         }
     }
 
+    /// Replaces the current state (the time stays), as when tangent vectors jump at a
+    /// switch; the next step starts afresh, as after [`Integrator::restart`].
+    pub fn replace_state(&mut self, x: &[f64]) {
+        self.x.copy_from_slice(x);
+        self.restart();
+    }
+
     /// Continues from the current state with rates that have changed (a switch of the
     /// model's branches): `f(t, x)` and the Jacobian are evaluated again before the next
     /// step and the step-size history is forgotten; the proposed step size is kept.

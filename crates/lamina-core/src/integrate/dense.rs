@@ -71,3 +71,40 @@ pub fn eval_split(start: &[f64], terms: &[f64], dim: usize, s: f64, out: &mut [f
         out[i] = start[i] + s * acc;
     }
 }
+
+/// The derivative with respect to the step fraction `s` of the nested interpolant of
+/// [`eval_split`] (the state's time derivative times the step size) into `out`.
+pub fn slope_split(start: &[f64], terms: &[f64], dim: usize, s: f64, out: &mut [f64]) {
+    let n_rest = terms.len() / dim.max(1);
+    let r = 1.0 - s;
+    for (i, o) in out.iter_mut().enumerate().take(start.len().min(dim)) {
+        let mut acc = terms[(n_rest - 1) * dim + i];
+        let mut slope = 0.0;
+        for j in (0..n_rest - 1).rev() {
+            let (w, dw) = if (j + 1) % 2 == 1 {
+                (r, -1.0)
+            } else {
+                (s, 1.0)
+            };
+            slope = dw * acc + w * slope;
+            acc = terms[j * dim + i] + w * acc;
+        }
+        *o = acc + s * slope;
+    }
+}
+
+/// Evaluates the first `out.len()` states of the nested interpolant of `coeffs` (term-major,
+/// `dim` per term) at the fraction `s` of the step: the model's states of a system that
+/// carries more (tangent vectors).
+pub fn eval_prefix(coeffs: &[f64], dim: usize, s: f64, out: &mut [f64]) {
+    let n_terms = coeffs.len() / dim.max(1);
+    let r = 1.0 - s;
+    for (i, o) in out.iter_mut().enumerate() {
+        let mut acc = coeffs[(n_terms - 1) * dim + i];
+        for j in (1..n_terms - 1).rev() {
+            let w = if j % 2 == 1 { r } else { s };
+            acc = coeffs[j * dim + i] + w * acc;
+        }
+        *o = coeffs[i] + s * acc;
+    }
+}

@@ -365,6 +365,17 @@ impl Integrator {
         &self.x
     }
 
+    /// The rates at the current state, with which the next step starts: after a step its
+    /// last stage (first same as last: no evaluation), after [`Integrator::restart`] one
+    /// evaluation of `rates`, which the next step then uses.
+    ///
+    /// # Errors
+    /// [`StepError::NotFinite`] when the state or its rates are not finite.
+    pub fn rates_here<R: Rates + ?Sized>(&mut self, rates: &mut R) -> Result<&[f64], StepError> {
+        self.ensure_f0(rates)?;
+        Ok(self.stepper.f0())
+    }
+
     /// Proposed size of the next step (0 before the first step when it is chosen
     /// automatically).
     pub fn h_next(&self) -> f64 {

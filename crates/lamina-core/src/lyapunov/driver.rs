@@ -10,10 +10,11 @@ use super::result::{ExponentSink, Spectrum};
 use super::summary::{Trace, Verdict, classify, kaplan_yorke, settled_spectrum};
 use super::tangent::{Tangent, tilted_axes};
 use super::{ExponentError, ExponentSettings};
-use crate::integrate::{Integrator, Interrupt, Method, Rates, Stats, StepControl};
+use crate::integrate::{Integrator, Interrupt, Method, Rates, Stats, StepControl, TangentLayout};
 use crate::memory;
 use crate::model::Model;
 use crate::run::{RunSpec, StopReason, check_time_resolution, stop_reason};
+use crate::switching::{SwitchedStepError, SwitchedTangent, Switching};
 
 /// How often progress is reported, in accepted steps.
 const PROGRESS_EVERY_STEPS: u64 = 256;
@@ -32,9 +33,12 @@ const PROGRESS_EVERY_STEPS: u64 = 256;
 ///
 /// For a model that uses `t`, the `n` exponents of the states are computed; the time
 /// direction's zero is not listed (`time_direction_omitted`). Rates that jump with the
-/// state (`sign`, `step`, `floor`, ...) have no derivative across the jump: the exponents
-/// then leave out the stretching at the switching instants, and the result says so
-/// (`rates_jump`).
+/// state (`sign`, `step`, `floor`, ...) are integrated with their switches held and located
+/// (as in runs), and at every switch the tangent vectors jump by the saltation matrix
+/// (Müller 1995; see [`SwitchedTangent`]). A switch that the flow does not cross
+/// transversally has no saltation matrix: the exponents then leave out the stretching there,
+/// and the result says so (`rates_jump`, `n_not_transversal`), as for a jump that is not a
+/// switch (`%`).
 ///
 /// Cancellation: `interrupt` is checked once per step. Numerical trouble (a state beyond
 /// `run.escape`, a value not finite, a collapsing step) ends the run with its reason and
@@ -140,6 +144,9 @@ struct Work {
     n_qr: u64,
     /// The model's switches, watched for a sliding mode (`None` without switches).
     chatter: Option<ChatterWatch>,
+    /// Over the span, the held rates of a model with switches and the tangent vectors,
+    /// carried through the switches with the saltation matrix.
+    switched: Option<SwitchedTangent>,
 }
 
 impl Work {
@@ -165,6 +172,7 @@ impl Work {
             stats: Stats::default(),
             n_steps: 0,
             n_qr: 0,
+            switched: None,
         }
     }
 
@@ -232,7 +240,12 @@ impl Work {
         }
         let mut side = y[n..].to_vec();
         let mut integrator = Integrator::new(self.run.method, self.run.control, y.len());
-        integrator.reset(&mut self.tangent, t_record, &y);
+        self.switched = Switching::new(self.tangent.model(), t_record, &self.x)
+            .map(|switching| SwitchedTangent::new(switching, TangentLayout::vectors(n, m)));
+        match &mut self.switched {
+            Some(switched) => integrator.reset(switched, t_record, &y),
+            None => integrator.reset(&mut self.tangent, t_record, &y),
+        }
         let reason = loop {
             let t = integrator.t();
             if t >= t_end {
@@ -241,9 +254,19 @@ impl Work {
             if interrupt.is_raised() {
                 break StopReason::Cancelled { t };
             }
-            // the estimates use the step ends only: no dense output
-            if let Err(err) = integrator.step_lazy(&mut self.tangent, t_end) {
-                break stop_reason(&self.run, err);
+            // the estimates use the step ends only: no dense output (but at switches)
+            let stepped = match &mut self.switched {
+                Some(switched) => switched.step(&mut integrator, t_end).map(|_| ()),
+                None => integrator
+                    .step_lazy(&mut self.tangent, t_end)
+                    .map_err(SwitchedStepError::Step),
+            };
+            match stepped {
+                Ok(()) => {}
+                Err(SwitchedStepError::Step(err)) => break stop_reason(&self.run, err),
+                Err(SwitchedStepError::Chattering(chattering)) => {
+                    break StopReason::Chattering { t: chattering.t };
+                }
             }
             self.n_steps += 1;
             let t1 = integrator.t();
@@ -251,10 +274,10 @@ impl Work {
             if let Some(reason) = check_state(self.run.escape, t1, x) {
                 break reason;
             }
+            // (held switches report chattering themselves)
             let model = self.tangent.model();
-            if let Some(t) =
-                (self.chatter.as_mut()).and_then(|watch| watch.observe(model, &self.run, t1, x))
-            {
+            let watch = self.chatter.as_mut().filter(|_| self.switched.is_none());
+            if let Some(t) = watch.and_then(|watch| watch.observe(model, &self.run, t1, x)) {
                 break StopReason::Chattering { t };
             }
             side.copy_from_slice(vectors);
@@ -315,7 +338,10 @@ impl Work {
             ..self.run.control
         };
         let mut integrator = Integrator::new(self.run.method, control, y.len());
-        integrator.reset(&mut self.tangent, self.t, y);
+        match &mut self.switched {
+            Some(switched) => integrator.reset(switched, self.t, y),
+            None => integrator.reset(&mut self.tangent, self.t, y),
+        }
         integrator
     }
 
@@ -329,7 +355,13 @@ impl Work {
         let spread = self.trace.spread(t_record, settings.tail_fraction);
         let model = self.tangent.model_mut();
         let omitted = model.uses_time();
-        let rates_jump = model.program().jumps_with_states();
+        let (n_saltations, n_not_transversal) = self
+            .switched
+            .as_ref()
+            .map_or((0, 0), |s| (s.n_saltations(), s.n_not_transversal()));
+        // the jumps are left out where no saltation matrix carried the tangent vectors
+        let rates_jump = model.program().jumps_with_states()
+            && (self.switched.is_none() || n_not_transversal > 0);
         let n_states = self.n;
         // only a run that finished its span is read: one that escaped grew without bound,
         // any other that ended early is undecided (its estimates are kept, unread)
@@ -359,6 +391,8 @@ impl Work {
             n_states,
             time_direction_omitted: omitted,
             rates_jump,
+            n_saltations,
+            n_not_transversal,
             kaplan_yorke,
             verdict,
             trace: self.trace,

@@ -44,12 +44,17 @@ pub struct Spectrum {
     /// The model uses `t` (it is forced): its flow has one more direction, time, whose zero
     /// exponent is not listed in `exponents`.
     pub time_direction_omitted: bool,
-    /// The rates jump as the states change (`sign`, `step`, `floor`, `ceil` or `%` of a
-    /// state-dependent value, as in a relay). The tangent vectors follow the Jacobian, which
-    /// does not see the jumps, so the stretching at the switching instants is left out: the
-    /// exponents and the verdict may be wrong for such a model (a relay oscillation can come
-    /// out as a resting point). Kinks (`abs`, `min`, `max`) are fine.
+    /// The rates jump as the states change and some jumps were not carried by a saltation
+    /// matrix: a `%` of a state-dependent value (not a located switch), or a switch (`sign`,
+    /// `step`, `floor`, `ceil`) that the flow did not cross transversally (sliding or
+    /// grazing). The stretching there is left out, so the exponents and the verdict may be
+    /// wrong. Switches crossed transversally are exact (`n_saltations`); kinks (`abs`,
+    /// `min`, `max`) are fine.
     pub rates_jump: bool,
+    /// Switches at which the tangent vectors jumped by the saltation matrix.
+    pub n_saltations: u64,
+    /// Switches the flow did not cross transversally (no saltation matrix there).
+    pub n_not_transversal: u64,
     /// The Kaplan–Yorke dimension of the attractor in the state space (with time, for a
     /// forced model), read from the exponents with those zero within their error set to 0;
     /// `None` when too few exponents were computed to determine it, when nothing was averaged

@@ -367,6 +367,8 @@ mod tests {
             n_states: exponents.len(),
             time_direction_omitted: false,
             rates_jump: false,
+            n_saltations: 0,
+            n_not_transversal: 0,
             kaplan_yorke: None,
             verdict: Verdict::Undecided,
             trace: Trace::new(exponents.len()),

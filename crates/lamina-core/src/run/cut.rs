@@ -1,10 +1,11 @@
 //! The cut (Poincaré section): a plane or a level surface, a crossing direction, and the
 //! location of crossings on a step's dense output.
 
+use super::graze::{self, Bracket, Turns};
 use super::root::{brent, newton_bracketed};
 use super::{CutSpec, SpecError, SurfaceSpec};
 use crate::expr::{Program, Scratch};
-use crate::integrate::dense::eval_split;
+use crate::integrate::dense::{eval_split, slope_split};
 use crate::model::Model;
 
 /// Which crossings of the surface count.
@@ -129,6 +130,148 @@ impl Cut {
                 program.jacobian(&mut self.scratch, t, x, parameters, out);
             }
         }
+    }
+
+    /// `dg/dt` along the flow at `(t, x)` where the rates are `rates`: `grad g . f`, plus the
+    /// surface's own motion for a level surface that uses `t`.
+    pub fn slope(&mut self, t: f64, x: &[f64], rates: &[f64], parameters: &[f64]) -> f64 {
+        match &self.surface {
+            Surface::Plane { normal, .. } => normal.iter().zip(rates).map(|(n, f)| n * f).sum(),
+            Surface::Level { program, .. } => {
+                let mut small = [0.0; 16];
+                let mut large = Vec::new();
+                let gradient = if x.len() <= small.len() {
+                    &mut small[..x.len()]
+                } else {
+                    large.resize(x.len(), 0.0);
+                    &mut large[..]
+                };
+                program.jacobian(&mut self.scratch, t, x, parameters, gradient);
+                let mut slope: f64 = gradient.iter().zip(rates).map(|(g, f)| g * f).sum();
+                if program.uses_time() {
+                    let mut dt = [0.0];
+                    program.time_derivative(&mut self.scratch, t, x, parameters, &mut dt);
+                    slope += dt[0];
+                }
+                slope
+            }
+        }
+    }
+
+    /// The screen of [`graze`] on one step (given as for [`Cut::locate`], with `g0`, `g1`
+    /// the values at its ends) with the slopes of its dense output at the ends: the extrema
+    /// that may hide crossings. Live runs and re-slices decide on these, so that they agree.
+    #[allow(clippy::too_many_arguments)]
+    pub(crate) fn turns_on_step(
+        &mut self,
+        start: &[f64],
+        terms: &[f64],
+        t0: f64,
+        h: f64,
+        g0: f64,
+        g1: f64,
+        parameters: &[f64],
+        state: &mut [f64],
+    ) -> Turns {
+        let dim = start.len();
+        if let Surface::Plane { normal, offset } = &self.surface
+            && let Some(g) = ProjectedPlane::new(normal, *offset, start, terms)
+        {
+            let (m0, m1) = (g.value_and_slope(0.0).1, g.value_and_slope(1.0).1);
+            return graze::screen(g0, g1, m0, m1, graze::REACH);
+        }
+        let mut slopes = [0.0; 2];
+        let mut velocity = vec![0.0; dim];
+        for (m, s) in slopes.iter_mut().zip([0.0, 1.0]) {
+            eval_split(start, terms, dim, s, state);
+            slope_split(start, terms, dim, s, &mut velocity);
+            for v in &mut velocity {
+                *v /= h;
+            }
+            *m = h * self.slope(t0 + s * h, state, &velocity, parameters);
+        }
+        graze::screen(g0, g1, slopes[0], slopes[1], graze::REACH)
+    }
+
+    /// The pieces of one step (given as for [`Cut::locate`]) on which `g` changes sign,
+    /// given the extrema `turns` of its Hermite interpolant found by the screen of
+    /// [`graze`]: the crossings that enter and leave inside the step too. Writes at most three
+    /// into `out` and returns the count.
+    #[allow(clippy::too_many_arguments)]
+    pub(crate) fn brackets(
+        &mut self,
+        start: &[f64],
+        terms: &[f64],
+        t0: f64,
+        h: f64,
+        g0: f64,
+        g1: f64,
+        turns: &Turns,
+        parameters: &[f64],
+        state: &mut [f64],
+        out: &mut [Bracket; 3],
+    ) -> usize {
+        let dim = start.len();
+        if let Surface::Plane { normal, offset } = &self.surface
+            && let Some(g) = ProjectedPlane::new(normal, *offset, start, terms)
+        {
+            return graze::brackets(|s| g.value_and_slope(s).0, g0, g1, turns, out);
+        }
+        graze::brackets(
+            |s| {
+                eval_split(start, terms, dim, s, state);
+                self.value(t0 + s * h, state, parameters)
+            },
+            g0,
+            g1,
+            turns,
+            out,
+        )
+    }
+
+    /// [`Cut::locate`] on the piece `bracket` of the step.
+    #[allow(clippy::too_many_arguments)]
+    pub(crate) fn locate_in(
+        &mut self,
+        start: &[f64],
+        terms: &[f64],
+        t0: f64,
+        h: f64,
+        bracket: &Bracket,
+        parameters: &[f64],
+        state: &mut [f64],
+    ) -> f64 {
+        let dim = start.len();
+        let Bracket { a, b, ga, gb } = *bracket;
+        let s = match &self.surface {
+            Surface::Plane { normal, offset } => {
+                match ProjectedPlane::new(normal, *offset, start, terms) {
+                    Some(g) => newton_bracketed(|s| g.value_and_slope(s), a, b, ga, gb),
+                    None => brent(
+                        |s| {
+                            eval_split(start, terms, dim, s, state);
+                            plane_value(normal, *offset, state)
+                        },
+                        a,
+                        b,
+                        ga,
+                        gb,
+                    ),
+                }
+            }
+            Surface::Level { .. } => brent(
+                |s| {
+                    eval_split(start, terms, dim, s, state);
+                    self.value(t0 + s * h, state, parameters)
+                },
+                a,
+                b,
+                ga,
+                gb,
+            ),
+        };
+        eval_split(start, terms, dim, s, state);
+        t0 + s * h
     }
 
     /// Whether the surface moves with the time `t` (a level surface whose expression uses `t`).

@@ -4,6 +4,7 @@
 
 use std::ops::ControlFlow;
 
+use super::graze::{self, Bracket, Turns};
 use super::time_resolution::{
     TimeResolution, check_time_resolution, step_lost_to_time, time_spacing,
 };
@@ -202,12 +203,17 @@ pub struct Run {
     started: bool,
     t_end: f64,
     g_prev: f64,
+    /// `dg/dt` of the cut at the start of the next step; `None` until measured (after a
+    /// switch of the model's rates it is measured again with the new rates).
+    slope_prev: Option<f64>,
     last_crossing: Option<f64>,
     next_strobe: i64,
     n_cut: usize,
     n_strobe: usize,
     cut_point: CutPoint,
     end_state: Vec<f64>,
+    /// The rates at the end of the step just taken (for the cut's slope there).
+    end_rates: Vec<f64>,
 }
 
 /// How often progress is reported, in accepted steps.
@@ -240,6 +246,7 @@ impl Run {
             store,
             started: false,
             g_prev: 0.0,
+            slope_prev: None,
             last_crossing: None,
             next_strobe,
             n_cut: 0,
@@ -250,6 +257,7 @@ impl Run {
                 state: vec![0.0; dim],
             },
             end_state: vec![0.0; dim],
+            end_rates: vec![0.0; dim],
         }
     }
 
@@ -309,6 +317,7 @@ impl Run {
     pub fn set_cut(&mut self, cut: Option<Cut>) {
         self.cut = cut;
         self.last_crossing = None;
+        self.slope_prev = None;
         if let Some(cut) = &mut self.cut {
             let (t, x) = if self.started {
                 (self.integrator.t(), self.integrator.x().to_vec())
@@ -393,6 +402,9 @@ impl Run {
             if interrupt.is_raised() {
                 return StopReason::Cancelled { t };
             }
+            if let Err(err) = self.measure_start_slope() {
+                return stop_reason(&self.spec, err);
+            }
             // the dense output costs DOP853 three more evaluations: build it only for a stored
             // step, a strobe sample inside the step, a cut crossing (found from the end state)
             // or a switch of the model's branches
@@ -433,9 +445,12 @@ impl Run {
             // run goes on from the other side
             if crossing.is_some()
                 && let Some(switching) = &mut self.switching
-                && let Err(Chattering { t }) = switching.apply(&mut self.integrator)
             {
-                return stop.unwrap_or(StopReason::Chattering { t });
+                // the cut's slope changes with the rates
+                self.slope_prev = None;
+                if let Err(Chattering { t }) = switching.apply(&mut self.integrator) {
+                    return stop.unwrap_or(StopReason::Chattering { t });
+                }
             }
             if let Some(reason) = stop {
                 return reason;
@@ -456,11 +471,60 @@ impl Run {
                 return true;
             }
         }
-        if let Some(cut) = &mut self.cut {
-            let g1 = cut.value(t1, self.integrator.x(), self.model.parameters());
-            return cut.direction.crosses(self.g_prev, g1);
+        if self.cut.is_some() {
+            self.end_state.copy_from_slice(self.integrator.x());
+            let Ok((g1, _, turns)) = self.screen_cut(t1) else {
+                return false;
+            };
+            let Some(cut) = &self.cut else {
+                return false;
+            };
+            return !turns.is_empty() || cut.direction.crosses(self.g_prev, g1);
         }
         false
+    }
+
+    /// Measures the cut's `dg/dt` at the current state unless known (at the start of the
+    /// run, after a switch or a new cut): from the rates the next step starts with, so that
+    /// it costs no evaluation.
+    fn measure_start_slope(&mut self) -> Result<(), StepError> {
+        let Some(cut) = &mut self.cut else {
+            return Ok(());
+        };
+        if self.slope_prev.is_some() {
+            return Ok(());
+        }
+        let rates = match &mut self.switching {
+            Some(switching) => self.integrator.rates_here(switching)?,
+            None => self.integrator.rates_here(&mut self.model)?,
+        };
+        self.end_rates.copy_from_slice(rates);
+        let (t, x) = (self.integrator.t(), self.integrator.x());
+        self.slope_prev = Some(cut.slope(t, x, &self.end_rates, self.model.parameters()));
+        Ok(())
+    }
+
+    /// The cut's value and `dg/dt` at the end of the step just taken (whose state is in
+    /// `end_state`), and the interior extrema of the step's Hermite interpolant of the cut's
+    /// value that may hide crossings ([`graze::screen`]).
+    fn screen_cut(&mut self, t1: f64) -> Result<(f64, f64, Turns), StepError> {
+        let Some(cut) = &mut self.cut else {
+            return Ok((f64::NAN, f64::NAN, Turns::default()));
+        };
+        let rates = match &mut self.switching {
+            Some(switching) => self.integrator.rates_here(switching)?,
+            None => self.integrator.rates_here(&mut self.model)?,
+        };
+        self.end_rates.copy_from_slice(rates);
+        let parameters = self.model.parameters();
+        let g1 = cut.value(t1, &self.end_state, parameters);
+        let d1 = cut.slope(t1, &self.end_state, &self.end_rates, parameters);
+        let Some(d0) = self.slope_prev else {
+            return Ok((g1, d1, Turns::default()));
+        };
+        let h = self.integrator.segment().h;
+        let turns = graze::screen(self.g_prev, g1, h * d0, h * d1, graze::FIRST_REACH);
+        Ok((g1, d1, turns))
     }
 
     /// Stores, reports and records the step just taken; a reason to stop, if any.
@@ -510,45 +574,94 @@ impl Run {
     /// Records the cut crossing and strobe samples of the step just taken, building the
     /// step's dense output when one of them needs it.
     fn record(&mut self, sink: &mut dyn Sink, t1: f64) -> Option<StopReason> {
-        let t_record = self.spec.t_record();
-        if let Some(cut) = &mut self.cut {
-            let g1 = cut.value(t1, &self.end_state, self.model.parameters());
+        if self.cut.is_some() {
+            let (g1, d1, turns) = match self.screen_cut(t1) {
+                Ok(screened) => screened,
+                Err(err) => return Some(stop_reason(&self.spec, err)),
+            };
             // the next step starts from this one's end even if the sink stops the run here
             let g0 = std::mem::replace(&mut self.g_prev, g1);
-            if cut.direction.crosses(g0, g1) {
+            self.slope_prev = Some(d1);
+            let mut brackets = [Bracket {
+                a: 0.0,
+                b: 1.0,
+                ga: g0,
+                gb: g1,
+            }; 3];
+            let Some(cut) = &self.cut else {
+                return None;
+            };
+            let mut n_brackets = usize::from(cut.direction.crosses(g0, g1));
+            if n_brackets == 0 && turns.is_empty() {
+                // most steps
+            } else {
                 if let Err(err) = dense(&mut self.integrator, &mut self.switching, &mut self.model)
                 {
                     return Some(stop_reason(&self.spec, err));
                 }
+                let Some(cut) = &mut self.cut else {
+                    return None;
+                };
                 let segment = self.integrator.segment();
                 let (t0, h, dim) = (segment.t0, segment.h, segment.dim);
                 let parameters = self.model.parameters();
                 let (start, terms) = segment.coeffs.split_at(dim);
-                let t = cut.locate(
-                    start,
-                    terms,
-                    t0,
-                    h,
-                    g0,
-                    g1,
-                    parameters,
-                    &mut self.cut_point.state,
-                );
-                if t >= t_record && t <= self.t_end {
-                    // a point past the escape size (or not finite) is not a valid point: the
-                    // run stops where it is instead
-                    if let Some(reason) = self.check_state(t, &self.cut_point.state) {
+                // the first screen passes; the dense output's slopes decide, as in a re-slice
+                let turns = if turns.is_empty() {
+                    turns
+                } else {
+                    let state = &mut self.cut_point.state;
+                    cut.turns_on_step(start, terms, t0, h, g0, g1, parameters, state)
+                };
+                if !turns.is_empty() {
+                    n_brackets = cut.brackets(
+                        start,
+                        terms,
+                        t0,
+                        h,
+                        g0,
+                        g1,
+                        &turns,
+                        parameters,
+                        &mut self.cut_point.state,
+                        &mut brackets,
+                    );
+                }
+                for bracket in &brackets[..n_brackets] {
+                    let Some(cut) = &mut self.cut else {
+                        return None;
+                    };
+                    if !cut.direction.crosses(bracket.ga, bracket.gb) {
+                        continue;
+                    }
+                    let segment = self.integrator.segment();
+                    let (start, terms) = segment.coeffs.split_at(dim);
+                    let parameters = self.model.parameters();
+                    let t = if turns.is_empty() {
+                        // the usual crossing, located as a re-slice locates it
+                        cut.locate(
+                            start,
+                            terms,
+                            t0,
+                            h,
+                            g0,
+                            g1,
+                            parameters,
+                            &mut self.cut_point.state,
+                        )
+                    } else {
+                        cut.locate_in(
+                            start,
+                            terms,
+                            t0,
+                            h,
+                            bracket,
+                            parameters,
+                            &mut self.cut_point.state,
+                        )
+                    };
+                    if let Some(reason) = self.emit_cut_point(sink, t) {
                         return Some(reason);
-                    }
-                    self.cut_point.t = t;
-                    self.cut_point.return_time = self.last_crossing.map(|last| t - last);
-                    self.last_crossing = Some(t);
-                    self.n_cut += 1;
-                    if sink.cut_point(&self.cut_point).is_break() {
-                        return Some(StopReason::SinkStopped { t });
-                    }
-                    if self.n_cut >= self.spec.max_points {
-                        return Some(StopReason::PointLimit { t });
                     }
                 }
             }
@@ -595,6 +708,32 @@ impl Run {
                     return Some(StopReason::PointLimit { t });
                 }
             }
+        }
+        None
+    }
+}
+
+impl Run {
+    /// Reports the crossing at `t` (its state in `cut_point`) when it lies inside the
+    /// recorded window; a reason to stop, if any.
+    fn emit_cut_point(&mut self, sink: &mut dyn Sink, t: f64) -> Option<StopReason> {
+        if t < self.spec.t_record() || t > self.t_end {
+            return None;
+        }
+        // a point past the escape size (or not finite) is not a valid point: the run stops
+        // where it is instead
+        if let Some(reason) = self.check_state(t, &self.cut_point.state) {
+            return Some(reason);
+        }
+        self.cut_point.t = t;
+        self.cut_point.return_time = self.last_crossing.map(|last| t - last);
+        self.last_crossing = Some(t);
+        self.n_cut += 1;
+        if sink.cut_point(&self.cut_point).is_break() {
+            return Some(StopReason::SinkStopped { t });
+        }
+        if self.n_cut >= self.spec.max_points {
+            return Some(StopReason::PointLimit { t });
         }
         None
     }

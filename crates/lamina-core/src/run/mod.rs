@@ -3,6 +3,7 @@
 
 mod cut;
 mod driver;
+pub(crate) mod graze;
 mod plane_scan;
 pub(crate) mod root;
 mod spec;

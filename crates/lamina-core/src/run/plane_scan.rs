@@ -1,14 +1,18 @@
 //! The scan of a re-slice by a plane: `g = normal . x - offset` at every stored step end in
 //! one pass over contiguous memory, specialised to the number of states so that the dot
-//! product is unrolled.
+//! product is unrolled. Besides the steps whose ends lie on the two sides, it reports the
+//! steps next to a turn of `g` (its change over a step changes sign), which may hold a pair
+//! of crossings inside ([`super::graze`]).
 
 use std::ops::ControlFlow;
 
 use super::Direction;
 use super::cut::plane_value;
+use super::graze::turns_between;
 
 /// Calls `crossing(step index, g0, g1)` for every step whose ends are on the two sides of the
-/// plane in `direction`, in order, until it breaks. `starts` are the steps' start states
+/// plane in `direction`, and for every step next to a turn of `g`
+/// ([`super::graze::turns_between`]), in order, until it breaks. `starts` are the steps' start states
 /// (`dim` each, contiguous), `last_end` the end state of the last step; the start of a step is
 /// the end of the step before.
 pub(super) fn scan(
@@ -76,12 +80,25 @@ fn run<'a, X: 'a + ?Sized>(
     mut crossing: impl FnMut(usize, f64, f64) -> ControlFlow<()>,
     g: impl Fn(&X) -> f64,
 ) {
+    // a step is reported one step late, once it is known whether g turns at its end
+    let mut pending: Option<(usize, f64, f64, bool)> = None;
+    let mut d_before = f64::NAN;
     for (idx, end) in ends.enumerate() {
         let g1 = g(end);
-        if direction.crosses(g0, g1) && crossing(idx, g0, g1).is_break() {
+        let d = g1 - g0;
+        let turn = !d_before.is_nan() && turns_between(d_before, d);
+        if let Some((p_idx, p_g0, p_g1, wanted)) = pending
+            && (wanted || turn)
+            && crossing(p_idx, p_g0, p_g1).is_break()
+        {
             return;
         }
+        pending = Some((idx, g0, g1, turn || direction.crosses(g0, g1)));
+        d_before = d;
         g0 = g1;
+    }
+    if let Some((p_idx, p_g0, p_g1, true)) = pending {
+        let _ = crossing(p_idx, p_g0, p_g1);
     }
 }
 
@@ -117,13 +134,19 @@ mod tests {
             let normal: Vec<f64> = (0..dim).map(|i| 1.0 / (i as f64 + 1.0)).collect();
             let mut found = Vec::new();
             scan(starts, end, &normal, 0.5, Direction::Both, |idx, g0, g1| {
-                found.push((idx, g0, g1));
+                // the steps next to a turn are reported too
+                if Direction::Both.crosses(g0, g1) {
+                    found.push((idx, g0, g1));
+                }
                 ControlFlow::Continue(())
             });
             assert!(!found.is_empty(), "dim {dim}");
             assert_eq!(found, expected(dim, starts, end, &normal), "dim {dim}");
             let mut first = None;
-            scan(starts, end, &normal, 0.5, Direction::Both, |idx, _, _| {
+            scan(starts, end, &normal, 0.5, Direction::Both, |idx, g0, g1| {
+                if !Direction::Both.crosses(g0, g1) {
+                    return ControlFlow::Continue(());
+                }
                 first = Some(idx);
                 ControlFlow::Break(())
             });

@@ -3,9 +3,9 @@
 
 use std::ops::ControlFlow;
 
-use super::cut::locate_on_plane;
+use super::graze::{self, Bracket};
 use super::plane_scan;
-use super::{Cut, CutPoint, Direction, Strobe, StrobeSample, Surface};
+use super::{Cut, CutPoint, Strobe, StrobeSample, Surface};
 use crate::integrate::DenseSegment;
 use crate::integrate::dense::eval_split;
 
@@ -178,8 +178,8 @@ impl StoredRun {
             point.state.copy_from_slice(state);
             each(&point)
         };
-        if let Surface::Plane { normal, offset } = &cut.surface {
-            self.reslice_plane(normal, *offset, cut.direction, |_, t, state| emit(t, state));
+        if let Surface::Plane { .. } = &cut.surface {
+            self.reslice_plane(cut, parameters, &mut emit);
             return;
         }
         let Some(mut g0) = self
@@ -190,18 +190,84 @@ impl StoredRun {
             return;
         };
         let mut state = vec![0.0; self.dim];
-        for idx in 0..self.t0.len() {
-            let (t0, h) = (self.t0[idx], self.h[idx]);
-            let g1 = cut.value(t0 + h, self.end_state(idx), parameters);
-            if cut.direction.crosses(g0, g1) {
-                let (start, terms) = (self.start_state(idx), self.step_terms(idx));
-                let t = cut.locate(start, terms, t0, h, g0, g1, parameters, &mut state);
-                if emit(t, &state).is_break() {
-                    return;
-                }
+        // a step is examined one step late, once it is known whether g turns at its end
+        let mut pending: Option<(usize, f64, f64, bool)> = None;
+        let mut d_before = f64::NAN;
+        for idx in 0..=self.t0.len() {
+            let next = self.t0.get(idx).map(|&t0| {
+                let g1 = cut.value(t0 + self.h[idx], self.end_state(idx), parameters);
+                (g1, g1 - g0)
+            });
+            let turn = match next {
+                Some((_, d)) => !d_before.is_nan() && graze::turns_between(d_before, d),
+                None => false,
+            };
+            if let Some((p_idx, p_g0, p_g1, wanted)) = pending
+                && (wanted || turn)
+                && self
+                    .examine(cut, p_idx, p_g0, p_g1, parameters, &mut state, &mut emit)
+                    .is_break()
+            {
+                return;
             }
+            let Some((g1, d)) = next else {
+                break;
+            };
+            pending = Some((idx, g0, g1, turn || cut.direction.crosses(g0, g1)));
+            d_before = d;
             g0 = g1;
         }
+    }
+
+    /// The crossings of `cut` inside step `idx` (with the cut's values `g0`, `g1` at its
+    /// ends), in time order, to `emit`: the one its ends show, or those the screen of
+    /// [`graze`] finds on the dense output.
+    #[allow(clippy::too_many_arguments)]
+    fn examine(
+        &self,
+        cut: &mut Cut,
+        idx: usize,
+        g0: f64,
+        g1: f64,
+        parameters: &[f64],
+        state: &mut [f64],
+        emit: &mut impl FnMut(f64, &[f64]) -> ControlFlow<()>,
+    ) -> ControlFlow<()> {
+        let (start, terms) = (self.start_state(idx), self.step_terms(idx));
+        let (t0, h) = (self.t0[idx], self.h[idx]);
+        let turns = cut.turns_on_step(start, terms, t0, h, g0, g1, parameters, state);
+        if turns.is_empty() {
+            if cut.direction.crosses(g0, g1) {
+                let t = cut.locate(start, terms, t0, h, g0, g1, parameters, state);
+                return emit(t, state);
+            }
+            return ControlFlow::Continue(());
+        }
+        let mut brackets = [Bracket {
+            a: 0.0,
+            b: 1.0,
+            ga: g0,
+            gb: g1,
+        }; 3];
+        let n = cut.brackets(
+            start,
+            terms,
+            t0,
+            h,
+            g0,
+            g1,
+            &turns,
+            parameters,
+            state,
+            &mut brackets,
+        );
+        for bracket in &brackets[..n] {
+            if cut.direction.crosses(bracket.ga, bracket.gb) {
+                let t = cut.locate_in(start, terms, t0, h, bracket, parameters, state);
+                emit(t, state)?;
+            }
+        }
+        ControlFlow::Continue(())
     }
 
     /// Re-slices with the plane `normal . x = offset`: one tight pass over the contiguous
@@ -211,12 +277,15 @@ impl StoredRun {
     /// order until it breaks.
     fn reslice_plane(
         &self,
-        normal: &[f64],
-        offset: f64,
-        direction: Direction,
-        mut crossing: impl FnMut(usize, f64, &[f64]) -> ControlFlow<()>,
+        cut: &mut Cut,
+        parameters: &[f64],
+        emit: &mut impl FnMut(f64, &[f64]) -> ControlFlow<()>,
     ) {
         let dim = self.dim;
+        let Surface::Plane { normal, offset } = &cut.surface else {
+            return;
+        };
+        let (normal, offset, direction) = (normal.clone(), *offset, cut.direction);
         if self.t0.is_empty() || dim == 0 || normal.len() != dim {
             return;
         }
@@ -232,10 +301,10 @@ impl StoredRun {
             }
             std::hint::black_box(touched);
             for &(idx, g0, g1) in batch.iter() {
-                let (start, terms) = (self.start_state(idx), self.step_terms(idx));
-                let (t0, h) = (self.t0[idx], self.h[idx]);
-                let t = locate_on_plane(normal, offset, start, terms, t0, h, g0, g1, &mut state);
-                if crossing(idx, t, &state).is_break() {
+                if self
+                    .examine(cut, idx, g0, g1, parameters, &mut state, emit)
+                    .is_break()
+                {
                     return ControlFlow::Break(());
                 }
             }
@@ -247,7 +316,7 @@ impl StoredRun {
         plane_scan::scan(
             starts,
             &self.end_state,
-            normal,
+            &normal,
             offset,
             direction,
             |idx, g0, g1| {
@@ -264,7 +333,6 @@ impl StoredRun {
         }
     }
 
-    /// Re-slices into a vector.
     pub fn reslice_points(&self, cut: &mut Cut, parameters: &[f64]) -> Vec<CutPoint> {
         let mut points = Vec::new();
         self.reslice(cut, parameters, |p| {

@@ -15,8 +15,10 @@
 //! followed forever.
 
 mod locate;
+mod tangent;
 
-pub use locate::Crossing;
+pub use locate::{Crossing, SwitchingRates, inspect_through};
+pub use tangent::{SwitchedStepError, SwitchedTangent};
 
 use crate::expr::{Branch, Kernel, Program, Scratch, Switch};
 use crate::integrate::{Integrator, Rates};
@@ -28,6 +30,8 @@ const CHATTER_COUNT: u32 = 8;
 /// A switch within this fraction of the step that starts at the switch before turns back
 /// at once (so does one the time resolution cannot separate from it).
 const BOUNCE_FRACTION: f64 = 1e-9;
+/// Relative time step of the forward difference that measures how fast the margins move.
+const FLOW_NUDGE: f64 = 1e-7;
 /// Branch combinations whose programs are kept (a model switching back and forth between a
 /// few combinations compiles each once).
 const CACHE_SIZE: usize = 64;
@@ -43,7 +47,7 @@ pub struct Chattering {
 }
 
 /// The programs of one combination of branches.
-#[derive(Debug)]
+#[derive(Clone, Debug)]
 struct Held {
     branches: Vec<Branch>,
     /// The rates with every switch held.
@@ -57,7 +61,7 @@ struct Held {
 /// The switching state of a model: its switches, the branch each is held on, and the held
 /// programs. Implements [`Rates`] with the held rates (and their exact Jacobian), for the
 /// integrator to step with.
-#[derive(Debug)]
+#[derive(Clone, Debug)]
 pub struct Switching {
     /// The model's rate program, from which the held programs are made.
     source: Program,
@@ -71,6 +75,12 @@ pub struct Switching {
     scratch: Scratch,
     /// Switching values and margins at the start of the next step.
     start_margins: Vec<f64>,
+    /// The margins' time derivatives along the flow at the start of the next step.
+    start_slopes: Vec<f64>,
+    /// Scratch for the margins' time derivatives and the rates.
+    slopes: Vec<f64>,
+    rates_here: Vec<f64>,
+    nudged: Vec<f64>,
     /// Scratch for values, margins and an interpolated state.
     values: Vec<f64>,
     margins: Vec<f64>,
@@ -105,6 +115,10 @@ impl Switching {
             cache: Vec::new(),
             current: 0,
             start_margins: vec![0.0; n],
+            start_slopes: vec![0.0; n],
+            slopes: vec![0.0; n],
+            rates_here: vec![0.0; x.len()],
+            nudged: vec![0.0; x.len()],
             values: vec![0.0; n],
             margins: vec![0.0; n],
             state: vec![0.0; x.len()],
@@ -116,6 +130,16 @@ impl Switching {
         };
         switching.choose_branches(t, x);
         Some(switching)
+    }
+
+    /// Starts again at `(t, x)`: every switch held on the branch its value lies on there, the
+    /// watch for chattering cleared (the held programs compiled so far are kept).
+    pub fn restart_at(&mut self, t: f64, x: &[f64]) {
+        self.crossing.clear();
+        self.last_switch = None;
+        self.bounce = false;
+        self.n_close = 0;
+        self.choose_branches(t, x);
     }
 
     /// Holds every switch on the branch its switching value lies on at `(t, x)`.
@@ -165,6 +189,25 @@ impl Switching {
         &self.switches
     }
 
+    /// The gradient of switch `k`'s value (held as now) with respect to the states at
+    /// `(t, x)` into `out`; returns the value's own change with time there.
+    pub fn value_gradient(&mut self, k: usize, t: f64, x: &[f64], out: &mut [f64]) -> f64 {
+        let n = x.len();
+        let n_switches = self.switches.len();
+        let held = &self.cache[self.current];
+        let mut jacobian = vec![0.0; n_switches * n];
+        held.values
+            .jacobian(&mut self.scratch, t, x, &self.parameters, &mut jacobian);
+        out.copy_from_slice(&jacobian[k * n..(k + 1) * n]);
+        if !held.values.uses_time() {
+            return 0.0;
+        }
+        let mut moving = vec![0.0; n_switches];
+        held.values
+            .time_derivative(&mut self.scratch, t, x, &self.parameters, &mut moving);
+        moving[k]
+    }
+
     /// Number of switches made so far.
     pub fn n_switches(&self) -> u64 {
         self.n_switches
@@ -191,10 +234,37 @@ impl Switching {
         }
     }
 
-    /// Remembers the margins at `(t, x)` as those at the start of the next step.
+    /// Remembers the margins at `(t, x)` as those at the start of the next step, with their
+    /// time derivatives along the flow of the held rates there (one evaluation of the rates).
     fn update_start(&mut self, t: f64, x: &[f64]) {
+        let mut f = std::mem::take(&mut self.rates_here);
+        self.rates(t, x, &mut f);
+        self.measure_slopes(t, x, &f);
+        self.rates_here = f;
+        self.start_slopes.copy_from_slice(&self.slopes);
         self.evaluate_margins(t, x);
         self.start_margins.copy_from_slice(&self.margins);
+    }
+
+    /// The time derivatives of the margins along the flow at `(t, x)`, where the rates are
+    /// `f`, into `self.slopes` (leaves the margins at `(t, x)` in `self.margins`): a forward
+    /// difference over `FLOW_NUDGE` relative time along `f`, enough for the screen of
+    /// crossings that come and go inside one step.
+    fn measure_slopes(&mut self, t: f64, x: &[f64], f: &[f64]) {
+        let scale = x.iter().chain(f).fold(t.abs(), |m, v| m.max(v.abs()));
+        let speed = f.iter().fold(0.0_f64, |m, v| m.max(v.abs()));
+        let dt = FLOW_NUDGE * (scale / speed.max(f64::MIN_POSITIVE)).clamp(1e-12, 1e12);
+        let mut nudged = std::mem::take(&mut self.nudged);
+        for ((n, &xi), &fi) in nudged.iter_mut().zip(x).zip(f) {
+            *n = xi + dt * fi;
+        }
+        self.evaluate_margins(t + dt, &nudged);
+        self.slopes.copy_from_slice(&self.margins);
+        self.nudged = nudged;
+        self.evaluate_margins(t, x);
+        for (s, &m) in self.slopes.iter_mut().zip(&self.margins) {
+            *s = (*s - m) / dt;
+        }
     }
 
     /// Changes the branches of the switches that crossed at the time located by
@@ -205,7 +275,8 @@ impl Switching {
     /// [`Chattering`] when this was the eighth switch in a row to turn back at once after
     /// the one before.
     pub fn apply(&mut self, integrator: &mut Integrator) -> Result<(), Chattering> {
-        let (t, x) = (integrator.t(), integrator.x());
+        let n = self.state.len();
+        let (t, x) = (integrator.t(), &integrator.x()[..n]);
         self.evaluate_margins(t, x);
         let mut branches = self.branches().to_vec();
         for &k in &self.crossing {
