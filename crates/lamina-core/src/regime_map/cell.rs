@@ -8,7 +8,7 @@ use super::classify::{Evidence, classify};
 use super::regime::{Failure, Regime};
 use super::spec::RegimeMapSpec;
 use crate::Interrupt;
-use crate::lyapunov::{ExponentSettings, spectrum, zero_band};
+use crate::lyapunov::{ExponentSettings, spectrum};
 use crate::model::Model;
 use crate::recurrence::RecurrenceSettings;
 use crate::run::{Cut, CutPoint, Run, RunSpec, Sink, StopReason, Strobe, StrobeSample};
@@ -19,6 +19,15 @@ const KEPT_POINTS: usize = 1024;
 
 /// Samples of the exponent's running estimate kept for its spread.
 const EXPONENT_SAMPLES: usize = 100;
+
+/// The exponent counts as zero within this many spreads of its running estimate (over the
+/// last fifth of the span) of zero, or within [`ZERO_BAND_RELATIVE`] of its size. A map's
+/// span is short, so the estimate of a chaotic cell still wanders: one spread keeps such a
+/// cell chaotic where the exponent report's stricter band would say undecided.
+const ZERO_BAND_SPREADS: f64 = 1.0;
+
+/// See [`ZERO_BAND_SPREADS`].
+const ZERO_BAND_RELATIVE: f64 = 1e-3;
 
 /// What every cell of one map shares: the compiled model (its parameters and start as the
 /// scenario has them), the run settings (integrator, escape size, start time), the cut, the
@@ -214,9 +223,11 @@ pub fn run_cell(
             return cell;
         }
         Ok(s) if s.reason == StopReason::Finished => {
-            let band = zero_band(&s.exponents, &s.spread);
-            cell.lyapunov = Some(s.largest());
-            Some((s.largest(), band.first().copied().unwrap_or(f64::NAN)))
+            let largest = s.largest();
+            let spread = s.spread.first().copied().unwrap_or(f64::NAN);
+            let band = (ZERO_BAND_SPREADS * spread).max(ZERO_BAND_RELATIVE * largest.abs());
+            cell.lyapunov = largest.is_finite().then_some(largest);
+            Some((largest, band))
         }
         Ok(s) => {
             cell.lyapunov = s.largest().is_finite().then(|| s.largest());
