@@ -1,8 +1,16 @@
 #!/usr/bin/env python3
-"""Side-by-side speed of `lamina cut` and SciPy's DOP853 with an event on the Lorenz cut
-benchmark (REFERENCES.md, performance anchor): crossings per CPU-second of each, measured on the
-same machine, and their ratio. Each side runs REPEATS times and its best rate counts, so that
-another busy process on the machine disturbs the ratio less.
+"""Side-by-side speed of Lamina and SciPy's DOP853 with events, measured on the same machine:
+
+1. the Lorenz cut benchmark (REFERENCES.md, performance anchor): crossings per CPU-second of
+   `lamina cut` and of solve_ivp with an event, and their ratio;
+2. one regime-map cell (brusselator_map.ron): settle, span with cut events and the
+   classification from the cut points, CPU time per cell of `lamina map` (over the whole 8 x 8
+   map, process start included; Lamina also estimates each cell's largest Lyapunov exponent
+   over one more span) against solve_ivp doing the settle, the span with the event and the
+   same repeat test in Python on a spread-out subset of the cells, and their ratio.
+
+Each side runs REPEATS times and its best rate counts, so that another busy process on the
+machine disturbs the ratio less.
 
 SciPy is needed only for this comparison, never for the tests:
     python3 -m venv /tmp/venv-scipy && /tmp/venv-scipy/bin/pip install scipy
@@ -25,6 +33,7 @@ from scipy.integrate import solve_ivp
 HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.dirname(HERE)
 SCENARIO = os.path.join(HERE, "lorenz_cut.ron")
+MAP_SCENARIO = os.path.join(HERE, "brusselator_map.ron")
 TARGET = os.environ.get("CARGO_TARGET_DIR") or os.path.join(ROOT, "target")
 LAMINA = os.environ.get("LAMINA_BIN") or os.path.join(TARGET, "release", "lamina")
 SIGMA, RHO, BETA = 10.0, 28.0, 8.0 / 3.0
@@ -62,6 +71,59 @@ def lamina_rate():
     return n, cpu
 
 
+MAP_A = np.linspace(0.5, 1.5, 8)
+MAP_B = np.linspace(1.0, 4.0, 8)
+MAP_SETTLE, MAP_SPAN, MAP_RTOL, MAP_ATOL = 200.0, 200.0, 1e-9, 1e-12
+MAP_SUBSET = range(3, 64, 7)  # 9 cells spread over the map (every 7th from 3)
+
+
+def scipy_cell(a, b):
+    """One cell as SciPy would do it: settle, then the span with the cut x = a (rising) as an
+    event, then the regime from the cut points: resting when the span's motion is within the
+    repeat tolerance, else the least k <= 12 after which the later half of the points repeats,
+    else no repeat."""
+
+    def rates(_t, s):
+        x, y = s
+        return [a - (b + 1.0) * x + x * x * y, b * x - x * x * y]
+
+    def cut(_t, s):
+        return s[0] - a
+
+    cut.direction = 1.0
+    settle = solve_ivp(rates, (0.0, MAP_SETTLE), [1.3, 2.0], method="DOP853", rtol=MAP_RTOL, atol=MAP_ATOL)
+    sol = solve_ivp(rates, (MAP_SETTLE, MAP_SETTLE + MAP_SPAN), settle.y[:, -1], method="DOP853",
+                    rtol=MAP_RTOL, atol=MAP_ATOL, events=cut)
+    size = np.sqrt(np.mean(np.max(np.abs(sol.y), axis=1) ** 2))
+    tolerance = 1e3 * (MAP_RTOL * size + MAP_ATOL)
+    if np.max(np.ptp(sol.y, axis=1)) <= tolerance:
+        return "resting"
+    points = sol.y_events[0]
+    n = len(points)
+    for k in range(1, 13):
+        if n < k + 3:
+            break
+        later = points[n // 2:]
+        if len(later) > k and np.max(np.linalg.norm(later[k:] - later[:-k], axis=1)) <= tolerance:
+            return f"periodic {k}"
+    return "no repeat"
+
+
+def scipy_cell_seconds():
+    t0 = time.process_time()
+    for index in MAP_SUBSET:
+        scipy_cell(MAP_A[index % 8], MAP_B[index // 8])
+    return (time.process_time() - t0) / len(MAP_SUBSET)
+
+
+def lamina_cell_seconds():
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
+    out = subprocess.run([LAMINA, "map", MAP_SCENARIO], check=True, capture_output=True, text=True).stdout
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    cpu = (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
+    return cpu / max(len(out.splitlines()) - 1, 1)
+
+
 def main():
     if not os.path.exists(LAMINA):
         sys.exit(f"build first: cargo build --release (looked for {LAMINA})")
@@ -73,6 +135,11 @@ def main():
     print(f"lamina cut:    {n_l} crossings in {cpu_l:.3f} CPU-s: {rate_l:.0f} per CPU-second (process start and CSV output included)")
     print(f"scipy DOP853:  {n_s} crossings in {cpu_s:.3f} CPU-s: {rate_s:.0f} per CPU-second, {evals:.0f} evaluations per crossing")
     print(f"lamina/scipy: {rate_l / rate_s:.0f}")
+    cell_l = min(lamina_cell_seconds() for _ in range(repeats))
+    cell_s = min(scipy_cell_seconds() for _ in range(repeats))
+    print(f"lamina map:    {cell_l * 1e3:.2f} CPU-ms per cell (64 cells, process start included, exponent included)")
+    print(f"scipy DOP853:  {cell_s * 1e3:.1f} CPU-ms per cell ({len(MAP_SUBSET)} cells, settle + span with events + repeat test)")
+    print(f"per cell, scipy/lamina: {cell_s / cell_l:.0f}")
 
 
 if __name__ == "__main__":

@@ -35,7 +35,13 @@ enum Command {
     Strobe(cli::PointsArgs),
     /// Sweep one parameter (the scenario's sweep block) into an orbit diagram: CSV and PNG.
     Sweep(cli::SweepArgs),
-    /// Draw a view (trajectory, cut, strobe, sweep, branch) into a PNG without a window.
+    /// Classify every cell of two parameters (the scenario's map block): resting, periodic,
+    /// quasi-periodic, chaotic, escaped or failed; CSV, PNG and JSON.
+    Map(cli::MapArgs),
+    /// Join the shard files of a sweep or a map into exactly the file one unsharded run
+    /// writes, checking that every value or cell is there once.
+    Merge(cli::MergeArgs),
+    /// Draw a view (trajectory, cut, strobe, sweep, branch, map) into a PNG without a window.
     Render(cli::RenderArgs),
     /// Find a periodic orbit of the cut or strobe map: period, point, multipliers, verdict.
     Cycle(cli::CycleArgs),
@@ -57,6 +63,8 @@ impl Command {
             Self::Cut(_) => "cut",
             Self::Strobe(_) => "strobe",
             Self::Sweep(_) => "sweep",
+            Self::Map(_) => "map",
+            Self::Merge(_) => "merge",
             Self::Render(_) => "render",
             Self::Cycle(_) => "cycle",
             Self::Rest(_) => "rest",
@@ -72,6 +80,7 @@ impl Command {
             Self::Rest(args) => args.json(),
             Self::Branch(args) => args.json(),
             Self::Lyapunov(args) => args.json(),
+            Self::Map(args) => args.json(),
             _ => false,
         }
     }
@@ -88,6 +97,8 @@ fn main() -> ExitCode {
         Some(Command::Cut(args)) => cli::points(cli::PointKind::Cut, &args),
         Some(Command::Strobe(args)) => cli::points(cli::PointKind::Strobe, &args),
         Some(Command::Sweep(args)) => cli::sweep(&args),
+        Some(Command::Map(args)) => cli::map(&args),
+        Some(Command::Merge(args)) => cli::merge(&args),
         Some(Command::Render(args)) => cli::render(&args),
         Some(Command::Cycle(args)) => cli::cycle(&args),
         Some(Command::Rest(args)) => cli::rest(&args),

@@ -33,6 +33,8 @@ pub enum View {
     Sweep,
     /// A branch of resting points or orbits over the orbit diagram.
     Branch,
+    /// The regime map of the scenario's map block.
+    Map,
 }
 
 /// Arguments of `lamina render`.
@@ -145,6 +147,14 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
         )?;
         let (bytes, note) = branch_picture(&prepared, &args.file, &followed, args.size)?;
         return finish(png, bytes, &format!("the branch picture ({note})"), true);
+    }
+    if args.view == View::Map {
+        let run = super::map_run::run_map(&args.file, None, &interrupt)?;
+        if interrupt.is_raised() {
+            return Err(super::map_run::stopped_map(&run, &[&args.png]).into());
+        }
+        let bytes = super::map_picture::map_png(args.size, &run)?;
+        return finish(png, bytes, &size_text(args), true);
     }
     if args.view == View::Sweep {
         let run = super::sweep::run_sweep(&args.file, None, &interrupt)?;
@@ -269,7 +279,7 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
                 Some(&order),
             )?
         }
-        View::Sweep | View::Branch => drawn_above()?,
+        View::Sweep | View::Branch | View::Map => drawn_above()?,
     };
     let trouble = outcome.reason.is_trouble();
     let code = finish(png, bytes, &size_text(args), !trouble)?;
@@ -288,7 +298,7 @@ fn size_text(args: &RenderArgs) -> String {
 }
 
 fn drawn_above() -> Result<Vec<u8>> {
-    bail!("the sweep and branch views are drawn above")
+    bail!("the sweep, branch and map views are drawn above")
 }
 
 /// Writes the picture `what` into `png`: over its target when the run `succeeded` or

@@ -20,6 +20,7 @@ use super::failure::Interrupted;
 use super::outputs;
 use super::prepare::prepare;
 use super::progress::Progress;
+use super::shard::{ShardArg, parse_shard};
 use super::signals::interrupt_on_signal;
 
 /// Arguments of `lamina sweep`.
@@ -34,28 +35,10 @@ pub struct SweepArgs {
     #[arg(long, value_name = "FILE.png")]
     png: Option<PathBuf>,
     /// Run only every N-th value starting at I, for spreading one sweep over several machines
-    /// (a sweep with `follow: false` only); concatenating the shards' rows and sorting by the
-    /// parameter value gives the whole sweep.
-    #[arg(long, value_name = "I/N", value_parser = parse_shard)]
-    shard: Option<(usize, usize)>,
-}
-
-fn parse_shard(text: &str) -> Result<(usize, usize), String> {
-    let (i, n) = text
-        .split_once('/')
-        .ok_or("expected I/N, for example 0/4")?;
-    let i: usize = i
-        .trim()
-        .parse()
-        .map_err(|_| format!("'{i}' is not a shard number"))?;
-    let n: usize = n
-        .trim()
-        .parse()
-        .map_err(|_| format!("'{n}' is not a shard count"))?;
-    if n == 0 || i >= n {
-        return Err(format!("shard {i}/{n}: need 0 <= I < N"));
-    }
-    Ok((i, n))
+    /// (a sweep with `follow: false` only); `auto` takes I and N from a Slurm array job.
+    /// `lamina merge` joins the shards into the whole sweep.
+    #[arg(long, value_name = "I/N|auto", value_parser = parse_shard)]
+    shard: Option<ShardArg>,
 }
 
 /// The sweep of a scenario as core settings, with the index of the plotted coordinate.
@@ -188,6 +171,7 @@ pub fn sweep(args: &SweepArgs) -> Result<ExitCode> {
         paths.push(("--png", png));
     }
     outputs::check_paths(&args.file, &paths)?;
+    let shard = args.shard.map(ShardArg::resolve).transpose()?;
     // Ctrl-C stops the sweep between (and inside) values; installed before the output files
     let interrupt = interrupt_on_signal()?;
     // every output is opened before the sweep, so a bad path fails at once
@@ -199,7 +183,7 @@ pub fn sweep(args: &SweepArgs) -> Result<ExitCode> {
         Some(path) => Some(outputs::open("--png", path)?),
         None => None,
     };
-    let run = run_sweep(&args.file, args.shard, &interrupt)?;
+    let run = run_sweep(&args.file, shard, &interrupt)?;
     let SweepRun {
         scenario,
         spec,
@@ -259,14 +243,6 @@ pub fn sweep(args: &SweepArgs) -> Result<ExitCode> {
         .collect();
     for line in describe(&parameter, &labelled) {
         eprintln!("{line}");
-    }
-    if args.shard.is_some() && spec.to < spec.from {
-        eprintln!(
-            "note: this sweep runs from {parameter} = {} down to {}: to merge its shards by \
-             hand, sort the rows by the value in falling order, \
-             (head -1 s0.csv; tail -q -n +2 s*.csv | sort -t, -k1,1gr -k2,2n) > sweep.csv",
-            spec.from, spec.to
-        );
     }
     let short: Vec<String> = columns
         .iter()

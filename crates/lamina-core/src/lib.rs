@@ -5,7 +5,7 @@
 //! drivers built on them, parameter sweeps, periodic orbits found by Newton's method on the
 //! cut or strobe map with their Floquet multipliers, Lyapunov exponents, resting points with
 //! their eigenvalues, and branches of resting points and orbits in one parameter with the
-//! points where the behaviour changes.
+//! points where the behaviour changes, and regime maps over two parameters.
 //!
 //! **Invariant:** this crate does no I/O, starts no threads, never reads the clock and knows
 //! nothing of serde or egui. Cancellation comes in as an [`Interrupt`] flag, progress goes out
@@ -20,6 +20,7 @@ pub mod memory;
 pub mod model;
 pub mod recheck;
 pub mod recurrence;
+pub mod regime_map;
 pub mod rest;
 pub mod run;
 pub mod sweep;

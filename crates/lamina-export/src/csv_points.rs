@@ -1,5 +1,5 @@
-//! CSV writers for cut points, strobe samples, trajectories, sweeps and branches, with the column
-//! layout of the product brief and numbers in shortest round-trip form.
+//! CSV writers for cut points, strobe samples, trajectories, sweeps, branches and regime maps,
+//! with the column layout of the product brief and numbers in shortest round-trip form.
 
 use std::io::Write;
 
@@ -249,6 +249,57 @@ impl<W: Write> BranchCsv<W> {
         let period = period.map_or(Field::Empty, Field::Number);
         self.rows
             .write([Field::Number(value), stable, period], state)
+    }
+
+    /// Flushes and returns the inner writer.
+    pub fn finish(self) -> Result<W, ExportError> {
+        self.rows.finish()
+    }
+}
+
+/// Writes the cells of a regime map: `<x parameter>,<y parameter>,regime,returns,lyapunov`;
+/// `returns` is empty unless the regime is `periodic`, `lyapunov` empty when no estimate was
+/// made. The caller writes the cells by rows (y outer, x inner).
+pub struct MapCsv<W: Write> {
+    rows: Rows<W>,
+}
+
+impl<W: Write> MapCsv<W> {
+    /// Writes the header for the two mapped parameters.
+    pub fn new(out: W, x_parameter: &str, y_parameter: &str) -> Result<Self, ExportError> {
+        Ok(Self {
+            rows: Rows::new(
+                out,
+                &[x_parameter, y_parameter, "regime", "returns", "lyapunov"],
+                &[],
+            )?,
+        })
+    }
+
+    /// Writes one cell: its parameter values, its regime's word, its number of returns and
+    /// its largest exponent.
+    pub fn write_cell(
+        &mut self,
+        x: f64,
+        y: f64,
+        regime: &'static str,
+        returns: Option<usize>,
+        lyapunov: Option<f64>,
+    ) -> Result<(), ExportError> {
+        let returns = returns.map_or(Field::Empty, |k| Field::Count(k as u64));
+        let lyapunov = lyapunov
+            .filter(|l| l.is_finite())
+            .map_or(Field::Empty, Field::Number);
+        self.rows.write(
+            [
+                Field::Number(x),
+                Field::Number(y),
+                Field::Word(regime),
+                returns,
+                lyapunov,
+            ],
+            &[],
+        )
     }
 
     /// Flushes and returns the inner writer.

@@ -8,7 +8,9 @@ mod csv_points;
 pub use atomic::{
     AtomicFile, FileIdentity, UNFINISHED, Written, beside, write_atomically, write_bytes_atomically,
 };
-pub use csv_points::{BranchCsv, CutCsv, StrobeCsv, SweepCsv, TrajectoryCsv, format_number};
+pub use csv_points::{
+    BranchCsv, CutCsv, MapCsv, StrobeCsv, SweepCsv, TrajectoryCsv, format_number,
+};
 
 /// Errors of an export.
 #[derive(Debug, thiserror::Error)]

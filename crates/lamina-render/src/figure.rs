@@ -74,6 +74,8 @@ pub mod view_names {
     pub const RESTING_BRANCH: &str = "Branch of resting points";
     /// A branch of periodic orbits over the orbit diagram.
     pub const ORBIT_BRANCH: &str = "Branch of periodic orbits";
+    /// The regime map over two parameters.
+    pub const REGIME_MAP: &str = "Regime map";
 }
 
 impl Figure {

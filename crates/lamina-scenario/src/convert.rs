@@ -36,55 +36,7 @@ impl From<SweepSource> for lamina_core::sweep::SweepSource {
     }
 }
 
-/// The regime map of a scenario (its `map` block) with the parameters as indices: two
-/// parameters on a grid, each cell integrated from the scenario's start for `settle`, then
-/// recorded for `span` and classified from its cut points or strobe samples.
-#[derive(Clone, Debug, PartialEq)]
-pub struct RegimeMapSpec {
-    /// The parameter across.
-    pub x: MapAxisSpec,
-    /// The parameter up.
-    pub y: MapAxisSpec,
-    /// Transient per cell, integrated but not recorded.
-    pub settle: f64,
-    /// Recorded time per cell, after the transient.
-    pub span: f64,
-    /// Cut points or strobe samples.
-    pub source: lamina_core::sweep::SweepSource,
-}
-
-impl RegimeMapSpec {
-    /// Number of cells, `x.values * y.values`.
-    pub fn n_cells(&self) -> usize {
-        self.x.n_values() * self.y.n_values()
-    }
-}
-
-/// One axis of a [`RegimeMapSpec`].
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct MapAxisSpec {
-    /// Index of the parameter varied along this axis.
-    pub parameter: usize,
-    /// First value.
-    pub from: f64,
-    /// Last value.
-    pub to: f64,
-    /// Number of values, both ends included.
-    pub values: u32,
-}
-
-impl MapAxisSpec {
-    /// Number of values.
-    pub fn n_values(&self) -> usize {
-        self.values as usize
-    }
-
-    /// Value `idx` along the axis, spaced as a sweep's values
-    /// ([`lamina_core::sweep::grid_value`]).
-    pub fn value(&self, idx: usize) -> f64 {
-        lamina_core::sweep::grid_value(self.from, self.to, self.values, idx)
-    }
-}
+pub use lamina_core::regime_map::{MapAxisSpec, RegimeMapSpec};
 
 /// One coordinate of the 3D view.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]

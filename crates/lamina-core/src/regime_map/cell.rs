@@ -1,0 +1,250 @@
+//! One cell of a regime map: the model at the cell's two parameter values, run from a start
+//! over the settle time and the span, its points and motion recorded, its largest Lyapunov
+//! exponent estimated over one more span, and the whole classified.
+
+use std::ops::ControlFlow;
+
+use super::classify::{Evidence, classify};
+use super::regime::{Failure, Regime};
+use super::spec::RegimeMapSpec;
+use crate::Interrupt;
+use crate::lyapunov::{ExponentSettings, spectrum};
+use crate::model::Model;
+use crate::recurrence::RecurrenceSettings;
+use crate::run::{Cut, CutPoint, Run, RunSpec, Sink, StopReason, Strobe, StrobeSample};
+use crate::sweep::SweepSource;
+
+/// At most this many of the latest points are kept for the recurrence detector.
+const KEPT_POINTS: usize = 1024;
+
+/// Samples of the exponent's running estimate kept for its spread.
+const EXPONENT_SAMPLES: usize = 100;
+
+/// The exponent counts as zero within this many spreads of its running estimate (over the
+/// last fifth of the span) of zero, or within [`ZERO_BAND_RELATIVE`] of its size. A map's
+/// span is short, so the estimate of a chaotic cell still wanders: one spread keeps such a
+/// cell chaotic where the exponent report's stricter band would say undecided.
+const ZERO_BAND_SPREADS: f64 = 1.0;
+
+/// See [`ZERO_BAND_SPREADS`].
+const ZERO_BAND_RELATIVE: f64 = 1e-3;
+
+/// What every cell of one map shares: the compiled model (its parameters and start as the
+/// scenario has them), the run settings (integrator, escape size, start time), the cut, the
+/// strobe (compiled again per cell through `strobe_for`, since its period may depend on a
+/// mapped parameter) and the map itself.
+#[derive(Clone, Copy)]
+pub struct MapProblem<'a> {
+    /// The model.
+    pub model: &'a Model,
+    /// Integrator, tolerances, escape size and start time; the window comes from `map`.
+    pub run: &'a RunSpec,
+    /// The cut, for a map classified by cut points.
+    pub cut: Option<&'a Cut>,
+    /// The strobe for a model with the cell's parameter values.
+    pub strobe_for: &'a (dyn Fn(&Model) -> Option<Strobe> + Sync),
+    /// The map.
+    pub map: &'a RegimeMapSpec,
+}
+
+/// One classified cell.
+#[derive(Clone, Debug, PartialEq)]
+pub struct MapCell {
+    /// The cell's number (rows by y, then x).
+    pub index: usize,
+    /// The x parameter's value.
+    pub x: f64,
+    /// The y parameter's value.
+    pub y: f64,
+    /// What the cell settles into.
+    pub regime: Regime,
+    /// The largest Lyapunov exponent's estimate over one span after the recorded one
+    /// (`None` for a cell that escaped or failed before it).
+    pub lyapunov: Option<f64>,
+    /// Whether the points had settled (`false`: the regime is the one they approach).
+    pub settled: bool,
+    /// Cut points or strobe samples recorded in the span.
+    pub n_points: usize,
+    /// Time and state where the recorded run ended (the start of the next cell in order).
+    pub end: (f64, Vec<f64>),
+}
+
+impl MapCell {
+    /// Whether the cell was not finished because the interrupt was raised.
+    pub fn is_cancelled(&self) -> bool {
+        matches!(
+            self.regime,
+            Regime::Failed(Failure::Stopped(StopReason::Cancelled { .. }))
+        )
+    }
+}
+
+/// Keeps the latest points of one kind and the range and size of the motion at step ends.
+struct CellSink {
+    source: SweepSource,
+    points: Vec<Vec<f64>>,
+    n_points: usize,
+    low: Vec<f64>,
+    high: Vec<f64>,
+    largest: Vec<f64>,
+}
+
+impl CellSink {
+    fn new(source: SweepSource, dim: usize) -> Self {
+        Self {
+            source,
+            points: Vec::new(),
+            n_points: 0,
+            low: vec![f64::INFINITY; dim],
+            high: vec![f64::NEG_INFINITY; dim],
+            largest: vec![0.0; dim],
+        }
+    }
+
+    fn take(&mut self, state: &[f64]) -> ControlFlow<()> {
+        if self.points.len() >= 2 * KEPT_POINTS {
+            self.points.drain(..KEPT_POINTS);
+        }
+        self.points.push(state.to_vec());
+        self.n_points += 1;
+        ControlFlow::Continue(())
+    }
+
+    /// The largest range of any state (0 before any step).
+    fn motion(&self) -> f64 {
+        (self.low.iter().zip(&self.high))
+            .map(|(lo, hi)| if hi >= lo { hi - lo } else { 0.0 })
+            .fold(0.0, f64::max)
+    }
+
+    /// Root-mean-square of the states' largest magnitudes.
+    fn size(&self) -> f64 {
+        let n = self.largest.len().max(1) as f64;
+        (self.largest.iter().map(|v| v * v).sum::<f64>() / n).sqrt()
+    }
+}
+
+impl Sink for CellSink {
+    fn cut_point(&mut self, point: &CutPoint) -> ControlFlow<()> {
+        if self.source == SweepSource::Cut {
+            self.take(&point.state)
+        } else {
+            ControlFlow::Continue(())
+        }
+    }
+    fn strobe_sample(&mut self, sample: &StrobeSample) -> ControlFlow<()> {
+        if self.source == SweepSource::Strobe {
+            self.take(&sample.state)
+        } else {
+            ControlFlow::Continue(())
+        }
+    }
+    fn step(&mut self, _t: f64, state: &[f64]) {
+        for (i, &v) in state.iter().enumerate() {
+            self.low[i] = self.low[i].min(v);
+            self.high[i] = self.high[i].max(v);
+            self.largest[i] = self.largest[i].max(v.abs());
+        }
+    }
+}
+
+/// Runs cell `index` of `problem`'s map from `start` (time and state): the model with the
+/// cell's parameter values settles for the map's settle time, its points and motion are
+/// recorded over the span, then its largest Lyapunov exponent is estimated over one more
+/// span from where the recorded run ended, and the cell is classified ([`classify`]) with
+/// the recurrence tolerances of the run's integrator.
+///
+/// A run that escapes gives [`Regime::Escaped`], one stopped by other numerical trouble
+/// [`Regime::Failed`] with its reason; a raised `interrupt` gives a cancelled cell
+/// ([`MapCell::is_cancelled`]).
+pub fn run_cell(
+    problem: &MapProblem<'_>,
+    index: usize,
+    start: (f64, &[f64]),
+    interrupt: &Interrupt,
+) -> MapCell {
+    let map = problem.map;
+    let (x, y) = map.cell_values(index);
+    let mut model = problem.model.clone();
+    model.set_parameter(map.x.parameter, x);
+    model.set_parameter(map.y.parameter, y);
+    model.set_start(start.1);
+    let autonomous = !model.uses_time();
+    let (cut, strobe) = match map.source {
+        SweepSource::Cut => (problem.cut.cloned(), None),
+        SweepSource::Strobe => (None, (problem.strobe_for)(&model)),
+    };
+    let run_spec = RunSpec {
+        t_start: start.0,
+        settle: map.settle,
+        span: map.span,
+        max_points: usize::MAX,
+        ..problem.run.clone()
+    };
+    let mut sink = CellSink::new(map.source, model.start().len());
+    let outcome =
+        Run::new(model.clone(), run_spec, cut, strobe, false).execute(&mut sink, interrupt);
+    let mut cell = MapCell {
+        index,
+        x,
+        y,
+        regime: Regime::Resting,
+        lyapunov: None,
+        settled: true,
+        n_points: sink.n_points,
+        end: (outcome.t_reached, outcome.final_state),
+    };
+    let stopped = match outcome.reason {
+        StopReason::Finished | StopReason::SinkStopped { .. } | StopReason::PointLimit { .. } => {
+            None
+        }
+        StopReason::Escaped { t, .. } => Some(Regime::Escaped { t }),
+        other => Some(Regime::Failed(Failure::Stopped(other))),
+    };
+    if let Some(regime) = stopped {
+        cell.regime = regime;
+        return cell;
+    }
+    model.set_start(&cell.end.1);
+    let exponent_run = RunSpec {
+        t_start: cell.end.0,
+        settle: 0.0,
+        span: map.span,
+        ..problem.run.clone()
+    };
+    let settings = ExponentSettings {
+        count: Some(1),
+        trace_samples: EXPONENT_SAMPLES,
+        ..ExponentSettings::default()
+    };
+    let exponent = match spectrum(model, &exponent_run, &settings, &mut (), interrupt) {
+        Ok(s) if matches!(s.reason, StopReason::Cancelled { .. }) => {
+            cell.regime = Regime::Failed(Failure::Stopped(s.reason));
+            return cell;
+        }
+        Ok(s) if s.reason == StopReason::Finished => {
+            let largest = s.largest();
+            let spread = s.spread.first().copied().unwrap_or(f64::NAN);
+            let band = (ZERO_BAND_SPREADS * spread).max(ZERO_BAND_RELATIVE * largest.abs());
+            cell.lyapunov = largest.is_finite().then_some(largest);
+            Some((largest, band))
+        }
+        Ok(s) => {
+            cell.lyapunov = s.largest().is_finite().then(|| s.largest());
+            None
+        }
+        Err(_) => None,
+    };
+    let evidence = Evidence {
+        points: &sink.points,
+        motion: sink.motion(),
+        size: sink.size(),
+        exponent,
+        autonomous,
+    };
+    let recurrence = RecurrenceSettings::for_control(&problem.run.control);
+    let (regime, settled) = classify(&evidence, &recurrence);
+    cell.regime = regime;
+    cell.settled = settled;
+    cell
+}
