@@ -79,6 +79,8 @@ pub struct ExplorerApp {
     pub(crate) sweep: crate::sweep_panel::SweepState,
     pub(crate) analysis: crate::analysis::AnalysisState,
     pub(crate) show_analysis: bool,
+    /// The window title last sent to the desktop.
+    shown_title: Option<String>,
 }
 
 impl ExplorerApp {
@@ -99,6 +101,7 @@ impl ExplorerApp {
             sweep: Default::default(),
             analysis: Default::default(),
             show_analysis: false,
+            shown_title: None,
         };
         app.results = Results::new(app.state_names());
         match file {
@@ -292,7 +295,13 @@ impl ExplorerApp {
         }
         self.execution_tick(&ctx);
         self.files_tick(&ctx);
-        ctx.send_viewport_cmd(egui::ViewportCommand::Title(self.doc.window_title()));
+        // a viewport command asks for another frame: send the title only when it changes, or
+        // an untouched window would repaint for ever
+        let title = self.doc.window_title();
+        if self.shown_title.as_deref() != Some(title.as_str()) {
+            ctx.send_viewport_cmd(egui::ViewportCommand::Title(title.clone()));
+            self.shown_title = Some(title);
+        }
     }
 
     fn keyboard(&mut self, ctx: &egui::Context) -> Vec<Action> {
