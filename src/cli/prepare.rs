@@ -39,23 +39,14 @@ pub fn prepare(path: &Path) -> Result<Prepared> {
             list.join("\n")
         );
     }
-    let model = Model::compile(&scenario.model_spec()).context("model")?;
-    let cut = scenario
-        .cut_spec()
-        .map(|spec| Cut::compile(&spec, &model))
-        .transpose()
-        .context("cut")?;
-    let strobe = scenario
-        .strobe_spec()
-        .map(|spec| Strobe::compile(&spec, &model))
-        .transpose()
-        .context("strobe")?;
-    let spec = scenario.run_spec();
+    let compiled = scenario
+        .compile()
+        .with_context(|| format!("cannot compile {}", path.display()))?;
     Ok(Prepared {
         scenario,
-        model,
-        spec,
-        cut,
-        strobe,
+        model: compiled.model,
+        spec: compiled.run,
+        cut: compiled.cut,
+        strobe: compiled.strobe,
     })
 }

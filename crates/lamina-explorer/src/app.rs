@@ -1,19 +1,23 @@
-//! The explorer application: owns the document, the results, the worker and the views, and
-//! runs one frame: drain events, draw, then apply what the user asked for.
+//! The explorer application: the session, the window's own state (settings, file dialogs,
+//! the views' selections) and one frame: take what the jobs sent, draw from the session while
+//! collecting commands, then apply the commands in order.
 
 use std::path::PathBuf;
-use std::time::Instant;
 
 use egui::{Key, KeyboardShortcut, Modifiers, Ui};
 
+use crate::analysis::{SummaryCache, analysis_panel_ui};
 use crate::document::Document;
-use crate::execution::Execution;
 use crate::files::Files;
 use crate::help;
-use crate::layout::{self, Layout};
+use crate::jobs::Job;
+use crate::layout;
 use crate::model_panel::model_panel_ui;
-use crate::results::Results;
+use crate::results::RunState;
+use crate::session::Session;
 use crate::settings::Settings;
+use crate::views::cloud::CloudView;
+use crate::vocabulary::{Command, PngError};
 
 /// How the app talks to the outside world; tests switch the native parts off.
 #[derive(Clone, Debug)]
@@ -36,143 +40,126 @@ impl Default for Options {
     }
 }
 
-/// A request from the menus, buttons or keys, applied after drawing.
-#[derive(Clone, Debug, PartialEq)]
-pub enum Action {
-    /// Run from the start.
-    Run,
-    /// Stop the run.
-    Stop,
-    /// Run on: integrate another span from where the finished run ended.
-    RunOn,
-    /// New scenario.
-    New,
-    /// Open (asks for a file).
-    Open,
-    /// Open this file.
-    OpenPath(PathBuf),
-    /// Save (asks for a file if there is none).
-    Save,
-    /// Save as.
-    SaveAs,
-    /// Export a point set as CSV.
-    ExportCsv(crate::export::PointSet),
-    /// Export a view as PNG.
-    ExportPng(layout::ViewKind),
-    /// Load one of the built-in demos.
-    LoadDemo(&'static str),
+/// What the views keep between frames for the current document and results: the cloud
+/// views' selections and density images, and the analysis summary. Reset when the document
+/// is replaced (its `generation`) and, for selections, when new results come.
+#[derive(Default)]
+pub struct ViewState {
+    /// The session generation this state was made for.
+    pub generation: u64,
+    /// The results serial the selections were made in.
+    pub results_serial: u64,
+    /// The cut view's state.
+    pub cut_view: CloudView,
+    /// The strobe view's state.
+    pub strobe_view: CloudView,
+    /// The analysis panel's recurrence summary.
+    pub summary: SummaryCache,
+}
+
+/// The window's own state around the session: settings, the views' state and which of the
+/// side windows are open.
+pub struct Chrome {
+    /// Remembered between sessions.
+    pub settings: Settings,
+    /// What the views keep for the current document.
+    pub view: ViewState,
+    /// The About box is open.
+    pub show_about: bool,
+    /// The shortcuts window is open.
+    pub show_shortcuts: bool,
+    /// The analysis panel is open.
+    pub show_analysis: bool,
 }
 
 /// The explorer window's state.
 pub struct ExplorerApp {
-    pub(crate) doc: Document,
-    pub(crate) results: Results,
-    pub(crate) execution: Execution,
+    pub(crate) session: Session,
+    pub(crate) chrome: Chrome,
     pub(crate) files: Files,
-    pub(crate) layout: Layout,
-    pub(crate) settings: Settings,
-    pub(crate) options: Options,
-    pub(crate) show_about: bool,
-    pub(crate) show_shortcuts: bool,
-    pub(crate) log: Vec<(Instant, String)>,
-    pub(crate) pending_autostart: bool,
-    pub(crate) sweep: crate::sweep_panel::SweepState,
-    pub(crate) analysis: crate::analysis::AnalysisState,
-    pub(crate) show_analysis: bool,
+    /// A PNG being drawn and written.
+    pub(crate) png_export: Option<Job<(), Result<String, PngError>>>,
+    /// The window title last sent to the desktop.
+    shown_title: Option<String>,
 }
 
 impl ExplorerApp {
     /// The explorer on `file` (or the built-in demo).
     pub fn new(file: Option<PathBuf>, settings: Settings, options: Options) -> Self {
         let mut app = Self {
-            doc: Document::demo(),
-            results: Results::new(Vec::new()),
-            execution: Execution::default(),
+            session: Session::new(Document::demo(), options.autostart),
+            chrome: Chrome {
+                settings,
+                view: ViewState::default(),
+                show_about: false,
+                show_shortcuts: false,
+                show_analysis: false,
+            },
             files: Files::new(options.native_dialogs, options.recovery),
-            layout: Layout::default(),
-            settings,
-            options: options.clone(),
-            show_about: false,
-            show_shortcuts: false,
-            log: Vec::new(),
-            pending_autostart: options.autostart,
-            sweep: Default::default(),
-            analysis: Default::default(),
-            show_analysis: false,
+            png_export: None,
+            shown_title: None,
         };
-        app.results = Results::new(app.state_names());
         match file {
             Some(path) => app.open_path(path),
             None => {
+                app.session.note("opened the built-in demo scenario");
                 app.apply_view_block();
-                app.note("opened the built-in demo scenario");
             }
         }
         app
     }
 
-    /// Adds a line to the message log.
-    pub(crate) fn note(&mut self, message: impl Into<String>) {
-        self.log.push((Instant::now(), message.into()));
-        if self.log.len() > 500 {
-            self.log.remove(0);
-        }
-    }
-
-    /// The axis labels of the run's states and the time, with the scenario's units.
-    pub(crate) fn axis_labels(&self) -> crate::results::AxisLabels {
-        crate::results::AxisLabels::new(&self.doc.scenario, &self.results.names)
-    }
-
-    /// State names of the current scenario.
-    pub(crate) fn state_names(&self) -> Vec<String> {
-        self.doc
-            .scenario
-            .states
-            .iter()
-            .map(|s| s.name.clone())
-            .collect()
-    }
-
     /// The document (for tests and the binary).
     pub fn document(&self) -> &Document {
-        &self.doc
+        &self.session.doc
     }
 
     /// The scenario being edited.
     pub fn scenario(&self) -> &lamina_scenario::Scenario {
-        &self.doc.scenario
+        &self.session.doc.scenario
     }
 
-    /// Replaces the scenario as if the user had edited it.
+    /// Replaces the scenario as if the user had edited it in the model panel.
     pub fn edit_scenario(&mut self, edit: impl FnOnce(&mut lamina_scenario::Scenario)) {
-        edit(&mut self.doc.scenario);
-        self.doc.changed();
+        let mut scenario = self.session.doc.scenario.clone();
+        edit(&mut scenario);
+        self.apply(Command::Edit {
+            scenario: Box::new(scenario),
+            changes: crate::vocabulary::PanelChanges {
+                model: true,
+                ..Default::default()
+            },
+        });
+    }
+
+    /// Applies a command as the window would after drawing a frame.
+    pub fn command(&mut self, command: Command) {
+        self.apply(command);
     }
 
     /// Where the run stands.
-    pub fn run_state(&self) -> &crate::RunState {
-        &self.results.state
+    pub fn run_state(&self) -> &RunState {
+        &self.session.results.state
     }
 
     /// Number of cut points shown.
     pub fn n_cut_points(&self) -> usize {
-        self.results.cut.len()
+        self.session.results.cut.len()
     }
 
     /// Number of strobe samples shown.
     pub fn n_strobe_samples(&self) -> usize {
-        self.results.strobe.len()
+        self.session.results.strobe.len()
     }
 
     /// How many runs were started since the window opened.
     pub fn n_runs_started(&self) -> u64 {
-        self.execution.n_started
+        self.session.runs.n_started
     }
 
     /// Time of each cut point shown (for tests).
     pub fn cut_times(&self) -> &[f64] {
-        &self.results.cut.t
+        &self.session.results.cut.t
     }
 
     /// A window showing `n_points` synthetic cut points and strobe samples, for the frame
@@ -184,8 +171,9 @@ impl ExplorerApp {
             ..Options::default()
         };
         let mut app = Self::new(None, Settings::default(), options);
-        let names = app.state_names();
-        app.results = Results::new(names);
+        let names = app.session.state_names();
+        let results = &mut app.session.results;
+        *results = crate::results::Results::new(names);
         let mut state = [0.0; 2];
         for k in 0..n_points {
             let angle = k as f64 * 0.618_033_988_75 * std::f64::consts::TAU;
@@ -197,41 +185,59 @@ impl ExplorerApp {
                 return_time: Some(1.0 + 0.1 * angle.sin()),
                 state: state.to_vec(),
             };
-            app.results.cut.push_cut(&point);
-            app.results.strobe.push_cut(&point);
+            results.cut.push_cut(&point);
+            results.strobe.push_cut(&point);
         }
-        app.results.state = crate::RunState::Finished;
+        results.state = RunState::Finished;
         app
     }
 
     /// Marks the point clouds as changed, as a pan or a new batch would (benchmark only).
     #[doc(hidden)]
     pub fn benchmark_touch(&mut self) {
-        self.results.cut.revision += 1;
-        self.results.strobe.revision += 1;
+        self.session.results.cut.revision += 1;
+        self.session.results.strobe.revision += 1;
     }
 
     /// Parameter values the sweep has finished.
     pub fn n_sweep_values(&self) -> usize {
-        self.sweep.columns.len()
+        self.session.sweep.columns.len()
     }
 
     /// Whether a sweep is going.
     pub fn is_sweeping(&self) -> bool {
-        self.sweep.worker.is_running()
+        self.session.sweep.is_running()
     }
 
     /// The periodic orbit found last: period, returns and the verdict's text.
     pub fn orbit_summary(&self) -> Option<(f64, usize, String)> {
-        match &self.analysis.cycle {
+        match &self.session.analysis.cycle {
             Some(Ok(r)) => Some((r.period, r.k, r.verdict.to_string())),
             _ => None,
         }
     }
 
+    /// The orbit search's error, if the last search ended in one.
+    pub fn orbit_error(&self) -> Option<String> {
+        match &self.session.analysis.cycle {
+            Some(Err(e)) => Some(e.to_string()),
+            _ => None,
+        }
+    }
+
+    /// Number of points of the found orbit drawn in the 3D view.
+    pub fn n_orbit_path_points(&self) -> usize {
+        self.session.analysis.orbit_path.len()
+    }
+
+    /// The map the orbit search works on: "cut" or "strobe".
+    pub fn orbit_map(&self) -> &'static str {
+        self.session.analysis.map.name()
+    }
+
     /// The Lyapunov exponents computed last.
     pub fn exponents(&self) -> Option<Vec<f64>> {
-        match &self.analysis.spectrum {
+        match &self.session.analysis.spectrum {
             Some(Ok(s)) => Some(s.exponents.clone()),
             _ => None,
         }
@@ -239,97 +245,141 @@ impl ExplorerApp {
 
     /// Whether an orbit search or an exponent run is going.
     pub fn is_analysing(&self) -> bool {
-        self.analysis.cycle_running() || self.analysis.exponents_running()
+        self.session.analysis.cycle_running() || self.session.analysis.exponents_running()
+    }
+
+    /// Whether an orbit search is going.
+    pub fn is_searching_orbit(&self) -> bool {
+        self.session.analysis.cycle_running()
     }
 
     /// Whether a run is going.
     pub fn is_running(&self) -> bool {
-        self.execution.worker.is_running()
+        self.session.is_running()
+    }
+
+    /// The message log's lines, oldest first.
+    pub fn messages(&self) -> impl Iterator<Item = &str> {
+        self.session.log.iter().map(|(_, line)| line.as_str())
     }
 
     /// Opens or closes the analysis panel (orbits and exponents).
     pub fn show_analysis_panel(&mut self, on: bool) {
-        self.show_analysis = on;
+        self.chrome.show_analysis = on;
+    }
+
+    /// Resets what the views keep when the document was replaced or new results came.
+    fn sync_views(&mut self) {
+        if self.chrome.view.generation != self.session.generation {
+            self.chrome.view = ViewState {
+                generation: self.session.generation,
+                ..ViewState::default()
+            };
+        }
+        if self.chrome.view.results_serial != self.session.results.serial {
+            self.chrome.view.results_serial = self.session.results.serial;
+            self.chrome.view.cut_view.selected = None;
+            self.chrome.view.strobe_view.selected = None;
+        }
     }
 
     /// One frame of the whole window.
     pub fn show(&mut self, ui: &mut Ui) {
         let ctx = ui.ctx().clone();
-        self.drain_worker(&ctx);
-        self.drain_sweep();
-        self.drain_analysis();
-        if self.sweep.worker.is_running() {
-            ctx.request_repaint_after(std::time::Duration::from_millis(100));
+        let waker_ctx = ctx.clone();
+        self.session
+            .set_waker(std::sync::Arc::new(move || waker_ctx.request_repaint()));
+        if let Some(after) = self.session.tick() {
+            ctx.request_repaint_after(after);
         }
-        let mut actions = self.keyboard(&ctx);
-        if std::mem::take(&mut self.pending_autostart) {
-            actions.push(Action::Run);
-        }
-        layout::menu_bar(self, ui, &mut actions);
-        layout::status_bar(self, ui);
+        self.sync_views();
+        let mut commands = self.keyboard(&ctx);
+        layout::menu_bar_ui(ui, &self.session, &mut self.chrome, &mut commands);
+        layout::status_bar_ui(ui, &self.session);
+        let mut draft = self.session.doc.clone();
         let changes = egui::Panel::left("model_panel")
             .resizable(true)
             .default_size(430.0)
             .min_size(300.0)
-            .show(ui, |ui| model_panel_ui(ui, &mut self.doc))
+            .show(ui, |ui| model_panel_ui(ui, &mut draft))
             .inner;
-        if self.show_analysis {
+        if changes.any() {
+            commands.push(Command::Edit {
+                scenario: Box::new(draft.scenario),
+                changes,
+            });
+        } else if changes.slider_held != self.session.runs.slider_held() {
+            commands.push(Command::HoldSlider(changes.slider_held));
+        }
+        if self.chrome.show_analysis {
             egui::Panel::right("analysis_panel")
                 .resizable(true)
                 .default_size(330.0)
                 .min_size(260.0)
-                .show(ui, |ui| self.analysis_panel_ui(ui));
+                .show(ui, |ui| {
+                    analysis_panel_ui(
+                        ui,
+                        &self.session,
+                        &mut self.chrome.view.summary,
+                        &mut commands,
+                    )
+                });
         }
-        layout::lower_views(self, ui);
-        layout::main_views(self, ui, &mut actions);
-        help::about_window(&ctx, &mut self.show_about);
-        help::shortcuts_window(&ctx, &mut self.show_shortcuts);
-        crate::files::dialogs(self, &ctx, &mut actions);
-        self.handle_dropped_files(&ctx, &mut actions);
-        self.apply_changes(&ctx, changes);
-        for action in actions {
-            self.apply(&ctx, action);
+        layout::lower_views_ui(ui, &self.session, &mut self.chrome);
+        layout::main_views_ui(ui, &self.session, &mut self.chrome, &mut commands);
+        help::about_window(&ctx, &mut self.chrome.show_about);
+        help::shortcuts_window(&ctx, &mut self.chrome.show_shortcuts);
+        crate::files::dialogs_ui(self, &ctx, &mut commands);
+        self.handle_dropped_files(&ctx, &mut commands);
+        for command in commands {
+            self.apply(command);
         }
-        self.execution_tick(&ctx);
+        self.drain_png_export();
         self.files_tick(&ctx);
-        ctx.send_viewport_cmd(egui::ViewportCommand::Title(self.doc.window_title()));
+        // a viewport command asks for another frame: send the title only when it changes, or
+        // an untouched window would repaint for ever
+        let title = self.session.doc.window_title();
+        if self.shown_title.as_deref() != Some(title.as_str()) {
+            ctx.send_viewport_cmd(egui::ViewportCommand::Title(title.clone()));
+            self.shown_title = Some(title);
+        }
     }
 
-    fn keyboard(&mut self, ctx: &egui::Context) -> Vec<Action> {
-        let mut actions = Vec::new();
+    fn keyboard(&mut self, ctx: &egui::Context) -> Vec<Command> {
+        let mut commands = Vec::new();
         let shortcut = |m: Modifiers, k: Key| KeyboardShortcut::new(m, k);
         ctx.input_mut(|i| {
             if i.consume_shortcut(&shortcut(Modifiers::NONE, Key::F6)) {
-                actions.push(Action::RunOn);
+                commands.push(Command::RunOn);
             }
             if i.consume_shortcut(&shortcut(Modifiers::NONE, Key::F5))
                 || i.consume_shortcut(&shortcut(Modifiers::COMMAND, Key::R))
             {
-                actions.push(Action::Run);
+                commands.push(Command::Run);
             }
             if i.consume_shortcut(&shortcut(Modifiers::NONE, Key::Escape)) {
-                actions.push(Action::Stop);
+                commands.push(Command::Stop);
             }
             if i.consume_shortcut(&shortcut(Modifiers::COMMAND | Modifiers::SHIFT, Key::S)) {
-                actions.push(Action::SaveAs);
+                commands.push(Command::SaveAs);
             }
             if i.consume_shortcut(&shortcut(Modifiers::COMMAND, Key::S)) {
-                actions.push(Action::Save);
+                commands.push(Command::Save);
             }
             if i.consume_shortcut(&shortcut(Modifiers::COMMAND, Key::O)) {
-                actions.push(Action::Open);
+                commands.push(Command::Open);
             }
             if i.consume_shortcut(&shortcut(Modifiers::COMMAND, Key::N)) {
-                actions.push(Action::New);
+                commands.push(Command::New);
             }
             if i.consume_shortcut(&shortcut(Modifiers::NONE, Key::F1)) {
-                self.show_shortcuts = !self.show_shortcuts;
+                self.chrome.show_shortcuts = !self.chrome.show_shortcuts;
             }
         });
-        actions
+        commands
     }
 
-    fn handle_dropped_files(&mut self, ctx: &egui::Context, actions: &mut Vec<Action>) {
+    fn handle_dropped_files(&mut self, ctx: &egui::Context, commands: &mut Vec<Command>) {
         let dropped: Vec<PathBuf> = ctx.input(|i| {
             i.raw
                 .dropped_files
@@ -340,26 +390,27 @@ impl ExplorerApp {
         });
         for path in dropped {
             if path.extension().is_some_and(|e| e == "ron") {
-                actions.push(Action::OpenPath(path));
+                commands.push(Command::OpenPath(path));
             } else {
-                self.note(format!("{}: not a scenario file (.ron)", path.display()));
+                self.session
+                    .note(format!("{}: not a scenario file (.ron)", path.display()));
             }
         }
     }
 
-    fn apply(&mut self, ctx: &egui::Context, action: Action) {
-        match action {
-            Action::Run => self.start_run(ctx),
-            Action::Stop => self.stop_run(),
-            Action::RunOn => self.run_on(ctx),
-            Action::New => self.request_new(),
-            Action::Open => self.request_open(),
-            Action::OpenPath(path) => self.request_open_path(path),
-            Action::Save => self.save(false),
-            Action::SaveAs => self.save(true),
-            Action::ExportCsv(set) => self.request_csv_export(set),
-            Action::ExportPng(view) => self.request_png_export(view),
-            Action::LoadDemo(name) => self.request_demo(name),
+    /// Applies one command: files and exports here, the rest in the session.
+    fn apply(&mut self, command: Command) {
+        match command {
+            Command::New => self.request_new(),
+            Command::Open => self.request_open(),
+            Command::OpenPath(path) => self.request_open_path(path),
+            Command::Save => self.save(false),
+            Command::SaveAs => self.save(true),
+            Command::ExportCsv(set) => self.request_csv_export(set),
+            Command::ExportPng(view) => self.request_png_export(view),
+            Command::LoadDemo(name) => self.request_demo(name),
+            Command::Recover { text, path } => self.recover(&text, path),
+            other => self.session.apply(other),
         }
     }
 }
@@ -370,6 +421,6 @@ impl eframe::App for ExplorerApp {
     }
 
     fn save(&mut self, storage: &mut dyn eframe::Storage) {
-        self.settings.store(storage);
+        self.chrome.settings.store(storage);
     }
 }

@@ -2,8 +2,9 @@
 //! problems (checked again after every edit).
 
 use std::path::PathBuf;
+use std::sync::Arc;
 
-use lamina_scenario::{Problem, Scenario};
+use lamina_scenario::{Compiled, Problem, Scenario, ScenarioError};
 
 /// The built-in demo scenario, shown on first start.
 pub const DEMO_SCENARIO: &str = include_str!("../../../demo_scenarios/clocked_resonator.ron");
@@ -39,6 +40,7 @@ pub const DEMOS: &[(&str, &str)] = &[
 ];
 
 /// The scenario in the window.
+#[derive(Clone)]
 pub struct Document {
     /// The scenario as edited.
     pub scenario: Scenario,
@@ -49,18 +51,22 @@ pub struct Document {
     pub problems: Vec<Problem>,
     /// Bumped on every edit.
     pub revision: u64,
+    /// The scenario compiled for the core, once per edit (or why it does not compile).
+    compiled: Arc<Result<Compiled, ScenarioError>>,
 }
 
 impl Document {
     /// A document for `scenario`, as loaded from `path` (not dirty).
     pub fn new(scenario: Scenario, path: Option<PathBuf>) -> Self {
         let problems = scenario.check();
+        let compiled = Arc::new(scenario.compile());
         Self {
             saved: scenario.clone(),
             scenario,
             path,
             problems,
             revision: 0,
+            compiled,
         }
     }
 
@@ -89,7 +95,13 @@ impl Document {
     pub fn changed(&mut self) {
         self.scenario.forget_source();
         self.problems = self.scenario.check();
+        self.compiled = Arc::new(self.scenario.compile());
         self.revision += 1;
+    }
+
+    /// The scenario compiled for the core, as of the last edit.
+    pub fn compiled(&self) -> Result<&Compiled, &ScenarioError> {
+        self.compiled.as_ref().as_ref()
     }
 
     /// Records that the current scenario is what is on disk at `path`.

@@ -7,37 +7,14 @@ use std::path::{Path, PathBuf};
 use lamina_export::{AtomicFile, CutCsv, StrobeCsv, TrajectoryCsv};
 
 use crate::app::ExplorerApp;
-use crate::files::Purpose;
-use crate::layout::ViewKind;
-
-/// A point set that can be written as CSV.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum PointSet {
-    /// Cut points: `k,t,return_time,<states>`.
-    Cut,
-    /// Strobe samples: `k,t,<states>`.
-    Strobe,
-    /// Trajectory samples (step ends): `t,<states>`.
-    Trajectory,
-    /// The sweep's kept points: `<parameter>,k,<states>`.
-    Sweep,
-}
-
-impl PointSet {
-    fn file_stem(self) -> &'static str {
-        match self {
-            Self::Cut => "cut_points",
-            Self::Strobe => "strobe_samples",
-            Self::Trajectory => "trajectory",
-            Self::Sweep => "sweep",
-        }
-    }
-}
+use crate::jobs::{Job, Poll};
+use crate::vocabulary::{JobKind, PointSet, Purpose, ViewKind};
 
 impl ExplorerApp {
     /// A file beside the scenario (or in the working folder) to suggest for an export.
     fn suggested_export(&self, file_name: String) -> PathBuf {
         let dir = self
+            .session
             .doc
             .path
             .as_ref()
@@ -48,43 +25,50 @@ impl ExplorerApp {
 
     pub(crate) fn request_csv_export(&mut self, set: PointSet) {
         let suggested = self.suggested_export(format!("{}.csv", set.file_stem()));
-        self.files.ask_path(Purpose::Csv(set), Some(suggested));
+        let waker = self.session.waker.clone();
+        self.files
+            .ask_path(Purpose::Csv(set), Some(suggested), waker);
     }
 
     /// Writes `set` to `path` atomically.
     pub(crate) fn export_csv(&mut self, set: PointSet, path: &Path) {
-        let names = self.results.names.clone();
+        let names = self.session.results.names.clone();
         let result = (|| -> Result<usize, lamina_export::ExportError> {
             let mut file = AtomicFile::create(path)?;
             let n = match set {
                 PointSet::Cut => {
                     let mut csv = CutCsv::new(&mut file, &names)?;
-                    for p in self.results.cut.cut_points() {
+                    for p in self.session.results.cut.cut_points() {
                         csv.write(&p)?;
                     }
                     csv.finish()?;
-                    self.results.cut.len()
+                    self.session.results.cut.len()
                 }
                 PointSet::Strobe => {
                     let mut csv = StrobeCsv::new(&mut file, &names)?;
-                    for s in self.results.strobe.strobe_samples() {
+                    for s in self.session.results.strobe.strobe_samples() {
                         csv.write(&s)?;
                     }
                     csv.finish()?;
-                    self.results.strobe.len()
+                    self.session.results.strobe.len()
                 }
                 PointSet::Sweep => {
-                    let parameter = self.swept_parameter_name();
+                    let parameter = self.session.swept_parameter_name();
                     let mut csv = lamina_export::SweepCsv::new(&mut file, &parameter, &names)?;
-                    for (c, _) in &self.sweep.columns {
+                    for (c, _) in &self.session.sweep.columns {
                         csv.write_column(c.value, &c.points)?;
                     }
                     csv.finish()?;
-                    self.sweep.columns.iter().map(|(c, _)| c.points.len()).sum()
+                    self.session
+                        .sweep
+                        .columns
+                        .iter()
+                        .map(|(c, _)| c.points.len())
+                        .sum()
                 }
                 PointSet::Trajectory => {
                     let mut csv = TrajectoryCsv::new(&mut file, &names)?;
-                    let traj = &self.results.trajectory;
+                    let traj = &self.session.results.trajectory;
                     for i in 0..traj.len() {
                         csv.write(traj.t[i], traj.state(i))?;
                     }
@@ -96,10 +80,12 @@ impl ExplorerApp {
             Ok(n)
         })();
         match result {
-            Ok(n) => self.note(format!("wrote {n} rows to {}", path.display())),
+            Ok(n) => self
+                .session
+                .note(format!("wrote {n} rows to {}", path.display())),
             Err(e) => {
                 let message = format!("export failed: {e}");
-                self.note(message.clone());
+                self.session.note(message.clone());
                 self.files.alert = Some(message);
             }
         }
@@ -107,38 +93,58 @@ impl ExplorerApp {
 
     pub(crate) fn request_png_export(&mut self, view: ViewKind) {
         let suggested = self.suggested_export(format!("{}.png", view.file_stem()));
-        self.files.ask_path(Purpose::Png(view), Some(suggested));
+        let waker = self.session.waker.clone();
+        self.files
+            .ask_path(Purpose::Png(view), Some(suggested), waker);
     }
 
-    /// Exports `view` as a PNG to `path`: draws it again at the chosen size and writes it, on a
-    /// helper thread (File ▸ Export calls this once the path is chosen).
+    /// Exports `view` as a PNG to `path`: draws it again at the chosen size and writes it, as
+    /// a background job (File ▸ Export calls this once the path is chosen).
     pub fn export_png(&mut self, view: ViewKind, path: PathBuf) {
-        match self.png_job(view, path) {
-            Ok(job) => {
-                self.layout.png_export = Some(job.spawn());
-                self.note(format!("drawing the {} picture", view.title()));
+        if self.png_export.is_some() {
+            self.files.alert = Some("a PNG is still being drawn: wait for it".into());
+            return;
+        }
+        let picture = match self.png_job(view, path) {
+            Ok(picture) => picture,
+            Err(why) => {
+                self.files.alert = Some(format!("PNG export: {why}"));
+                return;
             }
-            Err(why) => self.files.alert = Some(format!("PNG export: {why}")),
+        };
+        let spawned = Job::spawn(
+            JobKind::PngExport,
+            self.session.revision,
+            self.session.waker.clone(),
+            move |_, _| picture.run(),
+        );
+        match spawned {
+            Ok(job) => {
+                self.png_export = Some(job);
+                self.session
+                    .note(format!("drawing the {} picture", view.title()));
+            }
+            Err(e) => self.files.alert = Some(e.to_string()),
         }
     }
 
     /// Takes the outcome of a PNG export when it has arrived.
     pub(crate) fn drain_png_export(&mut self) {
-        let Some(receiver) = &self.layout.png_export else {
+        let Some(job) = &self.png_export else {
             return;
         };
-        match receiver.try_recv() {
-            Ok(Ok(message)) => {
-                self.layout.png_export = None;
-                self.note(message);
+        match job.poll() {
+            Poll::Running => {}
+            Poll::Done(Ok(message)) => {
+                self.png_export = None;
+                self.session.note(message);
             }
-            Ok(Err(e)) => {
-                self.layout.png_export = None;
+            Poll::Done(Err(e)) => {
+                self.png_export = None;
                 self.files.alert = Some(format!("PNG export failed: {e}"));
             }
-            Err(std::sync::mpsc::TryRecvError::Empty) => {}
-            Err(std::sync::mpsc::TryRecvError::Disconnected) => {
-                self.layout.png_export = None;
+            Poll::Lost => {
+                self.png_export = None;
                 self.files.alert = Some("PNG export failed: the drawing stopped".into());
             }
         }
@@ -146,11 +152,11 @@ impl ExplorerApp {
 
     /// Sets the size of PNG exports.
     pub fn set_png_size(&mut self, width: u32, height: u32) {
-        self.settings.png_size = [width, height];
+        self.chrome.settings.png_size = [width, height];
     }
 
     /// Whether a PNG export is being drawn.
     pub fn is_exporting_png(&self) -> bool {
-        self.layout.png_export.is_some()
+        self.png_export.is_some()
     }
 }

@@ -3,44 +3,14 @@
 //! thread; where none is available (no desktop portal) a path field is shown instead.
 
 use std::path::PathBuf;
-use std::sync::mpsc::{Receiver, channel};
 use std::time::{Duration, Instant};
 
 use egui::Context;
 
-use crate::app::{Action, ExplorerApp};
+use crate::app::ExplorerApp;
 use crate::document::Document;
-use crate::export::PointSet;
-use crate::layout::ViewKind;
-use crate::results::Results;
-
-/// What a chosen path is for.
-#[derive(Clone, Debug, PartialEq)]
-pub enum Purpose {
-    /// Open a scenario.
-    Open,
-    /// Save the scenario.
-    Save,
-    /// Export a point set as CSV.
-    Csv(PointSet),
-    /// Export a view as PNG.
-    Png(ViewKind),
-}
-
-/// What was waiting for the answer to "save changes?".
-#[derive(Clone, Debug, PartialEq)]
-pub enum Pending {
-    /// Open a file chosen next.
-    Open,
-    /// Open this file.
-    OpenPath(PathBuf),
-    /// Start a new scenario.
-    New,
-    /// Load a demo.
-    Demo(&'static str),
-    /// Close the window.
-    Quit,
-}
+use crate::jobs::{Job, Poll, Waker};
+use crate::vocabulary::{Command, JobKind, Pending, Purpose};
 
 enum DialogAnswer {
     Picked(Purpose, PathBuf),
@@ -52,7 +22,7 @@ enum DialogAnswer {
 pub struct Files {
     native: bool,
     recovery: bool,
-    dialog: Option<Receiver<DialogAnswer>>,
+    dialog: Option<Job<(), DialogAnswer>>,
     /// A path field shown instead of a dialog: purpose and text.
     pub prompt: Option<(Purpose, String, Option<String>)>,
     /// "Save changes?" waiting on this.
@@ -108,7 +78,7 @@ impl Files {
     }
 
     /// Asks for a path: a desktop dialog on a helper thread, or the path field.
-    pub fn ask_path(&mut self, purpose: Purpose, suggested: Option<PathBuf>) {
+    pub fn ask_path(&mut self, purpose: Purpose, suggested: Option<PathBuf>, waker: Waker) {
         if !self.native {
             let text = suggested
                 .map(|p| p.display().to_string())
@@ -119,47 +89,42 @@ impl Files {
         if self.dialog.is_some() {
             return;
         }
-        let (tx, rx) = channel();
-        self.dialog = Some(rx);
-        let spawned = std::thread::Builder::new()
-            .name("lamina-file-dialog".into())
-            .spawn(move || {
-                let started = Instant::now();
-                let mut dialog = rfd::FileDialog::new();
-                let (name, ext) = match &purpose {
-                    Purpose::Open | Purpose::Save => ("Lamina scenario", "ron"),
-                    Purpose::Csv(_) => ("CSV", "csv"),
-                    Purpose::Png(_) => ("PNG image", "png"),
-                };
-                dialog = dialog.add_filter(name, &[ext]);
-                if let Some(s) = &suggested {
-                    if let Some(dir) = s.parent() {
-                        dialog = dialog.set_directory(dir);
-                    }
-                    if let Some(file) = s.file_name() {
-                        dialog = dialog.set_file_name(file.to_string_lossy());
-                    }
+        let spawned = Job::spawn(JobKind::FileDialog, 0, waker, move |_, _| {
+            let started = Instant::now();
+            let mut dialog = rfd::FileDialog::new();
+            let (name, ext) = match &purpose {
+                Purpose::Open | Purpose::Save => ("Lamina scenario", "ron"),
+                Purpose::Csv(_) => ("CSV", "csv"),
+                Purpose::Png(_) => ("PNG image", "png"),
+            };
+            dialog = dialog.add_filter(name, &[ext]);
+            if let Some(s) = &suggested {
+                if let Some(dir) = s.parent() {
+                    dialog = dialog.set_directory(dir);
                 }
-                let picked = match purpose {
-                    Purpose::Open => dialog.pick_file(),
-                    _ => dialog.save_file(),
-                };
-                let answer = match picked {
-                    Some(path) => DialogAnswer::Picked(purpose, path),
-                    None if started.elapsed() < DIALOG_NOT_SHOWN => {
-                        DialogAnswer::Unavailable(purpose)
-                    }
-                    None => DialogAnswer::Cancelled,
-                };
-                let _ = tx.send(answer);
-            });
-        if spawned.is_err() {
-            self.dialog = None;
-            self.prompt = Some((
-                Purpose::Open,
-                String::new(),
-                Some("no file dialog available: type a path".into()),
-            ));
+                if let Some(file) = s.file_name() {
+                    dialog = dialog.set_file_name(file.to_string_lossy());
+                }
+            }
+            let picked = match purpose {
+                Purpose::Open => dialog.pick_file(),
+                _ => dialog.save_file(),
+            };
+            match picked {
+                Some(path) => DialogAnswer::Picked(purpose, path),
+                None if started.elapsed() < DIALOG_NOT_SHOWN => DialogAnswer::Unavailable(purpose),
+                None => DialogAnswer::Cancelled,
+            }
+        });
+        match spawned {
+            Ok(job) => self.dialog = Some(job),
+            Err(e) => {
+                self.prompt = Some((
+                    Purpose::Open,
+                    String::new(),
+                    Some(format!("{e}: type a path")),
+                ));
+            }
         }
     }
 }
@@ -167,28 +132,40 @@ impl Files {
 impl ExplorerApp {
     /// Polls the dialog thread and writes the recovery copy; runs every frame.
     pub(crate) fn files_tick(&mut self, ctx: &Context) {
-        if let Some(rx) = &self.files.dialog {
-            match rx.try_recv() {
-                Ok(answer) => {
-                    self.files.dialog = None;
-                    match answer {
-                        DialogAnswer::Picked(purpose, path) => self.path_chosen(ctx, purpose, path),
-                        DialogAnswer::Cancelled => self.files.after_save = None,
-                        DialogAnswer::Unavailable(purpose) => {
-                            self.files.prompt = Some((purpose, String::new(), Some("No file dialog is available on this desktop: type a path instead.".into())));
-                        }
+        let answer = self.files.dialog.as_ref().map(Job::poll);
+        match answer {
+            None | Some(Poll::Running) => {}
+            Some(Poll::Done(answer)) => {
+                self.files.dialog = None;
+                match answer {
+                    DialogAnswer::Picked(purpose, path) => self.path_chosen(ctx, purpose, path),
+                    DialogAnswer::Cancelled => self.files.after_save = None,
+                    DialogAnswer::Unavailable(purpose) => {
+                        self.files.prompt = Some((
+                            purpose,
+                            String::new(),
+                            Some(
+                                "No file dialog is available on this desktop: type a path instead."
+                                    .into(),
+                            ),
+                        ));
                     }
                 }
-                Err(std::sync::mpsc::TryRecvError::Empty) => {
-                    ctx.request_repaint_after(Duration::from_millis(100))
-                }
-                Err(std::sync::mpsc::TryRecvError::Disconnected) => self.files.dialog = None,
+            }
+            Some(Poll::Lost) => {
+                self.files.dialog = None;
+                self.files.after_save = None;
+                self.files.prompt = Some((
+                    Purpose::Open,
+                    String::new(),
+                    Some("The file dialog closed without an answer: type a path instead.".into()),
+                ));
             }
         }
         self.write_recovery();
         if ctx.input(|i| i.viewport().close_requested())
             && !self.files.closing
-            && self.doc.is_dirty()
+            && self.session.doc.is_dirty()
         {
             ctx.send_viewport_cmd(egui::ViewportCommand::CancelClose);
             self.files.confirm = Some(Pending::Quit);
@@ -202,20 +179,21 @@ impl ExplorerApp {
         let Some((ron_path, path_path)) = recovery_paths() else {
             return;
         };
-        if !self.doc.is_dirty() {
+        if !self.session.doc.is_dirty() {
             return;
         }
         let due = self
             .files
             .last_recovery_write
             .is_none_or(|t| t.elapsed() >= RECOVERY_EVERY);
-        if !due || self.files.recovery_revision == self.doc.revision {
+        if !due || self.files.recovery_revision == self.session.doc.revision {
             return;
         }
         self.files.last_recovery_write = Some(Instant::now());
-        self.files.recovery_revision = self.doc.revision;
-        let text = lamina_scenario::to_ron_string(&self.doc.scenario);
+        self.files.recovery_revision = self.session.doc.revision;
+        let text = lamina_scenario::to_ron_string(&self.session.doc.scenario);
         let original = self
+            .session
             .doc
             .path
             .as_ref()
@@ -258,108 +236,122 @@ impl ExplorerApp {
     pub(crate) fn open_path(&mut self, path: PathBuf) {
         match lamina_scenario::load_file(&path) {
             Ok(scenario) => {
-                self.stop_run();
                 let format_note = scenario.format_note();
-                self.doc = Document::new(scenario, Some(path.clone()));
-                self.results = Results::new(self.state_names());
-                self.settings.remember(path.clone());
-                self.note(format!("opened {}", path.display()));
+                self.chrome.settings.remember(path.clone());
+                self.replace_document(
+                    Document::new(scenario, Some(path.clone())),
+                    format!("opened {}", path.display()),
+                );
                 if let Some(note) = format_note {
-                    self.note(note);
+                    self.session.note(note);
                 }
-                self.apply_view_block();
-                self.queue_run();
             }
             Err(e) => {
                 let message = format!("cannot open {}: {e}", path.display());
-                self.note(message.clone());
+                self.session.note(message.clone());
                 self.files.alert = Some(message);
             }
         }
     }
 
+    /// Puts `doc` in the window: the session stops every job and clears what belonged to
+    /// the old document; the 3D view takes the new one's axes and camera. Opening a file, New,
+    /// a demo and the recovery copy all come here.
+    pub(crate) fn replace_document(&mut self, doc: Document, message: String) {
+        self.session.replace_document(doc, message);
+        self.apply_view_block();
+    }
+
     /// Takes the 3D axes and camera from the scenario's view block, if it has one.
     pub(crate) fn apply_view_block(&mut self) {
-        self.layout.cut_axes = None;
-        self.layout.strobe_axes = None;
-        if let Some(axes) = self.doc.scenario.view_axes() {
-            let n = self.doc.scenario.states.len();
-            self.settings.space.axes = axes.map(|a| match a {
+        if let Some(axes) = self.session.doc.scenario.view_axes() {
+            let n = self.session.doc.scenario.states.len();
+            self.chrome.settings.space.axes = axes.map(|a| match a {
                 lamina_scenario::ViewAxis::State(i) => i,
                 lamina_scenario::ViewAxis::Time => n,
             });
         } else {
-            let n = self.doc.scenario.states.len();
+            let n = self.session.doc.scenario.states.len();
             // a forced model with two states: the time within the period (or the time) as the
             // third axis
             let third = if n >= 3 {
                 2
-            } else if self.doc.scenario.strobe.is_some() {
+            } else if self.session.doc.scenario.strobe.is_some() {
                 n + 1
             } else {
                 n
             };
-            self.settings.space.axes = [0, 1.min(n.saturating_sub(1)), third];
+            self.chrome.settings.space.axes = [0, 1.min(n.saturating_sub(1)), third];
         }
         if let Some(camera) = self
+            .session
             .doc
             .scenario
             .view
             .as_ref()
             .and_then(|v| v.camera.as_ref())
         {
-            self.settings.space.yaw = camera.yaw_deg.to_radians() as f32;
-            self.settings.space.pitch = camera.pitch_deg.to_radians() as f32;
-            self.settings.space.zoom = camera.zoom as f32;
-        }
-    }
-
-    fn queue_run(&mut self) {
-        if self.options.autostart {
-            self.pending_autostart = true;
+            self.chrome.settings.space.yaw = camera.yaw_deg.to_radians() as f32;
+            self.chrome.settings.space.pitch = camera.pitch_deg.to_radians() as f32;
+            self.chrome.settings.space.zoom = camera.zoom as f32;
         }
     }
 
     /// Writes the scenario to `path`; true on success.
     pub(crate) fn save_to(&mut self, path: PathBuf) -> bool {
-        match lamina_scenario::save_file(&path, &self.doc.scenario) {
+        match lamina_scenario::save_file(&path, &self.session.doc.scenario) {
             Ok(()) => {
-                self.doc.mark_saved(path.clone());
-                self.settings.remember(path.clone());
+                self.session.doc.mark_saved(path.clone());
+                self.chrome.settings.remember(path.clone());
                 self.clear_recovery();
-                self.note(format!("saved {}", path.display()));
+                self.session.note(format!("saved {}", path.display()));
                 true
             }
             Err(e) => {
                 let message = format!("cannot save {}: {e}", path.display());
-                self.note(message.clone());
+                self.session.note(message.clone());
                 self.files.alert = Some(message);
                 false
             }
         }
     }
 
+    /// Takes the recovery copy of unsaved edits in place of the current document.
+    pub(crate) fn recover(&mut self, text: &str, path: Option<PathBuf>) {
+        match lamina_scenario::load_str(text) {
+            Ok(scenario) => {
+                let mut doc = Document::new(scenario, path);
+                doc.changed();
+                self.replace_document(doc, "recovered unsaved edits from the last session".into());
+            }
+            Err(e) => self
+                .session
+                .note(format!("the recovery copy cannot be read: {e}")),
+        }
+    }
+
     /// Save (to the known file) or save as.
     pub(crate) fn save(&mut self, choose: bool) {
-        match (&self.doc.path, choose) {
+        match (&self.session.doc.path, choose) {
             (Some(path), false) => {
                 let path = path.clone();
                 self.save_to(path);
             }
             _ => {
-                let suggested = self.doc.path.clone().or_else(|| {
+                let suggested = self.session.doc.path.clone().or_else(|| {
                     Some(PathBuf::from(format!(
                         "{}.ron",
-                        slug(&self.doc.scenario.title)
+                        slug(&self.session.doc.scenario.title)
                     )))
                 });
-                self.files.ask_path(Purpose::Save, suggested);
+                let waker = self.session.waker.clone();
+                self.files.ask_path(Purpose::Save, suggested, waker);
             }
         }
     }
 
     fn guard(&mut self, pending: Pending, ctx: Option<&Context>) {
-        if self.doc.is_dirty() {
+        if self.session.doc.is_dirty() {
             self.files.confirm = Some(pending);
         } else if let Some(ctx) = ctx {
             self.proceed(pending, ctx);
@@ -386,27 +378,28 @@ impl ExplorerApp {
 
     fn proceed_without_ctx(&mut self, pending: Pending) {
         match pending {
-            Pending::Open => self
-                .files
-                .ask_path(Purpose::Open, self.settings.recent.first().cloned()),
+            Pending::Open => {
+                let waker = self.session.waker.clone();
+                let recent = self.chrome.settings.recent.first().cloned();
+                self.files.ask_path(Purpose::Open, recent, waker);
+            }
             Pending::OpenPath(path) => self.open_path(path),
             Pending::New => {
-                self.stop_run();
-                self.doc = Document::blank();
-                self.results = Results::new(self.state_names());
-                self.apply_view_block();
-                self.note("new scenario");
+                self.replace_document(Document::blank(), "new scenario".into());
+                // a new scenario waits for Run
+                self.session.pending_run = false;
             }
             Pending::Demo(name) => {
-                if let Some((_, text)) = crate::document::DEMOS.iter().find(|(n, _)| *n == name)
-                    && let Ok(scenario) = lamina_scenario::load_str(text)
-                {
-                    self.stop_run();
-                    self.doc = Document::new(scenario, None);
-                    self.results = Results::new(self.state_names());
-                    self.apply_view_block();
-                    self.note(format!("opened the demo '{name}'"));
-                    self.queue_run();
+                let found = crate::document::DEMOS.iter().find(|(n, _)| *n == name);
+                match found.map(|(_, text)| lamina_scenario::load_str(text)) {
+                    Some(Ok(scenario)) => self.replace_document(
+                        Document::new(scenario, None),
+                        format!("opened the demo '{name}'"),
+                    ),
+                    Some(Err(e)) => self
+                        .session
+                        .note(format!("the demo '{name}' does not load: {e}")),
+                    None => self.session.note(format!("no demo called '{name}'")),
                 }
             }
             Pending::Quit => {}
@@ -441,15 +434,14 @@ fn slug(title: &str) -> String {
 }
 
 /// The windows of this module: the path field, "save changes?", recovery, alerts.
-pub fn dialogs(app: &mut ExplorerApp, ctx: &Context, actions: &mut Vec<Action>) {
-    let _ = actions;
+pub fn dialogs_ui(app: &mut ExplorerApp, ctx: &Context, commands: &mut Vec<Command>) {
     if let Some(pending) = app.files.confirm.clone() {
         let mut answer = None;
         egui::Modal::new(egui::Id::unique("confirm_discard")).show(ctx, |ui| {
             ui.heading("Unsaved changes");
             ui.label(format!(
                 "“{}” has changes that are not saved.",
-                app.doc.scenario.title
+                app.session.doc.scenario.title
             ));
             ui.horizontal(|ui| {
                 if ui
@@ -474,7 +466,7 @@ pub fn dialogs(app: &mut ExplorerApp, ctx: &Context, actions: &mut Vec<Action>) 
         match answer {
             Some(0) => {
                 app.files.confirm = None;
-                if let Some(path) = app.doc.path.clone() {
+                if let Some(path) = app.session.doc.path.clone() {
                     if app.save_to(path) {
                         app.proceed(pending, ctx);
                     }
@@ -554,15 +546,10 @@ pub fn dialogs(app: &mut ExplorerApp, ctx: &Context, actions: &mut Vec<Action>) 
         match answer {
             Some(true) => {
                 app.files.recovery_offer = None;
-                match lamina_scenario::load_str(&text) {
-                    Ok(scenario) => {
-                        app.doc = Document::new(scenario, original);
-                        app.doc.changed();
-                        app.results = Results::new(app.state_names());
-                        app.note("recovered unsaved edits from the last session");
-                    }
-                    Err(e) => app.note(format!("the recovery copy cannot be read: {e}")),
-                }
+                commands.push(Command::Recover {
+                    text,
+                    path: original,
+                });
             }
             Some(false) => {
                 app.files.recovery_offer = None;

@@ -5,20 +5,24 @@
 //! every file format from `lamina-scenario` and `lamina-export`.
 
 mod analysis;
+mod analysis_jobs;
 mod app;
 mod document;
-mod execution;
 mod export;
 mod files;
 mod help;
+mod jobs;
 mod layout;
 mod model_panel;
 mod png_export;
 mod results;
+mod run_control;
+mod session;
 mod settings;
+mod sweep_jobs;
 mod sweep_panel;
-mod sweep_worker;
 mod views;
+mod vocabulary;
 mod widgets;
 mod worker;
 
@@ -27,8 +31,8 @@ use std::path::PathBuf;
 pub use app::{ExplorerApp, Options};
 pub use document::DEMO_SCENARIO;
 pub use help::{CAUTION, TAGLINE};
-pub use layout::ViewKind;
 pub use results::RunState;
+pub use vocabulary::{Command, JobKind, OrbitMap, PointSet, ViewKind};
 
 /// Opens the explorer window on `file`, or on the built-in demo scenario, and blocks until
 /// the window is closed.

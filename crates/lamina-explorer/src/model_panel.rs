@@ -1,5 +1,6 @@
 //! The model panel: states, parameters (with sliders), integrator, time window, cut and
-//! strobe, each field checked as it is typed with the message shown in place.
+//! strobe, each field checked as it is typed with the message shown in place. It edits a
+//! copy of the document; the edit reaches the session as a command after drawing.
 
 use egui::{ComboBox, Id, RichText, Ui};
 use lamina_scenario::{
@@ -7,34 +8,11 @@ use lamina_scenario::{
 };
 
 use crate::document::{Document, rename_everywhere};
+use crate::vocabulary::PanelChanges;
 use crate::widgets::{ERROR_COLOUR, number_field, problems_ui, unit_field, unit_suffix};
 
-/// What the user changed in the panel this frame; the app acts on it after drawing.
-#[must_use]
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
-pub struct PanelChanges {
-    /// Anything that needs a new run (rates, starts, integrator, time, limits, names).
-    pub model: bool,
-    /// A parameter slider moved.
-    pub slider: bool,
-    /// A parameter slider is being dragged right now.
-    pub slider_held: bool,
-    /// The cut changed (surface, offset, direction): re-slice.
-    pub cut: bool,
-    /// The strobe changed: re-sample.
-    pub strobe: bool,
-    /// Only what is shown changed (axes, notes, title).
-    pub view: bool,
-}
-
-impl PanelChanges {
-    /// Whether anything changed.
-    pub fn any(&self) -> bool {
-        self.model || self.slider || self.cut || self.strobe || self.view
-    }
-}
-
-/// Draws the whole panel for `doc`.
+/// Draws the whole panel for `doc`, a copy of the session's document: the caller hands the
+/// edited scenario to the session as a command when anything changed.
 pub fn model_panel_ui(ui: &mut Ui, doc: &mut Document) -> PanelChanges {
     let mut changes = PanelChanges::default();
     egui::ScrollArea::vertical()
@@ -88,9 +66,6 @@ pub fn model_panel_ui(ui: &mut Ui, doc: &mut Document) -> PanelChanges {
                     }
                 });
         });
-    if changes.any() {
-        doc.changed();
-    }
     changes
 }
 

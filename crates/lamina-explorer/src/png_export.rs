@@ -4,18 +4,17 @@
 //! caption with the parameter values), the same as `lamina render` draws.
 
 use std::path::PathBuf;
-use std::sync::mpsc::{Receiver, channel};
 
 use lamina_render::{
     Figure, orbit_diagram_png, picture_title, scatter_png, split_where_it_wraps, trajectory_png,
 };
 
 use crate::app::ExplorerApp;
-use crate::layout::ViewKind;
 use crate::results::PointCloud;
 use crate::views::cloud::ColourBy;
 use crate::views::series::MapCoordinate;
 use crate::views::space::{axis_name, axis_value};
+use crate::vocabulary::{PngError, ViewKind};
 
 /// What a picture draws.
 enum Drawing {
@@ -45,7 +44,7 @@ pub(crate) struct PngJob {
 
 impl PngJob {
     /// Draws the picture and writes it; the message for the log, or why it failed.
-    fn run(self) -> Result<String, String> {
+    pub(crate) fn run(self) -> Result<String, PngError> {
         let bytes = match &self.drawing {
             Drawing::Scatter { points, keys } => scatter_png(&self.figure, points, keys.as_deref()),
             Drawing::Trajectory { z_label, pieces } => {
@@ -54,50 +53,47 @@ impl PngJob {
             Drawing::Orbit { columns, kinds } => {
                 orbit_diagram_png(&self.figure, columns, Some(kinds))
             }
-        }
-        .map_err(|e| e.to_string())?;
-        lamina_export::write_bytes_atomically(&self.path, &bytes).map_err(|e| e.to_string())?;
+        }?;
+        lamina_export::write_bytes_atomically(&self.path, &bytes)?;
         let (w, h) = self.figure.size;
         Ok(format!("wrote {} ({w}×{h})", self.path.display()))
-    }
-
-    /// Draws and writes on a helper thread; the outcome arrives on the receiver.
-    pub(crate) fn spawn(self) -> Receiver<Result<String, String>> {
-        let (send, receive) = channel();
-        std::thread::spawn(move || {
-            let _ = send.send(self.run());
-        });
-        receive
     }
 }
 
 impl ExplorerApp {
     /// The picture of `view` as it is on screen, at the chosen export size; why not, if the
     /// view has nothing to draw.
-    pub(crate) fn png_job(&self, view: ViewKind, path: PathBuf) -> Result<PngJob, String> {
-        let labels = self.axis_labels();
-        let scenario = &self.doc.scenario;
+    pub(crate) fn png_job(&self, view: ViewKind, path: PathBuf) -> Result<PngJob, PngError> {
+        let labels = self.session.axis_labels();
+        let session = &self.session;
+        let scenario = &session.doc.scenario;
         let title = |view: ViewKind| picture_title(&scenario.title, view.title());
-        let [w, h] = self.settings.png_size;
+        let [w, h] = self.chrome.settings.png_size;
         let figure = |title: String, x_label: String, y_label: String| Figure {
             size: (w, h),
             title,
-            caption: self.doc.scenario.caption(),
+            caption: scenario.caption(),
             x_label,
             y_label,
         };
         let (figure, drawing) = match view {
             ViewKind::Cut | ViewKind::Strobe => {
                 let (cloud, axes, colour) = if view == ViewKind::Cut {
-                    (&self.results.cut, self.cut_axes(), self.settings.cut_colour)
+                    (
+                        &session.results.cut,
+                        session.cut_axes(),
+                        self.chrome.settings.cut_colour,
+                    )
                 } else {
                     (
-                        &self.results.strobe,
-                        self.strobe_axes(),
-                        self.settings.strobe_colour,
+                        &session.results.strobe,
+                        session.strobe_axes(),
+                        self.chrome.settings.strobe_colour,
                     )
                 };
-                let [a, b] = axes.ok_or("the view has no axes: switch the cut or strobe on")?;
+                let [a, b] = axes.ok_or(PngError::Empty(
+                    "the view has no axes: switch the cut or strobe on",
+                ))?;
                 nonempty(cloud)?;
                 let points = (0..cloud.len())
                     .map(|i| (cloud.value(i, a), cloud.value(i, b)))
@@ -115,10 +111,10 @@ impl ExplorerApp {
                 )
             }
             ViewKind::ReturnTimes | ViewKind::ReturnMap => {
-                let cloud = if self.results.cut.is_empty() {
-                    &self.results.strobe
+                let cloud = if session.results.cut.is_empty() {
+                    &session.results.strobe
                 } else {
-                    &self.results.cut
+                    &session.results.cut
                 };
                 nonempty(cloud)?;
                 if view == ViewKind::ReturnTimes {
@@ -130,7 +126,7 @@ impl ExplorerApp {
                         Drawing::Scatter { points, keys: None },
                     )
                 } else {
-                    let coordinate = self.settings.map_coordinate;
+                    let coordinate = self.chrome.settings.map_coordinate;
                     let value = |i: usize| match coordinate {
                         MapCoordinate::State(k) if k < cloud.dim() => cloud.coord(i, k),
                         MapCoordinate::State(_) => f64::NAN,
@@ -138,7 +134,7 @@ impl ExplorerApp {
                     };
                     let (name, unit) = match coordinate {
                         MapCoordinate::State(k) => {
-                            let name = self.results.names.get(k).cloned().unwrap_or_default();
+                            let name = session.results.names.get(k).cloned().unwrap_or_default();
                             let unit = scenario
                                 .state_index(&name)
                                 .and_then(|i| scenario.states[i].unit.clone());
@@ -161,12 +157,12 @@ impl ExplorerApp {
                 }
             }
             ViewKind::Trajectory => {
-                let traj = &self.results.trajectory;
+                let traj = &session.results.trajectory;
                 if traj.is_empty() {
-                    return Err("nothing to draw yet: run the model first".into());
+                    return Err(PngError::Empty("run the model first"));
                 }
-                let axes = self.settings.space.axes;
-                let period = self.results.strobe_period;
+                let axes = self.chrome.settings.space.axes;
+                let period = session.results.strobe_period;
                 let points = (0..traj.len()).map(|i| {
                     let (s, t) = (traj.state(i), traj.t[i]);
                     let [a, b, c] = axes.map(|axis| axis_value(axis, s, t, period));
@@ -188,11 +184,12 @@ impl ExplorerApp {
                 )
             }
             ViewKind::Orbit => {
-                if self.sweep.columns.is_empty() {
-                    return Err("nothing to draw yet: run the sweep first".into());
-                }
-                let coordinate = self.sweep.axes.1;
-                let columns: Vec<(f64, Vec<f64>)> = self
+                let (Some((_, coordinate)), false) =
+                    (session.sweep.axes, session.sweep.columns.is_empty())
+                else {
+                    return Err(PngError::Empty("run the sweep first"));
+                };
+                let columns: Vec<(f64, Vec<f64>)> = session
                     .sweep
                     .columns
                     .iter()
@@ -205,11 +202,11 @@ impl ExplorerApp {
                         (c.value, values)
                     })
                     .collect();
-                let kinds = self.sweep.columns.iter().map(|(_, k)| *k).collect();
+                let kinds = session.sweep.columns.iter().map(|(_, k)| *k).collect();
                 (
                     figure(
                         title(view),
-                        self.swept_parameter_label(),
+                        session.swept_parameter_label(),
                         labels.state(coordinate),
                     ),
                     Drawing::Orbit { columns, kinds },
@@ -225,9 +222,9 @@ impl ExplorerApp {
 }
 
 /// An error if `cloud` has no points.
-fn nonempty(cloud: &PointCloud) -> Result<(), String> {
+fn nonempty(cloud: &PointCloud) -> Result<(), PngError> {
     if cloud.is_empty() {
-        Err("nothing to draw yet: run the model first".into())
+        Err(PngError::Empty("run the model first"))
     } else {
         Ok(())
     }

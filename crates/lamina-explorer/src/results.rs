@@ -6,18 +6,7 @@ use std::time::Duration;
 use lamina_core::run::{CutPoint, Run, StopReason, StrobeSample};
 use lamina_scenario::Scenario;
 
-use crate::widgets::unit_suffix;
-
-/// A coordinate of a point cloud view: a state, the time, or the return time.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum CloudAxis {
-    /// The state with this index.
-    State(usize),
-    /// The time of the point.
-    Time,
-    /// The time since the previous point.
-    ReturnTime,
-}
+use crate::vocabulary::{CloudAxis, unit_suffix};
 
 impl CloudAxis {
     /// Name shown on the axis, with its unit.
@@ -329,6 +318,8 @@ pub enum RunState {
     Stopped,
     /// It ended early for the reason given (numerical trouble, the point limit).
     EndedEarly(StopReason),
+    /// Its thread ended without handing the run back (an internal error).
+    Lost,
 }
 
 /// Everything the current run has produced.
@@ -355,6 +346,9 @@ pub struct Results {
     pub run: Option<Box<Run>>,
     /// The strobe period of the run, for the axis of the time within the period.
     pub strobe_period: Option<f64>,
+    /// A number no other results of this process have: a view's selection made in other
+    /// results is dropped.
+    pub serial: u64,
 }
 
 impl Results {
@@ -373,6 +367,7 @@ impl Results {
             elapsed: Duration::ZERO,
             run: None,
             strobe_period: None,
+            serial: first_revision(),
         }
     }
 }

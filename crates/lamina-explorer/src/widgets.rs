@@ -4,6 +4,8 @@
 use egui::{Color32, Response, RichText, Ui};
 use lamina_scenario::Problem;
 
+pub use crate::vocabulary::unit_suffix;
+
 /// The colour of error text.
 pub const ERROR_COLOUR: Color32 = Color32::from_rgb(226, 84, 72);
 /// The colour of warning text.
@@ -59,14 +61,6 @@ pub fn unit_field(ui: &mut Ui, unit: &mut Option<String>, hint: &str) -> bool {
         true
     } else {
         false
-    }
-}
-
-/// ` um` for a unit, nothing without one: what follows a value shown with its unit.
-pub fn unit_suffix(unit: Option<&str>) -> String {
-    match unit {
-        Some(unit) if !unit.trim().is_empty() => format!(" {unit}"),
-        _ => String::new(),
     }
 }
 

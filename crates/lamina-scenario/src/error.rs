@@ -83,6 +83,16 @@ pub enum ScenarioError {
         /// The format this version reads.
         supported: u32,
     },
+    /// A part of the scenario does not compile for the core (see [`Scenario::compile`]).
+    ///
+    /// [`Scenario::compile`]: crate::Scenario::compile
+    #[error("{field}: {source}")]
+    Compile {
+        /// The block that does not compile: `states`, `cut` or `strobe`.
+        field: &'static str,
+        /// What the core said.
+        source: lamina_core::run::SpecError,
+    },
     /// The file reads but does not make sense; every problem found, errors and warnings.
     #[error("{}", list_problems(.0))]
     Invalid(Vec<Problem>),

@@ -9,6 +9,7 @@
 //! plain specifications; [`save_file`] writes atomically.
 
 mod check;
+mod compile;
 mod convert;
 mod error;
 mod format1;
@@ -20,6 +21,7 @@ mod source;
 mod syntax;
 
 pub use check::{is_colour, is_identifier};
+pub use compile::Compiled;
 pub use convert::{MapAxisSpec, RegimeMapSpec, ViewAxis};
 pub use error::{Problem, ScenarioError, Severity};
 pub use load::{load_bytes, load_file, load_str};

@@ -202,3 +202,40 @@ fn labels_carry_units() {
         "c = 1e308   |   t from 1e-300 to 50, rtol 1e-8, atol 1e-10"
     );
 }
+
+#[test]
+fn compiling_gives_the_model_cut_strobe_and_run_together() {
+    let scenario = load(EXAMPLE);
+    let compiled = scenario.compile().expect("the example compiles");
+    assert_eq!(compiled.model.names().states, ["x", "v"]);
+    assert!(compiled.cut.is_some());
+    // [analytic] the strobe period 2*pi/w at w = 1.2
+    let period = compiled.strobe.as_ref().expect("a strobe").period;
+    assert!((period - 2.0 * std::f64::consts::PI / 1.2).abs() < 1e-12);
+    assert_eq!(compiled.run, scenario.run_spec());
+    assert_eq!(compiled.strobe_spec, scenario.strobe_spec());
+
+    let minimal = load(MINIMAL)
+        .compile()
+        .expect("the minimal scenario compiles");
+    assert!(minimal.cut.is_none() && minimal.strobe.is_none() && minimal.sweep.is_none());
+}
+
+#[test]
+fn a_strobe_that_does_not_compile_is_named() {
+    let mut scenario = load(EXAMPLE);
+    if let Some(strobe) = &mut scenario.strobe {
+        strobe.period = "2*pi/nothing".into();
+    }
+    let err = scenario
+        .compile()
+        .expect_err("the strobe period names no parameter");
+    assert!(matches!(
+        err,
+        lamina_scenario::ScenarioError::Compile {
+            field: "strobe",
+            ..
+        }
+    ));
+    assert!(err.to_string().starts_with("strobe: "), "{err}");
+}

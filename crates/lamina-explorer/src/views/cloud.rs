@@ -7,7 +7,8 @@ use egui::{Color32, ColorImage, Mesh, Pos2, Rect, TextureHandle, TextureOptions,
 use egui_plot::{Plot, PlotPoint, PlotPoints, Points};
 
 use super::palette::ramp;
-use crate::results::{AxisLabels, CloudAxis, PointCloud};
+use crate::results::{AxisLabels, PointCloud};
+use crate::vocabulary::CloudAxis;
 
 /// Clouds up to this size are drawn point by point.
 pub const MESH_LIMIT: usize = 40_000;

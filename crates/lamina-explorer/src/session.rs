@@ -1,0 +1,281 @@
+//! The session: the document and everything that belongs to it — the run's results, the
+//! background jobs, the sweep, the analysis, the view axes picked for this document and the
+//! message log. Every change goes through [`Session::apply`] or
+//! [`Session::replace_document`]; the UI reads a `&Session` and pushes [`Command`]s.
+//!
+//! Invariants kept here:
+//! - Replacing the document stops every job and clears results, analysis, sweep, orbit
+//!   marks and view axes; `generation` counts replacements so views reset what they keep.
+//! - `revision` counts the changes that outdate results (model, parameters, cut, strobe,
+//!   replacement). A job remembers the revision it was started for; an orbit or a spectrum
+//!   that arrives for another revision is dropped, and one shown is cleared when the
+//!   revision moves on.
+//! - A job whose thread ends without a result is reported as an error, never left running.
+
+use std::time::Instant;
+
+use crate::analysis_jobs::AnalysisState;
+use crate::document::Document;
+use crate::jobs::{Waker, no_waker};
+use crate::results::{AxisLabels, Results};
+use crate::run_control::RunControl;
+use crate::sweep_jobs::SweepState;
+use crate::vocabulary::{CloudAxis, Command, JobKind, OrbitMap, ViewKind};
+
+/// The most lines the message log keeps.
+const MAX_LOG: usize = 500;
+
+/// Axes picked in the cloud views for this document (`None`: from the scenario).
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct PickedAxes {
+    /// The cut view's axes.
+    pub cut: Option<[CloudAxis; 2]>,
+    /// The strobe view's axes.
+    pub strobe: Option<[CloudAxis; 2]>,
+}
+
+/// The document and all that belongs to it.
+pub struct Session {
+    /// The scenario being edited.
+    pub doc: Document,
+    /// What the current run has produced.
+    pub results: Results,
+    /// The run job and its bookkeeping.
+    pub runs: RunControl,
+    /// The sweep job and the orbit diagram's values.
+    pub sweep: SweepState,
+    /// The orbit search and exponent jobs and their results.
+    pub analysis: AnalysisState,
+    /// Axes picked in the cloud views.
+    pub axes: PickedAxes,
+    /// Messages for the log, with when they were written.
+    pub log: Vec<(Instant, String)>,
+    /// Bumped each time the document is replaced.
+    pub generation: u64,
+    /// Bumped by every change that outdates results (and by a replacement).
+    pub revision: u64,
+    /// Start a run when a document is opened.
+    pub autostart: bool,
+    /// A run is due at the end of this frame (a document was just opened).
+    pub(crate) pending_run: bool,
+    pub(crate) waker: Waker,
+}
+
+impl Session {
+    /// A session on `doc`; `autostart` runs each document as it is opened.
+    pub fn new(doc: Document, autostart: bool) -> Self {
+        let results = Results::new(state_names(&doc));
+        let map = OrbitMap::default_for(&doc.scenario);
+        Self {
+            doc,
+            results,
+            runs: RunControl::default(),
+            sweep: SweepState::default(),
+            analysis: AnalysisState::new(map),
+            axes: PickedAxes::default(),
+            log: Vec::new(),
+            generation: 0,
+            revision: 0,
+            autostart,
+            pending_run: autostart,
+            waker: no_waker(),
+        }
+    }
+
+    /// Lets jobs ask for a frame through `waker`.
+    pub fn set_waker(&mut self, waker: Waker) {
+        self.waker = waker;
+    }
+
+    /// Adds a line to the message log.
+    pub fn note(&mut self, message: impl Into<String>) {
+        self.log.push((Instant::now(), message.into()));
+        if self.log.len() > MAX_LOG {
+            self.log.remove(0);
+        }
+    }
+
+    /// Puts `doc` in place of the current document: stops every job, clears results,
+    /// analysis, sweep, orbit marks and picked axes, and queues a run if so set.
+    pub fn replace_document(&mut self, doc: Document, message: impl Into<String>) {
+        self.runs = RunControl::default();
+        self.sweep = SweepState::default();
+        self.analysis = AnalysisState::new(OrbitMap::default_for(&doc.scenario));
+        self.axes = PickedAxes::default();
+        self.results = Results::new(state_names(&doc));
+        self.doc = doc;
+        self.generation += 1;
+        self.revision += 1;
+        self.note(message);
+        self.pending_run = self.autostart;
+    }
+
+    /// The state names of the current scenario.
+    pub fn state_names(&self) -> Vec<String> {
+        state_names(&self.doc)
+    }
+
+    /// The axis labels of the run's states and the time, with the scenario's units.
+    pub fn axis_labels(&self) -> AxisLabels {
+        AxisLabels::new(&self.doc.scenario, &self.results.names)
+    }
+
+    /// Whether a run is going.
+    pub fn is_running(&self) -> bool {
+        self.runs.is_running()
+    }
+
+    /// Applies one command that concerns the document, its results or its jobs.
+    pub fn apply(&mut self, command: Command) {
+        match command {
+            Command::Run => self.start_run(),
+            Command::Stop => self.stop_run(),
+            Command::RunOn => self.run_on(),
+            Command::Edit { scenario, changes } => {
+                let had_strobe = self.doc.scenario.strobe.is_some();
+                self.doc.scenario = *scenario;
+                if self.doc.scenario.strobe.is_some() != had_strobe {
+                    // a strobe switched on or off: the orbit search follows, as on opening
+                    self.analysis
+                        .choose_map(OrbitMap::default_for(&self.doc.scenario));
+                }
+                self.doc.changed();
+                if changes.outdates_results() {
+                    self.outdate();
+                }
+                self.react_to_edit(changes);
+            }
+            Command::HoldSlider(held) => self.runs.hold_slider(held),
+            Command::SetParameterAndRun { index, value } => {
+                let Some(parameter) = self.doc.scenario.parameters.get_mut(index) else {
+                    return;
+                };
+                parameter.value = value;
+                let name = parameter.name.clone();
+                self.doc.changed();
+                self.outdate();
+                self.note(format!("{name} = {value}: running the model there"));
+                self.start_run();
+            }
+            Command::MoveCut { offset } => {
+                if let Some(cut) = &mut self.doc.scenario.cut
+                    && let lamina_scenario::Surface::Plane { offset: o, .. } = &mut cut.surface
+                {
+                    *o = offset;
+                    self.doc.changed();
+                    self.outdate();
+                    self.reslice_now_or_later();
+                }
+            }
+            Command::ChooseCloudAxes(kind, axes) => self.choose_cloud_axes(kind, axes),
+            Command::ChooseOrbitMap(map) => self.analysis.choose_map(map),
+            Command::FindOrbit => self.start_orbit_search(),
+            Command::ComputeExponents => self.start_exponents(),
+            Command::StartSweep => self.start_sweep(),
+            Command::Cancel(kind) => self.cancel(kind),
+            // files, exports and dialogs belong to the window
+            Command::New
+            | Command::Open
+            | Command::OpenPath(_)
+            | Command::Save
+            | Command::SaveAs
+            | Command::ExportCsv(_)
+            | Command::ExportPng(_)
+            | Command::LoadDemo(_)
+            | Command::Recover { .. } => {}
+        }
+    }
+
+    /// A change that outdates results: the shown orbit and spectrum no longer describe the
+    /// scenario and are cleared; jobs still going will be dropped when they arrive.
+    fn outdate(&mut self) {
+        self.revision += 1;
+        self.analysis.clear_results();
+    }
+
+    fn cancel(&mut self, kind: JobKind) {
+        match kind {
+            JobKind::Run => self.stop_run(),
+            JobKind::Sweep => {
+                if self.sweep.cancel() {
+                    self.note("stopping the sweep");
+                }
+            }
+            JobKind::OrbitSearch | JobKind::Exponents => {
+                if self.analysis.cancel(kind) {
+                    self.note(format!("stopping the {kind}"));
+                }
+            }
+            JobKind::PngExport | JobKind::FileDialog => {}
+        }
+    }
+
+    /// Takes the axes picked in a cloud view; a pair of states is also written to the
+    /// scenario (so it is saved), time and return time stay a choice of the view.
+    fn choose_cloud_axes(&mut self, kind: ViewKind, axes: [CloudAxis; 2]) {
+        if let [CloudAxis::State(a), CloudAxis::State(b)] = axes {
+            let name = |i: usize| self.results.names.get(i).cloned().unwrap_or_default();
+            let pair = (name(a), name(b));
+            match kind {
+                ViewKind::Cut => {
+                    if let Some(c) = &mut self.doc.scenario.cut {
+                        c.axes = pair;
+                    }
+                }
+                _ => {
+                    if let Some(s) = &mut self.doc.scenario.strobe {
+                        s.axes = pair;
+                    }
+                }
+            }
+            self.doc.changed();
+        }
+        match kind {
+            ViewKind::Cut => self.axes.cut = Some(axes),
+            _ => self.axes.strobe = Some(axes),
+        }
+    }
+
+    /// The axes of the cut view: as picked, else from the scenario (a coordinate that is
+    /// constant on a plane cut is replaced by the return time).
+    pub fn cut_axes(&self) -> Option<[CloudAxis; 2]> {
+        self.axes.cut.or_else(|| {
+            let [a, b] = self.doc.scenario.cut_axes()?;
+            let fixed = self.doc.scenario.cut_fixed_state();
+            Some(if fixed == Some(b) {
+                [CloudAxis::State(a), CloudAxis::ReturnTime]
+            } else if fixed == Some(a) {
+                [CloudAxis::State(b), CloudAxis::ReturnTime]
+            } else {
+                [CloudAxis::State(a), CloudAxis::State(b)]
+            })
+        })
+    }
+
+    /// The axes of the strobe view: as picked, else from the scenario.
+    pub fn strobe_axes(&self) -> Option<[CloudAxis; 2]> {
+        self.axes.strobe.or_else(|| {
+            self.doc
+                .scenario
+                .strobe_axes()
+                .map(|[a, b]| [CloudAxis::State(a), CloudAxis::State(b)])
+        })
+    }
+
+    /// Takes what every job has sent, and starts what is due (a queued run, a re-run after
+    /// a slider rested). Called once per frame before drawing; returns how long until it
+    /// needs to look again, if it does without being woken.
+    pub fn tick(&mut self) -> Option<std::time::Duration> {
+        self.drain_run();
+        self.drain_sweep();
+        self.drain_analysis();
+        if std::mem::take(&mut self.pending_run) {
+            self.start_run();
+        }
+        self.run_timers()
+    }
+}
+
+fn state_names(doc: &Document) -> Vec<String> {
+    doc.scenario.states.iter().map(|s| s.name.clone()).collect()
+}

@@ -1,0 +1,336 @@
+//! The explorer's shared words: the views, the point sets, the commands the UI pushes, the
+//! kinds of background job and the window's errors. This module imports nothing from the UI
+//! modules; the UI, the session and the jobs all speak it.
+
+use std::path::PathBuf;
+
+use lamina_scenario::Scenario;
+
+/// A coordinate of a point cloud view: a state, the time, or the return time.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum CloudAxis {
+    /// The state with this index.
+    State(usize),
+    /// The time of the point.
+    Time,
+    /// The time since the previous point.
+    ReturnTime,
+}
+
+/// ` um` for a unit, nothing without one: what follows a value shown with its unit.
+pub fn unit_suffix(unit: Option<&str>) -> String {
+    match unit {
+        Some(unit) if !unit.trim().is_empty() => format!(" {unit}"),
+        _ => String::new(),
+    }
+}
+
+/// The views that can be shown and exported.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum ViewKind {
+    /// The 3D trajectory.
+    Trajectory,
+    /// The cut-point cloud.
+    Cut,
+    /// The strobe samples.
+    Strobe,
+    /// The return-time sequence.
+    ReturnTimes,
+    /// The first-return map.
+    ReturnMap,
+    /// The orbit diagram of the sweep.
+    Orbit,
+}
+
+impl ViewKind {
+    /// Name in menus and in picture titles (the command line's pictures use the same).
+    pub fn title(self) -> &'static str {
+        use lamina_render::view_names;
+        match self {
+            Self::Trajectory => view_names::TRAJECTORY,
+            Self::Cut => view_names::CUT,
+            Self::Strobe => view_names::STROBE,
+            Self::ReturnTimes => view_names::RETURN_TIMES,
+            Self::ReturnMap => view_names::RETURN_MAP,
+            Self::Orbit => view_names::ORBIT,
+        }
+    }
+
+    /// Default file name.
+    pub fn file_stem(self) -> &'static str {
+        match self {
+            Self::Trajectory => "trajectory",
+            Self::Cut => "cut_points",
+            Self::Strobe => "strobe_samples",
+            Self::ReturnTimes => "return_times",
+            Self::ReturnMap => "first_return_map",
+            Self::Orbit => "orbit_diagram",
+        }
+    }
+}
+
+/// A point set that can be written as CSV.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum PointSet {
+    /// Cut points: `k,t,return_time,<states>`.
+    Cut,
+    /// Strobe samples: `k,t,<states>`.
+    Strobe,
+    /// Trajectory samples (step ends): `t,<states>`.
+    Trajectory,
+    /// The sweep's kept points: `<parameter>,k,<states>`.
+    Sweep,
+}
+
+impl PointSet {
+    /// Default file name.
+    pub fn file_stem(self) -> &'static str {
+        match self {
+            Self::Cut => "cut_points",
+            Self::Strobe => "strobe_samples",
+            Self::Trajectory => "trajectory",
+            Self::Sweep => "sweep",
+        }
+    }
+}
+
+/// What a chosen path is for.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Purpose {
+    /// Open a scenario.
+    Open,
+    /// Save the scenario.
+    Save,
+    /// Export a point set as CSV.
+    Csv(PointSet),
+    /// Export a view as PNG.
+    Png(ViewKind),
+}
+
+/// What was waiting for the answer to "save changes?".
+#[derive(Clone, Debug, PartialEq)]
+pub enum Pending {
+    /// Open a file chosen next.
+    Open,
+    /// Open this file.
+    OpenPath(PathBuf),
+    /// Start a new scenario.
+    New,
+    /// Load a demo.
+    Demo(&'static str),
+    /// Close the window.
+    Quit,
+}
+
+/// Which map the orbit search works on.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum OrbitMap {
+    /// The cut (Poincaré) map.
+    Cut,
+    /// The strobe (time-T) map.
+    Strobe,
+}
+
+impl OrbitMap {
+    /// The map a scenario's orbit search starts on: the strobe for a forced model (one with
+    /// a strobe), as `lamina cycle` does, else the cut.
+    pub fn default_for(scenario: &Scenario) -> Self {
+        if scenario.strobe.is_some() {
+            Self::Strobe
+        } else {
+            Self::Cut
+        }
+    }
+
+    /// "cut" or "strobe".
+    pub fn name(self) -> &'static str {
+        match self {
+            Self::Cut => "cut",
+            Self::Strobe => "strobe",
+        }
+    }
+}
+
+/// What an edit in the model panel touched; the session acts on it.
+#[must_use]
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct PanelChanges {
+    /// Anything that needs a new run (rates, starts, integrator, time, limits, names).
+    pub model: bool,
+    /// A parameter slider moved.
+    pub slider: bool,
+    /// A parameter slider is being dragged right now.
+    pub slider_held: bool,
+    /// The cut changed (surface, offset, direction): re-slice.
+    pub cut: bool,
+    /// The strobe changed: re-sample.
+    pub strobe: bool,
+    /// Only what is shown changed (axes, notes, title).
+    pub view: bool,
+}
+
+impl PanelChanges {
+    /// Whether anything changed.
+    pub fn any(&self) -> bool {
+        self.model || self.slider || self.cut || self.strobe || self.view
+    }
+
+    /// Whether results computed before the change no longer describe the scenario.
+    pub fn outdates_results(&self) -> bool {
+        self.model || self.slider || self.cut || self.strobe
+    }
+}
+
+/// A request from the menus, buttons, keys or views. Drawing only pushes commands; they are
+/// applied after the frame is drawn, in order.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Command {
+    /// Run from the start.
+    Run,
+    /// Stop the run.
+    Stop,
+    /// Run on: integrate another span from where the finished run ended.
+    RunOn,
+    /// New scenario.
+    New,
+    /// Open (asks for a file).
+    Open,
+    /// Open this file.
+    OpenPath(PathBuf),
+    /// Save (asks for a file if there is none).
+    Save,
+    /// Save as.
+    SaveAs,
+    /// Export a point set as CSV.
+    ExportCsv(PointSet),
+    /// Export a view as PNG.
+    ExportPng(ViewKind),
+    /// Load one of the built-in demos.
+    LoadDemo(&'static str),
+    /// Take the recovery copy of unsaved edits from an earlier session.
+    Recover {
+        /// The scenario's text.
+        text: String,
+        /// The file it belonged to.
+        path: Option<PathBuf>,
+    },
+    /// The model panel edited the scenario: here it is as edited.
+    Edit {
+        /// The scenario after the edit.
+        scenario: Box<Scenario>,
+        /// What the edit touched.
+        changes: PanelChanges,
+    },
+    /// A parameter slider is held (true) or was let go (false): the re-run waits for it.
+    HoldSlider(bool),
+    /// Set a parameter and run the model there (a click in the orbit diagram).
+    SetParameterAndRun {
+        /// Parameter index.
+        index: usize,
+        /// New value.
+        value: f64,
+    },
+    /// Move the plane cut to this offset (a drag in the 3D view) and re-slice.
+    MoveCut {
+        /// The plane's new offset.
+        offset: f64,
+    },
+    /// Axes picked in the cut or strobe view.
+    ChooseCloudAxes(ViewKind, [CloudAxis; 2]),
+    /// The map the orbit search works on.
+    ChooseOrbitMap(OrbitMap),
+    /// Look for a periodic orbit on the chosen map.
+    FindOrbit,
+    /// Compute the Lyapunov exponents.
+    ComputeExponents,
+    /// Stop a job.
+    Cancel(JobKind),
+    /// Run the scenario's sweep.
+    StartSweep,
+}
+
+/// The kinds of background work.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum JobKind {
+    /// A run of the model.
+    Run,
+    /// A parameter sweep.
+    Sweep,
+    /// The search for a periodic orbit.
+    OrbitSearch,
+    /// The Lyapunov exponents.
+    Exponents,
+    /// Drawing and writing a PNG.
+    PngExport,
+    /// A desktop file dialog.
+    FileDialog,
+}
+
+impl JobKind {
+    /// Name in messages.
+    pub fn name(self) -> &'static str {
+        match self {
+            Self::Run => "run",
+            Self::Sweep => "sweep",
+            Self::OrbitSearch => "orbit search",
+            Self::Exponents => "exponent computation",
+            Self::PngExport => "PNG export",
+            Self::FileDialog => "file dialog",
+        }
+    }
+
+    /// Short name for the thread.
+    pub fn thread_name(self) -> &'static str {
+        match self {
+            Self::Run => "run",
+            Self::Sweep => "sweep",
+            Self::OrbitSearch => "orbit",
+            Self::Exponents => "exponents",
+            Self::PngExport => "png",
+            Self::FileDialog => "dialog",
+        }
+    }
+}
+
+impl std::fmt::Display for JobKind {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(self.name())
+    }
+}
+
+/// Why an orbit search or exponent computation has no result.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+pub enum AnalysisError {
+    /// The scenario has no cut or no strobe for the chosen map.
+    #[error("the scenario has no {}: switch it on in the model panel", .0.name())]
+    NoMap(OrbitMap),
+    /// The scenario does not compile.
+    #[error("the scenario does not compile: {0}")]
+    Compile(String),
+    /// The core's orbit search failed.
+    #[error(transparent)]
+    Cycle(#[from] lamina_core::cycle::CycleError),
+    /// The core's exponent computation failed.
+    #[error(transparent)]
+    Exponents(#[from] lamina_core::lyapunov::ExponentError),
+    /// The job's thread ended without a result.
+    #[error("the {0} stopped without a result (an internal error; please report it)")]
+    Lost(JobKind),
+    /// The job could not start.
+    #[error("cannot start the {0}: the system refused a thread")]
+    NotStarted(JobKind),
+}
+
+/// Why a PNG export failed.
+#[derive(Debug, thiserror::Error)]
+pub enum PngError {
+    /// The view has nothing to draw.
+    #[error("nothing to draw yet: {0}")]
+    Empty(&'static str),
+    /// Drawing failed.
+    #[error("cannot draw the picture: {0}")]
+    Draw(#[from] lamina_render::RenderError),
+    /// Writing failed.
+    #[error("cannot write the picture: {0}")]
+    Write(#[from] lamina_export::ExportError),
+}
