@@ -300,6 +300,7 @@ fn model_app(
         });
         s.strobe = None;
         s.sweep = None;
+        s.map = None;
         s.view = None;
         s.integrator.rtol = 1e-10;
         s.integrator.atol = 1e-12;

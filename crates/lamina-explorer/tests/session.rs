@@ -51,6 +51,7 @@ fn van_der_pol_app() -> ExplorerApp {
         });
         s.strobe = None;
         s.sweep = None;
+        s.map = None;
         s.view = None;
         s.integrator.rtol = 1e-10;
         s.integrator.atol = 1e-12;
