@@ -7,7 +7,7 @@ use std::ops::ControlFlow;
 use super::chatter::ChatterWatch;
 use super::qr::{longest_column, orthonormalise};
 use super::result::{ExponentSink, Spectrum};
-use super::summary::{Trace, Verdict, classify, kaplan_yorke, settled_spectrum};
+use super::summary::{Trace, Verdict, classify, kaplan_yorke, settled_spectrum, unless_moving};
 use super::tangent::{Tangent, tilted_axes};
 use super::{ExponentError, ExponentSettings};
 use crate::integrate::{Integrator, Interrupt, Method, Rates, Stats, StepControl, TangentLayout};
@@ -147,6 +147,11 @@ struct Work {
     /// Over the span, the held rates of a model with switches and the tangent vectors,
     /// carried through the switches with the saltation matrix.
     switched: Option<SwitchedTangent>,
+    /// Start of the tail of the span, the state's path since then, and the largest state
+    /// magnitude over the span (a moving state is never read as at rest).
+    tail_start: f64,
+    tail_path: f64,
+    size: f64,
 }
 
 impl Work {
@@ -173,6 +178,9 @@ impl Work {
             n_steps: 0,
             n_qr: 0,
             switched: None,
+            tail_start: run.t_record() + (1.0 - settings.tail_fraction) * run.span,
+            tail_path: 0.0,
+            size: 0.0,
         }
     }
 
@@ -285,6 +293,12 @@ impl Work {
             if !orthonormalise(&mut side, n, &mut diagonal) {
                 break StopReason::NotFinite { t: t1 };
             }
+            if t1 > self.tail_start {
+                let step: f64 = x.iter().zip(&self.x).map(|(a, b)| (a - b) * (a - b)).sum();
+                self.tail_path += step.sqrt();
+            }
+            let magnitude = x.iter().map(|v| v * v).sum::<f64>().sqrt();
+            self.size = self.size.max(magnitude);
             self.t = t1;
             self.x.copy_from_slice(x);
             let elapsed = t1 - t_record;
@@ -367,7 +381,11 @@ impl Work {
         // any other that ended early is undecided (its estimates are kept, unread)
         let finished = reason == StopReason::Finished;
         let verdict = match reason {
-            StopReason::Finished => classify(&self.estimates, &spread, n_states, omitted),
+            StopReason::Finished => unless_moving(
+                classify(&self.estimates, &spread, n_states, omitted),
+                self.tail_path,
+                self.size,
+            ),
             StopReason::Escaped { .. } => Verdict::Unbounded,
             _ => Verdict::Undecided,
         };

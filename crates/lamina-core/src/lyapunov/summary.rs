@@ -228,6 +228,23 @@ pub fn classify(
     }
 }
 
+/// `verdict`, unless it is [`Verdict::Equilibrium`] while the state kept moving: over the
+/// tail of the span its path was `tail_path` long, against `size`, the largest state
+/// magnitude over the span. A state that travels more than twice its size in the tail is not
+/// at rest, whatever the exponents say (they missed something, such as a jump the tangent
+/// vectors could not follow), so the verdict is [`Verdict::Undecided`] then: a periodic orbit
+/// never reads as a resting point.
+pub fn unless_moving(verdict: Verdict, tail_path: f64, size: f64) -> Verdict {
+    if verdict == Verdict::Equilibrium && tail_path > MOVING * size.max(f64::MIN_POSITIVE) {
+        Verdict::Undecided
+    } else {
+        verdict
+    }
+}
+
+/// Path length in the tail, in units of the state's size, beyond which a state is moving.
+const MOVING: f64 = 2.0;
+
 /// The exponents with those within their zero band set to exactly zero, and the time
 /// direction's zero added for a forced model: the spectrum the Kaplan–Yorke dimension is
 /// read from (a zero exponent computed as -1e-4 would otherwise drop the dimension of a
@@ -247,4 +264,27 @@ pub fn settled_spectrum(
         settled.push(0.0);
     }
     settled
+}
+
+#[cfg(test)]
+mod moving_tests {
+    use super::*;
+
+    #[test]
+    fn a_moving_state_is_never_at_rest() {
+        // [common practice] a resting point does not travel: a state whose path in the tail
+        // is many times its size is moving, whatever its exponents
+        assert_eq!(
+            unless_moving(Verdict::Equilibrium, 50.0, 1.0),
+            Verdict::Undecided
+        );
+        assert_eq!(
+            unless_moving(Verdict::Equilibrium, 1e-3, 1.0),
+            Verdict::Equilibrium
+        );
+        assert_eq!(
+            unless_moving(Verdict::Periodic, 50.0, 1.0),
+            Verdict::Periodic
+        );
+    }
 }

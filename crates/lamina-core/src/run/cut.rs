@@ -174,11 +174,16 @@ impl Cut {
         state: &mut [f64],
     ) -> Turns {
         let dim = start.len();
-        if let Surface::Plane { normal, offset } = &self.surface
-            && let Some(g) = ProjectedPlane::new(normal, *offset, start, terms)
-        {
-            let (m0, m1) = (g.value_and_slope(0.0).1, g.value_and_slope(1.0).1);
-            return graze::screen(g0, g1, m0, m1, graze::REACH);
+        if let Surface::Plane { normal, .. } = &self.surface {
+            // the interpolant's slopes at the ends need its first three terms after the
+            // start only: c1 + c2 at s = 0 and c1 - c2 - c3 at s = 1 (the nested form)
+            let project = |j: usize| -> f64 {
+                terms.get(j * dim..(j + 1) * dim).map_or(0.0, |term| {
+                    normal.iter().zip(term).map(|(n, c)| n * c).sum()
+                })
+            };
+            let (p1, p2, p3) = (project(0), project(1), project(2));
+            return graze::screen(g0, g1, p1 + p2, p1 - p2 - p3, graze::REACH);
         }
         let mut slopes = [0.0; 2];
         let mut velocity = vec![0.0; dim];

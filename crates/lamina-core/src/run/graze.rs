@@ -63,6 +63,14 @@ pub(crate) fn screen(g0: f64, g1: f64, m0: f64, m1: f64, reach: f64) -> Turns {
     let b = 3.0 * delta - 2.0 * m0 - m1;
     let c = m0 + m1 - 2.0 * delta;
     let (qa, qb, qc) = (3.0 * c, 2.0 * b, m0);
+    // most steps: p' has one sign at both ends and at its vertex, so no root inside
+    // (decided without a square root)
+    if m0 * m1 > 0.0 {
+        let vertex = -qb / (2.0 * qa);
+        if !(vertex > 0.0 && vertex < 1.0) || (qc + vertex * (qb + vertex * qa)) * m0 > 0.0 {
+            return turns;
+        }
+    }
     let mut roots = [f64::NAN; 2];
     if qa.abs() <= 1e-12 * (qb.abs() + qc.abs()) {
         if qb != 0.0 {

@@ -137,6 +137,11 @@ impl OrbitProblem {
                 )
             }
         };
+        // Jumping rates are differenced here, not carried through their switches by the
+        // saltation matrix as the orbit search and the exponents do
+        // (`switching::SwitchedTangent`): the parameter sensitivity `s = dx/dp` would also
+        // jump, by `(f+ - f-) (n^T s + dv/dp) / (n^T f-)` at each switch, which is not
+        // written yet.
         let differences = model.jumps_with_states();
         let rtol = integration.control.rtol;
         let mut problem = Self {
