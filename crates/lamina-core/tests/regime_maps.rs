@@ -1,5 +1,6 @@
 //! Regime maps: the Brusselator's resting and periodic halves, a linear model at rest
-//! everywhere, a spiral that escapes in half the plane, shards and following neighbours.
+//! everywhere, a spiral that escapes in half the plane, a driven oscillator read by its strobe,
+//! shards and following neighbours.
 
 mod common;
 
@@ -12,7 +13,7 @@ use lamina_core::model::Model;
 use lamina_core::regime_map::{
     MapAxisSpec, MapCell, MapProblem, Regime, RegimeMapSpec, run_cells, run_cells_in_order,
 };
-use lamina_core::run::{Cut, Direction, RunSpec, Strobe};
+use lamina_core::run::{Cut, Direction, RunSpec, Strobe, StrobeSpec};
 use lamina_core::sweep::SweepSource;
 
 fn no_strobe(_: &Model) -> Option<Strobe> {
@@ -217,4 +218,38 @@ fn a_raised_interrupt_runs_no_cell() {
     let cells = run_cells(&problem, &[0, 1, 2], &interrupt, &|_| {}).expect("map runs");
     // [common practice] a stopped map keeps no unfinished cell
     assert!(cells.is_empty());
+}
+
+#[test]
+fn a_driven_damped_oscillator_answers_once_per_drive_period() {
+    let m = model(
+        &[("x", 0.0, "v"), ("v", 0.0, "-0.4*v - x + a*cos(w*t)")],
+        &[("a", 1.0), ("w", 1.0)],
+    );
+    let period = StrobeSpec {
+        period: "2*pi/w".into(),
+        first_at: 0.0,
+    };
+    let strobe_for = move |m: &Model| Strobe::compile(&period, m).ok();
+    let spec = RegimeMapSpec {
+        source: SweepSource::Strobe,
+        ..map(axis(0, 0.5, 2.0, 2), axis(1, 0.5, 2.0, 2), 80.0, 60.0)
+    };
+    let run = run_spec();
+    let problem = MapProblem {
+        model: &m,
+        run: &run,
+        cut: None,
+        strobe_for: &strobe_for,
+        map: &spec,
+    };
+    let cells = run_cells(&problem, &[0, 1, 2, 3], &Interrupt::new(), &|_| {}).expect("map runs");
+    for cell in &cells {
+        // [analytic] a stable linear oscillator driven at period T settles on the one
+        // periodic response of period T: a single strobe sample, one return; its transient
+        // decays like e^(-0.2 t), so the exponent is -0.2
+        assert_eq!(cell.regime, Regime::Periodic { returns: 1 }, "{cell:?}");
+        let l = cell.lyapunov.expect("exponent");
+        assert!((l + 0.2).abs() < 0.02, "{cell:?}");
+    }
 }
