@@ -285,7 +285,7 @@ fn an_undamped_oscillator_strobed_off_its_frequency_is_quasi_periodic() {
     );
     let spec = map(
         axis(0, 0.2, 0.5, 2),
-        axis(1, 1.41421356, 2.23606798, 2),
+        axis(1, std::f64::consts::SQRT_2, 5f64.sqrt(), 2),
         0.0,
         400.0,
     );
