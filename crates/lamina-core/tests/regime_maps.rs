@@ -1,5 +1,6 @@
 //! Regime maps: the Brusselator's resting and periodic halves, a linear model at rest
-//! everywhere, a spiral that escapes in half the plane, shards and following neighbours.
+//! everywhere, a spiral that escapes in half the plane, a driven oscillator read by its strobe,
+//! shards and following neighbours.
 
 mod common;
 
@@ -12,7 +13,7 @@ use lamina_core::model::Model;
 use lamina_core::regime_map::{
     MapAxisSpec, MapCell, MapProblem, Regime, RegimeMapSpec, run_cells, run_cells_in_order,
 };
-use lamina_core::run::{Cut, Direction, RunSpec, Strobe};
+use lamina_core::run::{Cut, Direction, RunSpec, Strobe, StrobeSpec};
 use lamina_core::sweep::SweepSource;
 
 fn no_strobe(_: &Model) -> Option<Strobe> {
@@ -217,4 +218,109 @@ fn a_raised_interrupt_runs_no_cell() {
     let cells = run_cells(&problem, &[0, 1, 2], &interrupt, &|_| {}).expect("map runs");
     // [common practice] a stopped map keeps no unfinished cell
     assert!(cells.is_empty());
+}
+
+#[test]
+fn a_driven_damped_oscillator_answers_once_per_drive_period() {
+    let m = model(
+        &[("x", 0.0, "v"), ("v", 0.0, "-0.4*v - x + a*cos(w*t)")],
+        &[("a", 1.0), ("w", 1.0)],
+    );
+    let period = StrobeSpec {
+        period: "2*pi/w".into(),
+        first_at: 0.0,
+    };
+    let strobe_for = move |m: &Model| Strobe::compile(&period, m).ok();
+    let spec = RegimeMapSpec {
+        source: SweepSource::Strobe,
+        ..map(axis(0, 0.5, 2.0, 2), axis(1, 0.5, 2.0, 2), 80.0, 60.0)
+    };
+    let run = run_spec();
+    let problem = MapProblem {
+        model: &m,
+        run: &run,
+        cut: None,
+        strobe_for: &strobe_for,
+        map: &spec,
+    };
+    let cells = run_cells(&problem, &[0, 1, 2, 3], &Interrupt::new(), &|_| {}).expect("map runs");
+    for cell in &cells {
+        // [analytic] a stable linear oscillator driven at period T settles on the one
+        // periodic response of period T: a single strobe sample, one return; its transient
+        // decays like e^(-0.2 t), so the exponent is -0.2
+        assert_eq!(cell.regime, Regime::Periodic { returns: 1 }, "{cell:?}");
+        let l = cell.lyapunov.expect("exponent");
+        assert!((l + 0.2).abs() < 0.02, "{cell:?}");
+    }
+}
+
+/// A model driven by `a*cos(w*t)` whose map is read by strobe samples at the drive period.
+fn driven_cells(m: &Model, spec: RegimeMapSpec) -> Vec<MapCell> {
+    let period = StrobeSpec {
+        period: "2*pi/w".into(),
+        first_at: 0.0,
+    };
+    let strobe_for = move |m: &Model| Strobe::compile(&period, m).ok();
+    let spec = RegimeMapSpec {
+        source: SweepSource::Strobe,
+        ..spec
+    };
+    let run = run_spec();
+    let problem = MapProblem {
+        model: m,
+        run: &run,
+        cut: None,
+        strobe_for: &strobe_for,
+        map: &spec,
+    };
+    let indices: Vec<usize> = (0..spec.n_cells()).collect();
+    run_cells(&problem, &indices, &Interrupt::new(), &|_| {}).expect("map runs")
+}
+
+#[test]
+fn an_undamped_oscillator_strobed_off_its_frequency_is_quasi_periodic() {
+    let m = model(
+        &[("x", 1.0, "v"), ("v", 0.0, "-x + a*cos(w*t)")],
+        &[("a", 0.5), ("w", 1.5)],
+    );
+    let spec = map(
+        axis(0, 0.2, 0.5, 2),
+        axis(1, std::f64::consts::SQRT_2, 5f64.sqrt(), 2),
+        0.0,
+        400.0,
+    );
+    for cell in driven_cells(&m, spec) {
+        // [analytic] the free oscillation of frequency 1 sampled every 2 pi / w turns by
+        // 2 pi / w, an irrational fraction of a turn: the samples fill an ellipse and never
+        // repeat; nothing stretches or shrinks (exponent 0): a torus
+        assert_eq!(cell.regime, Regime::QuasiPeriodic, "{cell:?}");
+    }
+}
+
+#[test]
+fn the_double_well_oscillator_is_chaotic_at_its_classic_drive() {
+    let m = model(
+        &[
+            ("x", 0.5, "v"),
+            ("v", 0.0, "-0.25*v + x - x^3 + a*cos(w*t)"),
+        ],
+        &[("a", 0.3), ("w", 1.0)],
+    );
+    let spec = map(axis(0, 0.1, 0.3, 2), axis(1, 1.0, 1.0, 1), 200.0, 600.0);
+    let cells = driven_cells(&m, spec);
+    // Guckenheimer & Holmes, Nonlinear Oscillations, Dynamical Systems, and Bifurcations of
+    // Vector Fields (1983), sec. 2.2 [from memory]: x'' + 0.25 x' - x + x^3 = 0.3 cos t has a
+    // strange attractor, while a weak drive (0.1) leaves a periodic orbit in one well
+    assert_eq!(
+        cells[0].regime,
+        Regime::Periodic { returns: 1 },
+        "{:?}",
+        cells[0]
+    );
+    assert_eq!(cells[1].regime, Regime::Chaotic, "{:?}", cells[1]);
+    assert!(
+        cells[1].lyapunov.is_some_and(|l| l > 0.05),
+        "{:?}",
+        cells[1]
+    );
 }
