@@ -5,21 +5,16 @@
 //! every file format from `lamina-scenario` and `lamina-export`.
 
 mod analysis;
-mod analysis_jobs;
 mod app;
+mod chrome;
 mod document;
-mod export;
-mod files;
 mod help;
 mod jobs;
 mod layout;
 mod model_panel;
-mod png_export;
 mod results;
-mod run_control;
 mod session;
 mod settings;
-mod sweep_jobs;
 mod sweep_panel;
 mod views;
 mod vocabulary;
