@@ -1,15 +1,14 @@
 //! The analysis panel: the periodic orbit of the current run (recurrence summary, Newton
 //! refinement, multipliers on the unit circle, verdict) and the Lyapunov exponents (spectrum,
 //! convergence of the running estimates, Kaplan–Yorke dimension, verdict). It draws from the
-//! session and pushes commands; the jobs themselves are in [`crate::analysis_jobs`].
+//! session and pushes commands; the jobs themselves are in `session/analysis.rs`.
 
 use egui::{Color32, RichText, Ui};
 use egui_plot::{Line, Plot, PlotPoints, Points};
 use lamina_core::cycle::CycleReport;
 use lamina_core::recurrence::{RecurrenceSettings, find_recurrence};
 
-use crate::analysis_jobs::map_points;
-use crate::session::Session;
+use crate::session::{Session, map_points};
 use crate::vocabulary::{Command, JobKind, OrbitMap};
 use crate::widgets::unit_suffix;
 

@@ -4,7 +4,7 @@
 use egui::{Color32, Rect, RichText, Sense, Ui, vec2};
 use lamina_scenario::Surface;
 
-use crate::app::Chrome;
+use crate::chrome::Chrome;
 use crate::document::DEMOS;
 use crate::results::{AxisLabels, RunState};
 use crate::session::Session;

@@ -5,21 +5,16 @@
 //! every file format from `lamina-scenario` and `lamina-export`.
 
 mod analysis;
-mod analysis_jobs;
 mod app;
+mod chrome;
 mod document;
-mod export;
-mod files;
 mod help;
 mod jobs;
 mod layout;
 mod model_panel;
-mod png_export;
 mod results;
-mod run_control;
 mod session;
 mod settings;
-mod sweep_jobs;
 mod sweep_panel;
 mod views;
 mod vocabulary;
@@ -34,12 +29,29 @@ pub use help::{CAUTION, TAGLINE};
 pub use results::RunState;
 pub use vocabulary::{Command, JobKind, OrbitMap, PointSet, ViewKind};
 
+/// The window icon: an orbit looping twice through a cut, with its four return points
+/// (drawn by `assets/draw_icon.py`).
+const ICON_PNG: &[u8] = include_bytes!("../../../assets/lamina_icon.png");
+
+/// The window icon, decoded.
+fn window_icon() -> Option<egui::IconData> {
+    eframe::icon_data::from_png_bytes(ICON_PNG).ok()
+}
+
+/// Why the window could not open.
+#[derive(Debug, thiserror::Error)]
+#[error("cannot open the window: {0}")]
+pub struct WindowError(String);
+
 /// Opens the explorer window on `file`, or on the built-in demo scenario, and blocks until
 /// the window is closed.
-pub fn run_window(file: Option<PathBuf>) -> Result<(), String> {
+pub fn run_window(file: Option<PathBuf>) -> Result<(), WindowError> {
+    let mut viewport = egui::ViewportBuilder::default().with_title("Lamina");
+    if let Some(icon) = window_icon() {
+        viewport = viewport.with_icon(std::sync::Arc::new(icon));
+    }
     let native = eframe::NativeOptions {
-        viewport: egui::ViewportBuilder::default()
-            .with_title("Lamina")
+        viewport: viewport
             .with_inner_size([1440.0, 900.0])
             .with_min_inner_size([900.0, 560.0])
             .with_drag_and_drop(true),
@@ -62,5 +74,15 @@ pub fn run_window(file: Option<PathBuf>) -> Result<(), String> {
             Ok(Box::new(ExplorerApp::new(file, settings, options)))
         }),
     )
-    .map_err(|e| format!("cannot open the window: {e}"))
+    .map_err(|e| WindowError(e.to_string()))
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn the_window_icon_decodes_to_a_square() {
+        let icon = super::window_icon().expect("assets/lamina_icon.png decodes");
+        assert_eq!(icon.width, icon.height);
+        assert_eq!(icon.rgba.len(), 4 * (icon.width * icon.height) as usize);
+    }
 }

@@ -1,5 +1,5 @@
 //! The sweep in the window: its settings in the model panel, and the orbit-diagram tile
-//! (start, stop, picking a value from it). The job itself is in [`crate::sweep_jobs`].
+//! (start, stop, picking a value from it). The job itself is in `session/sweep.rs`.
 
 use egui::{ComboBox, RichText, Ui};
 use lamina_scenario::{Sweep, SweepSource};

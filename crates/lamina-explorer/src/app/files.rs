@@ -7,7 +7,7 @@ use std::time::{Duration, Instant};
 
 use egui::Context;
 
-use crate::app::ExplorerApp;
+use super::ExplorerApp;
 use crate::document::Document;
 use crate::jobs::{Job, Poll, Waker};
 use crate::vocabulary::{Command, JobKind, Pending, Purpose};

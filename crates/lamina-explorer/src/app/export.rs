@@ -1,12 +1,12 @@
 //! Exports from the window: CSV of cut points, strobe samples and the trajectory (the same
 //! columns as the command line), and PNG of any view at a chosen size (drawn again at that
-//! size, see [`crate::png_export`]).
+//! size, see `png_export.rs`).
 
 use std::path::{Path, PathBuf};
 
 use lamina_export::{AtomicFile, CutCsv, StrobeCsv, TrajectoryCsv};
 
-use crate::app::ExplorerApp;
+use super::ExplorerApp;
 use crate::jobs::{Job, Poll};
 use crate::vocabulary::{JobKind, PointSet, Purpose, ViewKind};
 

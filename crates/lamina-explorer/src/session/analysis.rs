@@ -9,9 +9,9 @@ use lamina_core::cycle::{
 use lamina_core::lyapunov::{ExponentSettings, Spectrum, spectrum};
 use lamina_core::recurrence::{RecurrenceSettings, close_returns, find_recurrence};
 
+use super::Session;
 use crate::jobs::{Job, Poll};
 use crate::results::PointCloud;
-use crate::session::Session;
 use crate::vocabulary::{AnalysisError, JobKind, OrbitMap, unit_suffix};
 
 /// A periodic orbit and its path over one period.

@@ -9,7 +9,7 @@ use lamina_render::{
     Figure, orbit_diagram_png, picture_title, scatter_png, split_where_it_wraps, trajectory_png,
 };
 
-use crate::app::ExplorerApp;
+use super::ExplorerApp;
 use crate::results::PointCloud;
 use crate::views::cloud::ColourBy;
 use crate::views::series::MapCoordinate;

@@ -2,13 +2,17 @@
 //! the views' selections) and one frame: take what the jobs sent, draw from the session while
 //! collecting commands, then apply the commands in order.
 
+mod export;
+mod files;
+mod png_export;
+
 use std::path::PathBuf;
 
 use egui::{Key, KeyboardShortcut, Modifiers, Ui};
 
-use crate::analysis::{SummaryCache, analysis_panel_ui};
+use crate::analysis::analysis_panel_ui;
+use crate::chrome::{Chrome, ViewState};
 use crate::document::Document;
-use crate::files::Files;
 use crate::help;
 use crate::jobs::Job;
 use crate::layout;
@@ -16,8 +20,8 @@ use crate::model_panel::model_panel_ui;
 use crate::results::RunState;
 use crate::session::Session;
 use crate::settings::Settings;
-use crate::views::cloud::CloudView;
 use crate::vocabulary::{Command, PngError};
+use files::Files;
 
 /// How the app talks to the outside world; tests switch the native parts off.
 #[derive(Clone, Debug)]
@@ -38,38 +42,6 @@ impl Default for Options {
             autostart: true,
         }
     }
-}
-
-/// What the views keep between frames for the current document and results: the cloud
-/// views' selections and density images, and the analysis summary. Reset when the document
-/// is replaced (its `generation`) and, for selections, when new results come.
-#[derive(Default)]
-pub struct ViewState {
-    /// The session generation this state was made for.
-    pub generation: u64,
-    /// The results serial the selections were made in.
-    pub results_serial: u64,
-    /// The cut view's state.
-    pub cut_view: CloudView,
-    /// The strobe view's state.
-    pub strobe_view: CloudView,
-    /// The analysis panel's recurrence summary.
-    pub summary: SummaryCache,
-}
-
-/// The window's own state around the session: settings, the views' state and which of the
-/// side windows are open.
-pub struct Chrome {
-    /// Remembered between sessions.
-    pub settings: Settings,
-    /// What the views keep for the current document.
-    pub view: ViewState,
-    /// The About box is open.
-    pub show_about: bool,
-    /// The shortcuts window is open.
-    pub show_shortcuts: bool,
-    /// The analysis panel is open.
-    pub show_analysis: bool,
 }
 
 /// The explorer window's state.
@@ -329,7 +301,7 @@ impl ExplorerApp {
         layout::main_views_ui(ui, &self.session, &mut self.chrome, &mut commands);
         help::about_window(&ctx, &mut self.chrome.show_about);
         help::shortcuts_window(&ctx, &mut self.chrome.show_shortcuts);
-        crate::files::dialogs_ui(self, &ctx, &mut commands);
+        files::dialogs_ui(self, &ctx, &mut commands);
         self.handle_dropped_files(&ctx, &mut commands);
         for command in commands {
             self.apply(command);

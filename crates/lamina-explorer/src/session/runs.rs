@@ -6,9 +6,9 @@ use std::time::{Duration, Instant};
 
 use lamina_core::run::{Cut, Run, StopReason, Strobe};
 
+use super::Session;
 use crate::jobs::{Job, Poll};
 use crate::results::{Results, RunState};
-use crate::session::Session;
 use crate::vocabulary::{JobKind, PanelChanges};
 use crate::worker::{RunFinished, RunProgress, integrate};
 

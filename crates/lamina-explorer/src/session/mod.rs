@@ -14,12 +14,17 @@
 
 use std::time::Instant;
 
-use crate::analysis_jobs::AnalysisState;
+mod analysis;
+mod runs;
+mod sweep;
+
+pub use analysis::{AnalysisState, map_points};
+pub use runs::RunControl;
+pub use sweep::SweepState;
+
 use crate::document::Document;
 use crate::jobs::{Waker, no_waker};
 use crate::results::{AxisLabels, Results};
-use crate::run_control::RunControl;
-use crate::sweep_jobs::SweepState;
 use crate::vocabulary::{CloudAxis, Command, JobKind, OrbitMap, ViewKind};
 
 /// The most lines the message log keeps.

@@ -11,8 +11,8 @@ use lamina_core::sweep::{
     SweepColumn, SweepError, column_recurrence, describe, sweep_follow, sweep_restart,
 };
 
+use super::Session;
 use crate::jobs::{Job, Poll};
-use crate::session::Session;
 use crate::vocabulary::JobKind;
 
 /// The running sweep.
