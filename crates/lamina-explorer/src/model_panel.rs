@@ -9,7 +9,7 @@ use lamina_scenario::{
 
 use crate::document::{Document, rename_everywhere};
 use crate::vocabulary::PanelChanges;
-use crate::widgets::{ERROR_COLOUR, number_field, problems_ui, unit_field, unit_suffix};
+use crate::widgets::{ERROR_COLOUR, number_field_ui, problems_ui, unit_field_ui, unit_suffix};
 
 /// Draws the whole panel for `doc`, a copy of the session's document: the caller hands the
 /// edited scenario to the session as a command when anything changed.
@@ -74,7 +74,7 @@ fn state_names(scenario: &Scenario) -> Vec<String> {
 }
 
 /// A name field that renames everywhere when editing ends, if the new name is free and valid.
-fn name_field(ui: &mut Ui, id: Id, current: &str, scenario: &Scenario) -> Option<String> {
+fn name_field_ui(ui: &mut Ui, id: Id, current: &str, scenario: &Scenario) -> Option<String> {
     let buffer_id = id.with("buffer");
     let mut text: String = ui
         .data_mut(|d| d.get_temp(buffer_id))
@@ -131,18 +131,18 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             for idx in 0..n_states {
                 let name = doc.scenario.states[idx].name.clone();
                 if let Some(new) =
-                    name_field(ui, Id::unique(("state_name", idx)), &name, &doc.scenario)
+                    name_field_ui(ui, Id::unique(("state_name", idx)), &name, &doc.scenario)
                 {
                     rename = Some((name.clone(), new));
                 }
                 let start = &mut doc.scenario.states[idx].start;
-                if number_field(ui, Id::unique(("state_start", idx)), start, 64.0)
+                if number_field_ui(ui, Id::unique(("state_start", idx)), start, 64.0)
                     .on_hover_text(format!("Value of {name} at the start time"))
                     .changed()
                 {
                     changes.model = true;
                 }
-                changes.view |= unit_field(
+                changes.view |= unit_field_ui(
                     ui,
                     &mut doc.scenario.states[idx].unit,
                     &format!("Unit of {name}, shown beside its values and on axes (free text)"),
@@ -229,7 +229,7 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
     for idx in 0..n {
         let name = doc.scenario.parameters[idx].name.clone();
         ui.horizontal(|ui| {
-            if let Some(new) = name_field(
+            if let Some(new) = name_field_ui(
                 ui,
                 Id::unique(("parameter_name", idx)),
                 &name,
@@ -254,7 +254,7 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                 if response.dragged() {
                     changes.slider_held = true;
                 }
-            } else if number_field(ui, Id::unique(("parameter_value", idx)), &mut p.value, 80.0)
+            } else if number_field_ui(ui, Id::unique(("parameter_value", idx)), &mut p.value, 80.0)
                 .labelled_by(label.id)
                 .changed()
             {
@@ -272,15 +272,15 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             ui.add_space(62.0);
             ui.label(RichText::new("range").weak());
             let p = &mut doc.scenario.parameters[idx];
-            let lo = number_field(ui, Id::unique(("parameter_lo", idx)), &mut p.range.0, 56.0)
+            let lo = number_field_ui(ui, Id::unique(("parameter_lo", idx)), &mut p.range.0, 56.0)
                 .on_hover_text("Slider minimum");
             ui.label("…");
-            let hi = number_field(ui, Id::unique(("parameter_hi", idx)), &mut p.range.1, 56.0)
+            let hi = number_field_ui(ui, Id::unique(("parameter_hi", idx)), &mut p.range.1, 56.0)
                 .on_hover_text("Slider maximum");
             if lo.changed() || hi.changed() {
                 changes.view = true;
             }
-            changes.view |= unit_field(
+            changes.view |= unit_field_ui(
                 ui,
                 &mut p.unit,
                 &format!(
@@ -334,10 +334,10 @@ fn integrator_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         }
         ui.end_row();
         ui.label("rtol");
-        changes.model |= number_field(ui, Id::unique("rtol"), &mut s.integrator.rtol, 80.0).on_hover_text("Relative tolerance per step").changed();
+        changes.model |= number_field_ui(ui, Id::unique("rtol"), &mut s.integrator.rtol, 80.0).on_hover_text("Relative tolerance per step").changed();
         ui.end_row();
         ui.label("atol");
-        changes.model |= number_field(ui, Id::unique("atol"), &mut s.integrator.atol, 80.0).on_hover_text("Absolute tolerance per step").changed();
+        changes.model |= number_field_ui(ui, Id::unique("atol"), &mut s.integrator.atol, 80.0).on_hover_text("Absolute tolerance per step").changed();
         ui.end_row();
         ui.label("max step");
         ui.horizontal(|ui| {
@@ -347,23 +347,23 @@ fn integrator_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                 changes.model = true;
             }
             if let Some(max) = &mut s.integrator.max_step {
-                changes.model |= number_field(ui, Id::unique("max_step"), max, 64.0).changed();
+                changes.model |= number_field_ui(ui, Id::unique("max_step"), max, 64.0).changed();
             }
         });
         ui.end_row();
         ui.label("start time");
-        changes.model |= number_field(ui, Id::unique("t_start"), &mut s.time.start, 80.0).on_hover_text("Time at the start state").changed();
+        changes.model |= number_field_ui(ui, Id::unique("t_start"), &mut s.time.start, 80.0).on_hover_text("Time at the start state").changed();
         ui.end_row();
         ui.label("settle");
-        changes.model |= number_field(ui, Id::unique("settle"), &mut s.time.settle, 80.0)
+        changes.model |= number_field_ui(ui, Id::unique("settle"), &mut s.time.settle, 80.0)
             .on_hover_text("Transient integrated but not recorded")
             .changed();
         ui.end_row();
         ui.label("span");
-        changes.model |= number_field(ui, Id::unique("span"), &mut s.time.span, 80.0).on_hover_text("Length of the recorded window after the transient").changed();
+        changes.model |= number_field_ui(ui, Id::unique("span"), &mut s.time.span, 80.0).on_hover_text("Length of the recorded window after the transient").changed();
         ui.end_row();
         ui.label("time unit");
-        changes.view |= unit_field(ui, &mut s.time.unit, "Unit of time, shown beside times, on axes and in captions (free text)");
+        changes.view |= unit_field_ui(ui, &mut s.time.unit, "Unit of time, shown beside times, on axes and in captions (free text)");
         ui.end_row();
     });
     problems_ui(
@@ -452,7 +452,7 @@ fn cut_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                         .find(|(n, _)| n == name)
                         .map_or(0.0, |(_, w)| *w);
                     ui.label(format!("{name} ×"));
-                    if number_field(ui, Id::unique(("normal", name.as_str())), &mut w, 40.0)
+                    if number_field_ui(ui, Id::unique(("normal", name.as_str())), &mut w, 40.0)
                         .on_hover_text(format!("Weight of {name} in the plane"))
                         .changed()
                     {
@@ -567,7 +567,7 @@ fn strobe_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             .on_hover_text("An expression in parameters and constants, e.g. 2*pi/w")
             .changed();
         ui.label("first at");
-        changes.strobe |= number_field(
+        changes.strobe |= number_field_ui(
             ui,
             Id::unique("strobe_first_at"),
             &mut strobe.first_at,

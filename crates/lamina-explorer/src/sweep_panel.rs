@@ -8,7 +8,7 @@ use crate::document::Document;
 use crate::session::Session;
 use crate::views::orbit::orbit_diagram_ui;
 use crate::vocabulary::{Command, JobKind, PanelChanges};
-use crate::widgets::{number_field, problems_ui};
+use crate::widgets::{number_field_ui, problems_ui};
 
 /// The sweep block's fields in the model panel.
 pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
@@ -59,16 +59,16 @@ pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChan
         ui.end_row();
         ui.label("from … to");
         ui.horizontal(|ui| {
-            changed |= number_field(ui, egui::Id::unique("sweep_from"), &mut sweep.from, 64.0).on_hover_text("First value").changed();
+            changed |= number_field_ui(ui, egui::Id::unique("sweep_from"), &mut sweep.from, 64.0).on_hover_text("First value").changed();
             ui.label("…");
-            changed |= number_field(ui, egui::Id::unique("sweep_to"), &mut sweep.to, 64.0).on_hover_text("Last value").changed();
+            changed |= number_field_ui(ui, egui::Id::unique("sweep_to"), &mut sweep.to, 64.0).on_hover_text("Last value").changed();
         });
         ui.end_row();
         ui.label("values");
         changed |= ui.add(egui::DragValue::new(&mut sweep.values).range(2..=100_001)).on_hover_text("Number of parameter values, from and to included").changed();
         ui.end_row();
         ui.label("settle per value");
-        changed |= number_field(ui, egui::Id::unique("sweep_settle"), &mut sweep.settle, 64.0).on_hover_text("Transient at each value, not kept").changed();
+        changed |= number_field_ui(ui, egui::Id::unique("sweep_settle"), &mut sweep.settle, 64.0).on_hover_text("Transient at each value, not kept").changed();
         ui.end_row();
         ui.label("keep");
         changed |= ui.add(egui::DragValue::new(&mut sweep.keep).range(1..=100_000)).on_hover_text("Points kept per value").changed();

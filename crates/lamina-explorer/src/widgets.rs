@@ -14,7 +14,7 @@ pub const WARNING_COLOUR: Color32 = Color32::from_rgb(222, 170, 60);
 /// A text field for a float that keeps what the user types (so `1e-9` stays `1e-9`) and
 /// writes `value` whenever the text parses to a finite number. Marked red while it does not.
 /// Returns the field's response; `changed()` is true only when `value` changed.
-pub fn number_field(ui: &mut Ui, id: egui::Id, value: &mut f64, width: f32) -> Response {
+pub fn number_field_ui(ui: &mut Ui, id: egui::Id, value: &mut f64, width: f32) -> Response {
     let text_id = id.with("text");
     let mut text: String = ui
         .data_mut(|d| d.get_temp::<(f64, String)>(text_id))
@@ -47,7 +47,7 @@ pub fn number_field(ui: &mut Ui, id: egui::Id, value: &mut f64, width: f32) -> R
 
 /// A short text field for an optional unit (free text; empty means none). Returns whether the
 /// unit changed.
-pub fn unit_field(ui: &mut Ui, unit: &mut Option<String>, hint: &str) -> bool {
+pub fn unit_field_ui(ui: &mut Ui, unit: &mut Option<String>, hint: &str) -> bool {
     let mut text = unit.clone().unwrap_or_default();
     let response = ui
         .add(

@@ -28,7 +28,7 @@ fn harness(app: ExplorerApp) -> Harness<'static, ExplorerApp> {
         // an idle window now settles, and kittest then checks every widget for an accessible
         // name; the model panel's name and unit fields have none yet
         .with_accessibility_check(false)
-        .build_ui_state(|ui, app: &mut ExplorerApp| app.show(ui), app)
+        .build_ui_state(|ui, app: &mut ExplorerApp| app.show_ui(ui), app)
 }
 
 /// Steps frames until the run is no longer going (at most a minute).
@@ -391,7 +391,7 @@ fn four_views_too_narrow_for_one_row_go_into_two() {
         // an idle window now settles, and kittest then checks every widget for an accessible
         // name; the model panel's name and unit fields have none yet
         .with_accessibility_check(false)
-        .build_ui_state(|ui, app: &mut ExplorerApp| app.show(ui), app);
+        .build_ui_state(|ui, app: &mut ExplorerApp| app.show_ui(ui), app);
     steps(&mut h, 3);
     let trajectory = title_rect(&h, "Trajectory (3D)");
     let cut = title_rect(&h, "Cut points");

@@ -67,7 +67,7 @@ fn harness(app: ExplorerApp) -> Harness<'static, ExplorerApp> {
         .with_max_steps(20)
         // the model panel's name and unit fields have no accessible names yet
         .with_accessibility_check(false)
-        .build_ui_state(|ui, app: &mut ExplorerApp| app.show(ui), app)
+        .build_ui_state(|ui, app: &mut ExplorerApp| app.show_ui(ui), app)
 }
 
 fn steps(h: &mut Harness<'static, ExplorerApp>, n: usize) {
@@ -226,4 +226,34 @@ fn a_value_picked_in_the_orbit_diagram_clears_the_old_orbit() {
     assert_eq!(h.state().n_runs_started(), runs + 1, "it runs there");
     assert!(h.state().orbit_summary().is_none());
     assert_eq!(h.state().n_orbit_path_points(), 0);
+}
+
+#[test]
+fn taking_out_a_parameter_clears_the_orbit_diagram() {
+    let mut app = app();
+    app.edit_scenario(|s| {
+        if let Some(sweep) = &mut s.sweep {
+            sweep.values = 5;
+            sweep.keep = 4;
+            sweep.settle = 20.0;
+            sweep.follow = false;
+        }
+        s.time.span = 50.0;
+    });
+    let mut h = harness(app);
+    steps(&mut h, 2);
+    h.state_mut().command(Command::StartSweep);
+    wait_until(&mut h, |a| !a.is_sweeping());
+    assert_eq!(h.state().n_sweep_values(), 5, "values = 5 gives 5 values");
+    // the diagram's parameter index would now point at another parameter
+    h.state_mut().edit_scenario(|s| {
+        s.parameters.remove(0);
+    });
+    steps(&mut h, 2);
+    assert_eq!(h.state().n_sweep_values(), 0);
+    assert!(
+        h.state()
+            .messages()
+            .any(|m| m.contains("orbit diagram was cleared"))
+    );
 }

@@ -256,7 +256,7 @@ impl ExplorerApp {
     }
 
     /// One frame of the whole window.
-    pub fn show(&mut self, ui: &mut Ui) {
+    pub fn show_ui(&mut self, ui: &mut Ui) {
         let ctx = ui.ctx().clone();
         let waker_ctx = ctx.clone();
         self.session
@@ -389,7 +389,7 @@ impl ExplorerApp {
 
 impl eframe::App for ExplorerApp {
     fn ui(&mut self, ui: &mut Ui, _frame: &mut eframe::Frame) {
-        self.show(ui);
+        self.show_ui(ui);
     }
 
     fn save(&mut self, storage: &mut dyn eframe::Storage) {

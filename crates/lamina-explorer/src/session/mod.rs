@@ -138,7 +138,13 @@ impl Session {
             Command::RunOn => self.run_on(),
             Command::Edit { scenario, changes } => {
                 let had_strobe = self.doc.scenario.strobe.is_some();
+                let names_before = names_of(&self.doc.scenario);
                 self.doc.scenario = *scenario;
+                if names_of(&self.doc.scenario) != names_before && !self.sweep.is_empty() {
+                    // the orbit diagram's indices would point at other states or parameters
+                    self.sweep = SweepState::default();
+                    self.note("the orbit diagram was cleared: the states or parameters changed");
+                }
                 if self.doc.scenario.strobe.is_some() != had_strobe {
                     // a strobe switched on or off: the orbit search follows, as on opening
                     self.analysis
@@ -279,6 +285,14 @@ impl Session {
         }
         self.run_timers()
     }
+}
+
+/// The state and parameter names, in order: what the indices of a sweep refer to.
+fn names_of(scenario: &lamina_scenario::Scenario) -> (Vec<String>, Vec<String>) {
+    (
+        scenario.states.iter().map(|s| s.name.clone()).collect(),
+        scenario.parameters.iter().map(|p| p.name.clone()).collect(),
+    )
 }
 
 fn state_names(doc: &Document) -> Vec<String> {

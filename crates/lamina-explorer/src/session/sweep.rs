@@ -40,6 +40,11 @@ impl SweepState {
         self.job.is_some()
     }
 
+    /// Whether there is neither a sweep going nor a value of one.
+    pub fn is_empty(&self) -> bool {
+        self.job.is_none() && self.columns.is_empty() && self.axes.is_none()
+    }
+
     /// Asks the sweep to stop; whether one was going.
     pub fn cancel(&self) -> bool {
         self.job.as_ref().inspect(|j| j.cancel()).is_some()
