@@ -376,6 +376,14 @@ impl Integrator {
         Ok(self.stepper.f0())
     }
 
+    /// The rates at the current state when the integrator holds them (after a step: its
+    /// last stage), without evaluating or checking anything; `None` after
+    /// [`Integrator::restart`] (see [`Integrator::rates_here`]).
+    #[inline]
+    pub fn end_rates(&self) -> Option<&[f64]> {
+        self.f0_valid.then(|| self.stepper.f0())
+    }
+
     /// Proposed size of the next step (0 before the first step when it is chosen
     /// automatically).
     pub fn h_next(&self) -> f64 {

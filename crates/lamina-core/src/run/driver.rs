@@ -511,14 +511,17 @@ impl Run {
         let Some(cut) = &mut self.cut else {
             return Ok((f64::NAN, f64::NAN, Turns::default()));
         };
-        let rates = match &mut self.switching {
-            Some(switching) => self.integrator.rates_here(switching)?,
-            None => self.integrator.rates_here(&mut self.model)?,
+        // after a step its last stage holds the rates at its end (first same as last)
+        let rates = match self.integrator.end_rates() {
+            Some(rates) => rates,
+            None => match &mut self.switching {
+                Some(switching) => self.integrator.rates_here(switching)?,
+                None => self.integrator.rates_here(&mut self.model)?,
+            },
         };
-        self.end_rates.copy_from_slice(rates);
         let parameters = self.model.parameters();
         let g1 = cut.value(t1, &self.end_state, parameters);
-        let d1 = cut.slope(t1, &self.end_state, &self.end_rates, parameters);
+        let d1 = cut.slope(t1, &self.end_state, rates, parameters);
         let Some(d0) = self.slope_prev else {
             return Ok((g1, d1, Turns::default()));
         };
@@ -582,12 +585,6 @@ impl Run {
             // the next step starts from this one's end even if the sink stops the run here
             let g0 = std::mem::replace(&mut self.g_prev, g1);
             self.slope_prev = Some(d1);
-            let mut brackets = [Bracket {
-                a: 0.0,
-                b: 1.0,
-                ga: g0,
-                gb: g1,
-            }; 3];
             let Some(cut) = &self.cut else {
                 return None;
             };
@@ -595,6 +592,12 @@ impl Run {
             if n_brackets == 0 && turns.is_empty() {
                 // most steps
             } else {
+                let mut brackets = [Bracket {
+                    a: 0.0,
+                    b: 1.0,
+                    ga: g0,
+                    gb: g1,
+                }; 3];
                 if let Err(err) = dense(&mut self.integrator, &mut self.switching, &mut self.model)
                 {
                     return Some(stop_reason(&self.spec, err));

@@ -263,6 +263,19 @@ pub(crate) fn turns_between(d_before: f64, d_after: f64) -> bool {
     !(d_before > 0.0 && d_after > 0.0 || d_before < 0.0 && d_after < 0.0)
 }
 
+/// How far from zero, in units of the changes of `g` over the two steps around it, a turn
+/// of `g` may lie and still come near zero (the extremum lies within about one change of the
+/// value at the shared end; the factor leaves a wide margin).
+const TURN_REACH: f64 = 8.0;
+
+/// Whether the steps around a shared step end where `g` is `g_end` and changed by
+/// `d_before` and `d_after` must be examined: `g` turns there ([`turns_between`]) and not
+/// so far from zero that no extremum near the turn can reach the screen's [`REACH`].
+#[inline]
+pub(crate) fn turn_near_zero(g_end: f64, d_before: f64, d_after: f64) -> bool {
+    turns_between(d_before, d_after) && g_end.abs() <= TURN_REACH * (d_before.abs() + d_after.abs())
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -8,11 +8,11 @@ use std::ops::ControlFlow;
 
 use super::Direction;
 use super::cut::plane_value;
-use super::graze::turns_between;
+use super::graze::turn_near_zero;
 
 /// Calls `crossing(step index, g0, g1)` for every step whose ends are on the two sides of the
-/// plane in `direction`, and for every step next to a turn of `g`
-/// ([`super::graze::turns_between`]), in order, until it breaks. `starts` are the steps' start states
+/// plane in `direction`, and for every step next to a turn of `g` near zero
+/// ([`super::graze::turn_near_zero`]), in order, until it breaks. `starts` are the steps' start states
 /// (`dim` each, contiguous), `last_end` the end state of the last step; the start of a step is
 /// the end of the step before.
 pub(super) fn scan(
@@ -86,7 +86,7 @@ fn run<'a, X: 'a + ?Sized>(
     for (idx, end) in ends.enumerate() {
         let g1 = g(end);
         let d = g1 - g0;
-        let turn = !d_before.is_nan() && turns_between(d_before, d);
+        let turn = !d_before.is_nan() && turn_near_zero(g0, d_before, d);
         if let Some((p_idx, p_g0, p_g1, wanted)) = pending
             && (wanted || turn)
             && crossing(p_idx, p_g0, p_g1).is_break()

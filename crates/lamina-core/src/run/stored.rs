@@ -199,7 +199,7 @@ impl StoredRun {
                 (g1, g1 - g0)
             });
             let turn = match next {
-                Some((_, d)) => !d_before.is_nan() && graze::turns_between(d_before, d),
+                Some((_, d)) => !d_before.is_nan() && graze::turn_near_zero(g0, d_before, d),
                 None => false,
             };
             if let Some((p_idx, p_g0, p_g1, wanted)) = pending
