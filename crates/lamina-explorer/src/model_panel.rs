@@ -51,7 +51,7 @@ pub fn model_panel_ui(ui: &mut Ui, doc: &mut Document) -> PanelChanges {
                 .show(ui, |ui| {
                     crate::sweep_panel::sweep_section_ui(ui, doc, &mut changes)
                 });
-            egui::CollapsingHeader::new(RichText::new("Regime map").strong())
+            egui::CollapsingHeader::new(RichText::new("Regime map (two parameters)").strong())
                 .default_open(
                     doc.problems_at("map.x").next().is_some()
                         || doc.problems_at("map.y").next().is_some(),

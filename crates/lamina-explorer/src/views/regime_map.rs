@@ -24,7 +24,7 @@ pub fn cell_readout(cell: &MapCell, names: &(String, String)) -> String {
         .filter(|l| l.is_finite())
         .map_or_else(|| "—".to_string(), |l| format!("{l:.4}"));
     let mut text = format!(
-        "{} = {}, {} = {}\n{}\nreturns: {returns}\nlargest exponent: {lyapunov}",
+        "{} = {}, {} = {}: {}, returns: {returns}, largest exponent: {lyapunov}",
         names.0,
         cell.x,
         names.1,
@@ -32,7 +32,7 @@ pub fn cell_readout(cell: &MapCell, names: &(String, String)) -> String {
         lamina_render::regime_legend(&cell.regime),
     );
     if !cell.settled {
-        text.push_str("\n(not settled: the regime it approaches)");
+        text.push_str(" (not settled: the regime it approaches)");
     }
     text
 }
@@ -43,7 +43,8 @@ const MARGIN: [f32; 2] = [56.0, 36.0];
 /// Width of the legend to the right of the grid.
 const LEGEND_WIDTH: f32 = 150.0;
 
-/// Draws the map; returns the cell clicked, if any.
+/// Draws the map with a line below it giving the hovered cell's values; returns the cell
+/// clicked, if any.
 pub fn regime_map_ui<'a>(
     ui: &mut Ui,
     spec: &RegimeMapSpec,
@@ -52,8 +53,10 @@ pub fn regime_map_ui<'a>(
     names: &(String, String),
     current: Option<(f64, f64)>,
 ) -> Option<&'a MapCell> {
-    let size = ui.available_size().max(vec2(120.0, 80.0));
+    // a line below the map for the hovered cell's values
+    let size = (ui.available_size() - vec2(0.0, 22.0)).max(vec2(120.0, 80.0));
     let (rect, response) = ui.allocate_exact_size(size, Sense::click());
+    response.widget_info(|| egui::WidgetInfo::labeled(egui::Role::Image, true, "regime map cells"));
     let painter = ui.painter_at(rect);
     let ink = ui.visuals().text_color();
     let font = FontId::proportional(11.0);
@@ -161,10 +164,18 @@ pub fn regime_map_ui<'a>(
             Stroke::new(2.0, ink),
             egui::StrokeKind::Inside,
         );
-        response
-            .clone()
-            .on_hover_text_at_pointer(cell_readout(cell, names));
     }
+    let readout = match under {
+        Some(cell) => egui::RichText::new(cell_readout(cell, names))
+            .monospace()
+            .small(),
+        None => {
+            egui::RichText::new("hover a cell to see its values; click it to run the model there")
+                .weak()
+                .small()
+        }
+    };
+    ui.add(egui::Label::new(readout).truncate());
     if response.clicked() { under } else { None }
 }
 
