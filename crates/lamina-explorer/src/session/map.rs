@@ -152,13 +152,16 @@ impl Session {
                 self.map.job = None;
                 let mut counts: Vec<(&'static str, usize)> = Vec::new();
                 for cell in &self.map.cells {
+                    // in words: `quasi-periodic`, not the CSV's `quasi_periodic`
                     let word = cell.regime.word();
                     match counts.iter_mut().find(|(w, _)| *w == word) {
                         Some((_, n)) => *n += 1,
                         None => counts.push((word, 1)),
                     }
                 }
-                let counts: Vec<String> = counts.iter().map(|(w, n)| format!("{n} {w}")).collect();
+                let counts: Vec<String> = (counts.iter())
+                    .map(|(w, n)| format!("{n} {}", w.replace('_', "-")))
+                    .collect();
                 self.note(format!(
                     "regime map done: {} of {} cells ({})",
                     self.map.cells.len(),
