@@ -20,6 +20,9 @@ pub struct ViewState {
     pub strobe_view: CloudView,
     /// The analysis panel's recurrence summary.
     pub summary: SummaryCache,
+    /// The view picked for the orbit diagram's tile (orbit diagram or regime map; `None`:
+    /// chosen from the scenario).
+    pub fourth: Option<crate::vocabulary::ViewKind>,
 }
 
 /// The window's own state around the session: settings, the views' state and which of the

@@ -111,6 +111,7 @@ pub fn menu_bar_ui(
                         (PointSet::Strobe, "Strobe samples"),
                         (PointSet::Trajectory, "Trajectory"),
                         (PointSet::Sweep, "Sweep (orbit diagram)"),
+                        (PointSet::Map, "Regime map"),
                     ] {
                         if ui.button(text).clicked() {
                             commands.push(Command::ExportCsv(set));
@@ -139,6 +140,7 @@ pub fn menu_bar_ui(
                         ViewKind::ReturnTimes,
                         ViewKind::ReturnMap,
                         ViewKind::Orbit,
+                        ViewKind::RegimeMap,
                     ] {
                         if ui.button(view.title()).clicked() {
                             commands.push(Command::ExportPng(view));
@@ -406,7 +408,10 @@ pub fn main_views_ui(
         let full = ui.available_rect_before_wrap();
         let shown: Vec<usize> = match chrome.settings.maximised {
             Some(m) if m < 4 => vec![m],
-            _ if session.doc.scenario.sweep.is_some() || !session.sweep.columns.is_empty() => {
+            _ if session.doc.scenario.sweep.is_some()
+                || !session.sweep.columns.is_empty()
+                || crate::map_panel::map_is_default(session) =>
+            {
                 vec![0, 1, 2, 3]
             }
             _ => vec![0, 1, 2],
@@ -431,7 +436,12 @@ pub fn main_views_ui(
             // the views' zoom lives in egui's memory under their ids: a new document gets
             // new ids, so it starts fitted to its own data
             tile.push_id(("document", session.generation), |tile| {
-                tile_ui(tile, session, chrome, MAIN_VIEWS[i], i, commands);
+                let kind = if MAIN_VIEWS[i] == ViewKind::Orbit {
+                    crate::map_panel::fourth_view(session, chrome.view.fourth)
+                } else {
+                    MAIN_VIEWS[i]
+                };
+                tile_ui(tile, session, chrome, kind, i, commands);
             });
         }
     });
@@ -520,6 +530,20 @@ fn tile_ui(
                 .clicked()
             {
                 commands.push(Command::ExportPng(kind));
+            }
+            if matches!(kind, ViewKind::Orbit | ViewKind::RegimeMap) {
+                let other = if kind == ViewKind::Orbit {
+                    ViewKind::RegimeMap
+                } else {
+                    ViewKind::Orbit
+                };
+                if ui
+                    .small_button(other.title())
+                    .on_hover_text(format!("Show the {} in this tile", other.title()))
+                    .clicked()
+                {
+                    chrome.view.fourth = Some(other);
+                }
             }
             let colour = match kind {
                 ViewKind::Cut => Some(&mut chrome.settings.cut_colour),
@@ -654,6 +678,7 @@ fn tile_ui(
             });
         }
         ViewKind::Orbit => crate::sweep_panel::orbit_tile_ui(ui, session, commands),
+        ViewKind::RegimeMap => crate::map_panel::map_tile_ui(ui, session, commands),
         ViewKind::ReturnTimes | ViewKind::ReturnMap => {}
     }
 }

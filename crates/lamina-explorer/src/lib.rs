@@ -11,6 +11,7 @@ mod document;
 mod help;
 mod jobs;
 mod layout;
+mod map_panel;
 mod model_panel;
 mod results;
 mod session;

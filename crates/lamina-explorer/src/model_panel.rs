@@ -51,6 +51,14 @@ pub fn model_panel_ui(ui: &mut Ui, doc: &mut Document) -> PanelChanges {
                 .show(ui, |ui| {
                     crate::sweep_panel::sweep_section_ui(ui, doc, &mut changes)
                 });
+            egui::CollapsingHeader::new(RichText::new("Regime map (two parameters)").strong())
+                .default_open(
+                    doc.problems_at("map.x").next().is_some()
+                        || doc.problems_at("map.y").next().is_some(),
+                )
+                .show(ui, |ui| {
+                    crate::map_panel::map_section_ui(ui, doc, &mut changes)
+                });
             egui::CollapsingHeader::new(RichText::new("Notes").strong())
                 .default_open(false)
                 .show(ui, |ui| {

@@ -40,6 +40,8 @@ pub enum ViewKind {
     ReturnMap,
     /// The orbit diagram of the sweep.
     Orbit,
+    /// The regime map over two parameters.
+    RegimeMap,
 }
 
 impl ViewKind {
@@ -53,6 +55,7 @@ impl ViewKind {
             Self::ReturnTimes => view_names::RETURN_TIMES,
             Self::ReturnMap => view_names::RETURN_MAP,
             Self::Orbit => view_names::ORBIT,
+            Self::RegimeMap => view_names::REGIME_MAP,
         }
     }
 
@@ -65,6 +68,7 @@ impl ViewKind {
             Self::ReturnTimes => "return_times",
             Self::ReturnMap => "first_return_map",
             Self::Orbit => "orbit_diagram",
+            Self::RegimeMap => "regime_map",
         }
     }
 }
@@ -80,6 +84,8 @@ pub enum PointSet {
     Trajectory,
     /// The sweep's kept points: `<parameter>,k,<states>`.
     Sweep,
+    /// The regime map's cells: `<x parameter>,<y parameter>,regime,returns,lyapunov`.
+    Map,
 }
 
 impl PointSet {
@@ -90,6 +96,7 @@ impl PointSet {
             Self::Strobe => "strobe_samples",
             Self::Trajectory => "trajectory",
             Self::Sweep => "sweep",
+            Self::Map => "regime_map",
         }
     }
 }
@@ -247,6 +254,13 @@ pub enum Command {
     Cancel(JobKind),
     /// Run the scenario's sweep.
     StartSweep,
+    /// Run the scenario's regime map.
+    StartMap,
+    /// Set several parameters and run the model there (a click in the regime map).
+    SetParametersAndRun {
+        /// Parameter indices with their new values.
+        values: Vec<(usize, f64)>,
+    },
 }
 
 /// The kinds of background work.
@@ -256,6 +270,8 @@ pub enum JobKind {
     Run,
     /// A parameter sweep.
     Sweep,
+    /// The cells of a regime map.
+    RegimeMap,
     /// The search for a periodic orbit.
     OrbitSearch,
     /// The Lyapunov exponents.
@@ -272,6 +288,7 @@ impl JobKind {
         match self {
             Self::Run => "run",
             Self::Sweep => "sweep",
+            Self::RegimeMap => "regime map",
             Self::OrbitSearch => "orbit search",
             Self::Exponents => "exponent computation",
             Self::PngExport => "PNG export",
@@ -284,6 +301,7 @@ impl JobKind {
         match self {
             Self::Run => "run",
             Self::Sweep => "sweep",
+            Self::RegimeMap => "map",
             Self::OrbitSearch => "orbit",
             Self::Exponents => "exponents",
             Self::PngExport => "png",

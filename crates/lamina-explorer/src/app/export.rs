@@ -66,6 +66,22 @@ impl ExplorerApp {
                         .map(|(c, _)| c.points.len())
                         .sum()
                 }
+                PointSet::Map => {
+                    let map = &self.session.map;
+                    let mut csv =
+                        lamina_export::MapCsv::new(&mut file, &map.names.0, &map.names.1)?;
+                    for cell in &map.cells {
+                        csv.write_cell(
+                            cell.x,
+                            cell.y,
+                            cell.regime.word(),
+                            cell.regime.returns(),
+                            cell.lyapunov,
+                        )?;
+                    }
+                    csv.finish()?;
+                    map.cells.len()
+                }
                 PointSet::Trajectory => {
                     let mut csv = TrajectoryCsv::new(&mut file, &names)?;
                     let traj = &self.session.results.trajectory;

@@ -4,6 +4,7 @@
 
 mod export;
 mod files;
+mod map_access;
 mod png_export;
 
 use std::path::PathBuf;

@@ -6,7 +6,8 @@
 use std::path::PathBuf;
 
 use lamina_render::{
-    Figure, orbit_diagram_png, picture_title, scatter_png, split_where_it_wraps, trajectory_png,
+    Figure, GridAxis, MapTile, orbit_diagram_png, picture_title, regime_map_png, scatter_png,
+    split_where_it_wraps, trajectory_png,
 };
 
 use super::ExplorerApp;
@@ -33,6 +34,12 @@ enum Drawing {
         columns: Vec<(f64, Vec<f64>)>,
         kinds: Vec<lamina_core::recurrence::RecurrenceKind>,
     },
+    /// The cells of a regime map on their grid.
+    Map {
+        x_axis: GridAxis,
+        y_axis: GridAxis,
+        tiles: Vec<MapTile>,
+    },
 }
 
 /// A picture to draw and where to write it.
@@ -53,6 +60,11 @@ impl PngJob {
             Drawing::Orbit { columns, kinds } => {
                 orbit_diagram_png(&self.figure, columns, Some(kinds))
             }
+            Drawing::Map {
+                x_axis,
+                y_axis,
+                tiles,
+            } => regime_map_png(&self.figure, *x_axis, *y_axis, tiles),
         }?;
         lamina_export::write_bytes_atomically(&self.path, &bytes)?;
         let (w, h) = self.figure.size;
@@ -210,6 +222,37 @@ impl ExplorerApp {
                         labels.state(coordinate),
                     ),
                     Drawing::Orbit { columns, kinds },
+                )
+            }
+            ViewKind::RegimeMap => {
+                let (Some(spec), false) = (&session.map.spec, session.map.cells.is_empty()) else {
+                    return Err(PngError::Empty("run the regime map first"));
+                };
+                let axis = |a: &lamina_core::regime_map::MapAxisSpec| GridAxis {
+                    from: a.from,
+                    to: a.to,
+                    values: a.values,
+                };
+                let tiles = (session.map.cells.iter())
+                    .map(|c| MapTile {
+                        x: c.x,
+                        y: c.y,
+                        regime: c.regime,
+                    })
+                    .collect();
+                let mut figure = figure(
+                    title(view),
+                    session.map.labels.0.clone(),
+                    session.map.labels.1.clone(),
+                );
+                figure.caption = crate::map_panel::map_caption(scenario, spec);
+                (
+                    figure,
+                    Drawing::Map {
+                        x_axis: axis(&spec.x),
+                        y_axis: axis(&spec.y),
+                        tiles,
+                    },
                 )
             }
         };

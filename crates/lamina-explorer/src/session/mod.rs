@@ -1,11 +1,11 @@
 //! The session: the document and everything that belongs to it — the run's results, the
-//! background jobs, the sweep, the analysis, the view axes picked for this document and the
+//! background jobs, the sweep, the regime map, the analysis, the view axes picked for this document and the
 //! message log. Every change goes through [`Session::apply`] or
 //! [`Session::replace_document`]; the UI reads a `&Session` and pushes [`Command`]s.
 //!
 //! Invariants kept here:
-//! - Replacing the document stops every job and clears results, analysis, sweep, orbit
-//!   marks and view axes; `generation` counts replacements so views reset what they keep.
+//! - Replacing the document stops every job and clears results, analysis, sweep, regime
+//!   map, orbit marks and view axes; `generation` counts replacements so views reset what they keep.
 //! - `revision` counts the changes that outdate results (model, parameters, cut, strobe,
 //!   replacement). A job remembers the revision it was started for; an orbit or a spectrum
 //!   that arrives for another revision is dropped, and one shown is cleared when the
@@ -15,10 +15,12 @@
 use std::time::Instant;
 
 mod analysis;
+mod map;
 mod runs;
 mod sweep;
 
 pub use analysis::{AnalysisState, map_points};
+pub use map::MapState;
 pub use runs::RunControl;
 pub use sweep::SweepState;
 
@@ -49,6 +51,8 @@ pub struct Session {
     pub runs: RunControl,
     /// The sweep job and the orbit diagram's values.
     pub sweep: SweepState,
+    /// The regime map job and its cells.
+    pub map: MapState,
     /// The orbit search and exponent jobs and their results.
     pub analysis: AnalysisState,
     /// Axes picked in the cloud views.
@@ -76,6 +80,7 @@ impl Session {
             results,
             runs: RunControl::default(),
             sweep: SweepState::default(),
+            map: MapState::default(),
             analysis: AnalysisState::new(map),
             axes: PickedAxes::default(),
             log: Vec::new(),
@@ -105,6 +110,7 @@ impl Session {
     pub fn replace_document(&mut self, doc: Document, message: impl Into<String>) {
         self.runs = RunControl::default();
         self.sweep = SweepState::default();
+        self.map = MapState::default();
         self.analysis = AnalysisState::new(OrbitMap::default_for(&doc.scenario));
         self.axes = PickedAxes::default();
         self.results = Results::new(state_names(&doc));
@@ -183,6 +189,8 @@ impl Session {
             Command::FindOrbit => self.start_orbit_search(),
             Command::ComputeExponents => self.start_exponents(),
             Command::StartSweep => self.start_sweep(),
+            Command::StartMap => self.start_map(),
+            Command::SetParametersAndRun { values } => self.set_parameters_and_run(&values),
             Command::Cancel(kind) => self.cancel(kind),
             // files, exports and dialogs belong to the window
             Command::New
@@ -210,6 +218,11 @@ impl Session {
             JobKind::Sweep => {
                 if self.sweep.cancel() {
                     self.note("stopping the sweep");
+                }
+            }
+            JobKind::RegimeMap => {
+                if self.map.cancel() {
+                    self.note("stopping the regime map");
                 }
             }
             JobKind::OrbitSearch | JobKind::Exponents => {
@@ -279,6 +292,7 @@ impl Session {
     pub fn tick(&mut self) -> Option<std::time::Duration> {
         self.drain_run();
         self.drain_sweep();
+        self.drain_map();
         self.drain_analysis();
         if std::mem::take(&mut self.pending_run) {
             self.start_run();

@@ -3,5 +3,6 @@
 pub mod cloud;
 pub mod orbit;
 pub mod palette;
+pub mod regime_map;
 pub mod series;
 pub mod space;
