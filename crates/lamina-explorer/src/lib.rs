@@ -12,6 +12,7 @@ mod help;
 mod jobs;
 mod layout;
 mod model_panel;
+mod rest_panel;
 mod results;
 mod session;
 mod settings;
@@ -27,7 +28,7 @@ pub use app::{ExplorerApp, Options};
 pub use document::DEMO_SCENARIO;
 pub use help::{CAUTION, TAGLINE};
 pub use results::RunState;
-pub use vocabulary::{Command, JobKind, OrbitMap, PointSet, ViewKind};
+pub use vocabulary::{Command, JobKind, OrbitMap, PointSet, RecheckTarget, ViewKind};
 
 /// The window icon: an orbit looping twice through a cut, with its four return points
 /// (drawn by `assets/draw_icon.py`).

@@ -151,6 +151,28 @@ impl OrbitMap {
     }
 }
 
+/// Which result a recheck computes again.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum RecheckTarget {
+    /// The periodic orbit found last.
+    Orbit,
+    /// The Lyapunov exponents computed last.
+    Exponents,
+    /// The points of the run on the orbit search's map (cut points or strobe samples).
+    Points,
+}
+
+impl RecheckTarget {
+    /// Name in messages: "orbit".
+    pub fn name(self) -> &'static str {
+        match self {
+            Self::Orbit => "orbit",
+            Self::Exponents => "exponents",
+            Self::Points => "run's points",
+        }
+    }
+}
+
 /// What an edit in the model panel touched; the session acts on it.
 #[must_use]
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
@@ -243,6 +265,10 @@ pub enum Command {
     FindOrbit,
     /// Compute the Lyapunov exponents.
     ComputeExponents,
+    /// Look for the resting points of the model.
+    FindRestingPoints,
+    /// Compute a result again with tolerances divided by 100 and count the digits that agree.
+    Recheck(RecheckTarget),
     /// Stop a job.
     Cancel(JobKind),
     /// Run the scenario's sweep.
@@ -260,6 +286,10 @@ pub enum JobKind {
     OrbitSearch,
     /// The Lyapunov exponents.
     Exponents,
+    /// The search for resting points.
+    RestSearch,
+    /// A second computation at tighter tolerances.
+    Recheck,
     /// Drawing and writing a PNG.
     PngExport,
     /// A desktop file dialog.
@@ -274,6 +304,8 @@ impl JobKind {
             Self::Sweep => "sweep",
             Self::OrbitSearch => "orbit search",
             Self::Exponents => "exponent computation",
+            Self::RestSearch => "resting-point search",
+            Self::Recheck => "recheck",
             Self::PngExport => "PNG export",
             Self::FileDialog => "file dialog",
         }
@@ -286,6 +318,8 @@ impl JobKind {
             Self::Sweep => "sweep",
             Self::OrbitSearch => "orbit",
             Self::Exponents => "exponents",
+            Self::RestSearch => "rest",
+            Self::Recheck => "recheck",
             Self::PngExport => "png",
             Self::FileDialog => "dialog",
         }
@@ -313,6 +347,15 @@ pub enum AnalysisError {
     /// The core's exponent computation failed.
     #[error(transparent)]
     Exponents(#[from] lamina_core::lyapunov::ExponentError),
+    /// The core's resting-point search failed.
+    #[error(transparent)]
+    Rest(#[from] lamina_core::rest::RestError),
+    /// The second computation of a recheck failed.
+    #[error(transparent)]
+    Recheck(#[from] lamina_core::recheck::RecheckError),
+    /// There is nothing to recheck yet.
+    #[error("nothing to recheck: {0}")]
+    NothingToRecheck(&'static str),
     /// The job's thread ended without a result.
     #[error("the {0} stopped without a result (an internal error; please report it)")]
     Lost(JobKind),

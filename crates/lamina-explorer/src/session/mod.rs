@@ -15,10 +15,14 @@
 use std::time::Instant;
 
 mod analysis;
+mod recheck;
+mod rest;
 mod runs;
 mod sweep;
 
 pub use analysis::{AnalysisState, map_points};
+pub use recheck::recheck_words;
+pub use rest::stability_words;
 pub use runs::RunControl;
 pub use sweep::SweepState;
 
@@ -176,6 +180,8 @@ impl Session {
             Command::ChooseOrbitMap(map) => self.analysis.choose_map(map),
             Command::FindOrbit => self.start_orbit_search(),
             Command::ComputeExponents => self.start_exponents(),
+            Command::FindRestingPoints => self.start_rest_search(),
+            Command::Recheck(target) => self.start_recheck(target),
             Command::StartSweep => self.start_sweep(),
             Command::Cancel(kind) => self.cancel(kind),
             // files, exports and dialogs belong to the window
@@ -206,7 +212,7 @@ impl Session {
                     self.note("stopping the sweep");
                 }
             }
-            JobKind::OrbitSearch | JobKind::Exponents => {
+            JobKind::OrbitSearch | JobKind::Exponents | JobKind::RestSearch | JobKind::Recheck => {
                 if self.analysis.cancel(kind) {
                     self.note(format!("stopping the {kind}"));
                 }
