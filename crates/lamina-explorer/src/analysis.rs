@@ -65,6 +65,11 @@ pub fn analysis_panel_ui(
             egui::CollapsingHeader::new(RichText::new("Resting points").strong())
                 .default_open(true)
                 .show(ui, |ui| resting_points_section_ui(ui, session, commands));
+            egui::CollapsingHeader::new(RichText::new("Follow branch").strong())
+                .default_open(true)
+                .show(ui, |ui| {
+                    crate::branch_panel::branch_section_ui(ui, session, commands)
+                });
         });
 }
 

@@ -6,6 +6,7 @@
 
 mod analysis;
 mod app;
+mod branch_panel;
 mod chrome;
 mod document;
 mod help;

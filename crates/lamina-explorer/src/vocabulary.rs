@@ -267,6 +267,9 @@ pub enum Command {
     ComputeExponents,
     /// Look for the resting points of the model.
     FindRestingPoints,
+    /// Follow the branch of the current resting point or of the orbit found last over the
+    /// sweep's range.
+    FollowBranch(lamina_core::branch::BranchOf),
     /// Compute a result again with tolerances divided by 100 and count the digits that agree.
     Recheck(RecheckTarget),
     /// Stop a job.
@@ -290,6 +293,8 @@ pub enum JobKind {
     RestSearch,
     /// A second computation at tighter tolerances.
     Recheck,
+    /// Following a branch.
+    Branch,
     /// Drawing and writing a PNG.
     PngExport,
     /// A desktop file dialog.
@@ -306,6 +311,7 @@ impl JobKind {
             Self::Exponents => "exponent computation",
             Self::RestSearch => "resting-point search",
             Self::Recheck => "recheck",
+            Self::Branch => "branch",
             Self::PngExport => "PNG export",
             Self::FileDialog => "file dialog",
         }
@@ -320,6 +326,7 @@ impl JobKind {
             Self::Exponents => "exponents",
             Self::RestSearch => "rest",
             Self::Recheck => "recheck",
+            Self::Branch => "branch",
             Self::PngExport => "png",
             Self::FileDialog => "dialog",
         }
@@ -353,6 +360,12 @@ pub enum AnalysisError {
     /// The second computation of a recheck failed.
     #[error(transparent)]
     Recheck(#[from] lamina_core::recheck::RecheckError),
+    /// The core's continuation failed.
+    #[error(transparent)]
+    Branch(#[from] lamina_core::branch::BranchError),
+    /// A branch cannot be started yet.
+    #[error("no branch to follow: {0}")]
+    NoBranch(&'static str),
     /// There is nothing to recheck yet.
     #[error("nothing to recheck: {0}")]
     NothingToRecheck(&'static str),

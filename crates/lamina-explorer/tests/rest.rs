@@ -206,6 +206,73 @@ fn a_damped_linear_models_one_resting_point_is_a_stable_focus() {
 }
 
 #[test]
+fn the_branch_of_a_resting_point_of_x_m_minus_x_squared_turns_at_a_fold() {
+    let mut h = harness(app());
+    h.state_mut().edit_scenario(|s| {
+        s.states = vec![state("x", 1.0, "m - x^2")];
+        s.parameters = vec![parameter("m", 0.5, (-0.5, 1.0))];
+        // a cut the model never crosses: the sweep block needs a source
+        s.cut = Some(lamina_scenario::Cut {
+            surface: lamina_scenario::Surface::Plane {
+                normal: lamina_scenario::Weights(vec![("x".into(), 1.0)]),
+                offset: 5.0,
+            },
+            direction: lamina_scenario::Direction::Rising,
+            axes: ("x".into(), "x".into()),
+        });
+        s.strobe = None;
+        s.map = None;
+        s.view = None;
+        s.sweep = Some(lamina_scenario::Sweep {
+            parameter: "m".into(),
+            from: -0.5,
+            to: 1.0,
+            values: 50,
+            settle: 10.0,
+            keep: 10,
+            follow: false,
+            source: lamina_scenario::SweepSource::Cut,
+            coordinate: "x".into(),
+        });
+        s.time.settle = 0.0;
+        s.time.span = 10.0;
+    });
+    assert!(
+        h.state().document().first_error().is_none(),
+        "{:?}",
+        h.state().document().first_error()
+    );
+    open_analysis(&mut h);
+    find_resting_points(&mut h);
+    h.get_by_label("Follow resting point").click();
+    steps(&mut h, 2);
+    wait_until(&mut h, |a| !a.is_analysing());
+    let (n, special) = h.state().branch_summary();
+    assert!(n > 10, "{n} points");
+    // [analytic] (REFERENCES case 21): x' = m - x^2 has a fold at m = 0 (x = 0)
+    let folds: Vec<_> = special.iter().filter(|(k, _)| k == "fold").collect();
+    assert_eq!(folds.len(), 1, "{special:?}");
+    assert!(folds[0].1.abs() < 1e-7, "{special:?}");
+    let link = h.get_by_label_contains("fold at m = ");
+    link.click();
+    steps(&mut h, 2);
+    // a click on the special point sets the parameter there and runs
+    assert!(h.state().scenario().parameters[0].value.abs() < 1e-7);
+    wait_until(&mut h, |a| !a.is_running());
+
+    // a new document leaves no branch behind
+    h.state_mut()
+        .command(Command::LoadDemo("Tunnel diode oscillator"));
+    steps(&mut h, 4);
+    if h.query_by_label("Discard changes").is_some() {
+        h.get_by_label("Discard changes").click();
+        steps(&mut h, 3);
+    }
+    assert_eq!(h.state().branch_summary(), (0, Vec::new()));
+    assert!(h.query_by_label_contains("fold at m = ").is_none());
+}
+
+#[test]
 fn a_forced_model_is_told_it_has_no_resting_points() {
     // the built-in demo is a driven resonator (its rates use t)
     let mut h = harness(app());

@@ -223,6 +223,19 @@ impl ExplorerApp {
             || a.exponents_running()
             || a.rest.running()
             || a.recheck.running().is_some()
+            || a.branch.running()
+    }
+
+    /// The followed branch: its number of points so far and its special points (kind in
+    /// words, parameter value).
+    pub fn branch_summary(&self) -> (usize, Vec<(String, f64)>) {
+        let b = &self.session.analysis.branch;
+        let special = b
+            .special
+            .iter()
+            .map(|s| (s.kind.words().to_string(), s.value))
+            .collect();
+        (b.points.len(), special)
     }
 
     /// The resting points found last: state, stable, stability in words; `None` before a

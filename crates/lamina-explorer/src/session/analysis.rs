@@ -10,6 +10,7 @@ use lamina_core::lyapunov::{ExponentSettings, Spectrum, spectrum};
 use lamina_core::recurrence::{RecurrenceSettings, close_returns, find_recurrence};
 
 use super::Session;
+use super::branch::BranchState;
 use super::recheck::RecheckState;
 use super::rest::RestState;
 use crate::jobs::{Job, Poll};
@@ -40,6 +41,8 @@ pub struct AnalysisState {
     pub rest: RestState,
     /// The rechecks and their results.
     pub recheck: RecheckState,
+    /// The branch being followed or followed last.
+    pub branch: BranchState,
 }
 
 impl AnalysisState {
@@ -55,6 +58,7 @@ impl AnalysisState {
             orbit_map_used: None,
             rest: RestState::default(),
             recheck: RecheckState::default(),
+            branch: BranchState::default(),
         }
     }
 
@@ -99,6 +103,7 @@ impl AnalysisState {
                 .is_some(),
             JobKind::RestSearch => self.rest.cancel(),
             JobKind::Recheck => self.recheck.cancel(),
+            JobKind::Branch => self.branch.cancel(),
             _ => false,
         }
     }
@@ -150,6 +155,7 @@ impl Session {
     pub(crate) fn drain_analysis(&mut self) {
         self.drain_rest();
         self.drain_recheck();
+        self.drain_branch();
         match arrival(self.analysis.orbit_job.as_ref(), self.revision) {
             Arrival::Nothing => {}
             Arrival::Stale => {

@@ -15,6 +15,7 @@
 use std::time::Instant;
 
 mod analysis;
+mod branch;
 mod recheck;
 mod rest;
 mod runs;
@@ -105,7 +106,8 @@ impl Session {
     }
 
     /// Puts `doc` in place of the current document: stops every job, clears results,
-    /// analysis, sweep, orbit marks and picked axes, and queues a run if so set.
+    /// analysis (resting points, rechecks and branch with it), sweep, orbit marks and picked
+    /// axes, and queues a run if so set.
     pub fn replace_document(&mut self, doc: Document, message: impl Into<String>) {
         self.runs = RunControl::default();
         self.sweep = SweepState::default();
@@ -182,6 +184,7 @@ impl Session {
             Command::ComputeExponents => self.start_exponents(),
             Command::FindRestingPoints => self.start_rest_search(),
             Command::Recheck(target) => self.start_recheck(target),
+            Command::FollowBranch(of) => self.start_branch(of),
             Command::StartSweep => self.start_sweep(),
             Command::Cancel(kind) => self.cancel(kind),
             // files, exports and dialogs belong to the window
@@ -212,7 +215,11 @@ impl Session {
                     self.note("stopping the sweep");
                 }
             }
-            JobKind::OrbitSearch | JobKind::Exponents | JobKind::RestSearch | JobKind::Recheck => {
+            JobKind::OrbitSearch
+            | JobKind::Exponents
+            | JobKind::RestSearch
+            | JobKind::Recheck
+            | JobKind::Branch => {
                 if self.analysis.cancel(kind) {
                     self.note(format!("stopping the {kind}"));
                 }
