@@ -1,15 +1,17 @@
 //! The analysis panel: the periodic orbit of the current run (recurrence summary, Newton
 //! refinement, multipliers on the unit circle, verdict) and the Lyapunov exponents (spectrum,
 //! convergence of the running estimates, Kaplan–Yorke dimension, verdict). It draws from the
-//! session and pushes commands; the jobs themselves are in `session/analysis.rs`.
+//! session and pushes commands; the jobs themselves are in `session/analysis.rs`. Resting
+//! points and the Recheck rows are drawn by `rest_panel.rs`.
 
 use egui::{Color32, RichText, Ui};
 use egui_plot::{Line, Plot, PlotPoints, Points};
 use lamina_core::cycle::CycleReport;
 use lamina_core::recurrence::{RecurrenceSettings, find_recurrence};
 
+use crate::rest_panel::{recheck_row_ui, resting_points_section_ui};
 use crate::session::{Session, map_points};
-use crate::vocabulary::{Command, JobKind, OrbitMap};
+use crate::vocabulary::{Command, JobKind, OrbitMap, RecheckTarget};
 use crate::widgets::unit_suffix;
 
 /// The recurrence summary of the shown cloud, kept with the (map, revision, length) it was
@@ -60,6 +62,14 @@ pub fn analysis_panel_ui(
             egui::CollapsingHeader::new(RichText::new("Lyapunov exponents").strong())
                 .default_open(true)
                 .show(ui, |ui| exponents_section_ui(ui, session, commands));
+            egui::CollapsingHeader::new(RichText::new("Resting points").strong())
+                .default_open(true)
+                .show(ui, |ui| resting_points_section_ui(ui, session, commands));
+            egui::CollapsingHeader::new(RichText::new("Follow branch").strong())
+                .default_open(true)
+                .show(ui, |ui| {
+                    crate::branch_panel::branch_section_ui(ui, session, commands)
+                });
         });
 }
 
@@ -100,6 +110,8 @@ fn cycle_section_ui(
     if let Some((_, text)) = &summary.0 {
         ui.label(RichText::new(text).small());
     }
+    let points_ready = cloud.len() >= 2 && !session.is_running();
+    recheck_row_ui(ui, session, RecheckTarget::Points, points_ready, commands);
     let busy = session.analysis.cycle_running();
     ui.horizontal(|ui| {
         let can = !busy
@@ -177,6 +189,7 @@ fn cycle_section_ui(
                 multiplier_rows_ui(ui, "floquet_multipliers", f);
             }
             unit_circle_ui(ui, r);
+            recheck_row_ui(ui, session, RecheckTarget::Orbit, !busy, commands);
         }
     }
 }
@@ -228,6 +241,7 @@ fn exponents_section_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Comma
                     }
                 });
             ui.label(format!("verdict: {}", s.verdict));
+            recheck_row_ui(ui, session, RecheckTarget::Exponents, !busy, commands);
             if let Some(d) = s.kaplan_yorke {
                 ui.label(format!("Kaplan–Yorke dimension {d:.3}"));
             }

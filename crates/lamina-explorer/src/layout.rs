@@ -583,6 +583,7 @@ fn tile_ui(
                 .iter()
                 .map(|p| (p.t, p.state.clone()))
                 .collect();
+            let resting = session.analysis.rest.marks();
             let labels = session.axis_labels();
             let scene = SpaceScene {
                 labels: &labels,
@@ -592,6 +593,7 @@ fn tile_ui(
                 colours: &colours,
                 period: session.results.strobe_period,
                 orbit: &orbit,
+                resting: &resting,
             };
             let response = chrome.settings.space.ui(ui, &scene);
             if let (Some(new_offset), Some((_, hidden))) = (response.new_offset, plane) {

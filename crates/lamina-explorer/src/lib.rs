@@ -6,6 +6,7 @@
 
 mod analysis;
 mod app;
+mod branch_panel;
 mod chrome;
 mod document;
 mod help;
@@ -13,6 +14,7 @@ mod jobs;
 mod layout;
 mod map_panel;
 mod model_panel;
+mod rest_panel;
 mod results;
 mod session;
 mod settings;
@@ -28,7 +30,7 @@ pub use app::{ExplorerApp, Options};
 pub use document::DEMO_SCENARIO;
 pub use help::{CAUTION, TAGLINE};
 pub use results::RunState;
-pub use vocabulary::{Command, JobKind, OrbitMap, PointSet, ViewKind};
+pub use vocabulary::{Command, JobKind, OrbitMap, PointSet, RecheckTarget, ViewKind};
 
 /// The window icon: an orbit looping twice through a cut, with its four return points
 /// (drawn by `assets/draw_icon.py`).

@@ -133,7 +133,15 @@ pub fn orbit_tile_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Command>
     let plabel = session.swept_parameter_label();
     let clabel = scenario.state_label(coordinate);
     let current = scenario.parameters.get(parameter).map(|p| p.value);
-    let clicked = orbit_diagram_ui(ui, &sweep.columns, coordinate, (&plabel, &clabel), current);
+    let branch = crate::branch_panel::branch_overlay(session, coordinate);
+    let clicked = orbit_diagram_ui(
+        ui,
+        &sweep.columns,
+        coordinate,
+        (&plabel, &clabel),
+        current,
+        &branch,
+    );
     if let Some(value) = clicked {
         commands.push(Command::SetParameterAndRun {
             index: parameter,

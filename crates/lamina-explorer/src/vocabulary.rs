@@ -158,6 +158,28 @@ impl OrbitMap {
     }
 }
 
+/// Which result a recheck computes again.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum RecheckTarget {
+    /// The periodic orbit found last.
+    Orbit,
+    /// The Lyapunov exponents computed last.
+    Exponents,
+    /// The points of the run on the orbit search's map (cut points or strobe samples).
+    Points,
+}
+
+impl RecheckTarget {
+    /// Name in messages: "orbit".
+    pub fn name(self) -> &'static str {
+        match self {
+            Self::Orbit => "orbit",
+            Self::Exponents => "exponents",
+            Self::Points => "run's points",
+        }
+    }
+}
+
 /// What an edit in the model panel touched; the session acts on it.
 #[must_use]
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
@@ -250,6 +272,13 @@ pub enum Command {
     FindOrbit,
     /// Compute the Lyapunov exponents.
     ComputeExponents,
+    /// Look for the resting points of the model.
+    FindRestingPoints,
+    /// Follow the branch of the current resting point or of the orbit found last over the
+    /// sweep's range.
+    FollowBranch(lamina_core::branch::BranchOf),
+    /// Compute a result again with tolerances divided by 100 and count the digits that agree.
+    Recheck(RecheckTarget),
     /// Stop a job.
     Cancel(JobKind),
     /// Run the scenario's sweep.
@@ -276,6 +305,12 @@ pub enum JobKind {
     OrbitSearch,
     /// The Lyapunov exponents.
     Exponents,
+    /// The search for resting points.
+    RestSearch,
+    /// A second computation at tighter tolerances.
+    Recheck,
+    /// Following a branch.
+    Branch,
     /// Drawing and writing a PNG.
     PngExport,
     /// A desktop file dialog.
@@ -291,6 +326,9 @@ impl JobKind {
             Self::RegimeMap => "regime map",
             Self::OrbitSearch => "orbit search",
             Self::Exponents => "exponent computation",
+            Self::RestSearch => "resting-point search",
+            Self::Recheck => "recheck",
+            Self::Branch => "branch",
             Self::PngExport => "PNG export",
             Self::FileDialog => "file dialog",
         }
@@ -304,6 +342,9 @@ impl JobKind {
             Self::RegimeMap => "map",
             Self::OrbitSearch => "orbit",
             Self::Exponents => "exponents",
+            Self::RestSearch => "rest",
+            Self::Recheck => "recheck",
+            Self::Branch => "branch",
             Self::PngExport => "png",
             Self::FileDialog => "dialog",
         }
@@ -331,6 +372,21 @@ pub enum AnalysisError {
     /// The core's exponent computation failed.
     #[error(transparent)]
     Exponents(#[from] lamina_core::lyapunov::ExponentError),
+    /// The core's resting-point search failed.
+    #[error(transparent)]
+    Rest(#[from] lamina_core::rest::RestError),
+    /// The second computation of a recheck failed.
+    #[error(transparent)]
+    Recheck(#[from] lamina_core::recheck::RecheckError),
+    /// The core's continuation failed.
+    #[error(transparent)]
+    Branch(#[from] lamina_core::branch::BranchError),
+    /// A branch cannot be started yet.
+    #[error("no branch to follow: {0}")]
+    NoBranch(&'static str),
+    /// There is nothing to recheck yet.
+    #[error("nothing to recheck: {0}")]
+    NothingToRecheck(&'static str),
     /// The job's thread ended without a result.
     #[error("the {0} stopped without a result (an internal error; please report it)")]
     Lost(JobKind),

@@ -216,9 +216,61 @@ impl ExplorerApp {
         }
     }
 
-    /// Whether an orbit search or an exponent run is going.
+    /// Whether an orbit search, an exponent run, a resting-point search or a recheck is
+    /// going.
     pub fn is_analysing(&self) -> bool {
-        self.session.analysis.cycle_running() || self.session.analysis.exponents_running()
+        let a = &self.session.analysis;
+        a.cycle_running()
+            || a.exponents_running()
+            || a.rest.running()
+            || a.recheck.running().is_some()
+            || a.branch.running()
+    }
+
+    /// The followed branch: its number of points so far and its special points (kind in
+    /// words, parameter value).
+    pub fn branch_summary(&self) -> (usize, Vec<(String, f64)>) {
+        let b = &self.session.analysis.branch;
+        let special = b
+            .special
+            .iter()
+            .map(|s| (s.kind.words().to_string(), s.value))
+            .collect();
+        (b.points.len(), special)
+    }
+
+    /// The resting points found last: state, stable, stability in words; `None` before a
+    /// search or when it failed.
+    pub fn resting_points(&self) -> Option<Vec<(Vec<f64>, bool, String)>> {
+        match &self.session.analysis.rest.found {
+            Some(Ok(r)) => Some(
+                r.points
+                    .iter()
+                    .map(|p| {
+                        (
+                            p.state.clone(),
+                            p.stable,
+                            crate::session::stability_words(p),
+                        )
+                    })
+                    .collect(),
+            ),
+            _ => None,
+        }
+    }
+
+    /// The resting points marked in the 3D view (none while stale).
+    pub fn n_resting_marks(&self) -> usize {
+        self.session.analysis.rest.marks().len()
+    }
+
+    /// The digits of the last recheck of `target`, or its error.
+    pub fn recheck_digits(&self, target: crate::RecheckTarget) -> Option<Result<u32, String>> {
+        self.session
+            .analysis
+            .recheck
+            .of(target)
+            .map(|r| r.as_ref().map(|r| r.digits).map_err(|e| e.to_string()))
     }
 
     /// Whether an orbit search is going.

@@ -10,9 +10,12 @@ use lamina_core::lyapunov::{ExponentSettings, Spectrum, spectrum};
 use lamina_core::recurrence::{RecurrenceSettings, close_returns, find_recurrence};
 
 use super::Session;
+use super::branch::BranchState;
+use super::recheck::RecheckState;
+use super::rest::RestState;
 use crate::jobs::{Job, Poll};
 use crate::results::PointCloud;
-use crate::vocabulary::{AnalysisError, JobKind, OrbitMap, unit_suffix};
+use crate::vocabulary::{AnalysisError, JobKind, OrbitMap, RecheckTarget, unit_suffix};
 
 /// A periodic orbit and its path over one period.
 pub type FoundOrbit = (CycleReport, Vec<MapPoint>);
@@ -32,6 +35,14 @@ pub struct AnalysisState {
     exponents_job: Option<AnalysisJob<Spectrum>>,
     /// The last spectrum (or why not).
     pub spectrum: Option<Result<Spectrum, AnalysisError>>,
+    /// The map and its settings the shown orbit was found with (for its recheck).
+    pub(crate) orbit_map_used: Option<(MapKind, MapSettings)>,
+    /// The resting-point search and its result.
+    pub rest: RestState,
+    /// The rechecks and their results.
+    pub recheck: RecheckState,
+    /// The branch being followed or followed last.
+    pub branch: BranchState,
 }
 
 impl AnalysisState {
@@ -44,6 +55,10 @@ impl AnalysisState {
             cycle: None,
             exponents_job: None,
             spectrum: None,
+            orbit_map_used: None,
+            rest: RestState::default(),
+            recheck: RecheckState::default(),
+            branch: BranchState::default(),
         }
     }
 
@@ -63,14 +78,18 @@ impl AnalysisState {
             self.map = map;
             self.cycle = None;
             self.orbit_path.clear();
+            self.recheck.forget(RecheckTarget::Orbit);
         }
     }
 
-    /// Clears the shown orbit and spectrum (the scenario changed under them).
+    /// Clears the shown orbit, spectrum and rechecks and marks the resting points stale (the
+    /// scenario changed under them).
     pub fn clear_results(&mut self) {
         self.cycle = None;
         self.orbit_path.clear();
         self.spectrum = None;
+        self.rest.outdate();
+        self.recheck.clear();
     }
 
     /// Asks the job of `kind` to stop; whether one was going.
@@ -82,6 +101,9 @@ impl AnalysisState {
                 .as_ref()
                 .inspect(|j| j.cancel())
                 .is_some(),
+            JobKind::RestSearch => self.rest.cancel(),
+            JobKind::Recheck => self.recheck.cancel(),
+            JobKind::Branch => self.branch.cancel(),
             _ => false,
         }
     }
@@ -98,13 +120,17 @@ pub fn map_points(cloud: &PointCloud) -> Vec<MapPoint> {
 }
 
 /// What a finished analysis job hands over, once checked against the session.
-enum Arrival<T> {
+pub(super) enum Arrival<T> {
     Nothing,
     Result(Result<T, AnalysisError>),
     Stale,
 }
 
-fn arrival<T>(job: &Option<AnalysisJob<T>>, revision: u64) -> Arrival<T> {
+/// Polls `job`: nothing yet, its result, or a result for another revision than `revision`.
+pub(super) fn arrival<P, T>(
+    job: Option<&Job<P, Result<T, AnalysisError>>>,
+    revision: u64,
+) -> Arrival<T> {
     let Some(job) = job else {
         return Arrival::Nothing;
     };
@@ -127,7 +153,10 @@ impl Session {
 
     /// Collects finished analysis jobs.
     pub(crate) fn drain_analysis(&mut self) {
-        match arrival(&self.analysis.orbit_job, self.revision) {
+        self.drain_rest();
+        self.drain_recheck();
+        self.drain_branch();
+        match arrival(self.analysis.orbit_job.as_ref(), self.revision) {
             Arrival::Nothing => {}
             Arrival::Stale => {
                 self.analysis.orbit_job = None;
@@ -150,9 +179,10 @@ impl Session {
                     .map(|(_, path)| path.clone())
                     .unwrap_or_default();
                 self.analysis.cycle = Some(result.map(|(r, _)| r));
+                self.analysis.recheck.forget(RecheckTarget::Orbit);
             }
         }
-        match arrival(&self.analysis.exponents_job, self.revision) {
+        match arrival(self.analysis.exponents_job.as_ref(), self.revision) {
             Arrival::Nothing => {}
             Arrival::Stale => {
                 self.analysis.exponents_job = None;
@@ -168,6 +198,7 @@ impl Session {
                     Err(e) => self.note(format!("exponents: {e}")),
                 }
                 self.analysis.spectrum = Some(result);
+                self.analysis.recheck.forget(RecheckTarget::Exponents);
             }
         }
     }
@@ -214,12 +245,14 @@ impl Session {
         } else {
             run.span
         };
+        let settings = MapSettings::from_run(&run, max_return);
+        let used = (kind.clone(), settings);
         let spawned = Job::spawn(
             JobKind::OrbitSearch,
             self.revision,
             self.waker.clone(),
             move |_, interrupt| {
-                let mut map = FlowMap::new(model, kind, MapSettings::from_run(&run, max_return))?;
+                let mut map = FlowMap::new(model, kind, settings)?;
                 map.set_interrupt(interrupt);
                 let report = find_cycle(
                     &mut map,
@@ -237,6 +270,7 @@ impl Session {
         match spawned {
             Ok(job) => {
                 self.analysis.orbit_job = Some(job);
+                self.analysis.orbit_map_used = Some(used);
                 self.analysis.cycle = None;
                 self.analysis.orbit_path.clear();
                 self.note(format!(

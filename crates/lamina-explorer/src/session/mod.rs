@@ -15,12 +15,17 @@
 use std::time::Instant;
 
 mod analysis;
+mod branch;
 mod map;
+mod recheck;
+mod rest;
 mod runs;
 mod sweep;
 
 pub use analysis::{AnalysisState, map_points};
 pub use map::MapState;
+pub use recheck::recheck_words;
+pub use rest::stability_words;
 pub use runs::RunControl;
 pub use sweep::SweepState;
 
@@ -106,7 +111,8 @@ impl Session {
     }
 
     /// Puts `doc` in place of the current document: stops every job, clears results,
-    /// analysis, sweep, orbit marks and picked axes, and queues a run if so set.
+    /// analysis (resting points, rechecks and branch with it), sweep, orbit marks and picked
+    /// axes, and queues a run if so set.
     pub fn replace_document(&mut self, doc: Document, message: impl Into<String>) {
         self.runs = RunControl::default();
         self.sweep = SweepState::default();
@@ -188,6 +194,9 @@ impl Session {
             Command::ChooseOrbitMap(map) => self.analysis.choose_map(map),
             Command::FindOrbit => self.start_orbit_search(),
             Command::ComputeExponents => self.start_exponents(),
+            Command::FindRestingPoints => self.start_rest_search(),
+            Command::Recheck(target) => self.start_recheck(target),
+            Command::FollowBranch(of) => self.start_branch(of),
             Command::StartSweep => self.start_sweep(),
             Command::StartMap => self.start_map(),
             Command::SetParametersAndRun { values } => self.set_parameters_and_run(&values),
@@ -225,7 +234,11 @@ impl Session {
                     self.note("stopping the regime map");
                 }
             }
-            JobKind::OrbitSearch | JobKind::Exponents => {
+            JobKind::OrbitSearch
+            | JobKind::Exponents
+            | JobKind::RestSearch
+            | JobKind::Recheck
+            | JobKind::Branch => {
                 if self.analysis.cancel(kind) {
                     self.note(format!("stopping the {kind}"));
                 }

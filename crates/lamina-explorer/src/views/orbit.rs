@@ -1,10 +1,11 @@
 //! The orbit-diagram view: for each parameter value of a sweep its kept points of one
 //! coordinate, coloured by the recurrence detector's label (the colours of the PNG export and
 //! of `lamina sweep --png`), filling in live; the model's current value marked; a click picks
-//! a value.
+//! a value. A followed branch is drawn over the cloud (stable solid, unstable dashed, special
+//! points marked, legend in words).
 
 use egui::{Color32, Mesh, Rect, Ui, vec2};
-use egui_plot::{Plot, PlotPoint, PlotPoints, Points};
+use egui_plot::{Legend, Line, LineStyle, Plot, PlotPoint, PlotPoints, Points};
 use lamina_core::recurrence::RecurrenceKind;
 use lamina_core::sweep::SweepColumn;
 
@@ -15,13 +16,34 @@ pub fn recurrence_colour(kind: RecurrenceKind) -> Color32 {
     Color32::from_rgb(r, g, b)
 }
 
-/// Draws the diagram; returns the parameter value clicked, if any.
+/// A followed branch as the diagram draws it.
+#[derive(Default)]
+pub struct BranchOverlay {
+    /// Runs of (parameter, coordinate) points of one stability: (points, stable).
+    pub runs: Vec<(Vec<[f64; 2]>, bool)>,
+    /// Special points: where, and their kind in words.
+    pub special: Vec<([f64; 2], &'static str)>,
+}
+
+/// Colour of a special point's mark, by its kind in words.
+fn special_colour(words: &str) -> Color32 {
+    match words {
+        "fold" => Color32::from_rgb(250, 200, 60),
+        "Hopf" => Color32::from_rgb(240, 100, 180),
+        "period doubling" => Color32::from_rgb(90, 200, 250),
+        "torus birth" => Color32::from_rgb(170, 130, 250),
+        _ => Color32::from_rgb(250, 120, 90),
+    }
+}
+
+/// Draws the diagram with `branch` over it; returns the parameter value clicked, if any.
 pub fn orbit_diagram_ui(
     ui: &mut Ui,
     columns: &[(SweepColumn, RecurrenceKind)],
     coordinate: usize,
     labels: (&str, &str),
     current: Option<f64>,
+    branch: &BranchOverlay,
 ) -> Option<f64> {
     let mut extent = [
         f64::INFINITY,
@@ -42,10 +64,42 @@ pub fn orbit_diagram_ui(
             }
         }
     }
+    for p in branch.runs.iter().flat_map(|(r, _)| r) {
+        if p[0].is_finite() && p[1].is_finite() {
+            extent = [
+                extent[0].min(p[0]),
+                extent[1].min(p[1]),
+                extent[2].max(p[0]),
+                extent[3].max(p[1]),
+            ];
+        }
+    }
+    let branch_colour = Color32::from_rgb(235, 235, 235);
     let response = Plot::new("orbit_diagram")
         .x_axis_label(labels.0)
         .y_axis_label(labels.1)
+        .legend(Legend::default())
         .show(ui, |plot_ui| {
+            for (run, stable) in &branch.runs {
+                let (name, style) = if *stable {
+                    ("stable branch", LineStyle::Solid)
+                } else {
+                    ("unstable branch", LineStyle::dashed_loose())
+                };
+                plot_ui.line(
+                    Line::new(name, PlotPoints::new(run.clone()))
+                        .style(style)
+                        .width(2.0)
+                        .color(branch_colour),
+                );
+            }
+            for (at, words) in &branch.special {
+                plot_ui.points(
+                    Points::new(*words, PlotPoints::new(vec![*at]))
+                        .radius(5.0)
+                        .color(special_colour(words)),
+                );
+            }
             if extent[0] <= extent[2] {
                 plot_ui.points(
                     Points::new(

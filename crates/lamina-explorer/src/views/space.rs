@@ -202,6 +202,8 @@ pub struct SpaceScene<'a> {
     pub period: Option<f64>,
     /// A periodic orbit to draw over the trajectory: times and states.
     pub orbit: &'a [(f64, Vec<f64>)],
+    /// Resting points to mark: state and whether it is stable (filled) or not (hollow).
+    pub resting: &'a [(Vec<f64>, bool)],
 }
 
 /// What the user did in the view.
@@ -222,6 +224,7 @@ impl SpaceView {
             colours,
             period,
             orbit,
+            resting,
         } = *scene;
         let mut out = SpaceResponse::default();
         let dim = labels.states.len();
@@ -371,6 +374,17 @@ impl SpaceView {
                 orbit_points,
                 Stroke::new(2.5, Color32::from_rgb(255, 255, 255)),
             ));
+        }
+        // resting points: stable filled, unstable hollow, at time 0 of a time axis
+        for (state, stable) in resting {
+            let u = data_box.unit(self.axes.map(|a| axis_value(a, state, 0.0, period)));
+            let p = projection.screen_from_unit(u).0;
+            let colour = Color32::from_rgb(120, 240, 150);
+            if *stable {
+                painter.circle_filled(p, 5.5, colour);
+            } else {
+                painter.circle_stroke(p, 5.5, Stroke::new(2.0, colour));
+            }
         }
         // cut points as one mesh of small squares, thinned past MAX_DRAWN_SAMPLES / 3
         let n_cut = cut_points.len();
