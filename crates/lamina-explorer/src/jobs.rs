@@ -161,7 +161,9 @@ mod tests {
     use super::*;
 
     fn wait<T>(job: &Job<u32, T>) -> Poll<T> {
-        for _ in 0..2000 {
+        // up to a minute: a panicking thread prints its backtrace first, which takes seconds
+        // in a debug build on a busy machine
+        for _ in 0..30_000 {
             match job.poll() {
                 Poll::Running => std::thread::sleep(std::time::Duration::from_millis(2)),
                 other => return other,

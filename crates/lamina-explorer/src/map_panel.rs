@@ -10,7 +10,7 @@ use crate::document::Document;
 use crate::session::Session;
 use crate::views::regime_map::regime_map_ui;
 use crate::vocabulary::{Command, JobKind, PanelChanges, PointSet, ViewKind};
-use crate::widgets::{number_field, problems_ui};
+use crate::widgets::{number_field_ui, problems_ui};
 
 /// A map block over the scenario's first two parameters, each over its slider range, from
 /// the strobe if the scenario has one, else the cut.
@@ -79,7 +79,7 @@ pub fn map_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChange
                 ui.end_row();
                 ui.label("from … to");
                 ui.horizontal(|ui| {
-                    changed |= number_field(
+                    changed |= number_field_ui(
                         ui,
                         egui::Id::unique(("map_from", name)),
                         &mut axis.from,
@@ -89,7 +89,7 @@ pub fn map_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChange
                     .changed();
                     ui.label("…");
                     changed |=
-                        number_field(ui, egui::Id::unique(("map_to", name)), &mut axis.to, 64.0)
+                        number_field_ui(ui, egui::Id::unique(("map_to", name)), &mut axis.to, 64.0)
                             .on_hover_text("Last value")
                             .changed();
                 });
@@ -102,12 +102,12 @@ pub fn map_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChange
                 ui.end_row();
             }
             ui.label("settle per cell");
-            changed |= number_field(ui, egui::Id::unique("map_settle"), &mut map.settle, 64.0)
+            changed |= number_field_ui(ui, egui::Id::unique("map_settle"), &mut map.settle, 64.0)
                 .on_hover_text("Transient at each cell, not recorded")
                 .changed();
             ui.end_row();
             ui.label("span per cell");
-            changed |= number_field(ui, egui::Id::unique("map_span"), &mut map.span, 64.0)
+            changed |= number_field_ui(ui, egui::Id::unique("map_span"), &mut map.span, 64.0)
                 .on_hover_text("Recorded time at each cell, after the transient")
                 .changed();
             ui.end_row();

@@ -93,7 +93,7 @@ fn harness(app: ExplorerApp) -> Harness<'static, ExplorerApp> {
         .with_max_steps(20)
         // the model panel's name and unit fields have no accessible names yet
         .with_accessibility_check(false)
-        .build_ui_state(|ui, app: &mut ExplorerApp| app.show(ui), app)
+        .build_ui_state(|ui, app: &mut ExplorerApp| app.show_ui(ui), app)
 }
 
 fn steps(h: &mut Harness<'static, ExplorerApp>, n: usize) {
