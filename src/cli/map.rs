@@ -8,7 +8,7 @@ use std::process::ExitCode;
 
 use anyhow::{Context, Result};
 use lamina_core::regime_map::{MapCell, Regime};
-use lamina_export::MapCsv;
+use lamina_export::write_map_cells;
 use serde_json::{Map, Value, json};
 
 use super::map_picture::map_png;
@@ -47,17 +47,7 @@ impl MapArgs {
 /// Writes the cells as the map's CSV: rows by y then x.
 pub fn write_map_csv(out: &mut dyn Write, run: &MapRun) -> Result<()> {
     let (x_name, y_name) = run.parameter_names();
-    let mut csv = MapCsv::new(out, &x_name, &y_name)?;
-    for cell in &run.cells {
-        csv.write_cell(
-            cell.x,
-            cell.y,
-            cell.regime.word(),
-            cell.regime.returns(),
-            cell.lyapunov,
-        )?;
-    }
-    csv.finish()?;
+    write_map_cells(out, (&x_name, &y_name), &run.cells)?;
     Ok(())
 }
 

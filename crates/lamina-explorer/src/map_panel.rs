@@ -182,7 +182,11 @@ pub fn map_tile_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Command>) 
         .get(spec.x.parameter)
         .zip(parameters.get(spec.y.parameter))
         .map(|(x, y)| (x.value, y.value));
-    if let Some(cell) = regime_map_ui(ui, spec, &map.cells, &map.labels, &map.names, current) {
+    // a click sets the parameters the map was run over: not if the model has renamed them
+    let same_parameters = parameters.get(spec.x.parameter).map(|p| &p.name) == Some(&map.names.0)
+        && parameters.get(spec.y.parameter).map(|p| &p.name) == Some(&map.names.1);
+    let clicked = regime_map_ui(ui, spec, &map.cells, &map.labels, &map.names, current);
+    if let Some(cell) = clicked.filter(|_| same_parameters) {
         commands.push(Command::SetParametersAndRun {
             values: vec![(spec.x.parameter, cell.x), (spec.y.parameter, cell.y)],
         });

@@ -4,6 +4,7 @@
 
 mod atomic;
 mod csv_points;
+mod map_cells;
 
 pub use atomic::{
     AtomicFile, FileIdentity, UNFINISHED, Written, beside, write_atomically, write_bytes_atomically,
@@ -11,6 +12,7 @@ pub use atomic::{
 pub use csv_points::{
     BranchCsv, CutCsv, MapCsv, StrobeCsv, SweepCsv, TrajectoryCsv, format_number,
 };
+pub use map_cells::write_map_cells;
 
 /// Errors of an export.
 #[derive(Debug, thiserror::Error)]

@@ -68,18 +68,8 @@ impl ExplorerApp {
                 }
                 PointSet::Map => {
                     let map = &self.session.map;
-                    let mut csv =
-                        lamina_export::MapCsv::new(&mut file, &map.names.0, &map.names.1)?;
-                    for cell in &map.cells {
-                        csv.write_cell(
-                            cell.x,
-                            cell.y,
-                            cell.regime.word(),
-                            cell.regime.returns(),
-                            cell.lyapunov,
-                        )?;
-                    }
-                    csv.finish()?;
+                    let names = (map.names.0.as_str(), map.names.1.as_str());
+                    lamina_export::write_map_cells(&mut file, names, &map.cells)?;
                     map.cells.len()
                 }
                 PointSet::Trajectory => {
