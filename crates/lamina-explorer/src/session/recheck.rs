@@ -58,9 +58,13 @@ impl RecheckState {
 
 /// The recheck in one line for the panel: `N significant digits agree (worst: ...)`.
 pub fn recheck_words(recheck: &Recheck) -> String {
-    let s = if recheck.digits == 1 { "" } else { "s" };
+    let (s, verb) = if recheck.digits == 1 {
+        ("", "agrees")
+    } else {
+        ("s", "agree")
+    };
     format!(
-        "{} significant digit{s} agree (worst: {}, {} against {}; second computation at rtol \
+        "{} significant digit{s} {verb} (worst: {}, {} against {}; second computation at rtol \
          {:.0e}, atol {:.0e})",
         recheck.digits,
         recheck.worst.name,

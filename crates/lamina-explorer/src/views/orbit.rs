@@ -103,7 +103,7 @@ pub fn orbit_diagram_ui(
             if extent[0] <= extent[2] {
                 plot_ui.points(
                     Points::new(
-                        "extent",
+                        "",
                         PlotPoints::new(vec![[extent[0], extent[1]], [extent[2], extent[3]]]),
                     )
                     .radius(0.0)
