@@ -265,8 +265,9 @@ pub(crate) fn turns_between(d_before: f64, d_after: f64) -> bool {
 
 /// How far from zero, in units of the changes of `g` over the two steps around it, a turn
 /// of `g` may lie and still come near zero (the extremum lies within about one change of the
-/// value at the shared end; the factor leaves a wide margin).
-const TURN_REACH: f64 = 8.0;
+/// value at the shared end, and the screen passes only an extremum within one change of
+/// zero; the factor leaves a margin).
+const TURN_REACH: f64 = 3.0;
 
 /// Whether the steps around a shared step end where `g` is `g_end` and changed by
 /// `d_before` and `d_after` must be examined: `g` turns there ([`turns_between`]) and not
