@@ -127,6 +127,30 @@ fn lorenz_pitchfork_is_a_branch_point_at_one() {
 }
 
 #[test]
+fn lorenz_curved_half_of_the_pitchfork_meets_the_origin_at_a_branch_point() {
+    // from (sqrt(beta (rho - 1)), same, rho - 1) at rho = 10 down toward rho = 0.5: the branch
+    // turns back at rho = 1, where it meets the origin's branch
+    let m = lorenz(10.0);
+    let c = (8.0f64 / 3.0 * 9.0).sqrt();
+    let branch = rest_branch(&m, 0.5, 12.0, &[c, c, 9.0]);
+    let points = specials(&branch, SpecialKind::BranchPoint);
+    // [analytic] REFERENCES case 20: the pitchfork at rho = 1 is where two branches cross, not
+    // a fold (the origin's branch passes through it)
+    assert_eq!(points.len(), 1, "{:?}", branch.special);
+    assert!((points[0].0 - 1.0).abs() < 1e-6, "{}", points[0].0);
+    assert!(
+        points[0].1.iter().all(|x| x.abs() < 1e-3),
+        "{:?}",
+        points[0].1
+    );
+    assert!(
+        specials(&branch, SpecialKind::Fold).is_empty(),
+        "{:?}",
+        branch.special
+    );
+}
+
+#[test]
 fn lorenz_hopf_at_470_over_19() {
     let m = lorenz(20.0);
     let c = (8.0f64 / 3.0 * 19.0).sqrt();

@@ -53,14 +53,15 @@ impl<P: Problem> Walker<'_, P> {
             if (fa > 0.0) == (fb > 0.0) {
                 continue;
             }
-            // a fold also flips the bordered determinant only when it is not simple; report
-            // the fold alone then
-            if kind == SpecialKind::BranchPoint
-                && let (Some(sa), Some(sb)) = (
-                    test_value(SpecialKind::Fold, a),
-                    test_value(SpecialKind::Fold, b),
+            // a simple fold keeps the bordered determinant's sign; where the parameter turns
+            // and the determinant flips too, another branch crosses there (the curved half of
+            // a pitchfork turns back at it): report the branch point alone
+            if kind == SpecialKind::Fold
+                && let (Some(da), Some(db)) = (
+                    test_value(SpecialKind::BranchPoint, a),
+                    test_value(SpecialKind::BranchPoint, b),
                 )
-                && (sa > 0.0) != (sb > 0.0)
+                && (da > 0.0) != (db > 0.0)
             {
                 continue;
             }
