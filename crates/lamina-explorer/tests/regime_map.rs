@@ -3,21 +3,13 @@
 //! parameters and runs there, Stop stops the map, opening another scenario clears it, and
 //! the model panel can remove a map block that names a parameter the model does not have.
 
-use std::time::Duration;
-
-use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
 use lamina_core::regime_map::Regime;
-use lamina_explorer::{Command, ExplorerApp, JobKind, Options};
+use lamina_explorer::{Command, ExplorerApp, JobKind};
 use lamina_scenario::{Cut, Direction, MapAxis, Parameter, RegimeMap, State, Surface, SweepSource};
 
-fn app() -> ExplorerApp {
-    let options = Options {
-        autostart: false,
-        ..Options::default()
-    };
-    ExplorerApp::new(None, Default::default(), options)
-}
+mod common;
+use common::{app, harness, steps, wait_until};
 
 /// The window on the Brusselator x' = A - (B + 1) x + x^2 y, y' = B x - x^2 y with the cut
 /// x = 1 (rising) and a map of A across and B up, `n` values each.
@@ -72,34 +64,6 @@ fn brusselator_app(n: u32, b_to: f64) -> ExplorerApp {
         });
     });
     app
-}
-
-fn harness(app: ExplorerApp) -> Harness<'static, ExplorerApp> {
-    Harness::builder()
-        .with_size(egui::vec2(1500.0, 950.0))
-        .with_max_steps(20)
-        // the model panel's name and unit fields have no accessible names yet
-        .with_accessibility_check(false)
-        .build_ui_state(|ui, app: &mut ExplorerApp| app.show_ui(ui), app)
-}
-
-fn steps(h: &mut Harness<'static, ExplorerApp>, n: usize) {
-    for _ in 0..n {
-        h.step();
-    }
-}
-
-/// Steps frames until `done` holds (at most two minutes).
-fn wait_until(h: &mut Harness<'static, ExplorerApp>, done: impl Fn(&ExplorerApp) -> bool) {
-    for _ in 0..24_000 {
-        h.step();
-        if done(h.state()) {
-            steps(h, 2);
-            return;
-        }
-        std::thread::sleep(Duration::from_millis(5));
-    }
-    panic!("waited two minutes");
 }
 
 /// Centre of cell `(i, j)` of an `n` x `n` map drawn in `area` (the view's margins: 56 px

@@ -3,19 +3,12 @@
 //! of parameter and gone with the document; a forced model told it has none; the recheck of
 //! an orbit and of a run's points showing the digits that agree.
 
-use std::time::Duration;
-
 use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
-use lamina_explorer::{Command, ExplorerApp, Options, RecheckTarget};
+use lamina_explorer::{Command, ExplorerApp, RecheckTarget};
 
-fn app() -> ExplorerApp {
-    let options = Options {
-        autostart: false,
-        ..Options::default()
-    };
-    ExplorerApp::new(None, Default::default(), options)
-}
+mod common;
+use common::{app, harness, steps, wait_until};
 
 fn state(name: &str, start: f64, rate: &str) -> lamina_scenario::State {
     lamina_scenario::State {
@@ -85,34 +78,6 @@ fn van_der_pol_app() -> ExplorerApp {
         s.time.span = 60.0;
     });
     app
-}
-
-fn harness(app: ExplorerApp) -> Harness<'static, ExplorerApp> {
-    Harness::builder()
-        .with_size(egui::vec2(1500.0, 950.0))
-        .with_max_steps(20)
-        // the model panel's name and unit fields have no accessible names yet
-        .with_accessibility_check(false)
-        .build_ui_state(|ui, app: &mut ExplorerApp| app.show_ui(ui), app)
-}
-
-fn steps(h: &mut Harness<'static, ExplorerApp>, n: usize) {
-    for _ in 0..n {
-        h.step();
-    }
-}
-
-/// Steps frames until `done` holds (at most two minutes).
-fn wait_until(h: &mut Harness<'static, ExplorerApp>, done: impl Fn(&ExplorerApp) -> bool) {
-    for _ in 0..24_000 {
-        h.step();
-        if done(h.state()) {
-            steps(h, 2);
-            return;
-        }
-        std::thread::sleep(Duration::from_millis(5));
-    }
-    panic!("waited two minutes");
 }
 
 fn open_analysis(h: &mut Harness<'static, ExplorerApp>) {

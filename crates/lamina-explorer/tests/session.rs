@@ -2,19 +2,12 @@
 //! nothing of the old one behind, an orbit search can be stopped, a forced model's orbit
 //! search starts on the strobe, and results of an earlier scenario are dropped or cleared.
 
-use std::time::Duration;
-
 use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
-use lamina_explorer::{Command, ExplorerApp, Options, RunState};
+use lamina_explorer::{Command, ExplorerApp, RunState};
 
-fn app() -> ExplorerApp {
-    let options = Options {
-        autostart: false,
-        ..Options::default()
-    };
-    ExplorerApp::new(None, Default::default(), options)
-}
+mod common;
+use common::{app, harness, steps, wait_until};
 
 /// The window on the van der Pol oscillator x'' - mu (1 - x^2) x' + x = 0 with a cut at
 /// v = 0 (falling), no strobe.
@@ -59,34 +52,6 @@ fn van_der_pol_app() -> ExplorerApp {
         s.time.span = 60.0;
     });
     app
-}
-
-fn harness(app: ExplorerApp) -> Harness<'static, ExplorerApp> {
-    Harness::builder()
-        .with_size(egui::vec2(1500.0, 950.0))
-        .with_max_steps(20)
-        // the model panel's name and unit fields have no accessible names yet
-        .with_accessibility_check(false)
-        .build_ui_state(|ui, app: &mut ExplorerApp| app.show_ui(ui), app)
-}
-
-fn steps(h: &mut Harness<'static, ExplorerApp>, n: usize) {
-    for _ in 0..n {
-        h.step();
-    }
-}
-
-/// Steps frames until `done` holds (at most two minutes).
-fn wait_until(h: &mut Harness<'static, ExplorerApp>, done: impl Fn(&ExplorerApp) -> bool) {
-    for _ in 0..24_000 {
-        h.step();
-        if done(h.state()) {
-            steps(h, 2);
-            return;
-        }
-        std::thread::sleep(Duration::from_millis(5));
-    }
-    panic!("waited two minutes");
 }
 
 /// Runs the model and finds its periodic orbit through the analysis panel.
