@@ -280,7 +280,8 @@ fn keep_meaningful(scenario: &mut Scenario) {
         t_far = t_far.max((start + map.settle + map.span).abs());
     }
     if let Some(max_step) = &mut scenario.integrator.max_step {
-        *max_step = max_step.max(t_far * 1e-12);
+        // (and never below the integrators' floor of 1e-300, which no time can resolve)
+        *max_step = max_step.max(t_far * 1e-12).max(1e-298);
     }
     if scenario.integrator.atol >= scenario.limits.escape {
         scenario.limits.escape = scenario.integrator.atol * 2.0;
