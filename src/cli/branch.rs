@@ -117,14 +117,7 @@ impl BranchSink for Bar<'_> {
 /// `lamina branch`.
 pub fn branch(args: &BranchArgs) -> Result<ExitCode> {
     // every output path is checked before the branch is followed
-    let mut paths: Vec<(&str, &Path)> = Vec::new();
-    if let Some(out) = &args.out {
-        paths.push(("--out", out));
-    }
-    if let Some(png) = &args.png {
-        paths.push(("--png", png));
-    }
-    outputs::check_paths(&args.file, &paths)?;
+    let paths = outputs::out_and_png(&args.file, args.out.as_deref(), args.png.as_deref())?;
     for (flag, path) in &paths {
         outputs::probe(flag, path)?;
     }

@@ -35,6 +35,26 @@ pub fn check_paths(scenario: &Path, outputs: &[(&str, &Path)]) -> Result<()> {
     Ok(())
 }
 
+/// The `--out` and `--png` files of a command, as `(flag, path)` pairs, checked against the
+/// scenario and each other (see [`check_paths`]).
+pub fn out_and_png<'a>(
+    scenario: &Path,
+    out: Option<&'a Path>,
+    png: Option<&'a Path>,
+) -> Result<Vec<(&'static str, &'a Path)>> {
+    let paths: Vec<(&'static str, &'a Path)> = [("--out", out), ("--png", png)]
+        .into_iter()
+        .filter_map(|(flag, path)| Some((flag, path?)))
+        .collect();
+    check_paths(scenario, &paths)?;
+    Ok(paths)
+}
+
+/// Opens the output of `flag` now if one was asked for (see [`open`]).
+pub fn open_if(flag: &str, path: Option<&Path>) -> Result<Option<AtomicFile>> {
+    path.map(|path| open(flag, path)).transpose()
+}
+
 /// Opens `path` for the output of `flag` now (a temporary file beside it, or the device
 /// itself), so that a missing or unwritable directory is reported before the run.
 pub fn open(flag: &str, path: &Path) -> Result<AtomicFile> {

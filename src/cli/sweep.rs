@@ -163,26 +163,13 @@ pub fn stopped_sweep(run: &SweepRun, parameter: &str, written: &[&Path]) -> Inte
 
 /// `lamina sweep`.
 pub fn sweep(args: &SweepArgs) -> Result<ExitCode> {
-    let mut paths: Vec<(&str, &Path)> = Vec::new();
-    if let Some(out) = &args.out {
-        paths.push(("--out", out));
-    }
-    if let Some(png) = &args.png {
-        paths.push(("--png", png));
-    }
-    outputs::check_paths(&args.file, &paths)?;
+    let paths = outputs::out_and_png(&args.file, args.out.as_deref(), args.png.as_deref())?;
     let shard = args.shard.map(ShardArg::resolve).transpose()?;
     // Ctrl-C stops the sweep between (and inside) values; installed before the output files
     let interrupt = interrupt_on_signal()?;
     // every output is opened before the sweep, so a bad path fails at once
-    let out_file = match &args.out {
-        Some(path) => Some(outputs::open("--out", path)?),
-        None => None,
-    };
-    let png_file = match &args.png {
-        Some(path) => Some(outputs::open("--png", path)?),
-        None => None,
-    };
+    let out_file = outputs::open_if("--out", args.out.as_deref())?;
+    let png_file = outputs::open_if("--png", args.png.as_deref())?;
     let run = run_sweep(&args.file, shard, &interrupt)?;
     let SweepRun {
         scenario,
