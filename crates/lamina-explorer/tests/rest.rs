@@ -8,25 +8,7 @@ use egui_kittest::kittest::Queryable;
 use lamina_explorer::{Command, ExplorerApp, RecheckTarget};
 
 mod common;
-use common::{app, harness, steps, wait_until};
-
-fn state(name: &str, start: f64, rate: &str) -> lamina_scenario::State {
-    lamina_scenario::State {
-        name: name.into(),
-        start,
-        rate: rate.into(),
-        unit: None,
-    }
-}
-
-fn parameter(name: &str, value: f64, range: (f64, f64)) -> lamina_scenario::Parameter {
-    lamina_scenario::Parameter {
-        name: name.into(),
-        value,
-        range,
-        unit: None,
-    }
-}
+use common::{app, harness, parameter, state, steps, van_der_pol_app, wait_until};
 
 /// The window on the Lorenz model at sigma = 10, rho = 28, beta = 8/3, no cut or strobe.
 fn lorenz_app() -> ExplorerApp {
@@ -49,33 +31,6 @@ fn lorenz_app() -> ExplorerApp {
         s.view = None;
         s.time.settle = 0.0;
         s.time.span = 20.0;
-    });
-    app
-}
-
-/// The window on the van der Pol oscillator x'' - mu (1 - x^2) x' + x = 0, mu = 1, with a
-/// cut at v = 0 (falling).
-fn van_der_pol_app() -> ExplorerApp {
-    let mut app = app();
-    app.edit_scenario(|s| {
-        s.states = vec![state("x", 2.0, "v"), state("v", 0.0, "mu*(1 - x^2)*v - x")];
-        s.parameters = vec![parameter("mu", 1.0, (0.0, 2.0))];
-        s.cut = Some(lamina_scenario::Cut {
-            surface: lamina_scenario::Surface::Plane {
-                normal: lamina_scenario::Weights(vec![("v".into(), 1.0)]),
-                offset: 0.0,
-            },
-            direction: lamina_scenario::Direction::Falling,
-            axes: ("x".into(), "v".into()),
-        });
-        s.strobe = None;
-        s.sweep = None;
-        s.map = None;
-        s.view = None;
-        s.integrator.rtol = 1e-10;
-        s.integrator.atol = 1e-12;
-        s.time.settle = 60.0;
-        s.time.span = 60.0;
     });
     app
 }

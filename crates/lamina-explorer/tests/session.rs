@@ -7,52 +7,7 @@ use egui_kittest::kittest::Queryable;
 use lamina_explorer::{Command, ExplorerApp, RunState};
 
 mod common;
-use common::{app, harness, steps, wait_until};
-
-/// The window on the van der Pol oscillator x'' - mu (1 - x^2) x' + x = 0 with a cut at
-/// v = 0 (falling), no strobe.
-fn van_der_pol_app() -> ExplorerApp {
-    let mut app = app();
-    app.edit_scenario(|s| {
-        s.states = vec![
-            lamina_scenario::State {
-                name: "x".into(),
-                start: 2.0,
-                rate: "v".into(),
-                unit: None,
-            },
-            lamina_scenario::State {
-                name: "v".into(),
-                start: 0.0,
-                rate: "mu*(1 - x^2)*v - x".into(),
-                unit: None,
-            },
-        ];
-        s.parameters = vec![lamina_scenario::Parameter {
-            name: "mu".into(),
-            value: 1.0,
-            range: (0.0, 2.0),
-            unit: None,
-        }];
-        s.cut = Some(lamina_scenario::Cut {
-            surface: lamina_scenario::Surface::Plane {
-                normal: lamina_scenario::Weights(vec![("v".into(), 1.0)]),
-                offset: 0.0,
-            },
-            direction: lamina_scenario::Direction::Falling,
-            axes: ("x".into(), "v".into()),
-        });
-        s.strobe = None;
-        s.sweep = None;
-        s.map = None;
-        s.view = None;
-        s.integrator.rtol = 1e-10;
-        s.integrator.atol = 1e-12;
-        s.time.settle = 60.0;
-        s.time.span = 60.0;
-    });
-    app
-}
+use common::{app, harness, steps, van_der_pol_app, wait_until};
 
 /// Runs the model and finds its periodic orbit through the analysis panel.
 fn run_and_find_orbit(h: &mut Harness<'static, ExplorerApp>) {
