@@ -209,32 +209,3 @@ pub fn fourth_view(session: &Session, chosen: Option<ViewKind>) -> ViewKind {
         ViewKind::Orbit
     })
 }
-
-/// The PNG's caption, as `lamina map --png` writes it: the parameters the map does not vary,
-/// then each cell's settle time, span, source and tolerances.
-pub fn map_caption(scenario: &Scenario, spec: &lamina_core::regime_map::RegimeMapSpec) -> String {
-    let mapped = [spec.x.parameter, spec.y.parameter];
-    let fixed: Vec<String> = (scenario.parameters.iter().enumerate())
-        .filter(|(idx, _)| !mapped.contains(idx))
-        .map(|(_, p)| match &p.unit {
-            Some(unit) => format!("{} = {} {unit}", p.name, p.value),
-            None => format!("{} = {}", p.name, p.value),
-        })
-        .collect();
-    let unit = (scenario.time.unit.as_deref())
-        .map(|u| format!(" {u}"))
-        .unwrap_or_default();
-    let source = match spec.source {
-        lamina_core::sweep::SweepSource::Cut => "cut points",
-        lamina_core::sweep::SweepSource::Strobe => "strobe samples",
-    };
-    let fixed = if fixed.is_empty() {
-        "no other parameters".to_string()
-    } else {
-        fixed.join(", ")
-    };
-    format!(
-        "{fixed}   |   per cell: settle {}{unit}, span {}{unit}, by {source}, rtol {:e}, atol {:e}",
-        spec.settle, spec.span, scenario.integrator.rtol, scenario.integrator.atol
-    )
-}

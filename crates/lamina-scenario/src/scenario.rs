@@ -435,6 +435,36 @@ impl Scenario {
         )
     }
 
+    /// One line for a regime map's caption: the parameters the map leaves fixed with their
+    /// units, the settle time and span of each cell, what the cells are classified from, and
+    /// the tolerances.
+    pub fn map_caption(&self, spec: &lamina_core::regime_map::RegimeMapSpec) -> String {
+        let mapped = [spec.x.parameter, spec.y.parameter];
+        let fixed: Vec<String> = (self.parameters.iter().enumerate())
+            .filter(|(idx, _)| !mapped.contains(idx))
+            .map(|(_, p)| match &p.unit {
+                Some(unit) => format!("{} = {} {unit}", p.name, p.value),
+                None => format!("{} = {}", p.name, p.value),
+            })
+            .collect();
+        let unit = (self.time.unit.as_deref())
+            .map(|u| format!(" {u}"))
+            .unwrap_or_default();
+        let source = match spec.source {
+            lamina_core::sweep::SweepSource::Cut => "cut points",
+            lamina_core::sweep::SweepSource::Strobe => "strobe samples",
+        };
+        let fixed = if fixed.is_empty() {
+            "no other parameters".to_string()
+        } else {
+            fixed.join(", ")
+        };
+        format!(
+            "{fixed}   |   per cell: settle {}{unit}, span {}{unit}, by {source}, rtol {:e}, atol {:e}",
+            spec.settle, spec.span, self.integrator.rtol, self.integrator.atol
+        )
+    }
+
     /// The axis label of state `idx`: its name, with its unit in parentheses if it has one
     /// (`x (um)`); empty for an index that is not a state.
     pub fn state_label(&self, idx: usize) -> String {

@@ -245,7 +245,7 @@ impl ExplorerApp {
                     session.map.labels.0.clone(),
                     session.map.labels.1.clone(),
                 );
-                figure.caption = crate::map_panel::map_caption(scenario, spec);
+                figure.caption = scenario.map_caption(spec);
                 (
                     figure,
                     Drawing::Map {
