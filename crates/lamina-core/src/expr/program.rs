@@ -1,6 +1,6 @@
 //! The compiled evaluation program: one straight-line instruction list for all outputs.
 
-use std::sync::OnceLock;
+use std::sync::{Arc, OnceLock};
 
 use super::compile::{Builder, compile_expression};
 use super::instr::{Func1, Instr};
@@ -26,18 +26,24 @@ pub struct Scratch {
 /// [`Program::specialise`] for a faster form with fixed parameters);
 /// [`Program::eval_reference`] runs the list itself, the reference the faster forms agree
 /// with.
+/// Machine code made at most once for a program and all its clones (the program's
+/// instructions never change after it is compiled, so every clone can run the same code).
+type SharedCode = Arc<OnceLock<Option<Box<NativeCode>>>>;
+
 #[derive(Clone, Debug)]
 pub struct Program {
     pub(super) instrs: Vec<Instr>,
     pub(super) outputs: Vec<u32>,
     /// The fast form (boxed: it is large, and a program sits in other types).
     fast: Option<Box<Compiled>>,
-    /// Machine code, made on first use by [`Program::specialise`] and shared by clones made
-    /// after that (boxed, as the fast form is).
-    native: OnceLock<Option<Box<NativeCode>>>,
+    /// Machine code, made on first use by [`Program::specialise`] and shared by every clone
+    /// (the cell itself is shared, so a clone made before the code was made gets it too).
+    native: SharedCode,
     /// Machine code of the Jacobian with respect to the states, made on the first
-    /// [`Program::jacobian`].
-    native_jacobian: OnceLock<Option<Box<NativeCode>>>,
+    /// [`Program::jacobian`] of this program or any clone of it, then shared by all: a regime
+    /// map or a sweep clones the model for every cell or value, and making the code again for
+    /// each cost more than a cell's exponent.
+    native_jacobian: SharedCode,
     n_states: usize,
     n_parameters: usize,
     uses_time: bool,
@@ -102,8 +108,8 @@ impl Program {
             .map(Box::new);
         Self {
             fast,
-            native: OnceLock::new(),
-            native_jacobian: OnceLock::new(),
+            native: SharedCode::default(),
+            native_jacobian: SharedCode::default(),
             instrs: kept,
             outputs,
             n_states,
@@ -177,7 +183,7 @@ impl Program {
     /// The code in `cell`, made by `make` from this program on the first call.
     fn made_once<'a>(
         &self,
-        cell: &'a OnceLock<Option<Box<NativeCode>>>,
+        cell: &'a SharedCode,
         make: fn(&[Instr], &[u32], usize, usize) -> Option<NativeCode>,
     ) -> Option<&'a NativeCode> {
         cell.get_or_init(|| {
