@@ -45,10 +45,14 @@ fn run_spec() -> RunSpec {
 
 /// Every cell of `map`, in parallel.
 fn all_cells(model: &Model, cut: &Cut, map: &RegimeMapSpec) -> Vec<MapCell> {
-    let run = run_spec();
+    all_cells_with(model, cut, map, &run_spec())
+}
+
+/// Every cell of `map` run with `run`'s integrator, in parallel.
+fn all_cells_with(model: &Model, cut: &Cut, map: &RegimeMapSpec, run: &RunSpec) -> Vec<MapCell> {
     let problem = MapProblem {
         model,
-        run: &run,
+        run,
         cut: Some(cut),
         strobe_for: &no_strobe,
         map,
@@ -98,6 +102,36 @@ fn the_brusselator_rests_below_its_hopf_curve_and_cycles_above() {
         }
     }
     assert!(judged >= 15, "only {judged} cells away from the curve");
+}
+
+#[test]
+fn cells_near_the_brusselator_hopf_curve_are_cycles_not_yet_reached_never_chaos() {
+    let (m, cut) = brusselator();
+    // the 8 x 8 benchmark map's second row: B = 1 + 3/7 lies just above 1 + A^2 for
+    // A = 0.5 and A = 9/14, where the limit cycle grows slowly over a span of 200
+    let spec = map(
+        axis(0, 0.5, 1.5, 8),
+        axis(1, 10.0 / 7.0, 10.0 / 7.0 + 1e-9, 2),
+        200.0,
+        200.0,
+    );
+    let mut run = run_spec();
+    run.control.atol = 1e-12;
+    let cells = all_cells_with(&m, &cut, &spec, &run);
+    for cell in &cells {
+        // [analytic] Poincaré–Bendixson: a bounded orbit of a plane flow tends to a resting
+        // point or a periodic orbit, so no cell of a two-state unforced model is chaotic or
+        // quasi-periodic, whatever the exponent's estimate over a short span says
+        assert!(
+            matches!(cell.regime, Regime::Resting | Regime::Periodic { .. }),
+            "{cell:?}"
+        );
+        let critical = 1.0 + cell.x * cell.x;
+        if cell.y > critical {
+            // REFERENCES case 23 [analytic]: above the Hopf curve the motion is a limit cycle
+            assert_eq!(cell.regime, Regime::Periodic { returns: 1 }, "{cell:?}");
+        }
+    }
 }
 
 /// x' = -a x + y, y' = -x - b y, cut x = 0 rising.

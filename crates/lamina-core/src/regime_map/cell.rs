@@ -241,6 +241,7 @@ pub fn run_cell(
         size: sink.size(),
         exponent,
         autonomous,
+        flow_dimension: sink.low.len() + usize::from(!autonomous),
     };
     let recurrence = RecurrenceSettings::for_control(&problem.run.control);
     let (regime, settled) = classify(&evidence, &recurrence);

@@ -21,7 +21,16 @@ pub struct Evidence<'a> {
     /// The model does not use the time (it is not forced): its periodic orbits have a zero
     /// largest exponent and its resting points a negative one.
     pub autonomous: bool,
+    /// The number of states, plus one for the time of a forced model: the dimension of the
+    /// flow. Below 3 a bounded motion can neither be chaotic nor fill a torus
+    /// (Poincaré–Bendixson), so it is read as an orbit still being approached.
+    pub flow_dimension: usize,
 }
+
+/// The least flow dimension in which a bounded motion can be chaotic or quasi-periodic
+/// (Poincaré–Bendixson theorem: a bounded orbit of a plane flow tends to a resting point or a
+/// periodic orbit).
+const LEAST_DIMENSION_FOR_CHAOS: usize = 3;
 
 /// The regime of a cell, and whether its points had settled (`false`: the points still
 /// converged or drifted at the end of the span, and the regime is the one they approach).
@@ -31,7 +40,9 @@ pub struct Evidence<'a> {
 /// returns; points still converging are read by the exponent (clearly negative in an
 /// unforced model: resting; clearly positive: chaotic; else periodic with the number of
 /// returns they approach); points that do not repeat are chaotic when the exponent is
-/// clearly positive and quasi-periodic otherwise.
+/// clearly positive and quasi-periodic otherwise. In a flow of fewer than three dimensions
+/// neither can happen: points that still move or do not repeat there are an orbit not yet
+/// reached (a short span near a Hopf point, say), and the regime is periodic and unsettled.
 pub fn classify(evidence: &Evidence<'_>, settings: &RecurrenceSettings) -> (Regime, bool) {
     if evidence.motion <= settings.tolerance(evidence.size) {
         return (Regime::Resting, true);
@@ -40,10 +51,19 @@ pub fn classify(evidence: &Evidence<'_>, settings: &RecurrenceSettings) -> (Regi
         .exponent
         .filter(|(l, b)| l.is_finite() && b.is_finite());
     let negative = exponent.is_some_and(|(l, band)| l < -band);
-    let positive = exponent.is_some_and(|(l, band)| l > band);
+    let can_be_chaotic = evidence.flow_dimension >= LEAST_DIMENSION_FOR_CHAOS;
+    let positive = can_be_chaotic && exponent.is_some_and(|(l, band)| l > band);
     let resting = negative && evidence.autonomous;
     match find_recurrence(evidence.points, settings) {
         Recurrence::Repeats { k, .. } => (Regime::Periodic { returns: k }, true),
+        Recurrence::NoRepeat { closest_k, .. } if !can_be_chaotic => {
+            let regime = if resting {
+                Regime::Resting
+            } else {
+                Regime::Periodic { returns: closest_k }
+            };
+            (regime, false)
+        }
         Recurrence::NotSettled { closest_k, .. } => {
             let regime = if resting {
                 Regime::Resting
@@ -80,6 +100,7 @@ mod tests {
             size: 1.0,
             exponent,
             autonomous: true,
+            flow_dimension: 3,
         }
     }
 
@@ -129,5 +150,22 @@ mod tests {
             lost.0,
             Regime::Failed(Failure::TooFewPoints { n_points: 0 })
         );
+    }
+
+    #[test]
+    fn a_plane_flow_is_never_chaotic_or_quasi_periodic() {
+        let settings = RecurrenceSettings::default();
+        let torus = irrational(200);
+        let plane = |exponent| Evidence {
+            flow_dimension: 2,
+            ..evidence(&torus, 2.0, Some((exponent, 0.01)))
+        };
+        // [analytic] Poincaré–Bendixson: a bounded orbit of a plane flow tends to a resting
+        // point or a periodic orbit, so points that do not repeat have not settled yet
+        for exponent in [0.5, 0.001] {
+            let (regime, settled) = classify(&plane(exponent), &settings);
+            assert!(matches!(regime, Regime::Periodic { .. }), "{regime:?}");
+            assert!(!settled);
+        }
     }
 }
