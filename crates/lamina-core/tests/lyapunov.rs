@@ -220,6 +220,17 @@ fn verdict_reads_the_spectrum() {
         classify(&[-0.1, -0.1], &small[..2], 2, true),
         Verdict::Periodic
     );
+    // [analytic] Poincaré–Bendixson: a plane flow (two unforced states, or one forced) is
+    // neither chaotic nor quasi-periodic, so such estimates mean the span was too short
+    assert_eq!(
+        classify(&[0.3, -1.0], &small[..2], 2, false),
+        Verdict::Undecided
+    );
+    assert_eq!(
+        classify(&[0.0001, -0.0002], &small[..2], 2, false),
+        Verdict::Undecided
+    );
+    assert_eq!(classify(&[0.3], &small[..1], 1, true), Verdict::Undecided);
     assert_eq!(
         classify(&[-0.1, -0.2], &small[..2], 2, false),
         Verdict::Equilibrium

@@ -188,6 +188,11 @@ pub fn zero_band(exponents: &[f64], spread: &[f64]) -> Vec<f64> {
 /// The verdict on `exponents` (largest first) with their `spread`s, for a model of
 /// `n_states` states; `time_direction_omitted` for a forced model, whose time direction
 /// adds one zero exponent that is not listed.
+///
+/// A flow of fewer than three dimensions (two unforced states, or one forced) can be neither
+/// chaotic nor quasi-periodic (Poincaré–Bendixson): where the estimates read so, the span was
+/// too short for them (a cycle still growing near a Hopf point, a slow spiral), and the
+/// verdict is [`Verdict::Undecided`].
 pub fn classify(
     exponents: &[f64],
     spread: &[f64],
@@ -203,7 +208,11 @@ pub fn classify(
         .zip(&band)
         .filter(|(l, b)| **l > **b)
         .count();
+    let plane_flow = n_states + usize::from(time_direction_omitted) < 3;
     if n_positive > 0 {
+        if plane_flow {
+            return Verdict::Undecided;
+        }
         return Verdict::Chaotic { n_positive };
     }
     let n_zero = exponents
@@ -224,6 +233,7 @@ pub fn classify(
         (0, _) => Verdict::Equilibrium,
         (1, true) => Verdict::Periodic,
         (1, false) => Verdict::Regular,
+        (_, _) if plane_flow => Verdict::Undecided,
         (n_zero, _) => Verdict::QuasiPeriodic { n_zero },
     }
 }
