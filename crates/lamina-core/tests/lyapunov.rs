@@ -231,6 +231,14 @@ fn verdict_reads_the_spectrum() {
         Verdict::Undecided
     );
     assert_eq!(classify(&[0.3], &small[..1], 1, true), Verdict::Undecided);
+    // [analytic] a 3-torus would fill a forced two-state model's whole phase space, which a
+    // damped model cannot; two exponents not resolved from zero (bands of 6 spreads of
+    // 1.8e-3 around -0.004) decide nothing
+    let wide = [1.8e-3; 2];
+    assert_eq!(
+        classify(&[-0.0040, -0.0045], &wide, 2, true),
+        Verdict::Undecided
+    );
     assert_eq!(
         classify(&[-0.1, -0.2], &small[..2], 2, false),
         Verdict::Equilibrium

@@ -390,7 +390,8 @@ impl Work {
             _ => Verdict::Undecided,
         };
         let complete = self.m == n_states;
-        let kaplan_yorke = if averaged && finished {
+        // an undecided verdict gives no dimension either: its exponents are not resolved
+        let kaplan_yorke = if averaged && finished && verdict != Verdict::Undecided {
             let settled = settled_spectrum(&self.estimates, &spread, omitted);
             match kaplan_yorke(&settled) {
                 None if complete && settled.iter().all(|l| l.is_finite()) => {

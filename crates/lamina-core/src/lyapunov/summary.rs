@@ -192,7 +192,8 @@ pub fn zero_band(exponents: &[f64], spread: &[f64]) -> Vec<f64> {
 /// A flow of fewer than three dimensions (two unforced states, or one forced) can be neither
 /// chaotic nor quasi-periodic (Poincaré–Bendixson): where the estimates read so, the span was
 /// too short for them (a cycle still growing near a Hopf point, a slow spiral), and the
-/// verdict is [`Verdict::Undecided`].
+/// verdict is [`Verdict::Undecided`]. So it is when every exponent (with the time direction
+/// of a forced model) is zero within its band: none is resolved from zero.
 pub fn classify(
     exponents: &[f64],
     spread: &[f64],
@@ -229,11 +230,15 @@ pub fn classify(
             .zip(&band)
             .next_back()
             .is_some_and(|(l, b)| *l < -*b);
+    // every direction of the flow zero within its band: no exponent is resolved from zero
+    // (a span short against the model's time scale), which says nothing of the motion
+    let flow_dimension = n_states + usize::from(time_direction_omitted);
     match (n_zero, complete) {
         (0, _) => Verdict::Equilibrium,
         (1, true) => Verdict::Periodic,
         (1, false) => Verdict::Regular,
         (_, _) if plane_flow => Verdict::Undecided,
+        (n_zero, true) if n_zero >= flow_dimension => Verdict::Undecided,
         (n_zero, _) => Verdict::QuasiPeriodic { n_zero },
     }
 }
