@@ -219,7 +219,7 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
             });
             // a new piece of line wherever the time within the period wraps around
             let wrapping_axis = axes.iter().position(|&a| a == n + 1);
-            let pieces = lamina_render::split_where_it_wraps(points, wrapping_axis);
+            let pieces = lamina_render::split_where_it_wraps(points, wrapping_axis.zip(period));
             lamina_render::trajectory_png(
                 &figure(label(axes[0]), label(axes[1]), view_names::TRAJECTORY),
                 &label(axes[2]),
@@ -249,7 +249,6 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
             } else {
                 let points: Vec<(f64, f64)> =
                     sink.cut.iter().map(|p| (p.state[a], p.state[b])).collect();
-                let order: Vec<f64> = (0..points.len()).map(|i| i as f64).collect();
                 lamina_render::scatter_png(
                     &figure(
                         scenario.state_label(a),
@@ -257,7 +256,7 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
                         view_names::CUT,
                     ),
                     &points,
-                    Some(&order),
+                    Some(lamina_render::ColourKey::Arrival),
                 )?
             }
         }
@@ -268,7 +267,6 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
                 .iter()
                 .map(|p| (p.state[a], p.state[b]))
                 .collect();
-            let order: Vec<f64> = (0..points.len()).map(|i| i as f64).collect();
             lamina_render::scatter_png(
                 &figure(
                     scenario.state_label(a),
@@ -276,7 +274,7 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
                     view_names::STROBE,
                 ),
                 &points,
-                Some(&order),
+                Some(lamina_render::ColourKey::Arrival),
             )?
         }
         View::Sweep | View::Branch | View::Map => drawn_above()?,

