@@ -11,6 +11,7 @@ use lamina_core::recurrence::{RecurrenceSettings, find_recurrence};
 
 use crate::rest_panel::{recheck_row_ui, resting_points_section_ui};
 use crate::session::{Session, map_points};
+use crate::views::plot_input;
 use crate::vocabulary::{Command, JobKind, OrbitMap, RecheckTarget};
 use crate::widgets::unit_suffix;
 
@@ -260,19 +261,29 @@ fn exponents_section_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Comma
                         .color(crate::widgets::WARNING_COLOUR),
                 );
             }
-            Plot::new("exponent_convergence")
+            let traces: Vec<Vec<[f64; 2]>> = (0..s.exponents.len())
+                .map(|series| {
+                    s.trace
+                        .t
+                        .iter()
+                        .zip(&s.trace.exponents)
+                        .filter_map(|(t, e)| e.get(series).map(|v| [*t, *v]))
+                        .collect()
+                })
+                .collect();
+            // the whole run fitted until the user zooms or pans; then the user's view stays
+            let all = || traces.iter().flatten();
+            let window = plot_input::range(all().map(|p| p[0]))
+                .zip(plot_input::range(all().map(|p| p[1])))
+                .and_then(|(t, v)| plot_input::fitted_window(t, v));
+            plot_input::plot("exponent_convergence")
                 .height(140.0)
-                .x_axis_label("t")
+                .x_axis_label(session.doc.scenario.time_label())
                 .y_axis_label("estimate")
                 .show(ui, |plot_ui| {
-                    for series in 0..s.exponents.len() {
-                        let pts: Vec<[f64; 2]> = s
-                            .trace
-                            .t
-                            .iter()
-                            .zip(&s.trace.exponents)
-                            .filter_map(|(t, e)| e.get(series).map(|v| [*t, *v]))
-                            .collect();
+                    plot_input::fit_until_user_moves(plot_ui, window);
+                    plot_input::wheel_zoom(plot_ui);
+                    for (series, pts) in traces.into_iter().enumerate() {
                         plot_ui.line(Line::new(format!("λ{}", series + 1), PlotPoints::new(pts)));
                     }
                 });

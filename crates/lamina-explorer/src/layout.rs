@@ -12,7 +12,7 @@ use crate::settings::Settings;
 use crate::views::cloud::ColourBy;
 use crate::views::series;
 use crate::views::space::{PlaneGeometry, SpaceColours, SpaceScene};
-use crate::vocabulary::{CloudAxis, Command, PointSet, ViewKind};
+use crate::vocabulary::{CloudAxis, Command, DragPhase, PointSet, ViewKind};
 use crate::widgets::unit_suffix;
 
 const MAIN_VIEWS: [ViewKind; 5] = [
@@ -330,11 +330,15 @@ pub fn lower_views_ui(ui: &mut Ui, session: &Session, chrome: &mut Chrome) {
                         } else {
                             &session.results.strobe
                         };
+                        let fixed = source_is_cut
+                            .then(|| session.doc.scenario.cut_fixed_state())
+                            .flatten();
                         series::first_return_map_ui(
                             ui,
                             cloud,
                             &session.axis_labels(),
                             &mut chrome.settings.map_coordinate,
+                            fixed,
                         );
                     },
                 );
@@ -612,10 +616,19 @@ fn tile_ui(
                 resting: &resting,
             };
             let response = chrome.settings.space.ui(ui, &scene);
-            if let (Some(new_offset), Some((_, hidden))) = (response.new_offset, plane) {
-                commands.push(Command::MoveCut {
-                    offset: new_offset + hidden,
-                });
+            if let Some((geometry, hidden)) = &plane {
+                let offset = response.new_offset.unwrap_or(geometry.offset) + hidden;
+                if response.drag_ended {
+                    commands.push(Command::MoveCut {
+                        offset,
+                        drag: DragPhase::Ends,
+                    });
+                } else if response.new_offset.is_some() {
+                    commands.push(Command::MoveCut {
+                        offset,
+                        drag: DragPhase::Continues,
+                    });
+                }
             }
         }
         ViewKind::Cut | ViewKind::Strobe => {

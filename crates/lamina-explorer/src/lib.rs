@@ -32,7 +32,7 @@ pub use app::{ExplorerApp, Options};
 pub use document::DEMO_SCENARIO;
 pub use help::{CAUTION, TAGLINE};
 pub use results::RunState;
-pub use vocabulary::{Command, JobKind, OrbitMap, PointSet, RecheckTarget, ViewKind};
+pub use vocabulary::{Command, DragPhase, JobKind, OrbitMap, PointSet, RecheckTarget, ViewKind};
 
 /// The window icon: an orbit looping twice through a cut, with its four return points
 /// (drawn by `assets/draw_icon.py`).

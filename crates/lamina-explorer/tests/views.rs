@@ -9,7 +9,7 @@ use std::time::Duration;
 use common::{steps, van_der_pol_app, wait_until};
 use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
-use lamina_explorer::{Command, ExplorerApp, PointSet, RunState, ViewKind};
+use lamina_explorer::{Command, DragPhase, ExplorerApp, PointSet, RunState, ViewKind};
 
 /// A harness of `w` x `h` around `app`.
 fn sized(app: ExplorerApp, w: f32, h: f32) -> Harness<'static, ExplorerApp> {
@@ -93,4 +93,93 @@ fn the_time_plot_exports_the_dense_lines_as_csv_and_png() {
     assert_eq!(&bytes[..8], b"\x89PNG\r\n\x1a\n");
     let width = u32::from_be_bytes([bytes[16], bytes[17], bytes[18], bytes[19]]);
     assert_eq!(width, 640);
+}
+
+#[test]
+fn the_first_return_map_starts_on_a_coordinate_the_cut_leaves_free() {
+    // a plane cut x = 0 fixes x at every cut point [analytic]: the map shows v instead
+    let mut app = van_der_pol_app();
+    app.edit_scenario(|s| {
+        s.cut = Some(lamina_scenario::Cut {
+            surface: lamina_scenario::Surface::Plane {
+                normal: lamina_scenario::Weights(vec![("x".into(), 1.0)]),
+                offset: 0.0,
+            },
+            direction: lamina_scenario::Direction::Falling,
+            axes: ("x".into(), "v".into()),
+        });
+    });
+    assert_eq!(app.first_return_coordinate(), "v");
+    // the van der Pol cut v = 0 leaves x free: the map stays on x
+    assert_eq!(van_der_pol_app().first_return_coordinate(), "x");
+}
+
+#[test]
+fn a_strobe_view_of_one_value_says_one_point() {
+    // x' = 0, v' = 0: every strobe sample is the start state [analytic]
+    let mut app = van_der_pol_app();
+    app.edit_scenario(|s| {
+        s.states = vec![
+            common::state("x", 0.8673, "0"),
+            common::state("v", 1.25, "0"),
+        ];
+        s.cut = None;
+        s.strobe = Some(lamina_scenario::Strobe {
+            period: "1".into(),
+            first_at: 0.0,
+            axes: ("x".into(), "v".into()),
+        });
+        s.time.settle = 0.0;
+        s.time.span = 20.0;
+    });
+    let mut h = sized(app, 1500.0, 950.0);
+    steps(&mut h, 2);
+    run(&mut h);
+    steps(&mut h, 3);
+    assert!(h.state().n_strobe_samples() > 10);
+    h.get_by_label_contains("one point");
+}
+
+#[test]
+fn the_mouse_wheel_zooms_the_3d_view() {
+    let mut h = sized(van_der_pol_app(), 1500.0, 950.0);
+    steps(&mut h, 2);
+    run(&mut h);
+    let before = h.state().space_zoom();
+    // the middle of the 3D view, under its title
+    let title = h.get_by_label("Trajectory (3D)").rect();
+    let inside = egui::pos2(title.left() + 120.0, title.bottom() + 150.0);
+    h.hover_at(inside);
+    h.event(egui::Event::MouseWheel {
+        unit: egui::MouseWheelUnit::Point,
+        delta: egui::vec2(0.0, 120.0),
+        modifiers: egui::Modifiers::NONE,
+        phase: egui::TouchPhase::Move,
+        source: egui::MouseWheelSource::Wheel,
+    });
+    steps(&mut h, 10);
+    let after = h.state().space_zoom();
+    // [common practice] scrolling up zooms in
+    assert!(after > before * 1.05, "{before} -> {after}");
+}
+
+#[test]
+fn a_drag_of_the_cut_logs_one_line() {
+    let mut h = sized(van_der_pol_app(), 1500.0, 950.0);
+    steps(&mut h, 2);
+    run(&mut h);
+    let resliced = |a: &ExplorerApp| a.messages().filter(|m| m.starts_with("re-sliced")).count();
+    let before = resliced(h.state());
+    for k in 1..=20 {
+        h.state_mut().command(Command::MoveCut {
+            offset: 0.01 * f64::from(k),
+            drag: DragPhase::Continues,
+        });
+    }
+    h.state_mut().command(Command::MoveCut {
+        offset: 0.2,
+        drag: DragPhase::Ends,
+    });
+    steps(&mut h, 2);
+    assert_eq!(resliced(h.state()), before + 1);
 }

@@ -163,32 +163,25 @@ impl ExplorerApp {
                         },
                     )
                 } else {
-                    let coordinate = self.chrome.settings.map_coordinate;
+                    let fixed = if session.results.cut.is_empty() {
+                        None
+                    } else {
+                        scenario.cut_fixed_state()
+                    };
+                    let coordinate = self
+                        .chrome
+                        .settings
+                        .map_coordinate
+                        .shown(cloud.dim(), fixed);
                     let value = |i: usize| match coordinate {
                         MapCoordinate::State(k) if k < cloud.dim() => cloud.coord(i, k),
                         MapCoordinate::State(_) => f64::NAN,
                         MapCoordinate::ReturnTime => cloud.return_time[i],
                     };
-                    let (name, unit) = match coordinate {
-                        MapCoordinate::State(k) => {
-                            let name = session.results.names.get(k).cloned().unwrap_or_default();
-                            let unit = scenario
-                                .state_index(&name)
-                                .and_then(|i| scenario.states[i].unit.clone());
-                            (name, unit)
-                        }
-                        MapCoordinate::ReturnTime => {
-                            ("return time".to_owned(), scenario.time.unit.clone())
-                        }
-                    };
-                    let unit = unit.map(|u| format!(" ({u})")).unwrap_or_default();
+                    let name = coordinate.label(&labels);
                     let points = (1..cloud.len()).map(|i| (value(i - 1), value(i))).collect();
                     (
-                        figure(
-                            title(view),
-                            format!("{name}(n){unit}"),
-                            format!("{name}(n+1){unit}"),
-                        ),
+                        figure(title(view), format!("{name}, n"), format!("{name}, n+1")),
                         Drawing::Scatter {
                             points,
                             colour: None,

@@ -57,3 +57,24 @@ pub fn fit_to(plot_ui: &mut PlotUi<'_>, window: Option<[f64; 4]>) {
 pub fn range(values: impl Iterator<Item = f64>) -> Option<(f64, f64)> {
     lamina_render::span::value_range(values)
 }
+
+/// Fits the plot to `window` every frame (a growing run's whole range) until the user zooms
+/// or pans it (wheel, drag, pinch); from then on the user's view is kept, until a double
+/// click fits it again. Call inside `Plot::show`, before [`wheel_zoom`].
+pub fn fit_until_user_moves(plot_ui: &mut PlotUi<'_>, window: Option<[f64; 4]>) {
+    let response = plot_ui.response().clone();
+    let ctx = plot_ui.ctx().clone();
+    let id = response.id.with("moved by the user");
+    let mut moved = ctx.data(|d| d.get_temp::<bool>(id)).unwrap_or(false);
+    if response.double_clicked() {
+        moved = false;
+    }
+    let (scroll, zoom) = ctx.input(|i| (i.smooth_scroll_delta, i.zoom_delta()));
+    if response.dragged() || (response.hovered() && (scroll != Vec2::ZERO || zoom != 1.0)) {
+        moved = true;
+    }
+    ctx.data_mut(|d| d.insert_temp(id, moved));
+    if !moved && let Some([x0, y0, x1, y1]) = window {
+        plot_ui.set_plot_bounds(egui_plot::PlotBounds::from_min_max([x0, y0], [x1, y1]));
+    }
+}

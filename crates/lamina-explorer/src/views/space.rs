@@ -213,9 +213,14 @@ pub struct SpaceScene<'a> {
 /// What the user did in the view.
 #[derive(Default)]
 pub struct SpaceResponse {
-    /// New plane offset from dragging the handle.
+    /// New plane offset from dragging the handle (the drag goes on).
     pub new_offset: Option<f64>,
+    /// A drag of the handle ended this frame.
+    pub drag_ended: bool,
 }
+
+/// How far from the handle's centre (in points) a press grabs it.
+const HANDLE_GRAB_RADIUS: f32 = 12.0;
 
 impl SpaceView {
     /// Draws the view into the available space.
@@ -293,17 +298,20 @@ impl SpaceView {
             let c = centroid(poly);
             projection.screen_from_unit(data_box.unit(c)).0
         });
-        let dragging_handle = ui.memory(|m| {
-            m.data
-                .get_temp::<bool>(response.id.with("handle"))
-                .unwrap_or(false)
-        });
+        // the handle is grabbed when the press began on it (egui reports a drag only once
+        // the pointer has moved a few pixels, by then possibly off the handle); a drag that
+        // grabbed it moves the plane only, one that did not turns the view only
+        let grab_id = response.id.with("handle");
         if response.drag_started() {
-            let near = handle_pos
-                .zip(response.interact_pointer_pos())
-                .is_some_and(|(h, p)| h.distance(p) < 12.0);
-            ui.memory_mut(|m| m.data.insert_temp(response.id.with("handle"), near));
+            let origin = ui
+                .input(|i| i.pointer.press_origin())
+                .or(response.interact_pointer_pos());
+            let on_handle = handle_pos
+                .zip(origin)
+                .is_some_and(|(h, p)| h.distance(p) < HANDLE_GRAB_RADIUS);
+            ui.memory_mut(|m| m.data.insert_temp(grab_id, on_handle));
         }
+        let dragging_handle = ui.memory(|m| m.data.get_temp::<bool>(grab_id).unwrap_or(false));
         if response.dragged() {
             let delta = response.drag_delta();
             if dragging_handle {
@@ -314,6 +322,10 @@ impl SpaceView {
                 self.yaw -= delta.x * 0.01;
                 self.pitch = (self.pitch + delta.y * 0.01).clamp(-1.55, 1.55);
             }
+        }
+        if response.drag_stopped() {
+            out.drag_ended = dragging_handle;
+            ui.memory_mut(|m| m.data.insert_temp(grab_id, false));
         }
         if response.double_clicked() {
             let axes = self.axes;
@@ -417,7 +429,10 @@ impl SpaceView {
                 colours.surface.gamma_multiply(3.0),
                 Stroke::new(1.5, Color32::WHITE),
             );
-            if response.hover_pos().is_some_and(|p| p.distance(h) < 12.0) {
+            if response
+                .hover_pos()
+                .is_some_and(|p| p.distance(h) < HANDLE_GRAB_RADIUS)
+            {
                 ui.ctx().set_cursor_icon(egui::CursorIcon::Grab);
             }
         }
