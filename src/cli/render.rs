@@ -112,7 +112,7 @@ pub fn orbit_diagram_png(
     let figure = Figure {
         size,
         title: picture_title(&scenario.title, view_names::ORBIT),
-        caption: scenario.caption(),
+        caption: scenario.sweep_caption(spec),
         x_label: scenario.parameter_label(spec.parameter),
         y_label: scenario.state_label(coordinate),
     };

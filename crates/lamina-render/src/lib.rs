@@ -15,7 +15,7 @@ mod time_plot;
 pub use branch::{BranchLine, BranchMark, branch_png};
 pub use figure::{Figure, RenderError, picture_title, view_names};
 pub use map::{GridAxis, MapTile, regime_colour, regime_legend, regime_map_png};
-pub use orbit::{orbit_diagram_png, recurrence_colour};
+pub use orbit::{orbit_diagram_png, recurrence_colour, recurrence_order};
 pub use plots::{
     ColourKey, one_point_note, scatter_png, split_where_it_wraps, thousands, trajectory_png,
 };

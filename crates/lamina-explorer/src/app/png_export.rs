@@ -267,14 +267,15 @@ impl ExplorerApp {
                     })
                     .collect();
                 let kinds = session.sweep.columns.iter().map(|(_, k)| *k).collect();
-                (
-                    figure(
-                        title(view),
-                        session.swept_parameter_label(),
-                        labels.state(coordinate),
-                    ),
-                    Drawing::Orbit { columns, kinds },
-                )
+                let mut figure = figure(
+                    title(view),
+                    session.swept_parameter_label(),
+                    labels.state(coordinate),
+                );
+                if let Some(spec) = &session.sweep.spec {
+                    figure.caption = scenario.sweep_caption(spec);
+                }
+                (figure, Drawing::Orbit { columns, kinds })
             }
             ViewKind::RegimeMap => {
                 let (Some(spec), false) = (&session.map.spec, session.map.cells.is_empty()) else {
