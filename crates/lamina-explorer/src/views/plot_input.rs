@@ -22,6 +22,16 @@ pub fn plot(id: &str) -> Plot<'static> {
 /// Zooms the plot about the pointer by the mouse wheel while it is hovered (scrolling up
 /// zooms in). Call inside `Plot::show` of a plot made by [`plot`].
 pub fn wheel_zoom(plot_ui: &mut PlotUi<'_>) {
+    wheel_zoom_along(plot_ui, [true, true]);
+}
+
+/// [`wheel_zoom`] along the horizontal axis only (a time plot: the wheel narrows the time
+/// window and the values stay in view).
+pub fn wheel_zoom_time(plot_ui: &mut PlotUi<'_>) {
+    wheel_zoom_along(plot_ui, [true, false]);
+}
+
+fn wheel_zoom_along(plot_ui: &mut PlotUi<'_>, along: [bool; 2]) {
     if !plot_ui.response().hovered() {
         return;
     }
@@ -29,7 +39,8 @@ pub fn wheel_zoom(plot_ui: &mut PlotUi<'_>) {
     let amount = if scroll.y != 0.0 { scroll.y } else { scroll.x };
     if amount != 0.0 {
         let factor = (amount * WHEEL_ZOOM_RATE).exp();
-        plot_ui.zoom_bounds_around_hovered(Vec2::splat(factor));
+        let on = |yes: bool| if yes { factor } else { 1.0 };
+        plot_ui.zoom_bounds_around_hovered(Vec2::new(on(along[0]), on(along[1])));
     }
 }
 
@@ -45,7 +56,7 @@ pub fn fitted_window(x: (f64, f64), y: (f64, f64)) -> Option<[f64; 4]> {
 pub fn fit_to(plot_ui: &mut PlotUi<'_>, window: Option<[f64; 4]>) {
     if let Some([x0, y0, x1, y1]) = window {
         plot_ui.points(
-            Points::new("window", PlotPoints::new(vec![[x0, y0], [x1, y1]]))
+            Points::new("", PlotPoints::new(vec![[x0, y0], [x1, y1]]))
                 .radius(0.0)
                 .color(egui::Color32::TRANSPARENT)
                 .allow_hover(false),

@@ -411,12 +411,14 @@ impl SpaceView {
         let n_cut = cut_points.len();
         let cut_stride = n_cut.div_ceil(MAX_DRAWN_SAMPLES / 3).max(1);
         let mut mesh = egui::Mesh::default();
+        // few points (a settled orbit's, often on top of each other) get larger dots
+        let dot = if n_cut < 5_000 { 4.5 } else { 2.6 };
         for i in (0..n_cut).step_by(cut_stride) {
             let s = cut_points.state(i);
             let u = data_box.unit(self.axes.map(|a| axis_value(a, s, cut_points.t[i], period)));
             let p = projection.screen_from_unit(u).0;
             mesh.add_colored_rect(
-                Rect::from_center_size(p, vec2(2.6, 2.6)),
+                Rect::from_center_size(p, vec2(dot, dot)),
                 colours.cut_points,
             );
         }

@@ -1,7 +1,7 @@
 //! The time plot: the chosen states against time over the recorded window, drawn from the
 //! stored run's dense output (see `dense_path.rs`), with the strobe instants (squares) and
-//! the cut crossings (diamonds) marked on the lines. The wheel zooms, dragging pans, a double
-//! click fits the whole window again. The lines, marks and colours are those of
+//! the cut crossings (diamonds) marked on the lines. The wheel zooms the time axis (Ctrl and
+//! the wheel both axes), dragging pans, a double click fits the whole window again. The lines, marks and colours are those of
 //! `lamina_render::time_plot_png`, so the PNG shows what the screen shows.
 
 use egui::{Color32, RichText, Ui};
@@ -102,7 +102,7 @@ impl TimePlotView {
             .y_axis_label(y_label)
             .legend(Legend::default())
             .show(ui, |plot_ui| {
-                plot_input::wheel_zoom(plot_ui);
+                plot_input::wheel_zoom_time(plot_ui);
                 plot_input::fit_to(plot_ui, window);
                 let bounds = plot_ui.plot_bounds();
                 let columns = plot_ui.response().rect.width().max(100.0) as usize;
