@@ -184,8 +184,21 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
     };
     let period = strobe.as_ref().map(|s| s.period);
     let mut sink = Everything::default();
-    let outcome =
-        Run::new(prepared.model, prepared.spec, cut, strobe, false).execute(&mut sink, &interrupt);
+    // the trajectory is drawn from the stored steps' dense output (ramps and the cut points
+    // on the line), the other views from the points recorded
+    let store = args.view == View::Trajectory;
+    let mut run = Run::new(prepared.model, prepared.spec, cut, strobe, store);
+    let outcome = run.execute(&mut sink, &interrupt);
+    if store {
+        let mut dense = Vec::new();
+        let stored = run.stored();
+        if lamina_render::dense_path(stored, lamina_render::MAX_DENSE_SAMPLES, |t, s| {
+            dense.push((t, s.to_vec()))
+        }) && stored.truncated_at().is_none()
+        {
+            sink.trajectory = dense;
+        }
+    }
     if let StopReason::Cancelled { t } = outcome.reason {
         return Err(Interrupted(format!(
             "stopped at t = {t} on a signal; {}",

@@ -5,6 +5,7 @@
 //! binary.
 
 mod branch;
+mod dense;
 mod figure;
 mod map;
 mod orbit;
@@ -13,6 +14,7 @@ pub mod span;
 mod time_plot;
 
 pub use branch::{BranchLine, BranchMark, branch_png};
+pub use dense::{MAX_DENSE_SAMPLES, dense_path};
 pub use figure::{Figure, RenderError, picture_title, view_names};
 pub use map::{GridAxis, MapTile, regime_colour, regime_legend, regime_map_png};
 pub use orbit::{orbit_diagram_png, recurrence_colour, recurrence_order};

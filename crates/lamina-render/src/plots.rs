@@ -89,6 +89,19 @@ pub(crate) fn picture(
 pub(crate) type Chart<'a, 'b> =
     ChartContext<'a, BitMapBackend<'b>, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
 
+/// Width of the vertical axis's label area: room for the longest tick label (a one-value
+/// series has long ones, `1.33839060`) and the axis's name beside it.
+fn y_label_area(figure: &Figure, w: u32, y0: f64, y1: f64) -> u32 {
+    let longest = [y0, y1, 0.5 * (y0 + y1)]
+        .iter()
+        .map(|&v| tick_label(v, y0, y1, TICKS).chars().count())
+        .max()
+        .unwrap_or(4);
+    let label = font_size(figure, 0.02, 11.0) * 0.6 * longest as f64;
+    let name = font_size(figure, 0.025, 12.0) * 2.2;
+    (f64::from(w) * 0.09).max(label + name) as u32
+}
+
 /// About how many ticks an axis of a 2D picture has.
 const TICKS: usize = 8;
 
@@ -109,7 +122,7 @@ pub(crate) fn axes<'a, 'b>(
                 .color(&INK),
         )
         .x_label_area_size((f64::from(h) * 0.08) as u32)
-        .y_label_area_size((f64::from(w) * 0.09) as u32)
+        .y_label_area_size(y_label_area(figure, w, y0, y1))
         .build_cartesian_2d(x0..x1, y0..y1)
         .map_err(draw_error)?;
     let x_ticks = |v: &f64| tick_label(*v, x0, x1, TICKS);

@@ -485,7 +485,7 @@ impl Scenario {
                 unit_of(p.unit.as_deref()),
                 spec.values,
                 if spec.follow {
-                    ", each from the last's end"
+                    ", each from the last"
                 } else {
                     ", each from the start"
                 }
@@ -502,11 +502,10 @@ impl Scenario {
             lamina_core::sweep::SweepSource::Strobe => "strobe samples",
         };
         format!(
-            "{range}   |   {}   |   per value: settle {}{unit}, keep {} {source} (within {}{unit}), rtol {:e}, atol {:e}",
+            "{range}   |   {}   |   per value: settle {}{unit}, keep {} {source}, rtol {:e}, atol {:e}",
             fixed.join(", "),
             Short(spec.settle),
             spec.keep,
-            Short(spec.span),
             self.integrator.rtol,
             self.integrator.atol
         )
