@@ -5,7 +5,7 @@
 //! points and the Recheck rows are drawn by `rest_panel.rs`.
 
 use egui::{Color32, RichText, Ui};
-use egui_plot::{Line, Plot, PlotPoints, Points};
+use egui_plot::{Line, PlotPoints, Points};
 use lamina_core::cycle::CycleReport;
 use lamina_core::recurrence::{RecurrenceSettings, find_recurrence};
 
@@ -279,7 +279,10 @@ fn exponents_section_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Comma
             plot_input::plot("exponent_convergence")
                 .height(140.0)
                 .x_axis_label(session.doc.scenario.time_label())
-                .y_axis_label("estimate")
+                .y_axis_label(match session.doc.scenario.time.unit.as_deref() {
+                    Some(unit) if !unit.trim().is_empty() => format!("estimate (1/{unit})"),
+                    _ => "estimate".to_owned(),
+                })
                 .show(ui, |plot_ui| {
                     plot_input::fit_until_user_moves(plot_ui, window);
                     plot_input::wheel_zoom(plot_ui);
@@ -301,10 +304,11 @@ fn unit_circle_ui(ui: &mut Ui, report: &CycleReport) {
         .collect();
     let shown = report.floquet.as_ref().unwrap_or(&report.multipliers);
     let points: Vec<[f64; 2]> = shown.iter().map(|m| [m.re, m.im]).collect();
-    Plot::new("unit_circle")
+    plot_input::plot("unit_circle")
         .height(180.0)
         .data_aspect(1.0)
         .show(ui, |plot_ui| {
+            plot_input::wheel_zoom(plot_ui);
             plot_ui.line(
                 Line::new("unit circle", PlotPoints::new(circle)).color(Color32::from_gray(140)),
             );

@@ -183,3 +183,62 @@ fn a_drag_of_the_cut_logs_one_line() {
     steps(&mut h, 2);
     assert_eq!(resliced(h.state()), before + 1);
 }
+
+/// Rows of a CSV file of numbers, after its header.
+fn csv_rows(path: &std::path::Path) -> Vec<Vec<f64>> {
+    let text = std::fs::read_to_string(path).expect("the CSV is written");
+    text.lines()
+        .skip(1)
+        .map(|l| {
+            l.split(',')
+                .map(|v| v.parse().unwrap_or(f64::NAN))
+                .collect()
+        })
+        .collect()
+}
+
+#[test]
+fn the_buck_converters_cut_points_lie_on_the_drawn_path() {
+    let dir = tempfile::TempDir::new().expect("temporary folder");
+    let file = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("../../demo_scenarios/clocked_buck_converter.ron");
+    let options = lamina_explorer::Options {
+        autostart: false,
+        ..Default::default()
+    };
+    let app = ExplorerApp::new(Some(file), Default::default(), options);
+    let mut h = sized(app, 1280.0, 800.0);
+    steps(&mut h, 2);
+    run(&mut h);
+    let path_csv = dir.path().join("path.csv");
+    let cut_csv = dir.path().join("cut.csv");
+    h.state_mut().export_csv(PointSet::TimeSeries, &path_csv);
+    h.state_mut().export_csv(PointSet::Cut, &cut_csv);
+    let path = csv_rows(&path_csv); // t, il, vo
+    let cut = csv_rows(&cut_csv); // k, t, return time, il, vo
+    assert!(cut.len() >= 90, "{} cut points", cut.len());
+    for p in &cut {
+        let t = p[1];
+        let i = path.partition_point(|r| r[0] < t);
+        assert!(
+            i > 0 && i < path.len(),
+            "cut point at t = {t} inside the path"
+        );
+        let (a, b) = (&path[i - 1], &path[i]);
+        let f = (t - a[0]) / (b[0] - a[0]);
+        let il = a[1] + f * (b[1] - a[1]);
+        let vo = a[2] + f * (b[2] - a[2]);
+        // [analytic] a cut point is a point of the trajectory: the drawn line through it
+        // passes within a small part of the ripple (about 1.3 A in il, 0.02 V in vo)
+        assert!(
+            (il - p[3]).abs() < 1e-3,
+            "il {il} against {} at t = {t}",
+            p[3]
+        );
+        assert!(
+            (vo - p[4]).abs() < 1e-4,
+            "vo {vo} against {} at t = {t}",
+            p[4]
+        );
+    }
+}
