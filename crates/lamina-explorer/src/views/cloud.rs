@@ -404,3 +404,34 @@ fn legend_ui(
         text_colour,
     );
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use lamina_core::run::CutPoint;
+
+    #[test]
+    fn hovering_a_stack_of_samples_counts_them() {
+        // [analytic] 9,750 samples at (0.8673, 1.25) up to 1e-12, then 250 elsewhere
+        let mut cloud = PointCloud::new(2);
+        for i in 0..10_000 {
+            let state = if i < 9_750 {
+                vec![0.8673 + 1e-12 * (i % 7) as f64, 1.25]
+            } else {
+                vec![i as f64, -1.0]
+            };
+            cloud.push_cut(&CutPoint {
+                t: i as f64,
+                return_time: Some(1.0),
+                state,
+            });
+        }
+        let axes = [CloudAxis::State(0), CloudAxis::State(1)];
+        let text = samples_near(&cloud, axes, 17);
+        assert!(text.starts_with("9,750 samples within "), "{text}");
+        assert_eq!(
+            samples_near(&cloud, axes, 9_900),
+            "1 sample at this point (k = 9900)"
+        );
+    }
+}

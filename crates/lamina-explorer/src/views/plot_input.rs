@@ -89,3 +89,49 @@ pub fn fit_until_user_moves(plot_ui: &mut PlotUi<'_>, window: Option<[f64; 4]>) 
         plot_ui.set_plot_bounds(egui_plot::PlotBounds::from_min_max([x0, y0], [x1, y1]));
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use egui_kittest::Harness;
+
+    #[test]
+    fn the_wheel_zooms_a_plot_instead_of_panning_it() {
+        // the last frame's bounds: [x0, y0, x1, y1]
+        let mut h = Harness::builder()
+            .with_size(egui::vec2(400.0, 300.0))
+            .build_ui_state(
+                |ui, bounds: &mut [f64; 4]| {
+                    let response = plot("wheel").show(ui, |plot_ui| {
+                        wheel_zoom(plot_ui);
+                        fit_to(plot_ui, Some([0.0, 0.0, 10.0, 10.0]));
+                    });
+                    let b = response.transform.bounds();
+                    *bounds = [b.min()[0], b.min()[1], b.max()[0], b.max()[1]];
+                },
+                [0.0; 4],
+            );
+        h.run();
+        let before = *h.state();
+        h.hover_at(egui::pos2(200.0, 150.0));
+        h.event(egui::Event::MouseWheel {
+            unit: egui::MouseWheelUnit::Point,
+            delta: egui::vec2(0.0, 120.0),
+            modifiers: egui::Modifiers::NONE,
+            phase: egui::TouchPhase::Move,
+            source: egui::MouseWheelSource::Wheel,
+        });
+        for _ in 0..10 {
+            h.step();
+        }
+        let after = *h.state();
+        // [common practice] scrolling up over a plot zooms in about the pointer: both spans
+        // shrink and the window stays around the pointer (not moved off as by a pan)
+        let (w0, w1) = (before[2] - before[0], after[2] - after[0]);
+        let (h0, h1) = (before[3] - before[1], after[3] - after[1]);
+        assert!(w1 < 0.9 * w0 && h1 < 0.9 * h0, "{before:?} -> {after:?}");
+        let centre = |b: [f64; 4]| [(b[0] + b[2]) / 2.0, (b[1] + b[3]) / 2.0];
+        let (c0, c1) = (centre(before), centre(after));
+        assert!((c0[0] - c1[0]).abs() < 0.2 * w0, "{before:?} -> {after:?}");
+    }
+}
