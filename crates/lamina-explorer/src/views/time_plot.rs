@@ -13,7 +13,8 @@ use crate::results::{AxisLabels, PointCloud, Trajectory};
 /// Most states shown at first.
 const FIRST_SHOWN: usize = 3;
 
-/// Most marks of each kind drawn per line; more are thinned evenly.
+/// Most marks of each kind drawn per line (on screen and in the picture); more are thinned
+/// evenly.
 const MAX_MARKS: usize = 4_000;
 
 /// Which states the time plot shows.
@@ -197,11 +198,14 @@ pub fn time_series(scene: &TimeScene<'_>, shown: &[usize]) -> Vec<lamina_render:
         .collect()
 }
 
+/// `(t, value of state k)` of the points of `cloud`, thinned to [`MAX_MARKS`].
 fn marks_of(cloud: &PointCloud, k: usize) -> Vec<(f64, f64)> {
     if k >= cloud.dim() {
         return Vec::new();
     }
+    let stride = cloud.len().div_ceil(MAX_MARKS).max(1);
     (0..cloud.len())
+        .step_by(stride)
         .map(|i| (cloud.t[i], cloud.coord(i, k)))
         .collect()
 }
