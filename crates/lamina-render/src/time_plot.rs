@@ -5,7 +5,7 @@
 use plotters::prelude::*;
 
 use crate::figure::{FONT, Figure, RenderError, draw_error};
-use crate::plots::{INK, axes, body, font_size, picture};
+use crate::plots::{INK, axes, body, font_size, picture, thousands};
 
 /// The colours of the time plot's lines, in the order of the states shown (the window's time
 /// plot uses the same): Lamina's deep blue, coral, green, sand, plum, then they repeat.
@@ -40,6 +40,9 @@ pub struct TimeSeries {
     pub cut: Vec<(f64, f64)>,
 }
 
+/// Least room, in pixels of width, per mark of a kind: more marks would hide the lines.
+const MARK_SPACING: usize = 6;
+
 /// Most points of one line drawn; longer lines keep the smallest and largest value of each
 /// of this many stretches, so ramps and spikes stay.
 const MAX_LINE_POINTS: usize = 20_000;
@@ -70,28 +73,51 @@ pub fn time_plot_png(figure: &Figure, series: &[TimeSeries]) -> Result<Vec<u8>, 
         }
         let [r, g, b] = STROBE_MARK;
         let strobe_colour = RGBColor(r, g, b);
-        let strobe: Vec<(f64, f64)> = series.iter().flat_map(|s| s.strobe.clone()).collect();
-        if !strobe.is_empty() {
+        // marks only when they can be told apart (one per MARK_SPACING pixels of width);
+        // else the key says how many there are
+        let room = figure.size.0 as usize / MARK_SPACING;
+        let most = |of: fn(&TimeSeries) -> usize| series.iter().map(of).max().unwrap_or(0);
+        let (n_strobe, n_cut) = (most(|s| s.strobe.len()), most(|s| s.cut.len()));
+        let strobe: Vec<(f64, f64)> = if n_strobe <= room {
+            series.iter().flat_map(|s| s.strobe.clone()).collect()
+        } else {
+            Vec::new()
+        };
+        if n_strobe > 0 {
+            let label = if strobe.is_empty() {
+                format!("{} strobe instants, too many to mark", thousands(n_strobe))
+            } else {
+                "strobe instant".to_owned()
+            };
             chart
                 .draw_series(strobe.iter().map(|&(t, v)| {
                     EmptyElement::at((t, v))
                         + Rectangle::new([(-3, -3), (3, 3)], strobe_colour.filled())
                 }))
                 .map_err(draw_error)?
-                .label("strobe instant")
+                .label(label)
                 .legend(move |(x, y)| square_at(x, y, strobe_colour));
         }
         let [r, g, b] = CUT_MARK;
         let cut_colour = RGBColor(r, g, b);
-        let cut: Vec<(f64, f64)> = series.iter().flat_map(|s| s.cut.clone()).collect();
-        if !cut.is_empty() {
+        let cut: Vec<(f64, f64)> = if n_cut <= room {
+            series.iter().flat_map(|s| s.cut.clone()).collect()
+        } else {
+            Vec::new()
+        };
+        if n_cut > 0 {
+            let label = if cut.is_empty() {
+                format!("{} cut crossings, too many to mark", thousands(n_cut))
+            } else {
+                "cut crossing".to_owned()
+            };
             chart
                 .draw_series(cut.iter().map(|&(t, v)| {
                     EmptyElement::at((t, v))
                         + Polygon::new(vec![(0, -5), (5, 0), (0, 5), (-5, 0)], cut_colour.filled())
                 }))
                 .map_err(draw_error)?
-                .label("cut crossing")
+                .label(label)
                 .legend(move |(x, y)| diamond_at(x, y, cut_colour));
         }
         chart

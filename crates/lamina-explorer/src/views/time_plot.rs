@@ -13,9 +13,12 @@ use crate::results::{AxisLabels, PointCloud, Trajectory};
 /// Most states shown at first.
 const FIRST_SHOWN: usize = 3;
 
-/// Most marks of each kind drawn per line (on screen and in the picture); more are thinned
-/// evenly.
+/// Most marks of each kind drawn per line in the picture; more are thinned evenly.
 const MAX_MARKS: usize = 4_000;
+
+/// Least room, in points of width, per mark on screen: with more marks in the time window
+/// they would hide the lines, and the key asks to zoom in instead.
+const MARK_SPACING: usize = 6;
 
 /// Which states the time plot shows.
 #[derive(Clone, Debug, Default)]
@@ -117,34 +120,46 @@ impl TimePlotView {
                             .width(1.5),
                     );
                 }
-                let marks = |cloud: &PointCloud| -> Vec<[f64; 2]> {
-                    let stride = cloud.len().div_ceil(MAX_MARKS).max(1);
-                    shown
-                        .iter()
-                        .flat_map(|&k| {
-                            (0..cloud.len())
-                                .step_by(stride)
-                                .filter(move |_| k < cloud.dim())
-                                .map(move |i| [cloud.t[i], cloud.coord(i, k)])
-                        })
-                        .collect()
+                // the marks inside the time window, when they are few enough to tell apart
+                // (at most one per MARK_SPACING points of width); else the key says to zoom
+                let (t0, t1) = (bounds.min()[0], bounds.max()[0]);
+                let room = columns / MARK_SPACING;
+                let marks = |cloud: &PointCloud| -> Option<Vec<[f64; 2]>> {
+                    let first = cloud.t.partition_point(|&t| t < t0);
+                    let last = cloud.t.partition_point(|&t| t <= t1);
+                    (last - first <= room).then(|| {
+                        shown
+                            .iter()
+                            .filter(|&&k| k < cloud.dim())
+                            .flat_map(|&k| {
+                                (first..last).map(move |i| [cloud.t[i], cloud.coord(i, k)])
+                            })
+                            .collect()
+                    })
                 };
-                let [r, g, b] = lamina_render::STROBE_MARK;
-                if !scene.strobe.is_empty() {
+                let kinds = [
+                    (scene.strobe, "strobe instant", MarkerShape::Square, 2.5, {
+                        let [r, g, b] = lamina_render::STROBE_MARK;
+                        Color32::from_rgb(r, g, b).lerp_to_gamma(Color32::WHITE, 0.8)
+                    }),
+                    (scene.cut, "cut crossing", MarkerShape::Diamond, 3.5, {
+                        let [r, g, b] = lamina_render::CUT_MARK;
+                        Color32::from_rgb(r, g, b)
+                    }),
+                ];
+                for (cloud, name, shape, radius, colour) in kinds {
+                    if cloud.is_empty() {
+                        continue;
+                    }
+                    let (name, points) = match marks(cloud) {
+                        Some(points) => (name.to_owned(), points),
+                        None => (format!("{name}s: zoom in to mark them"), Vec::new()),
+                    };
                     plot_ui.points(
-                        Points::new("strobe instant", PlotPoints::new(marks(scene.strobe)))
-                            .shape(MarkerShape::Square)
-                            .radius(2.5)
-                            .color(Color32::from_rgb(r, g, b).lerp_to_gamma(Color32::WHITE, 0.8)),
-                    );
-                }
-                let [r, g, b] = lamina_render::CUT_MARK;
-                if !scene.cut.is_empty() {
-                    plot_ui.points(
-                        Points::new("cut crossing", PlotPoints::new(marks(scene.cut)))
-                            .shape(MarkerShape::Diamond)
-                            .radius(3.5)
-                            .color(Color32::from_rgb(r, g, b)),
+                        Points::new(name, PlotPoints::new(points))
+                            .shape(shape)
+                            .radius(radius)
+                            .color(colour),
                     );
                 }
             });
