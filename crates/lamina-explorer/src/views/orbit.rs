@@ -95,7 +95,8 @@ pub fn orbit_diagram_ui(
             plot_input::wheel_zoom(plot_ui);
             // the key: one entry per label present, in the one fixed colour of its period
             for kind in &kinds {
-                plot_ui.points(
+                // added directly: `points` leaves out an empty item
+                plot_ui.add(
                     Points::new(kind.to_string(), PlotPoints::new(Vec::new()))
                         .radius(3.0)
                         .color(recurrence_colour(*kind)),

@@ -153,9 +153,11 @@ impl TimePlotView {
                     }
                     let (name, points) = match marks(cloud) {
                         Some(points) => (name.to_owned(), points),
-                        None => (format!("{name}s: zoom in to mark them"), Vec::new()),
+                        None => (format!("{name}s (zoom in)"), Vec::new()),
                     };
-                    plot_ui.points(
+                    // added directly: `points` leaves out an empty item, whose key entry
+                    // is wanted here
+                    plot_ui.add(
                         Points::new(name, PlotPoints::new(points))
                             .shape(shape)
                             .radius(radius)
