@@ -261,16 +261,7 @@ fn exponents_section_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Comma
                         .color(crate::widgets::WARNING_COLOUR),
                 );
             }
-            let traces: Vec<Vec<[f64; 2]>> = (0..s.exponents.len())
-                .map(|series| {
-                    s.trace
-                        .t
-                        .iter()
-                        .zip(&s.trace.exponents)
-                        .filter_map(|(t, e)| e.get(series).map(|v| [*t, *v]))
-                        .collect()
-                })
-                .collect();
+            let traces = convergence_lines(&s.trace);
             // the whole run fitted until the user zooms or pans; then the user's view stays
             let all = || traces.iter().flatten();
             let window = plot_input::range(all().map(|p| p[0]))
@@ -292,6 +283,16 @@ fn exponents_section_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Comma
                 });
         }
     }
+}
+
+/// The lines of the convergence plot: for each exponent its running estimate against time
+/// over the whole run (`trace.exponents[i][k]` is exponent i's estimate at `trace.t[k]`).
+fn convergence_lines(trace: &lamina_core::lyapunov::Trace) -> Vec<Vec<[f64; 2]>> {
+    trace
+        .exponents
+        .iter()
+        .map(|series| trace.t.iter().zip(series).map(|(t, v)| [*t, *v]).collect())
+        .collect()
 }
 
 /// The multipliers drawn with the unit circle.
@@ -318,4 +319,23 @@ fn unit_circle_ui(ui: &mut Ui, report: &CycleReport) {
                     .color(Color32::from_rgb(240, 112, 84)),
             );
         });
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_convergence_plot_draws_every_sample_of_every_exponent() {
+        // [analytic] two exponents sampled at t = 10, 20, 30: each line has the three
+        // samples of its own exponent, over the whole run
+        let mut trace = lamina_core::lyapunov::Trace::new(2);
+        trace.push(10.0, &[0.5, -1.5]);
+        trace.push(20.0, &[0.4, -1.2]);
+        trace.push(30.0, &[0.3, -1.1]);
+        let lines = convergence_lines(&trace);
+        assert_eq!(lines.len(), 2);
+        assert_eq!(lines[0], vec![[10.0, 0.5], [20.0, 0.4], [30.0, 0.3]]);
+        assert_eq!(lines[1], vec![[10.0, -1.5], [20.0, -1.2], [30.0, -1.1]]);
+    }
 }

@@ -134,4 +134,50 @@ mod tests {
         let (c0, c1) = (centre(before), centre(after));
         assert!((c0[0] - c1[0]).abs() < 0.2 * w0, "{before:?} -> {after:?}");
     }
+
+    #[test]
+    fn a_growing_plot_follows_its_data_until_the_user_zooms() {
+        // state: the window to fit, and the last frame's bounds
+        let mut h = Harness::builder()
+            .with_size(egui::vec2(400.0, 300.0))
+            .build_ui_state(
+                |ui, (window, bounds): &mut ([f64; 4], [f64; 4])| {
+                    let w = *window;
+                    let response = plot("grow").show(ui, |plot_ui| {
+                        fit_until_user_moves(plot_ui, Some(w));
+                        wheel_zoom(plot_ui);
+                    });
+                    let b = response.transform.bounds();
+                    *bounds = [b.min()[0], b.min()[1], b.max()[0], b.max()[1]];
+                },
+                ([0.0, -1.0, 2.0, 1.0], [0.0; 4]),
+            );
+        h.run();
+        // [common practice] the run grows from t = 2 to t = 1000: the plot shows all of it
+        h.state_mut().0 = [0.0, -1.0, 1000.0, 1.0];
+        for _ in 0..3 {
+            h.step();
+        }
+        let b = h.state().1;
+        assert!(b[0] <= 0.0 && b[2] >= 1000.0, "{b:?}");
+        // the user zooms: the user's view stays while the data grows further
+        h.hover_at(egui::pos2(200.0, 150.0));
+        h.event(egui::Event::MouseWheel {
+            unit: egui::MouseWheelUnit::Point,
+            delta: egui::vec2(0.0, 200.0),
+            modifiers: egui::Modifiers::NONE,
+            phase: egui::TouchPhase::Move,
+            source: egui::MouseWheelSource::Wheel,
+        });
+        for _ in 0..10 {
+            h.step();
+        }
+        let zoomed = h.state().1;
+        assert!(zoomed[2] - zoomed[0] < 900.0, "{zoomed:?}");
+        h.state_mut().0 = [0.0, -1.0, 2000.0, 1.0];
+        for _ in 0..3 {
+            h.step();
+        }
+        assert_eq!(h.state().1, zoomed);
+    }
 }
