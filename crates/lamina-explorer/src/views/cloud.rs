@@ -173,9 +173,10 @@ impl CloudView {
             && e.one_point
         {
             // a label of its own (not painted text), so that it can be read out and tested
+            // bottom left, clear of the colour key in the top right corner
             let note = Rect::from_min_size(
-                frame.left_top() + vec2(8.0, 6.0),
-                vec2((frame.width() - 120.0).max(60.0), 18.0),
+                frame.left_bottom() + vec2(8.0, -24.0),
+                vec2((frame.width() - 16.0).max(60.0), 18.0),
             );
             ui.put(
                 note,
