@@ -435,7 +435,8 @@ pub fn main_views_ui(
         let gap = 8.0;
         let n = shown.len();
         let rows: Vec<&[usize]> = if n >= 4 && (full.width() / n as f32) < MIN_TILE_WIDTH {
-            vec![&shown[..n.div_ceil(2)], &shown[n.div_ceil(2)..]]
+            // five: the 3D view and the time plot above, the three 2D views below
+            vec![&shown[..n / 2], &shown[n / 2..]]
         } else {
             vec![&shown[..]]
         };
