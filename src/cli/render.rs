@@ -112,7 +112,7 @@ pub fn orbit_diagram_png(
     let figure = Figure {
         size,
         title: picture_title(&scenario.title, view_names::ORBIT),
-        caption: scenario.caption(),
+        caption: scenario.sweep_caption(spec),
         x_label: scenario.parameter_label(spec.parameter),
         y_label: scenario.state_label(coordinate),
     };
@@ -184,8 +184,21 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
     };
     let period = strobe.as_ref().map(|s| s.period);
     let mut sink = Everything::default();
-    let outcome =
-        Run::new(prepared.model, prepared.spec, cut, strobe, false).execute(&mut sink, &interrupt);
+    // the trajectory is drawn from the stored steps' dense output (ramps and the cut points
+    // on the line), the other views from the points recorded
+    let store = args.view == View::Trajectory;
+    let mut run = Run::new(prepared.model, prepared.spec, cut, strobe, store);
+    let outcome = run.execute(&mut sink, &interrupt);
+    if store {
+        let mut dense = Vec::new();
+        let stored = run.stored();
+        if lamina_render::dense_path(stored, lamina_render::MAX_DENSE_SAMPLES, |t, s| {
+            dense.push((t, s.to_vec()))
+        }) && stored.truncated_at().is_none()
+        {
+            sink.trajectory = dense;
+        }
+    }
     if let StopReason::Cancelled { t } = outcome.reason {
         return Err(Interrupted(format!(
             "stopped at t = {t} on a signal; {}",
@@ -219,7 +232,7 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
             });
             // a new piece of line wherever the time within the period wraps around
             let wrapping_axis = axes.iter().position(|&a| a == n + 1);
-            let pieces = lamina_render::split_where_it_wraps(points, wrapping_axis);
+            let pieces = lamina_render::split_where_it_wraps(points, wrapping_axis.zip(period));
             lamina_render::trajectory_png(
                 &figure(label(axes[0]), label(axes[1]), view_names::TRAJECTORY),
                 &label(axes[2]),
@@ -249,7 +262,6 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
             } else {
                 let points: Vec<(f64, f64)> =
                     sink.cut.iter().map(|p| (p.state[a], p.state[b])).collect();
-                let order: Vec<f64> = (0..points.len()).map(|i| i as f64).collect();
                 lamina_render::scatter_png(
                     &figure(
                         scenario.state_label(a),
@@ -257,7 +269,7 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
                         view_names::CUT,
                     ),
                     &points,
-                    Some(&order),
+                    Some(lamina_render::ColourKey::Arrival),
                 )?
             }
         }
@@ -268,7 +280,6 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
                 .iter()
                 .map(|p| (p.state[a], p.state[b]))
                 .collect();
-            let order: Vec<f64> = (0..points.len()).map(|i| i as f64).collect();
             lamina_render::scatter_png(
                 &figure(
                     scenario.state_label(a),
@@ -276,7 +287,7 @@ pub fn render(args: &RenderArgs) -> Result<ExitCode> {
                     view_names::STROBE,
                 ),
                 &points,
-                Some(&order),
+                Some(lamina_render::ColourKey::Arrival),
             )?
         }
         View::Sweep | View::Branch | View::Map => drawn_above()?,

@@ -5,12 +5,13 @@
 //! points and the Recheck rows are drawn by `rest_panel.rs`.
 
 use egui::{Color32, RichText, Ui};
-use egui_plot::{Line, Plot, PlotPoints, Points};
+use egui_plot::{Line, PlotPoints, Points};
 use lamina_core::cycle::CycleReport;
 use lamina_core::recurrence::{RecurrenceSettings, find_recurrence};
 
 use crate::rest_panel::{recheck_row_ui, resting_points_section_ui};
 use crate::session::{Session, map_points};
+use crate::views::plot_input;
 use crate::vocabulary::{Command, JobKind, OrbitMap, RecheckTarget};
 use crate::widgets::unit_suffix;
 
@@ -260,24 +261,38 @@ fn exponents_section_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Comma
                         .color(crate::widgets::WARNING_COLOUR),
                 );
             }
-            Plot::new("exponent_convergence")
+            let traces = convergence_lines(&s.trace);
+            // the whole run fitted until the user zooms or pans; then the user's view stays
+            let all = || traces.iter().flatten();
+            let window = plot_input::range(all().map(|p| p[0]))
+                .zip(plot_input::range(all().map(|p| p[1])))
+                .and_then(|(t, v)| plot_input::fitted_window(t, v));
+            plot_input::plot("exponent_convergence")
                 .height(140.0)
-                .x_axis_label("t")
-                .y_axis_label("estimate")
+                .x_axis_label(session.doc.scenario.time_label())
+                .y_axis_label(match session.doc.scenario.time.unit.as_deref() {
+                    Some(unit) if !unit.trim().is_empty() => format!("estimate (1/{unit})"),
+                    _ => "estimate".to_owned(),
+                })
                 .show(ui, |plot_ui| {
-                    for series in 0..s.exponents.len() {
-                        let pts: Vec<[f64; 2]> = s
-                            .trace
-                            .t
-                            .iter()
-                            .zip(&s.trace.exponents)
-                            .filter_map(|(t, e)| e.get(series).map(|v| [*t, *v]))
-                            .collect();
+                    plot_input::fit_until_user_moves(plot_ui, window);
+                    plot_input::wheel_zoom(plot_ui);
+                    for (series, pts) in traces.into_iter().enumerate() {
                         plot_ui.line(Line::new(format!("λ{}", series + 1), PlotPoints::new(pts)));
                     }
                 });
         }
     }
+}
+
+/// The lines of the convergence plot: for each exponent its running estimate against time
+/// over the whole run (`trace.exponents[i][k]` is exponent i's estimate at `trace.t[k]`).
+fn convergence_lines(trace: &lamina_core::lyapunov::Trace) -> Vec<Vec<[f64; 2]>> {
+    trace
+        .exponents
+        .iter()
+        .map(|series| trace.t.iter().zip(series).map(|(t, v)| [*t, *v]).collect())
+        .collect()
 }
 
 /// The multipliers drawn with the unit circle.
@@ -290,10 +305,11 @@ fn unit_circle_ui(ui: &mut Ui, report: &CycleReport) {
         .collect();
     let shown = report.floquet.as_ref().unwrap_or(&report.multipliers);
     let points: Vec<[f64; 2]> = shown.iter().map(|m| [m.re, m.im]).collect();
-    Plot::new("unit_circle")
+    plot_input::plot("unit_circle")
         .height(180.0)
         .data_aspect(1.0)
         .show(ui, |plot_ui| {
+            plot_input::wheel_zoom(plot_ui);
             plot_ui.line(
                 Line::new("unit circle", PlotPoints::new(circle)).color(Color32::from_gray(140)),
             );
@@ -303,4 +319,23 @@ fn unit_circle_ui(ui: &mut Ui, report: &CycleReport) {
                     .color(Color32::from_rgb(240, 112, 84)),
             );
         });
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_convergence_plot_draws_every_sample_of_every_exponent() {
+        // [analytic] two exponents sampled at t = 10, 20, 30: each line has the three
+        // samples of its own exponent, over the whole run
+        let mut trace = lamina_core::lyapunov::Trace::new(2);
+        trace.push(10.0, &[0.5, -1.5]);
+        trace.push(20.0, &[0.4, -1.2]);
+        trace.push(30.0, &[0.3, -1.1]);
+        let lines = convergence_lines(&trace);
+        assert_eq!(lines.len(), 2);
+        assert_eq!(lines[0], vec![[10.0, 0.5], [20.0, 0.4], [30.0, 0.3]]);
+        assert_eq!(lines[1], vec![[10.0, -1.5], [20.0, -1.2], [30.0, -1.1]]);
+    }
 }

@@ -2,8 +2,10 @@
 //! which side windows are open, and what the views keep for the current document.
 
 use crate::analysis::SummaryCache;
+use crate::dense_path::DensePath;
 use crate::settings::Settings;
 use crate::views::cloud::CloudView;
+use crate::views::time_plot::TimePlotView;
 
 /// What the views keep between frames for the current document and results: the cloud
 /// views' selections and density images, and the analysis summary. Reset when the document
@@ -23,6 +25,10 @@ pub struct ViewState {
     /// The view picked for the orbit diagram's tile (orbit diagram or regime map; `None`:
     /// chosen from the scenario).
     pub fourth: Option<crate::vocabulary::ViewKind>,
+    /// The states the time plot shows.
+    pub time_plot: TimePlotView,
+    /// The finished run's dense path, which the 3D view and the time plot draw.
+    pub dense: DensePath,
 }
 
 /// The window's own state around the session: settings, the views' state and which of the

@@ -29,7 +29,11 @@ pub const SHORTCUTS: &[(&str, &str)] = &[
         "drag in 3D view",
         "Turn the view (drag the round handle to move the cut plane)",
     ),
-    ("wheel in a view", "Zoom"),
+    (
+        "wheel in a view",
+        "Zoom about the pointer (the time plot: its time axis; Ctrl+wheel both axes)",
+    ),
+    ("drag in a 2D view", "Pan"),
     ("double-click a view", "Fit the view to the data"),
 ];
 

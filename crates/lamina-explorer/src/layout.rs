@@ -12,15 +12,25 @@ use crate::settings::Settings;
 use crate::views::cloud::ColourBy;
 use crate::views::series;
 use crate::views::space::{PlaneGeometry, SpaceColours, SpaceScene};
-use crate::vocabulary::{CloudAxis, Command, PointSet, ViewKind};
+use crate::vocabulary::{CloudAxis, Command, DragPhase, PointSet, ViewKind};
 use crate::widgets::unit_suffix;
 
-const MAIN_VIEWS: [ViewKind; 4] = [
+const MAIN_VIEWS: [ViewKind; 5] = [
     ViewKind::Trajectory,
     ViewKind::Cut,
     ViewKind::Strobe,
     ViewKind::Orbit,
+    ViewKind::TimePlot,
 ];
+
+/// The relative width of main view `i` (the time plot's is kept apart from the four older
+/// ones, so remembered settings still load).
+fn tile_weight(settings: &mut Settings, i: usize) -> &mut f32 {
+    match settings.tile_weights.get_mut(i) {
+        Some(w) => w,
+        None => &mut settings.time_plot_weight,
+    }
+}
 
 /// Two axis pickers: states, t, return time. Returns the new choice if changed.
 fn cloud_axes_ui(
@@ -112,6 +122,7 @@ pub fn menu_bar_ui(
                         (PointSet::Trajectory, "Trajectory"),
                         (PointSet::Sweep, "Sweep (orbit diagram)"),
                         (PointSet::Map, "Regime map"),
+                        (PointSet::TimeSeries, "Time plot (lines shown)"),
                     ] {
                         if ui.button(text).clicked() {
                             commands.push(Command::ExportCsv(set));
@@ -139,6 +150,7 @@ pub fn menu_bar_ui(
                         ViewKind::Strobe,
                         ViewKind::ReturnTimes,
                         ViewKind::ReturnMap,
+                        ViewKind::TimePlot,
                         ViewKind::Orbit,
                         ViewKind::RegimeMap,
                     ] {
@@ -318,11 +330,15 @@ pub fn lower_views_ui(ui: &mut Ui, session: &Session, chrome: &mut Chrome) {
                         } else {
                             &session.results.strobe
                         };
+                        let fixed = source_is_cut
+                            .then(|| session.doc.scenario.cut_fixed_state())
+                            .flatten();
                         series::first_return_map_ui(
                             ui,
                             cloud,
                             &session.axis_labels(),
                             &mut chrome.settings.map_coordinate,
+                            fixed,
                         );
                     },
                 );
@@ -392,11 +408,11 @@ fn plane_in_view(session: &Session, settings: &Settings) -> Option<(PlaneGeometr
     ))
 }
 
-/// Narrowest a main view is laid out side by side with the others; below this the four views
-/// of a sweep go into two rows of two.
+/// Narrowest a main view is laid out side by side with the others; below this four or five
+/// views go into two rows.
 const MIN_TILE_WIDTH: f32 = 330.0;
 
-/// The main views side by side (or, when four would be too narrow, in two rows of two),
+/// The main views side by side (or, when four or five would be too narrow, in two rows),
 /// resizable, each with an enlarge button.
 pub fn main_views_ui(
     ui: &mut Ui,
@@ -407,18 +423,20 @@ pub fn main_views_ui(
     egui::CentralPanel::default().show(ui, |ui| {
         let full = ui.available_rect_before_wrap();
         let shown: Vec<usize> = match chrome.settings.maximised {
-            Some(m) if m < 4 => vec![m],
+            Some(m) if m < MAIN_VIEWS.len() => vec![m],
             _ if session.doc.scenario.sweep.is_some()
                 || !session.sweep.columns.is_empty()
                 || crate::map_panel::map_is_default(session) =>
             {
-                vec![0, 1, 2, 3]
+                vec![0, 4, 1, 2, 3]
             }
-            _ => vec![0, 1, 2],
+            _ => vec![0, 4, 1, 2],
         };
         let gap = 8.0;
-        let rows: Vec<&[usize]> = if shown.len() == 4 && full.width() / 4.0 < MIN_TILE_WIDTH {
-            vec![&shown[..2], &shown[2..]]
+        let n = shown.len();
+        let rows: Vec<&[usize]> = if n >= 4 && (full.width() / n as f32) < MIN_TILE_WIDTH {
+            // five: the 3D view and the time plot above, the three 2D views below
+            vec![&shown[..n / 2], &shown[n / 2..]]
         } else {
             vec![&shown[..]]
         };
@@ -458,13 +476,13 @@ fn row_ui(
 ) -> Vec<(usize, Rect)> {
     let total_weight: f32 = row
         .iter()
-        .map(|&i| settings.tile_weights[i].max(0.05))
+        .map(|&i| tile_weight(settings, i).max(0.05))
         .sum();
     let usable = band.width() - gap * (row.len() as f32 - 1.0);
     let mut x = band.left();
     let mut rects = Vec::new();
     for &i in row {
-        let w = usable * settings.tile_weights[i].max(0.05) / total_weight;
+        let w = usable * tile_weight(settings, i).max(0.05) / total_weight;
         rects.push((
             i,
             Rect::from_min_size(egui::pos2(x, band.top()), vec2(w, band.height())),
@@ -491,10 +509,13 @@ fn row_ui(
         );
         if response.dragged() {
             let dx = response.drag_delta().x / usable * total_weight;
-            let (wa, wb) = (settings.tile_weights[a] + dx, settings.tile_weights[b] - dx);
+            let (wa, wb) = (
+                *tile_weight(settings, a) + dx,
+                *tile_weight(settings, b) - dx,
+            );
             if wa > 0.15 && wb > 0.15 {
-                settings.tile_weights[a] = wa;
-                settings.tile_weights[b] = wb;
+                *tile_weight(settings, a) = wa;
+                *tile_weight(settings, b) = wb;
             }
         }
     }
@@ -587,7 +608,7 @@ fn tile_ui(
             let labels = session.axis_labels();
             let scene = SpaceScene {
                 labels: &labels,
-                trajectory: &session.results.trajectory,
+                trajectory: chrome.view.dense.of(&session.results),
                 cut_points: &session.results.cut,
                 plane: plane.as_ref().map(|(p, _)| p),
                 colours: &colours,
@@ -596,10 +617,19 @@ fn tile_ui(
                 resting: &resting,
             };
             let response = chrome.settings.space.ui(ui, &scene);
-            if let (Some(new_offset), Some((_, hidden))) = (response.new_offset, plane) {
-                commands.push(Command::MoveCut {
-                    offset: new_offset + hidden,
-                });
+            if let Some((geometry, hidden)) = &plane {
+                let offset = response.new_offset.unwrap_or(geometry.offset) + hidden;
+                if response.drag_ended {
+                    commands.push(Command::MoveCut {
+                        offset,
+                        drag: DragPhase::Ends,
+                    });
+                } else if response.new_offset.is_some() {
+                    commands.push(Command::MoveCut {
+                        offset,
+                        drag: DragPhase::Continues,
+                    });
+                }
             }
         }
         ViewKind::Cut | ViewKind::Strobe => {
@@ -680,6 +710,9 @@ fn tile_ui(
             });
         }
         ViewKind::Orbit => crate::sweep_panel::orbit_tile_ui(ui, session, commands),
+        ViewKind::TimePlot => {
+            crate::time_plot_tile::time_plot_tile_ui(ui, session, chrome, commands)
+        }
         ViewKind::RegimeMap => crate::map_panel::map_tile_ui(ui, session, commands),
         ViewKind::ReturnTimes | ViewKind::ReturnMap => {}
     }

@@ -8,6 +8,7 @@ mod analysis;
 mod app;
 mod branch_panel;
 mod chrome;
+mod dense_path;
 mod document;
 mod help;
 mod jobs;
@@ -19,6 +20,7 @@ mod results;
 mod session;
 mod settings;
 mod sweep_panel;
+mod time_plot_tile;
 mod views;
 mod vocabulary;
 mod widgets;
@@ -30,7 +32,7 @@ pub use app::{ExplorerApp, Options};
 pub use document::DEMO_SCENARIO;
 pub use help::{CAUTION, TAGLINE};
 pub use results::RunState;
-pub use vocabulary::{Command, JobKind, OrbitMap, PointSet, RecheckTarget, ViewKind};
+pub use vocabulary::{Command, DragPhase, JobKind, OrbitMap, PointSet, RecheckTarget, ViewKind};
 
 /// The window icon: an orbit looping twice through a cut, with its four return points
 /// (drawn by `assets/draw_icon.py`).

@@ -20,6 +20,8 @@ pub struct Settings {
     pub recent: Vec<PathBuf>,
     /// Relative widths of the main views (trajectory, cut, strobe, orbit diagram).
     pub tile_weights: [f32; 4],
+    /// Relative width of the time plot beside the other main views.
+    pub time_plot_weight: f32,
     /// The maximised view, if any.
     pub maximised: Option<usize>,
     /// Colouring of the cut view.
@@ -39,6 +41,7 @@ impl Default for Settings {
         Self {
             recent: Vec::new(),
             tile_weights: [1.0, 1.0, 1.0, 1.2],
+            time_plot_weight: 1.2,
             maximised: None,
             cut_colour: ColourBy::Arrival,
             strobe_colour: ColourBy::Arrival,

@@ -25,6 +25,20 @@ pub fn unit_suffix(unit: Option<&str>) -> String {
     }
 }
 
+/// Where a command stands in a gesture of the mouse (a drag of the cut plane's handle): a
+/// drag sends one command per frame, `Continues`, and one at its end, `Ends`, with the value
+/// it ended at. Everything kept per change (the log line, an undo step) is kept once per
+/// drag: the `Continues` commands are folded into the `Ends` that follows them.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum DragPhase {
+    /// A change on its own, not part of a drag.
+    Single,
+    /// The drag goes on: more moves of the same thing follow.
+    Continues,
+    /// The drag ended here: the change of the whole drag.
+    Ends,
+}
+
 /// The views that can be shown and exported.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
 pub enum ViewKind {
@@ -42,6 +56,8 @@ pub enum ViewKind {
     Orbit,
     /// The regime map over two parameters.
     RegimeMap,
+    /// The chosen states against time over the recorded window.
+    TimePlot,
 }
 
 impl ViewKind {
@@ -56,6 +72,7 @@ impl ViewKind {
             Self::ReturnMap => view_names::RETURN_MAP,
             Self::Orbit => view_names::ORBIT,
             Self::RegimeMap => view_names::REGIME_MAP,
+            Self::TimePlot => view_names::TIME_PLOT,
         }
     }
 
@@ -69,6 +86,7 @@ impl ViewKind {
             Self::ReturnMap => "first_return_map",
             Self::Orbit => "orbit_diagram",
             Self::RegimeMap => "regime_map",
+            Self::TimePlot => "time_plot",
         }
     }
 }
@@ -86,6 +104,8 @@ pub enum PointSet {
     Sweep,
     /// The regime map's cells: `<x parameter>,<y parameter>,regime,returns,lyapunov`.
     Map,
+    /// The time plot's lines as drawn: `t,<states shown>`.
+    TimeSeries,
 }
 
 impl PointSet {
@@ -97,6 +117,7 @@ impl PointSet {
             Self::Trajectory => "trajectory",
             Self::Sweep => "sweep",
             Self::Map => "regime_map",
+            Self::TimeSeries => "time_plot",
         }
     }
 }
@@ -259,10 +280,13 @@ pub enum Command {
         /// New value.
         value: f64,
     },
-    /// Move the plane cut to this offset (a drag in the 3D view) and re-slice.
+    /// Move the plane cut to this offset (a drag of its handle in the 3D view) and re-slice.
     MoveCut {
         /// The plane's new offset.
         offset: f64,
+        /// Where this move stands in the drag that makes it: one drag is many `Continues`
+        /// moves and one `Ends`, so it is one change (one log line, one undo step).
+        drag: DragPhase,
     },
     /// Axes picked in the cut or strobe view.
     ChooseCloudAxes(ViewKind, [CloudAxis; 2]),

@@ -393,11 +393,17 @@ fn four_views_too_narrow_for_one_row_go_into_two() {
         .with_accessibility_check(false)
         .build_ui_state(|ui, app: &mut ExplorerApp| app.show_ui(ui), app);
     steps(&mut h, 3);
+    // five with the time plot: the 3D view and the time plot above, the 2D views below
     let trajectory = title_rect(&h, "Trajectory (3D)");
+    let time_plot = title_rect(&h, "Time plot");
     let cut = title_rect(&h, "Cut points");
     let strobe = title_rect(&h, "Strobe samples");
     let orbit = title_rect(&h, "Orbit diagram");
-    assert!((trajectory.top() - cut.top()).abs() < 1.0, "first row");
+    assert!(
+        (trajectory.top() - time_plot.top()).abs() < 1.0,
+        "first row"
+    );
+    assert!((cut.top() - strobe.top()).abs() < 1.0, "second row");
     assert!((strobe.top() - orbit.top()).abs() < 1.0, "second row");
     assert!(strobe.top() > trajectory.bottom() + 100.0, "rows stacked");
     // wide enough: one row of four

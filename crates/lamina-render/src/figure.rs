@@ -76,6 +76,8 @@ pub mod view_names {
     pub const ORBIT_BRANCH: &str = "Branch of periodic orbits";
     /// The regime map over two parameters.
     pub const REGIME_MAP: &str = "Regime map";
+    /// The chosen states against time.
+    pub const TIME_PLOT: &str = "Time plot";
 }
 
 impl Figure {

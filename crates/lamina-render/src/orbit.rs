@@ -7,25 +7,40 @@ use lamina_core::recurrence::RecurrenceKind;
 use plotters::prelude::*;
 
 use crate::figure::{FONT, Figure, RenderError, draw_error};
-use crate::plots::{INK, TRACE, axes, body, dot_radius, font_size, picture, ramp};
+use crate::plots::{INK, TRACE, axes, body, dot_radius, font_size, picture};
 
-/// The colour of a label: an orbit of k returns along Lamina's ramp (1 deep blue, 2 teal,
-/// 4 green, 8 sand), "no repeat" coral, "not settled" grey (its points say nothing yet),
-/// "too few points" light grey.
+/// The one fixed colour of each repeat period, 1 to 12 returns: Lamina's own palette, chosen
+/// so that neighbouring periods (a period doubling 1, 2, 4, 8) differ clearly.
+const PERIOD_COLOURS: [[u8; 3]; 12] = [
+    [40, 96, 170],   // 1 deep blue
+    [56, 150, 100],  // 2 green
+    [196, 150, 40],  // 3 ochre
+    [140, 80, 160],  // 4 plum
+    [60, 170, 190],  // 5 teal
+    [160, 100, 60],  // 6 brown
+    [100, 120, 220], // 7 periwinkle
+    [214, 120, 170], // 8 rose
+    [120, 160, 50],  // 9 olive
+    [70, 80, 110],   // 10 slate
+    [230, 190, 90],  // 11 sand
+    [80, 200, 150],  // 12 mint
+];
+
+/// The colour of a label, the same on screen and in every picture: a repeat after k returns
+/// its period's own colour (k from 1 to 12; longer ones, which the detector does not report,
+/// the colour of 12), "no repeat" coral, "not settled" grey (its points say nothing yet), "too
+/// few points" light grey.
 pub fn recurrence_colour(kind: RecurrenceKind) -> [u8; 3] {
     match kind {
-        RecurrenceKind::Returns(k) => {
-            let RGBColor(r, g, b) = ramp(((k.max(1) as f64).log2() / 4.0).min(0.85));
-            [r, g, b]
-        }
+        RecurrenceKind::Returns(k) => PERIOD_COLOURS[k.clamp(1, 12) - 1],
         RecurrenceKind::NoRepeat { .. } => [228, 96, 70],
         RecurrenceKind::NotSettled => [150, 152, 160],
         RecurrenceKind::TooFewPoints => [200, 202, 208],
     }
 }
 
-/// The order of labels in a legend: orbits by returns, then no repeat, not settled, too few.
-fn legend_order(kind: &RecurrenceKind) -> (usize, usize) {
+/// The order of labels in a key: orbits by returns, then no repeat, not settled, too few.
+pub fn recurrence_order(kind: &RecurrenceKind) -> (usize, usize) {
     match kind {
         RecurrenceKind::Returns(k) => (0, *k),
         RecurrenceKind::NoRepeat { max_k } => (1, *max_k),
@@ -70,7 +85,7 @@ pub fn orbit_diagram_png(
                 present.push(kind);
             }
         }
-        present.sort_by_key(legend_order);
+        present.sort_by_key(recurrence_order);
         for kind in present {
             let [r, g, b] = recurrence_colour(kind);
             let colour = RGBColor(r, g, b);
@@ -111,13 +126,12 @@ mod tests {
 
     #[test]
     fn labels_have_distinct_colours() {
-        let kinds = [
-            RecurrenceKind::Returns(1),
-            RecurrenceKind::Returns(2),
-            RecurrenceKind::Returns(4),
+        let mut kinds: Vec<RecurrenceKind> = (1..=12).map(RecurrenceKind::Returns).collect();
+        kinds.extend([
             RecurrenceKind::NoRepeat { max_k: 12 },
             RecurrenceKind::NotSettled,
-        ];
+            RecurrenceKind::TooFewPoints,
+        ]);
         for (i, a) in kinds.iter().enumerate() {
             for b in &kinds[i + 1..] {
                 assert_ne!(recurrence_colour(*a), recurrence_colour(*b), "{a} and {b}");

@@ -465,6 +465,52 @@ impl Scenario {
         )
     }
 
+    /// One line for a sweep's caption (its orbit diagram): the swept parameter's range with
+    /// its unit and number of values, the parameters the sweep leaves fixed, the settle time
+    /// and what is kept per value, and the tolerances. The main run's time window and the
+    /// swept parameter's current value play no part in a sweep, so they are not shown.
+    pub fn sweep_caption(&self, spec: &lamina_core::sweep::SweepSpec) -> String {
+        let swept = self.parameters.get(spec.parameter);
+        let unit_of = |u: Option<&str>| {
+            u.filter(|u| !u.trim().is_empty())
+                .map(|u| format!(" {u}"))
+                .unwrap_or_default()
+        };
+        let range = match swept {
+            Some(p) => format!(
+                "{} from {} to {}{} ({} values{})",
+                p.name,
+                Short(spec.from),
+                Short(spec.to),
+                unit_of(p.unit.as_deref()),
+                spec.values,
+                if spec.follow {
+                    ", each from the last"
+                } else {
+                    ", each from the start"
+                }
+            ),
+            None => String::new(),
+        };
+        let fixed: Vec<String> = (self.parameters.iter().enumerate())
+            .filter(|(idx, _)| *idx != spec.parameter)
+            .map(|(_, p)| format!("{} = {}", p.name, with_unit(p.value, p.unit.as_deref())))
+            .collect();
+        let unit = unit_of(self.time.unit.as_deref());
+        let source = match spec.source {
+            lamina_core::sweep::SweepSource::Cut => "cut points",
+            lamina_core::sweep::SweepSource::Strobe => "strobe samples",
+        };
+        format!(
+            "{range}   |   {}   |   per value: settle {}{unit}, keep {} {source}, rtol {:e}, atol {:e}",
+            fixed.join(", "),
+            Short(spec.settle),
+            spec.keep,
+            self.integrator.rtol,
+            self.integrator.atol
+        )
+    }
+
     /// The axis label of state `idx`: its name, with its unit in parentheses if it has one
     /// (`x (um)`); empty for an index that is not a state.
     pub fn state_label(&self, idx: usize) -> String {

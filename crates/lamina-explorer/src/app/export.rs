@@ -1,5 +1,6 @@
-//! Exports from the window: CSV of cut points, strobe samples and the trajectory (the same
-//! columns as the command line), and PNG of any view at a chosen size (drawn again at that
+//! Exports from the window: CSV of cut points, strobe samples, the trajectory (the same
+//! columns as the command line) and the time plot's lines as drawn (`t` and the states shown,
+//! along the finished run's dense path), and PNG of any view at a chosen size (drawn again at that
 //! size, see `png_export.rs`).
 
 use std::path::{Path, PathBuf};
@@ -31,7 +32,7 @@ impl ExplorerApp {
     }
 
     /// Writes `set` to `path` atomically.
-    pub(crate) fn export_csv(&mut self, set: PointSet, path: &Path) {
+    pub fn export_csv(&mut self, set: PointSet, path: &Path) {
         let names = self.session.results.names.clone();
         let result = (|| -> Result<usize, lamina_export::ExportError> {
             let mut file = AtomicFile::create(path)?;
@@ -71,6 +72,24 @@ impl ExplorerApp {
                     let names = (map.names.0.as_str(), map.names.1.as_str());
                     lamina_export::write_map_cells(&mut file, names, &map.cells)?;
                     map.cells.len()
+                }
+                PointSet::TimeSeries => {
+                    let results = &self.session.results;
+                    let path = crate::dense_path::path_of(results);
+                    let shown = self.chrome.view.time_plot.shown_states(results.names.len());
+                    let shown_names: Vec<String> =
+                        shown.iter().map(|&k| names[k].clone()).collect();
+                    let mut csv = TrajectoryCsv::new(&mut file, &shown_names)?;
+                    let mut row = vec![0.0; shown.len()];
+                    for i in 0..path.len() {
+                        let state = path.state(i);
+                        for (value, &k) in row.iter_mut().zip(&shown) {
+                            *value = state[k];
+                        }
+                        csv.write(path.t[i], &row)?;
+                    }
+                    csv.finish()?;
+                    path.len()
                 }
                 PointSet::Trajectory => {
                     let mut csv = TrajectoryCsv::new(&mut file, &names)?;

@@ -6,6 +6,7 @@ mod export;
 mod files;
 mod map_access;
 mod png_export;
+mod view_access;
 
 use std::path::PathBuf;
 

@@ -6,8 +6,8 @@
 use std::path::PathBuf;
 
 use lamina_render::{
-    Figure, GridAxis, MapTile, orbit_diagram_png, picture_title, regime_map_png, scatter_png,
-    split_where_it_wraps, trajectory_png,
+    ColourKey, Figure, GridAxis, MapTile, orbit_diagram_png, picture_title, regime_map_png,
+    scatter_png, split_where_it_wraps, trajectory_png,
 };
 
 use super::ExplorerApp;
@@ -15,14 +15,15 @@ use crate::results::PointCloud;
 use crate::views::cloud::ColourBy;
 use crate::views::series::MapCoordinate;
 use crate::views::space::{axis_name, axis_value};
+use crate::views::time_plot::{TimeScene, time_series};
 use crate::vocabulary::{PngError, ViewKind};
 
 /// What a picture draws.
 enum Drawing {
-    /// Points, coloured by the keys if given.
+    /// Points, coloured by arrival or by values (with the values' label) if given.
     Scatter {
         points: Vec<(f64, f64)>,
-        keys: Option<Vec<f64>>,
+        colour: Option<ScatterColour>,
     },
     /// Pieces of a 3D line.
     Trajectory {
@@ -34,12 +35,24 @@ enum Drawing {
         columns: Vec<(f64, Vec<f64>)>,
         kinds: Vec<lamina_core::recurrence::RecurrenceKind>,
     },
+    /// The time plot's lines.
+    Time {
+        series: Vec<lamina_render::TimeSeries>,
+    },
     /// The cells of a regime map on their grid.
     Map {
         x_axis: GridAxis,
         y_axis: GridAxis,
         tiles: Vec<MapTile>,
     },
+}
+
+/// How a scatter picture colours its points, with its key.
+enum ScatterColour {
+    /// By arrival order.
+    Arrival,
+    /// By these values, named by the label.
+    Value(Vec<f64>, String),
 }
 
 /// A picture to draw and where to write it.
@@ -53,10 +66,17 @@ impl PngJob {
     /// Draws the picture and writes it; the message for the log, or why it failed.
     pub(crate) fn run(self) -> Result<String, PngError> {
         let bytes = match &self.drawing {
-            Drawing::Scatter { points, keys } => scatter_png(&self.figure, points, keys.as_deref()),
+            Drawing::Scatter { points, colour } => {
+                let key = colour.as_ref().map(|c| match c {
+                    ScatterColour::Arrival => ColourKey::Arrival,
+                    ScatterColour::Value(keys, label) => ColourKey::Value { keys, label },
+                });
+                scatter_png(&self.figure, points, key)
+            }
             Drawing::Trajectory { z_label, pieces } => {
                 trajectory_png(&self.figure, z_label, pieces)
             }
+            Drawing::Time { series } => lamina_render::time_plot_png(&self.figure, series),
             Drawing::Orbit { columns, kinds } => {
                 orbit_diagram_png(&self.figure, columns, Some(kinds))
             }
@@ -110,15 +130,17 @@ impl ExplorerApp {
                 let points = (0..cloud.len())
                     .map(|i| (cloud.value(i, a), cloud.value(i, b)))
                     .collect();
-                let keys = match colour {
-                    ColourBy::Arrival => (0..cloud.len()).map(|i| i as f64).collect(),
-                    ColourBy::ReturnTime => cloud.return_time.clone(),
+                let colour = match colour {
+                    ColourBy::Arrival => ScatterColour::Arrival,
+                    ColourBy::ReturnTime => {
+                        ScatterColour::Value(cloud.return_time.clone(), labels.return_time())
+                    }
                 };
                 (
                     figure(title(view), a.label(&labels), b.label(&labels)),
                     Drawing::Scatter {
                         points,
-                        keys: Some(keys),
+                        colour: Some(colour),
                     },
                 )
             }
@@ -135,41 +157,71 @@ impl ExplorerApp {
                         .collect();
                     (
                         figure(title(view), "n".into(), labels.return_time()),
-                        Drawing::Scatter { points, keys: None },
+                        Drawing::Scatter {
+                            points,
+                            colour: None,
+                        },
                     )
                 } else {
-                    let coordinate = self.chrome.settings.map_coordinate;
+                    let fixed = if session.results.cut.is_empty() {
+                        None
+                    } else {
+                        scenario.cut_fixed_state()
+                    };
+                    let coordinate = self
+                        .chrome
+                        .settings
+                        .map_coordinate
+                        .shown(cloud.dim(), fixed);
                     let value = |i: usize| match coordinate {
                         MapCoordinate::State(k) if k < cloud.dim() => cloud.coord(i, k),
                         MapCoordinate::State(_) => f64::NAN,
                         MapCoordinate::ReturnTime => cloud.return_time[i],
                     };
-                    let (name, unit) = match coordinate {
-                        MapCoordinate::State(k) => {
-                            let name = session.results.names.get(k).cloned().unwrap_or_default();
-                            let unit = scenario
-                                .state_index(&name)
-                                .and_then(|i| scenario.states[i].unit.clone());
-                            (name, unit)
-                        }
-                        MapCoordinate::ReturnTime => {
-                            ("return time".to_owned(), scenario.time.unit.clone())
-                        }
-                    };
-                    let unit = unit.map(|u| format!(" ({u})")).unwrap_or_default();
+                    let name = coordinate.label(&labels);
                     let points = (1..cloud.len()).map(|i| (value(i - 1), value(i))).collect();
                     (
-                        figure(
-                            title(view),
-                            format!("{name}(n){unit}"),
-                            format!("{name}(n+1){unit}"),
-                        ),
-                        Drawing::Scatter { points, keys: None },
+                        figure(title(view), format!("{name}, n"), format!("{name}, n+1")),
+                        Drawing::Scatter {
+                            points,
+                            colour: None,
+                        },
                     )
                 }
             }
+            ViewKind::TimePlot => {
+                let path = crate::dense_path::path_of(&session.results);
+                if path.is_empty() {
+                    return Err(PngError::Empty("run the model first"));
+                }
+                let shown = self
+                    .chrome
+                    .view
+                    .time_plot
+                    .shown_states(session.results.names.len());
+                if shown.is_empty() {
+                    return Err(PngError::Empty("choose a state to show"));
+                }
+                let scene = TimeScene {
+                    labels: &labels,
+                    path: &path,
+                    cut: &session.results.cut,
+                    strobe: &session.results.strobe,
+                };
+                let y_label = shown
+                    .iter()
+                    .map(|&k| labels.state(k))
+                    .collect::<Vec<_>>()
+                    .join(", ");
+                (
+                    figure(title(view), labels.time(), y_label),
+                    Drawing::Time {
+                        series: time_series(&scene, &shown),
+                    },
+                )
+            }
             ViewKind::Trajectory => {
-                let traj = &session.results.trajectory;
+                let traj = &*crate::dense_path::path_of(&session.results);
                 if traj.is_empty() {
                     return Err(PngError::Empty("run the model first"));
                 }
@@ -182,7 +234,7 @@ impl ExplorerApp {
                 });
                 // a new piece of line wherever the time within the period wraps around
                 let wrapping_axis = axes.iter().position(|&a| a == traj.dim() + 1);
-                let pieces = split_where_it_wraps(points, wrapping_axis);
+                let pieces = split_where_it_wraps(points, wrapping_axis.zip(period));
                 (
                     figure(
                         title(view),
@@ -215,14 +267,15 @@ impl ExplorerApp {
                     })
                     .collect();
                 let kinds = session.sweep.columns.iter().map(|(_, k)| *k).collect();
-                (
-                    figure(
-                        title(view),
-                        session.swept_parameter_label(),
-                        labels.state(coordinate),
-                    ),
-                    Drawing::Orbit { columns, kinds },
-                )
+                let mut figure = figure(
+                    title(view),
+                    session.swept_parameter_label(),
+                    labels.state(coordinate),
+                );
+                if let Some(spec) = &session.sweep.spec {
+                    figure.caption = scenario.sweep_caption(spec);
+                }
+                (figure, Drawing::Orbit { columns, kinds })
             }
             ViewKind::RegimeMap => {
                 let (Some(spec), false) = (&session.map.spec, session.map.cells.is_empty()) else {

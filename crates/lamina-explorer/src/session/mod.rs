@@ -180,14 +180,19 @@ impl Session {
                 self.note(format!("{name} = {value}: running the model there"));
                 self.start_run();
             }
-            Command::MoveCut { offset } => {
+            Command::MoveCut { offset, drag } => {
                 if let Some(cut) = &mut self.doc.scenario.cut
                     && let lamina_scenario::Surface::Plane { offset: o, .. } = &mut cut.surface
                 {
                     *o = offset;
                     self.doc.changed();
                     self.outdate();
-                    self.reslice_now_or_later();
+                    // a drag that goes on re-slices without a log line; its end writes one
+                    if drag == crate::vocabulary::DragPhase::Continues {
+                        self.reslice_quietly_if_idle();
+                    } else {
+                        self.reslice_now_or_later();
+                    }
                 }
             }
             Command::ChooseCloudAxes(kind, axes) => self.choose_cloud_axes(kind, axes),

@@ -298,6 +298,16 @@ impl Session {
         }
     }
 
+    /// Re-slices now without a line in the log (the moves of a drag that goes on), or, while
+    /// a run goes, when it is back.
+    pub(crate) fn reslice_quietly_if_idle(&mut self) {
+        if self.runs.is_running() {
+            self.runs.reslice_when_back = true;
+        } else {
+            self.reslice_logged(false);
+        }
+    }
+
     /// Whether the finished run still matches the scenario's states.
     fn run_matches_model(&self) -> bool {
         self.results
@@ -308,6 +318,11 @@ impl Session {
 
     /// Cuts the stored run again with the scenario's cut (no new integration).
     pub(crate) fn reslice(&mut self) {
+        self.reslice_logged(true);
+    }
+
+    /// [`Session::reslice`], noting the result in the log if `log`.
+    fn reslice_logged(&mut self, log: bool) {
         if !self.run_matches_model() {
             return;
         }
@@ -334,11 +349,13 @@ impl Session {
         let n_steps = run.stored().n_steps();
         run.set_cut(Some(cut));
         self.results.cut.set_cut_points(&points);
-        self.note(format!(
-            "re-sliced {n_steps} stored steps in {:.1} ms: {} cut points",
-            took.as_secs_f64() * 1e3,
-            points.len()
-        ));
+        if log {
+            self.note(format!(
+                "re-sliced {n_steps} stored steps in {:.1} ms: {} cut points",
+                took.as_secs_f64() * 1e3,
+                points.len()
+            ));
+        }
     }
 
     /// Samples the stored run again with the scenario's strobe.

@@ -32,6 +32,8 @@ pub struct SweepState {
     /// Parameter and coordinate of the running or last sweep (indices into this document's
     /// scenario; `None` before the first sweep).
     pub axes: Option<(usize, usize)>,
+    /// The settings of the running or last sweep (range, settle, keep), for its captions.
+    pub spec: Option<lamina_core::sweep::SweepSpec>,
 }
 
 impl SweepState {
@@ -109,6 +111,7 @@ impl Session {
         let total = spec.n_values();
         let recurrence = RecurrenceSettings::for_control(&run.control);
         let axes = (spec.parameter, coordinate);
+        let spec_kept = spec.clone();
         let spawned = Job::spawn(
             JobKind::Sweep,
             self.revision,
@@ -154,6 +157,7 @@ impl Session {
                 self.sweep.recurrence = recurrence;
                 self.sweep.total = total;
                 self.sweep.axes = Some(axes);
+                self.sweep.spec = Some(spec_kept);
                 self.note(format!("sweep started: {total} values"));
             }
             Err(e) => self.note(e.to_string()),

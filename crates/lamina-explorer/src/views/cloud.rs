@@ -4,9 +4,10 @@
 //! so 200,000 points pan and zoom smoothly.
 
 use egui::{Color32, ColorImage, Mesh, Pos2, Rect, TextureHandle, TextureOptions, Ui, pos2, vec2};
-use egui_plot::{Plot, PlotPoint, PlotPoints, Points};
+use egui_plot::PlotPoint;
 
 use super::palette::ramp;
+use super::plot_input;
 use crate::results::{AxisLabels, PointCloud};
 use crate::vocabulary::CloudAxis;
 
@@ -72,20 +73,14 @@ impl CloudView {
         let mut out = CloudResponse::default();
         let (colour_key, key_range) = colour_keys(cloud, colour_by);
         let extent = extent(cloud, axes);
-        let plot = Plot::new(id)
+        let plot = plot_input::plot(id)
             .x_axis_label(axes[0].label(labels))
             .y_axis_label(axes[1].label(labels))
-            .allow_double_click_reset(true)
             .show_crosshair(false);
         let response = plot.show(ui, |plot_ui| {
-            if let Some([x0, y0, x1, y1]) = extent {
-                // invisible corners so that automatic bounds fit the cloud
-                plot_ui.points(
-                    Points::new("extent", PlotPoints::new(vec![[x0, y0], [x1, y1]]))
-                        .radius(0.0)
-                        .color(Color32::TRANSPARENT),
-                );
-            }
+            plot_input::wheel_zoom(plot_ui);
+            // invisible corners so that automatic bounds fit the cloud
+            plot_input::fit_to(plot_ui, extent.and_then(|e| e.window));
             plot_ui.pointer_coordinate()
         });
         let transform = response.transform;
@@ -174,6 +169,47 @@ impl CloudView {
             out.clicked = nearest;
         }
         legend_ui(&painter, frame, colour_by, key_range, n);
+        if let Some(e) = extent
+            && e.one_point
+        {
+            // a label of its own (not painted text), so that it can be read out and tested
+            // bottom left, clear of the colour key in the top right corner
+            let note = Rect::from_min_size(
+                frame.left_bottom() + vec2(8.0, -24.0),
+                vec2((frame.width() - 16.0).max(60.0), 18.0),
+            );
+            ui.put(
+                note,
+                egui::Label::new(
+                    egui::RichText::new(lamina_render::one_point_note(n, e.spread))
+                        .color(Color32::from_gray(220)),
+                )
+                .selectable(false)
+                .truncate(),
+            );
+        }
+        if let Some(pointer) = response.response.hover_pos()
+            && let Some(k) = nearest_point(
+                cloud,
+                axes,
+                |x, y| transform.position_from_point(&PlotPoint::new(x, y)),
+                pointer,
+            )
+        {
+            let text = samples_near(cloud, axes, k);
+            let galley = painter.layout_no_wrap(
+                text,
+                egui::FontId::proportional(12.0),
+                Color32::from_gray(230),
+            );
+            let at = (pointer + vec2(14.0, 14.0)).min(frame.right_bottom() - galley.size());
+            painter.rect_filled(
+                Rect::from_min_size(at, galley.size()).expand(3.0),
+                3.0,
+                Color32::from_black_alpha(200),
+            );
+            painter.galley(at, galley, Color32::WHITE);
+        }
         out
     }
 }
@@ -207,33 +243,54 @@ fn normalise(v: f64, (lo, hi): (f64, f64)) -> f32 {
     ((v - lo) / (hi - lo)) as f32
 }
 
-fn extent(cloud: &PointCloud, axes: [CloudAxis; 2]) -> Option<[f64; 4]> {
-    let mut e = [
-        f64::INFINITY,
-        f64::INFINITY,
-        f64::NEG_INFINITY,
-        f64::NEG_INFINITY,
-    ];
-    for i in 0..cloud.len() {
+/// The cloud's window by the one span rule, and whether all its points are one point.
+#[derive(Clone, Copy)]
+struct Extent {
+    window: Option<[f64; 4]>,
+    one_point: bool,
+    spread: f64,
+}
+
+fn extent(cloud: &PointCloud, axes: [CloudAxis; 2]) -> Option<Extent> {
+    let finite = |i: usize| {
         let (x, y) = (cloud.value(i, axes[0]), cloud.value(i, axes[1]));
-        if x.is_finite() && y.is_finite() {
-            e = [e[0].min(x), e[1].min(y), e[2].max(x), e[3].max(y)];
-        }
+        (x.is_finite() && y.is_finite()).then_some((x, y))
+    };
+    let x = plot_input::range((0..cloud.len()).filter_map(finite).map(|p| p.0))?;
+    let y = plot_input::range((0..cloud.len()).filter_map(finite).map(|p| p.1))?;
+    use lamina_render::span::is_one_value;
+    Some(Extent {
+        window: plot_input::fitted_window(x, y),
+        one_point: is_one_value(x.0, x.1) && is_one_value(y.0, y.1),
+        spread: (x.1 - x.0).max(y.1 - y.0),
+    })
+}
+
+/// The relative distance under which samples count as on the same point: a thousandth of the
+/// span under which a cloud is one point.
+const SAME_POINT: f64 = 1e-3 * lamina_render::span::MIN_RELATIVE_SPAN;
+
+/// `9,750 samples within 8.7e-10 of this point` for point `k` (within [`SAME_POINT`] of its
+/// size in both coordinates shown), or `1 sample at this point (k = 3)`.
+pub fn samples_near(cloud: &PointCloud, axes: [CloudAxis; 2], k: usize) -> String {
+    let (x, y) = (cloud.value(k, axes[0]), cloud.value(k, axes[1]));
+    let tol_x = SAME_POINT * x.abs().max(f64::MIN_POSITIVE);
+    let tol_y = SAME_POINT * y.abs().max(f64::MIN_POSITIVE);
+    let count = (0..cloud.len())
+        .filter(|&i| {
+            (cloud.value(i, axes[0]) - x).abs() <= tol_x
+                && (cloud.value(i, axes[1]) - y).abs() <= tol_y
+        })
+        .count();
+    if count <= 1 {
+        format!("1 sample at this point (k = {k})")
+    } else {
+        format!(
+            "{} samples within {:.1e} of this point",
+            lamina_render::thousands(count),
+            tol_x.max(tol_y)
+        )
     }
-    if e[0] > e[2] {
-        return None;
-    }
-    // a coordinate that is constant up to round-off gets a unit-sized window, so that
-    // 1e-17 noise does not fill the view
-    for (lo, hi) in [(0, 2), (1, 3)] {
-        let span = e[hi] - e[lo];
-        let scale = e[lo].abs().max(e[hi].abs()).max(1.0);
-        if span < 1e-9 * scale {
-            e[lo] -= 0.5 * scale;
-            e[hi] += 0.5 * scale;
-        }
-    }
-    Some(e)
 }
 
 fn density_image(
@@ -347,4 +404,35 @@ fn legend_ui(
         font,
         text_colour,
     );
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use lamina_core::run::CutPoint;
+
+    #[test]
+    fn hovering_a_stack_of_samples_counts_them() {
+        // [analytic] 9,750 samples at (0.8673, 1.25) up to 1e-12, then 250 elsewhere
+        let mut cloud = PointCloud::new(2);
+        for i in 0..10_000 {
+            let state = if i < 9_750 {
+                vec![0.8673 + 1e-12 * (i % 7) as f64, 1.25]
+            } else {
+                vec![i as f64, -1.0]
+            };
+            cloud.push_cut(&CutPoint {
+                t: i as f64,
+                return_time: Some(1.0),
+                state,
+            });
+        }
+        let axes = [CloudAxis::State(0), CloudAxis::State(1)];
+        let text = samples_near(&cloud, axes, 17);
+        assert!(text.starts_with("9,750 samples within "), "{text}");
+        assert_eq!(
+            samples_near(&cloud, axes, 9_900),
+            "1 sample at this point (k = 9900)"
+        );
+    }
 }

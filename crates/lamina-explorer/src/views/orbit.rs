@@ -5,12 +5,14 @@
 //! points marked, legend in words).
 
 use egui::{Color32, Mesh, Rect, Ui, vec2};
-use egui_plot::{Legend, Line, LineStyle, Plot, PlotPoint, PlotPoints, Points};
+use egui_plot::{Legend, Line, LineStyle, PlotPoint, PlotPoints, Points};
 use lamina_core::recurrence::RecurrenceKind;
 use lamina_core::sweep::SweepColumn;
 
-/// Colour of a label: orbits of 1, 2, 4, 8 returns deep blue, teal, green, sand; no repeat
-/// coral; not settled grey.
+use super::plot_input;
+
+/// Colour of a label: Lamina's one fixed colour per repeat period 1 to 12, coral for no
+/// repeat, grey for not settled (`lamina_render::recurrence_colour`, as in every picture).
 pub fn recurrence_colour(kind: RecurrenceKind) -> Color32 {
     let [r, g, b] = lamina_render::recurrence_colour(kind);
     Color32::from_rgb(r, g, b)
@@ -75,11 +77,31 @@ pub fn orbit_diagram_ui(
         }
     }
     let branch_colour = Color32::from_rgb(235, 235, 235);
-    let response = Plot::new("orbit_diagram")
+    let mut kinds: Vec<RecurrenceKind> = Vec::new();
+    for (c, kind) in columns {
+        if !c.points.is_empty() && !kinds.contains(kind) {
+            kinds.push(*kind);
+        }
+    }
+    kinds.sort_by_key(lamina_render::recurrence_order);
+    let window = (extent[0] <= extent[2])
+        .then(|| plot_input::fitted_window((extent[0], extent[2]), (extent[1], extent[3])))
+        .flatten();
+    let response = plot_input::plot("orbit_diagram")
         .x_axis_label(labels.0)
         .y_axis_label(labels.1)
         .legend(Legend::default())
         .show(ui, |plot_ui| {
+            plot_input::wheel_zoom(plot_ui);
+            // the key: one entry per label present, in the one fixed colour of its period
+            for kind in &kinds {
+                // added directly: `points` leaves out an empty item
+                plot_ui.add(
+                    Points::new(kind.to_string(), PlotPoints::new(Vec::new()))
+                        .radius(3.0)
+                        .color(recurrence_colour(*kind)),
+                );
+            }
             for (run, stable) in &branch.runs {
                 let (name, style) = if *stable {
                     ("stable branch", LineStyle::Solid)
@@ -100,16 +122,7 @@ pub fn orbit_diagram_ui(
                         .color(special_colour(words)),
                 );
             }
-            if extent[0] <= extent[2] {
-                plot_ui.points(
-                    Points::new(
-                        "",
-                        PlotPoints::new(vec![[extent[0], extent[1]], [extent[2], extent[3]]]),
-                    )
-                    .radius(0.0)
-                    .color(Color32::TRANSPARENT),
-                );
-            }
+            plot_input::fit_to(plot_ui, window);
         });
     let transform = response.transform;
     let frame = *transform.frame();

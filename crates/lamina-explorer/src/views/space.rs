@@ -63,8 +63,12 @@ pub struct PlaneGeometry {
     pub offset: f64,
 }
 
-/// Most line segments drawn; longer trajectories are thinned for drawing only.
-const MAX_DRAWN_SAMPLES: usize = 60_000;
+/// Most points of the trajectory drawn (the dense path has at most 200,000); longer
+/// trajectories are thinned for drawing only.
+const MAX_DRAWN_SAMPLES: usize = 200_000;
+
+/// Points per drawn piece of line (each piece one shade of the age colouring).
+const LINE_CHUNK: usize = 256;
 
 /// The data box of the view: centre and half-extent per axis.
 #[derive(Clone, Copy)]
@@ -209,9 +213,14 @@ pub struct SpaceScene<'a> {
 /// What the user did in the view.
 #[derive(Default)]
 pub struct SpaceResponse {
-    /// New plane offset from dragging the handle.
+    /// New plane offset from dragging the handle (the drag goes on).
     pub new_offset: Option<f64>,
+    /// A drag of the handle ended this frame.
+    pub drag_ended: bool,
 }
+
+/// How far from the handle's centre (in points) a press grabs it.
+const HANDLE_GRAB_RADIUS: f32 = 12.0;
 
 impl SpaceView {
     /// Draws the view into the available space.
@@ -289,17 +298,20 @@ impl SpaceView {
             let c = centroid(poly);
             projection.screen_from_unit(data_box.unit(c)).0
         });
-        let dragging_handle = ui.memory(|m| {
-            m.data
-                .get_temp::<bool>(response.id.with("handle"))
-                .unwrap_or(false)
-        });
+        // the handle is grabbed when the press began on it (egui reports a drag only once
+        // the pointer has moved a few pixels, by then possibly off the handle); a drag that
+        // grabbed it moves the plane only, one that did not turns the view only
+        let grab_id = response.id.with("handle");
         if response.drag_started() {
-            let near = handle_pos
-                .zip(response.interact_pointer_pos())
-                .is_some_and(|(h, p)| h.distance(p) < 12.0);
-            ui.memory_mut(|m| m.data.insert_temp(response.id.with("handle"), near));
+            let origin = ui
+                .input(|i| i.pointer.press_origin())
+                .or(response.interact_pointer_pos());
+            let on_handle = handle_pos
+                .zip(origin)
+                .is_some_and(|(h, p)| h.distance(p) < HANDLE_GRAB_RADIUS);
+            ui.memory_mut(|m| m.data.insert_temp(grab_id, on_handle));
         }
+        let dragging_handle = ui.memory(|m| m.data.get_temp::<bool>(grab_id).unwrap_or(false));
         if response.dragged() {
             let delta = response.drag_delta();
             if dragging_handle {
@@ -311,6 +323,10 @@ impl SpaceView {
                 self.pitch = (self.pitch + delta.y * 0.01).clamp(-1.55, 1.55);
             }
         }
+        if response.drag_stopped() {
+            out.drag_ended = dragging_handle;
+            ui.memory_mut(|m| m.data.insert_temp(grab_id, false));
+        }
         if response.double_clicked() {
             let axes = self.axes;
             *self = Self {
@@ -321,30 +337,35 @@ impl SpaceView {
         let projection = Projection::new(rect, self);
         draw_box(&painter, &projection, labels, self.axes);
         let wrapping_axis = self.axes.iter().position(|&a| a == dim + 1);
-        // trajectory, older parts fainter
+        // trajectory, older parts fainter, in pieces split where the time within the period
+        // wraps (each piece closed at the wrap and the next opened there)
         let n = trajectory.len();
         let stride = n.div_ceil(MAX_DRAWN_SAMPLES).max(1);
-        let mut prev: Option<Pos2> = None;
-        let mut prev_within = f64::NEG_INFINITY;
-        let mut segments = Vec::with_capacity(n / stride + 1);
-        for i in (0..n).step_by(stride) {
-            let s = trajectory.state(i);
-            let t = trajectory.t[i];
+        let wrap = wrapping_axis.zip(period);
+        let points = (0..n).step_by(stride).map(|i| {
+            let (s, t) = (trajectory.state(i), trajectory.t[i]);
             let v = self.axes.map(|a| axis_value(a, s, t, period));
-            let u = data_box.unit(v);
-            let (q, _) = projection.screen_from_unit(u);
-            // the time within the period wraps around: do not draw a line back across the box
-            let wrapped = wrapping_axis.is_some_and(|k| v[k] < prev_within);
-            prev_within = wrapping_axis.map_or(f64::NEG_INFINITY, |k| v[k]);
-            if wrapped {
-                prev = None;
-            }
-            if let Some(p) = prev {
-                let age = i as f32 / n.max(1) as f32;
+            (v[0], v[1], v[2])
+        });
+        let pieces = lamina_render::split_where_it_wraps(points, wrap);
+        let mut segments = Vec::new();
+        let mut drawn = 0usize;
+        let total = (n / stride).max(1);
+        for piece in &pieces {
+            let screen: Vec<Pos2> = piece
+                .iter()
+                .map(|&(a, b, c)| projection.screen_from_unit(data_box.unit([a, b, c])).0)
+                .collect();
+            for chunk_start in (0..screen.len().saturating_sub(1)).step_by(LINE_CHUNK) {
+                let chunk_end = (chunk_start + LINE_CHUNK + 1).min(screen.len());
+                let age = (drawn + chunk_start) as f32 / total as f32;
                 let colour = colours.trajectory.gamma_multiply(0.25 + 0.75 * age);
-                segments.push(Shape::line_segment([p, q], Stroke::new(1.0, colour)));
+                segments.push(Shape::line(
+                    screen[chunk_start..chunk_end].to_vec(),
+                    Stroke::new(1.0, colour),
+                ));
             }
-            prev = Some(q);
+            drawn += piece.len();
         }
         painter.extend(segments);
         if let Some((_, poly)) = &handle {
@@ -390,12 +411,14 @@ impl SpaceView {
         let n_cut = cut_points.len();
         let cut_stride = n_cut.div_ceil(MAX_DRAWN_SAMPLES / 3).max(1);
         let mut mesh = egui::Mesh::default();
+        // few points (a settled orbit's, often on top of each other) get larger dots
+        let dot = if n_cut < 5_000 { 4.5 } else { 2.6 };
         for i in (0..n_cut).step_by(cut_stride) {
             let s = cut_points.state(i);
             let u = data_box.unit(self.axes.map(|a| axis_value(a, s, cut_points.t[i], period)));
             let p = projection.screen_from_unit(u).0;
             mesh.add_colored_rect(
-                Rect::from_center_size(p, vec2(2.6, 2.6)),
+                Rect::from_center_size(p, vec2(dot, dot)),
                 colours.cut_points,
             );
         }
@@ -408,7 +431,10 @@ impl SpaceView {
                 colours.surface.gamma_multiply(3.0),
                 Stroke::new(1.5, Color32::WHITE),
             );
-            if response.hover_pos().is_some_and(|p| p.distance(h) < 12.0) {
+            if response
+                .hover_pos()
+                .is_some_and(|p| p.distance(h) < HANDLE_GRAB_RADIUS)
+            {
                 ui.ctx().set_cursor_icon(egui::CursorIcon::Grab);
             }
         }
