@@ -148,6 +148,7 @@ pub fn menu_bar_ui(
                     }
                 });
             });
+            edit_menu_ui(ui, session, commands);
             ui.menu_button("Run", |ui| {
                 if ui.button("Run from the start   F5").clicked() {
                     commands.push(Command::Run);
@@ -175,6 +176,36 @@ pub fn menu_bar_ui(
                     "Periodic orbit (Floquet multipliers) and Lyapunov exponents of the scenario",
                 );
         });
+    });
+}
+
+/// The Edit menu: Undo and Redo, each naming the change it acts on.
+fn edit_menu_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Command>) {
+    ui.menu_button("Edit", |ui| {
+        let undo = session.history.undo_label();
+        let text = undo.map_or("Undo".to_string(), |l| format!("Undo: {l}"));
+        if ui
+            .add_enabled(
+                undo.is_some(),
+                egui::Button::new(text).shortcut_text("Ctrl+Z"),
+            )
+            .on_disabled_hover_text("Nothing to undo")
+            .clicked()
+        {
+            commands.push(Command::Undo);
+        }
+        let redo = session.history.redo_label();
+        let text = redo.map_or("Redo".to_string(), |l| format!("Redo: {l}"));
+        if ui
+            .add_enabled(
+                redo.is_some(),
+                egui::Button::new(text).shortcut_text("Ctrl+Shift+Z"),
+            )
+            .on_disabled_hover_text("Nothing to redo")
+            .clicked()
+        {
+            commands.push(Command::Redo);
+        }
     });
 }
 

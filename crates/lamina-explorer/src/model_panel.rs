@@ -92,6 +92,21 @@ fn name_field_ui(ui: &mut Ui, id: Id, current: &str, scenario: &Scenario) -> Opt
             .id(id)
             .desired_width(56.0),
     );
+    if ui
+        .data_mut(|d| d.remove_temp::<bool>(id.with("focus_when_drawn")))
+        .is_some()
+    {
+        response.request_focus();
+        // the whole name selected, so typing replaces it
+        if let Some(mut state) = egui::TextEdit::load_state(ui.ctx(), id) {
+            let all = egui::text::CCursorRange::two(
+                egui::text::CCursor::new(0),
+                egui::text::CCursor::new(text.chars().count()),
+            );
+            state.cursor.set_char_range(Some(all));
+            state.store(ui.ctx(), id);
+        }
+    }
     let taken = text != current
         && (scenario.states.iter().any(|s| s.name == text)
             || scenario.parameters.iter().any(|p| p.name == text));
@@ -171,12 +186,7 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                     {
                         changes.model = true;
                     }
-                    if ui
-                        .small_button("remove")
-                        .on_hover_text(format!("Remove state {name}"))
-                        .clicked()
-                        && n_states > 1
-                    {
+                    if n_states > 1 && row_menu_ui(ui, "state", &name) {
                         remove = Some(idx);
                     }
                 });
@@ -197,6 +207,7 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         .clicked()
     {
         let name = free_name(&doc.scenario, "s");
+        focus_new_name(ui, Id::unique(("state_name", doc.scenario.states.len())));
         doc.scenario.states.push(State {
             name,
             start: 0.0,
@@ -218,6 +229,34 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         rename_everywhere(&mut doc.scenario, &old, &new);
         changes.model = true;
     }
+}
+
+/// A row's menu ("…") with Remove in it; true when Remove was chosen. Remove sits in a
+/// menu, not on a button of its own, so the row that slides up under the pointer after a
+/// removal is not removed by the next click.
+fn row_menu_ui(ui: &mut Ui, what: &str, name: &str) -> bool {
+    let mut remove = false;
+    let response = ui
+        .menu_button("…", |ui| {
+            if ui
+                .button(format!("Remove {what} {name}"))
+                .on_hover_text("Edit ▸ Undo (Ctrl+Z) brings it back")
+                .clicked()
+            {
+                remove = true;
+                ui.close();
+            }
+        })
+        .response;
+    let named = format!("Remove {what} {name}…");
+    response.widget_info(|| egui::WidgetInfo::labeled(egui::Role::Button, true, &named));
+    response.on_hover_text(named);
+    remove
+}
+
+/// Asks for the keyboard on the name field `id` when it is next drawn (a row just added).
+fn focus_new_name(ui: &Ui, id: Id) {
+    ui.data_mut(|d| d.insert_temp(id.with("focus_when_drawn"), true));
 }
 
 fn free_name(scenario: &Scenario, stem: &str) -> String {
@@ -268,11 +307,7 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             {
                 changes.model = true;
             }
-            if ui
-                .small_button("remove")
-                .on_hover_text(format!("Remove parameter {name}"))
-                .clicked()
-            {
+            if row_menu_ui(ui, "parameter", &name) {
                 remove = Some(idx);
             }
         });
@@ -304,6 +339,10 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         .clicked()
     {
         let name = free_name(&doc.scenario, "p");
+        focus_new_name(
+            ui,
+            Id::unique(("parameter_name", doc.scenario.parameters.len())),
+        );
         doc.scenario.parameters.push(Parameter {
             name,
             value: 1.0,

@@ -288,6 +288,21 @@ impl ExplorerApp {
         self.session.log.iter().map(|(_, line)| line.as_str())
     }
 
+    /// The name of the change Undo would take back ("remove parameter k3").
+    pub fn undo_label(&self) -> Option<&str> {
+        self.session.history.undo_label()
+    }
+
+    /// The name of the change Redo would do again.
+    pub fn redo_label(&self) -> Option<&str> {
+        self.session.history.redo_label()
+    }
+
+    /// Number of changes that can be undone.
+    pub fn n_undo_steps(&self) -> usize {
+        self.session.history.n_undo()
+    }
+
     /// Opens or closes the analysis panel (orbits and exponents).
     pub fn show_analysis_panel(&mut self, on: bool) {
         self.chrome.show_analysis = on;
@@ -385,6 +400,15 @@ impl ExplorerApp {
             if i.consume_shortcut(&shortcut(Modifiers::NONE, Key::Escape)) {
                 commands.push(Command::Stop);
             }
+            // Ctrl+Shift+Z before Ctrl+Z: a shortcut matches with extra modifiers held
+            if i.consume_shortcut(&shortcut(Modifiers::COMMAND | Modifiers::SHIFT, Key::Z))
+                || i.consume_shortcut(&shortcut(Modifiers::COMMAND, Key::Y))
+            {
+                commands.push(Command::Redo);
+            }
+            if i.consume_shortcut(&shortcut(Modifiers::COMMAND, Key::Z)) {
+                commands.push(Command::Undo);
+            }
             if i.consume_shortcut(&shortcut(Modifiers::COMMAND | Modifiers::SHIFT, Key::S)) {
                 commands.push(Command::SaveAs);
             }
@@ -401,6 +425,18 @@ impl ExplorerApp {
                 self.chrome.show_shortcuts = !self.chrome.show_shortcuts;
             }
         });
+        if commands
+            .iter()
+            .any(|c| matches!(c, Command::Undo | Command::Redo))
+        {
+            // a field being typed in keeps its own text while focused: let it go, so it shows
+            // the value undo brings back (the document's undo replaces the field's own)
+            ctx.memory_mut(|m| {
+                if let Some(id) = m.focused() {
+                    m.surrender_focus(id);
+                }
+            });
+        }
         commands
     }
 
