@@ -239,12 +239,13 @@ fn run_buttons_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Command>) {
     {
         commands.push(Command::Stop);
     }
-    let can_run_on = !running && session.results.run.is_some();
-    if ui
-        .add_enabled(can_run_on, egui::Button::new("Run on"))
-        .on_hover_text(RUN_ON_TIP)
-        .clicked()
-    {
+    let run_on_off = run_on_off_reason(session, error.as_deref());
+    let run_on = ui.add_enabled(run_on_off.is_none(), egui::Button::new("Run on"));
+    let run_on = match &run_on_off {
+        Some(reason) => run_on.on_disabled_hover_text(format!("Run on is off: {reason}")),
+        None => run_on.on_hover_text(RUN_ON_TIP),
+    };
+    if run_on.clicked() {
         commands.push(Command::RunOn);
     }
     if let Some(reason) = error {
@@ -258,6 +259,24 @@ fn run_buttons_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Command>) {
                 .color(crate::widgets::WARNING_COLOUR),
         );
     }
+}
+
+/// Why "Run on" cannot go now, or `None` when it can.
+fn run_on_off_reason(session: &Session, error: Option<&str>) -> Option<String> {
+    if let Some(reason) = error {
+        let first_line = reason.lines().next().unwrap_or("");
+        return Some(format!("fix this first — {first_line}"));
+    }
+    if session.is_running() {
+        return Some("the run is still going".into());
+    }
+    if session.results.run.is_none() {
+        return Some("there is no finished run yet: press Run".into());
+    }
+    if session.runs.stale {
+        return Some("the model changed since this run: press Run".into());
+    }
+    None
 }
 
 /// The status line: run state, points, steps, times.
@@ -296,7 +315,18 @@ pub fn status_bar_ui(ui: &mut Ui, session: &Session) {
             let time_unit = unit_suffix(session.doc.scenario.time.unit.as_deref());
             ui.label(format!("t = {:.6}{time_unit}", r.t_reached));
             ui.separator();
-            ui.label(format!("{:.2} s", r.elapsed.as_secs_f64()));
+            let total = r.elapsed.as_secs_f64();
+            match session.runs.parts {
+                0 | 1 => ui.label(format!("{total:.2} s")),
+                parts => ui
+                    .label(format!(
+                        "{:.2} s ({total:.2} s in all, {parts} parts)",
+                        session.runs.last_part.as_secs_f64()
+                    ))
+                    .on_hover_text(
+                        "The last part (Run on) took the first time; the run and every Run on since took the second",
+                    ),
+            };
         });
     });
 }
