@@ -722,14 +722,15 @@ fn tile_ui(
             ui.horizontal(|ui| match selected {
                 Some(k) => {
                     let text = cloud.readout(k, &session.results.names, &session.doc.scenario);
-                    ui.label(RichText::new(&text).monospace().small());
+                    // the button first: a long line is cut, never the button
                     if ui
                         .small_button("copy")
                         .on_hover_text("Copy this point's values to the clipboard")
                         .clicked()
                     {
-                        ui.ctx().copy_text(text);
+                        ui.ctx().copy_text(text.clone());
                     }
+                    ui.add(egui::Label::new(RichText::new(&text).monospace().small()).truncate());
                 }
                 None => {
                     ui.label(

@@ -19,6 +19,7 @@ mod results;
 mod session;
 mod settings;
 mod sweep_panel;
+mod tables;
 mod views;
 mod vocabulary;
 mod widgets;

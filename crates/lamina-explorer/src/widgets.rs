@@ -1,5 +1,5 @@
 //! Small widgets shared by the panels: a number field that accepts any float notation, a unit
-//! field, and the in-place problem message.
+//! field, a copy button, and the in-place problem message.
 
 use egui::{Color32, Response, RichText, Ui};
 use lamina_scenario::Problem;
@@ -61,6 +61,20 @@ pub fn unit_field_ui(ui: &mut Ui, unit: &mut Option<String>, hint: &str) -> bool
         true
     } else {
         false
+    }
+}
+
+/// A small "copy" button that puts `text()` on the clipboard (made only when clicked);
+/// `what` says what is copied, in the tooltip.
+pub fn copy_button_ui(ui: &mut Ui, what: &str, text: impl FnOnce() -> String) {
+    if ui
+        .small_button("copy")
+        .on_hover_text(format!(
+            "Copy {what} as tab-separated text (pastes into a spreadsheet)"
+        ))
+        .clicked()
+    {
+        ui.ctx().copy_text(text());
     }
 }
 

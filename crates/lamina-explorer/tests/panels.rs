@@ -35,3 +35,52 @@ fn choosing_another_swept_parameter_takes_its_slider_range() {
         .expect("w");
     assert_eq!((sweep.from, sweep.to), w.range, "the slider's range of w");
 }
+
+#[test]
+fn copy_gives_the_resting_points_as_tab_separated_text() {
+    let mut h = harness(common::van_der_pol_app());
+    steps(&mut h, 2);
+    h.state_mut().show_analysis_panel(true);
+    h.state_mut()
+        .command(lamina_explorer::Command::FindRestingPoints);
+    common::wait_until(&mut h, |a| !a.is_analysing());
+    let copy = h
+        .query_all_by_label("copy")
+        .last()
+        .expect("the resting points' copy button");
+    copy.click();
+    h.step();
+    let copied: Vec<String> = h
+        .output()
+        .platform_output
+        .commands
+        .iter()
+        .filter_map(|c| match c {
+            egui::OutputCommand::CopyText(text) => Some(text.clone()),
+            _ => None,
+        })
+        .collect();
+    let text = copied.first().expect("copied text");
+    let lines: Vec<Vec<&str>> = text.lines().map(|l| l.split('\t').collect()).collect();
+    assert_eq!(
+        lines[0],
+        [
+            "point",
+            "stability",
+            "x",
+            "v",
+            "eigenvalue 1 re",
+            "eigenvalue 1 im",
+            "eigenvalue 2 re",
+            "eigenvalue 2 im"
+        ]
+    );
+    assert_eq!(lines.len(), 2, "one resting point: {text}");
+    // [analytic] van der Pol with mu = 1 rests only at the origin, eigenvalues
+    // (1 +- i sqrt(3)) / 2
+    assert_eq!(lines[1][0], "1");
+    let value = |k: usize| lines[1][k].parse::<f64>().expect("a number");
+    assert!(value(2).abs() < 1e-9 && value(3).abs() < 1e-9);
+    assert!((value(4) - 0.5).abs() < 1e-9);
+    assert!((value(5).abs() - 3f64.sqrt() / 2.0).abs() < 1e-9);
+}
