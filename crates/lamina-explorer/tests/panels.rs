@@ -84,3 +84,23 @@ fn copy_gives_the_resting_points_as_tab_separated_text() {
     assert!((value(4) - 0.5).abs() < 1e-9);
     assert!((value(5).abs() - 3f64.sqrt() / 2.0).abs() < 1e-9);
 }
+
+#[test]
+fn the_path_field_suggests_a_whole_path_in_a_folder() {
+    let mut h = harness(app());
+    steps(&mut h, 2);
+    h.state_mut().command(lamina_explorer::Command::SaveAs);
+    steps(&mut h, 3);
+    let text = h.get_by_label("path").value().expect("the field's text");
+    let path = std::path::PathBuf::from(&text);
+    // [common practice] a save dialog starts in a folder with a file name filled in
+    assert!(path.is_absolute(), "{text}");
+    assert_eq!(
+        path.parent(),
+        Some(std::env::current_dir().expect("cwd").as_path())
+    );
+    assert_eq!(
+        path.file_name().and_then(|n| n.to_str()),
+        Some("clocked_resonator.ron")
+    );
+}

@@ -35,6 +35,8 @@ pub struct Files {
     closing: bool,
     /// A message to show in a window (a failed open or save).
     pub alert: Option<String>,
+    /// The folder of the file opened or saved last: where a file name without a folder is put.
+    pub last_folder: Option<PathBuf>,
 }
 
 /// How often unsaved edits are copied for recovery.
@@ -74,11 +76,13 @@ impl Files {
             recovery_revision: u64::MAX,
             closing: false,
             alert: None,
+            last_folder: None,
         }
     }
 
     /// Asks for a path: a desktop dialog on a helper thread, or the path field.
     pub fn ask_path(&mut self, purpose: Purpose, suggested: Option<PathBuf>, waker: Waker) {
+        let suggested = Some(self.in_a_folder(suggested));
         if !self.native {
             let text = suggested
                 .map(|p| p.display().to_string())
@@ -125,6 +129,33 @@ impl Files {
                     Some(format!("{e}: type a path")),
                 ));
             }
+        }
+    }
+}
+
+impl Files {
+    /// `suggested` with a folder: a bare file name goes into the folder of the file used
+    /// last, else the working folder (unless that is the file system's root, as for a program
+    /// started from a desktop menu), else the home folder; no suggestion gives the folder
+    /// itself, ending in a separator, ready for a file name.
+    fn in_a_folder(&self, suggested: Option<PathBuf>) -> PathBuf {
+        let name = suggested.unwrap_or_default();
+        if name.is_absolute() {
+            return name;
+        }
+        let cwd = std::env::current_dir()
+            .ok()
+            .filter(|d| d.parent().is_some());
+        let home = std::env::var_os("HOME").map(PathBuf::from);
+        let folder = self.last_folder.clone().or(cwd).or(home);
+        match folder {
+            Some(folder) if name.as_os_str().is_empty() => {
+                let mut text = folder.into_os_string();
+                text.push(std::path::MAIN_SEPARATOR_STR);
+                PathBuf::from(text)
+            }
+            Some(folder) => folder.join(name),
+            None => name,
         }
     }
 }
@@ -238,6 +269,7 @@ impl ExplorerApp {
             Ok(scenario) => {
                 let format_note = scenario.format_note();
                 self.chrome.settings.remember(path.clone());
+                self.files.last_folder = absolute_folder(&path);
                 self.replace_document(
                     Document::new(scenario, Some(path.clone())),
                     format!("opened {}", path.display()),
@@ -303,6 +335,7 @@ impl ExplorerApp {
             Ok(()) => {
                 self.session.doc.mark_saved(path.clone());
                 self.chrome.settings.remember(path.clone());
+                self.files.last_folder = absolute_folder(&path);
                 self.clear_recovery();
                 self.session.note(format!("saved {}", path.display()));
                 true
@@ -415,6 +448,12 @@ impl ExplorerApp {
             self.proceed_without_ctx(pending);
         }
     }
+}
+
+/// The folder of `path`, made absolute.
+pub(super) fn absolute_folder(path: &std::path::Path) -> Option<PathBuf> {
+    let absolute = std::path::absolute(path).ok()?;
+    absolute.parent().map(std::path::Path::to_path_buf)
 }
 
 /// A file-name-friendly version of a title.

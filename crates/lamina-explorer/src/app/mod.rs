@@ -72,6 +72,12 @@ impl ExplorerApp {
             png_export: None,
             shown_title: None,
         };
+        app.files.last_folder = app
+            .chrome
+            .settings
+            .recent
+            .first()
+            .and_then(|p| files::absolute_folder(p));
         match file {
             Some(path) => app.open_path(path),
             None => {
