@@ -38,4 +38,7 @@ pub struct Chrome {
     pub show_shortcuts: bool,
     /// The analysis panel is open.
     pub show_analysis: bool,
+    /// The 3D view's axes and camera (turn, tilt, zoom) as the document was opened: a save
+    /// writes them into the view block only when they have changed since.
+    pub space_as_opened: Option<([usize; 3], [f32; 3])>,
 }

@@ -104,3 +104,41 @@ fn the_path_field_suggests_a_whole_path_in_a_folder() {
         Some("clocked_resonator.ron")
     );
 }
+
+#[test]
+fn the_camera_and_3d_axes_are_saved_in_the_view_block_and_restored_on_open() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let file = dir.path().join("turned.ron");
+    let mut window = app();
+    window.set_camera(33.0, -12.5, 1.75);
+    window.set_space_axes([1, 0, 2]);
+    let mut h = harness(window);
+    steps(&mut h, 2);
+    h.state_mut().command(lamina_explorer::Command::SaveAs);
+    steps(&mut h, 3);
+    let path = h.get_by_label("path");
+    path.focus();
+    path.set_text_value_accesskit(&file.display().to_string());
+    steps(&mut h, 2);
+    h.get_by_label("OK").click();
+    steps(&mut h, 3);
+    let saved = lamina_scenario::load_file(&file).expect("saved file loads");
+    let view = saved.view.expect("a view block");
+    assert_eq!(
+        view.axes,
+        Some(("v".to_string(), "x".to_string(), "t".to_string()))
+    );
+
+    let options = lamina_explorer::Options {
+        autostart: false,
+        ..Default::default()
+    };
+    let reopened = lamina_explorer::ExplorerApp::new(Some(file), Default::default(), options);
+    let (yaw, pitch, zoom) = reopened.camera();
+    assert!(
+        (yaw - 33.0).abs() < 1e-3 && (pitch + 12.5).abs() < 1e-3,
+        "{yaw} {pitch}"
+    );
+    assert!((zoom - 1.75).abs() < 1e-6, "{zoom}");
+    assert_eq!(reopened.space_axes(), [1, 0, 2]);
+}

@@ -327,12 +327,66 @@ impl ExplorerApp {
             self.chrome.settings.space.pitch = camera.pitch_deg.to_radians() as f32;
             self.chrome.settings.space.zoom = camera.zoom as f32;
         }
+        self.chrome.space_as_opened = Some(self.space_now());
     }
 
-    /// Writes the scenario to `path`; true on success.
+    /// The 3D view's axes and camera now.
+    fn space_now(&self) -> ([usize; 3], [f32; 3]) {
+        let space = &self.chrome.settings.space;
+        (space.axes, [space.yaw, space.pitch, space.zoom])
+    }
+
+    /// The view block to save: the scenario's own while the 3D view's axes and camera are
+    /// as opened (so an untouched file saves as it was), else the view as shown now.
+    pub(crate) fn view_block_to_save(&self) -> Option<lamina_scenario::View> {
+        if self.chrome.space_as_opened == Some(self.space_now()) {
+            self.session.doc.scenario.view.clone()
+        } else {
+            Some(self.view_block_now())
+        }
+    }
+
+    /// The view block as the window shows the scenario now: the 3D view's camera and axes
+    /// (the axes left out where one is the time within the drive period, which a scenario
+    /// cannot name and which is the default for such a model anyway), the colours kept.
+    pub(crate) fn view_block_now(&self) -> lamina_scenario::View {
+        let scenario = &self.session.doc.scenario;
+        let space = &self.chrome.settings.space;
+        let n = scenario.states.len();
+        let name = |axis: usize| -> Option<String> {
+            if axis < n {
+                Some(scenario.states[axis].name.clone())
+            } else if axis == n {
+                Some("t".into())
+            } else {
+                None
+            }
+        };
+        let axes = match space.axes.map(name) {
+            [Some(a), Some(b), Some(c)] => Some((a, b, c)),
+            _ => None,
+        };
+        // whole hundredths of a degree and of the zoom: a saved file reads as typed
+        let round = |v: f64| (v * 100.0).round() / 100.0;
+        lamina_scenario::View {
+            camera: Some(lamina_scenario::Camera {
+                yaw_deg: round(f64::from(space.yaw).to_degrees().rem_euclid(360.0)),
+                pitch_deg: round(f64::from(space.pitch).to_degrees()).clamp(-90.0, 90.0),
+                zoom: round(f64::from(space.zoom)).max(0.01),
+            }),
+            axes,
+            colours: scenario.view.as_ref().and_then(|v| v.colours.clone()),
+        }
+    }
+
+    /// Writes the scenario to `path`, with the view block as shown now; true on success.
     pub(crate) fn save_to(&mut self, path: PathBuf) -> bool {
-        match lamina_scenario::save_file(&path, &self.session.doc.scenario) {
+        let mut scenario = self.session.doc.scenario.clone();
+        scenario.view = self.view_block_to_save();
+        match lamina_scenario::save_file(&path, &scenario) {
             Ok(()) => {
+                self.session.doc.scenario.view = scenario.view;
+                self.chrome.space_as_opened = Some(self.space_now());
                 self.session.doc.mark_saved(path.clone());
                 self.chrome.settings.remember(path.clone());
                 self.files.last_folder = absolute_folder(&path);

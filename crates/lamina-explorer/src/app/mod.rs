@@ -67,6 +67,7 @@ impl ExplorerApp {
                 show_about: false,
                 show_shortcuts: false,
                 show_analysis: false,
+                space_as_opened: None,
             },
             files: Files::new(options.native_dialogs, options.recovery),
             png_export: None,
@@ -307,6 +308,34 @@ impl ExplorerApp {
     /// Number of changes that can be undone.
     pub fn n_undo_steps(&self) -> usize {
         self.session.history.n_undo()
+    }
+
+    /// The 3D view's camera: turn and tilt in degrees, zoom.
+    pub fn camera(&self) -> (f64, f64, f64) {
+        let space = &self.chrome.settings.space;
+        (
+            f64::from(space.yaw).to_degrees(),
+            f64::from(space.pitch).to_degrees(),
+            f64::from(space.zoom),
+        )
+    }
+
+    /// Turns the 3D view as a drag would: turn and tilt in degrees, zoom.
+    pub fn set_camera(&mut self, yaw_deg: f64, pitch_deg: f64, zoom: f64) {
+        let space = &mut self.chrome.settings.space;
+        space.yaw = yaw_deg.to_radians() as f32;
+        space.pitch = pitch_deg.to_radians() as f32;
+        space.zoom = zoom as f32;
+    }
+
+    /// The 3D view's axes: state indices, the number of states for the time.
+    pub fn space_axes(&self) -> [usize; 3] {
+        self.chrome.settings.space.axes
+    }
+
+    /// Chooses the 3D view's axes as its pickers would.
+    pub fn set_space_axes(&mut self, axes: [usize; 3]) {
+        self.chrome.settings.space.axes = axes;
     }
 
     /// Opens or closes the analysis panel (orbits and exponents).
