@@ -4,7 +4,7 @@
 use egui::{Color32, Rect, RichText, Sense, Ui, vec2};
 use lamina_scenario::Surface;
 
-use crate::chrome::Chrome;
+use crate::chrome::{Chrome, LowerTab};
 use crate::document::DEMOS;
 use crate::results::{AxisLabels, RunState};
 use crate::session::Session;
@@ -171,6 +171,8 @@ pub fn menu_bar_ui(
             ui.separator();
             run_buttons_ui(ui, session, commands);
             ui.separator();
+            ui.toggle_value(&mut chrome.show_model, "Model")
+                .on_hover_text("Show or fold away the model panel (its width: drag its edge)");
             ui.toggle_value(&mut chrome.show_analysis, "Analysis")
                 .on_hover_text(
                     "Periodic orbit (Floquet multipliers) and Lyapunov exponents of the scenario",
@@ -331,7 +333,11 @@ pub fn status_bar_ui(ui: &mut Ui, session: &Session) {
     });
 }
 
-/// The return-time sequence, the first-return map and the message log.
+/// Narrowest a lower view is laid out beside the others; below this they become tabs.
+const MIN_LOWER_WIDTH: f32 = 260.0;
+
+/// The return-time sequence, the first-return map and the message log: side by side, or as
+/// tabs where the row is too narrow for three.
 pub fn lower_views_ui(ui: &mut Ui, session: &Session, chrome: &mut Chrome) {
     egui::Panel::bottom("lower_views")
         .resizable(true)
@@ -339,78 +345,113 @@ pub fn lower_views_ui(ui: &mut Ui, session: &Session, chrome: &mut Chrome) {
         .min_size(120.0)
         .show(ui, |ui| {
             let width = ui.available_width();
+            if width < 3.0 * MIN_LOWER_WIDTH {
+                ui.horizontal(|ui| {
+                    for (tab, text) in [
+                        (LowerTab::ReturnTimes, return_times_title(session)),
+                        (LowerTab::ReturnMap, "First-return map"),
+                        (LowerTab::Messages, "Messages"),
+                    ] {
+                        ui.selectable_value(&mut chrome.lower_tab, tab, text);
+                    }
+                });
+                let height = ui.available_height();
+                ui.allocate_ui_with_layout(
+                    vec2(width, height),
+                    egui::Layout::top_down(egui::Align::Min),
+                    |ui| match chrome.lower_tab {
+                        LowerTab::ReturnTimes => return_times_body_ui(ui, session),
+                        LowerTab::ReturnMap => first_return_body_ui(ui, session, chrome),
+                        LowerTab::Messages => messages_body_ui(ui, session),
+                    },
+                );
+                return;
+            }
             let height = ui.available_height();
             ui.horizontal(|ui| {
                 let third = (width - 16.0) / 3.0;
-                let source_is_cut =
-                    !session.results.cut.is_empty() || session.results.strobe.is_empty();
-                ui.allocate_ui_with_layout(
-                    vec2(third, height),
-                    egui::Layout::top_down(egui::Align::Min),
-                    |ui| {
-                        ui.label(
-                            RichText::new(if source_is_cut {
-                                "Return times (cut)"
-                            } else {
-                                "Sample spacing (strobe)"
-                            })
-                            .small()
-                            .strong(),
-                        );
-                        let cloud = if source_is_cut {
-                            &session.results.cut
-                        } else {
-                            &session.results.strobe
-                        };
-                        let source = if source_is_cut { "cut" } else { "strobe" };
-                        let unit = session.doc.scenario.time.unit.as_deref();
-                        let label = unit.map_or(source.to_owned(), |u| format!("{source}, {u}"));
-                        series::return_times_ui(ui, cloud, &label);
-                    },
-                );
+                let column = |ui: &mut Ui, add: &mut dyn FnMut(&mut Ui)| {
+                    ui.allocate_ui_with_layout(
+                        vec2(third, height),
+                        egui::Layout::top_down(egui::Align::Min),
+                        |ui| {
+                            ui.set_max_width(third);
+                            add(ui);
+                        },
+                    );
+                };
+                column(ui, &mut |ui| {
+                    ui.label(RichText::new(return_times_title(session)).strong());
+                    return_times_body_ui(ui, session);
+                });
                 ui.separator();
-                ui.allocate_ui_with_layout(
-                    vec2(third, height),
-                    egui::Layout::top_down(egui::Align::Min),
-                    |ui| {
-                        ui.label(RichText::new("First-return map").small().strong());
-                        let cloud = if source_is_cut {
-                            &session.results.cut
-                        } else {
-                            &session.results.strobe
-                        };
-                        series::first_return_map_ui(
-                            ui,
-                            cloud,
-                            &session.axis_labels(),
-                            &mut chrome.settings.map_coordinate,
-                        );
-                    },
-                );
+                column(ui, &mut |ui| {
+                    ui.label(RichText::new("First-return map").strong());
+                    first_return_body_ui(ui, session, chrome);
+                });
                 ui.separator();
-                ui.allocate_ui_with_layout(
-                    vec2(third, height),
-                    egui::Layout::top_down(egui::Align::Min),
-                    |ui| {
-                        ui.label(RichText::new("Messages").small().strong());
-                        egui::ScrollArea::vertical()
-                            .stick_to_bottom(true)
-                            .auto_shrink([false, false])
-                            .show(ui, |ui| {
-                                let start = session.log.first().map(|(t, _)| *t);
-                                for (t, line) in &session.log {
-                                    let secs =
-                                        start.map_or(0.0, |s| t.duration_since(s).as_secs_f64());
-                                    ui.label(
-                                        RichText::new(format!("{secs:7.1} s  {line}"))
-                                            .monospace()
-                                            .small(),
-                                    );
-                                }
-                            });
-                    },
-                );
+                column(ui, &mut |ui| {
+                    ui.label(RichText::new("Messages").strong());
+                    messages_body_ui(ui, session);
+                });
             });
+        });
+}
+
+/// Whether the lower views show the cut's points (else the strobe's).
+fn lower_source_is_cut(session: &Session) -> bool {
+    !session.results.cut.is_empty() || session.results.strobe.is_empty()
+}
+
+fn return_times_title(session: &Session) -> &'static str {
+    if lower_source_is_cut(session) {
+        "Return times (cut)"
+    } else {
+        "Sample spacing (strobe)"
+    }
+}
+
+fn return_times_body_ui(ui: &mut Ui, session: &Session) {
+    let source_is_cut = lower_source_is_cut(session);
+    let cloud = if source_is_cut {
+        &session.results.cut
+    } else {
+        &session.results.strobe
+    };
+    let source = if source_is_cut { "cut" } else { "strobe" };
+    let unit = session.doc.scenario.time.unit.as_deref();
+    let label = unit.map_or(source.to_owned(), |u| format!("{source}, {u}"));
+    series::return_times_ui(ui, cloud, &label);
+}
+
+fn first_return_body_ui(ui: &mut Ui, session: &Session, chrome: &mut Chrome) {
+    let cloud = if lower_source_is_cut(session) {
+        &session.results.cut
+    } else {
+        &session.results.strobe
+    };
+    series::first_return_map_ui(
+        ui,
+        cloud,
+        &session.axis_labels(),
+        &mut chrome.settings.map_coordinate,
+    );
+}
+
+/// The message log, newest at the bottom, each line wrapped to the width.
+fn messages_body_ui(ui: &mut Ui, session: &Session) {
+    egui::ScrollArea::vertical()
+        .stick_to_bottom(true)
+        .auto_shrink([false, false])
+        .show(ui, |ui| {
+            let start = session.log.first().map(|(t, _)| *t);
+            for (t, line) in &session.log {
+                let secs = start.map_or(0.0, |s| t.duration_since(s).as_secs_f64());
+                ui.add(
+                    egui::Label::new(RichText::new(format!("{secs:7.1} s  {line}")).monospace())
+                        .wrap(),
+                );
+            }
         });
 }
 
@@ -453,9 +494,69 @@ fn plane_in_view(session: &Session, settings: &Settings) -> Option<(PlaneGeometr
     ))
 }
 
-/// Narrowest a main view is laid out side by side with the others; below this the four views
-/// of a sweep go into two rows of two.
+/// Narrowest a main view is laid out side by side with all the others; below this the views
+/// go into two rows.
 const MIN_TILE_WIDTH: f32 = 330.0;
+
+/// Narrowest a main view is laid out two to a row; below this the views become tabs.
+const MIN_TWO_ROW_TILE_WIDTH: f32 = 260.0;
+
+/// Height of the row of tabs over the main views when they are tabs.
+const TAB_BAR_HEIGHT: f32 = 28.0;
+
+/// How the main views share the central area.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum Arrangement {
+    /// All in one row.
+    OneRow,
+    /// Two rows (the first two above, the rest below).
+    TwoRows,
+    /// One view at a time, chosen by tabs.
+    Tabs,
+}
+
+/// The arrangement of `n` views across `width`: one row while each keeps
+/// [`MIN_TILE_WIDTH`], else two rows while two side by side keep
+/// [`MIN_TWO_ROW_TILE_WIDTH`], else tabs.
+fn arrangement(width: f32, n: usize) -> Arrangement {
+    if n <= 1 || width / n as f32 >= MIN_TILE_WIDTH {
+        Arrangement::OneRow
+    } else if n >= 3 && width / 2.0 >= MIN_TWO_ROW_TILE_WIDTH {
+        Arrangement::TwoRows
+    } else {
+        Arrangement::Tabs
+    }
+}
+
+/// The tabs over the main views when they are too narrow to share the area; returns the
+/// view to show.
+fn main_tabs_ui(
+    ui: &mut Ui,
+    session: &Session,
+    chrome: &mut Chrome,
+    shown: &[usize],
+    full: Rect,
+) -> usize {
+    if !shown.contains(&chrome.main_tab) {
+        chrome.main_tab = shown[0];
+    }
+    let bar = Rect::from_min_size(full.min, vec2(full.width(), TAB_BAR_HEIGHT));
+    let mut bar_ui = ui.new_child(egui::UiBuilder::new().max_rect(bar).id_salt("main_tabs"));
+    bar_ui.horizontal(|ui| {
+        for &i in shown {
+            let kind = if MAIN_VIEWS[i] == ViewKind::Orbit {
+                crate::map_panel::fourth_view(session, chrome.view.fourth)
+            } else {
+                MAIN_VIEWS[i]
+            };
+            ui.selectable_value(&mut chrome.main_tab, i, kind.title())
+                .on_hover_text(
+                    "The window is too narrow for the views side by side: one at a time",
+                );
+        }
+    });
+    chrome.main_tab
+}
 
 /// The main views side by side (or, when four would be too narrow, in two rows of two),
 /// resizable, each with an enlarge button.
@@ -478,10 +579,16 @@ pub fn main_views_ui(
             _ => vec![0, 1, 2],
         };
         let gap = 8.0;
-        let rows: Vec<&[usize]> = if shown.len() == 4 && full.width() / 4.0 < MIN_TILE_WIDTH {
-            vec![&shown[..2], &shown[2..]]
-        } else {
-            vec![&shown[..]]
+        let (full, shown) = match arrangement(full.width(), shown.len()) {
+            Arrangement::Tabs => {
+                let tab = main_tabs_ui(ui, session, chrome, &shown, full);
+                (full.with_min_y(full.top() + TAB_BAR_HEIGHT), vec![tab])
+            }
+            _ => (full, shown),
+        };
+        let rows: Vec<&[usize]> = match arrangement(full.width(), shown.len()) {
+            Arrangement::TwoRows => vec![&shown[..2], &shown[2..]],
+            _ => vec![&shown[..]],
         };
         let row_height = (full.height() - gap * (rows.len() as f32 - 1.0)) / rows.len() as f32;
         let mut rects = Vec::new();
@@ -570,9 +677,39 @@ fn tile_ui(
     index: usize,
     commands: &mut Vec<Command>,
 ) {
+    // the buttons from the right first, then the title in the room left (cut with "…"), so
+    // the two never overlap however narrow the tile
     ui.horizontal(|ui| {
-        ui.add(egui::Label::new(RichText::new(kind.title()).strong()).truncate());
         ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
+            tile_buttons_ui(ui, chrome, kind, index, commands);
+            ui.allocate_ui_with_layout(
+                vec2(ui.available_width(), ui.spacing().interact_size.y),
+                egui::Layout::left_to_right(egui::Align::Center),
+                |ui| {
+                    ui.add(egui::Label::new(RichText::new(kind.title()).strong()).truncate())
+                        .on_hover_text(kind.title());
+                },
+            );
+        });
+    });
+    tile_body_ui(ui, session, chrome, kind, commands);
+}
+
+/// A tile narrower than this puts its less used buttons in a menu.
+const COMPACT_TILE_WIDTH: f32 = 420.0;
+
+/// The tile's buttons, laid out right to left: enlarge (or restore), then PNG, the other view
+/// of the fourth tile and the colouring, in a menu when the tile is narrow.
+fn tile_buttons_ui(
+    ui: &mut Ui,
+    chrome: &mut Chrome,
+    kind: ViewKind,
+    index: usize,
+    commands: &mut Vec<Command>,
+) {
+    let compact = ui.available_width() < COMPACT_TILE_WIDTH;
+    {
+        {
             let maximised = chrome.settings.maximised == Some(index);
             if ui
                 .small_button(if maximised { "restore" } else { "enlarge" })
@@ -585,6 +722,28 @@ fn tile_ui(
             {
                 chrome.settings.maximised = if maximised { None } else { Some(index) };
             }
+            if compact {
+                ui.menu_button("…", |ui| {
+                    tile_extra_buttons_ui(ui, chrome, kind, commands)
+                })
+                .response
+                .on_hover_text("PNG export and more for this view");
+            } else {
+                tile_extra_buttons_ui(ui, chrome, kind, commands);
+            }
+        }
+    }
+}
+
+/// PNG export, the switch of the fourth tile and the colouring of a cloud view.
+fn tile_extra_buttons_ui(
+    ui: &mut Ui,
+    chrome: &mut Chrome,
+    kind: ViewKind,
+    commands: &mut Vec<Command>,
+) {
+    {
+        {
             if ui
                 .small_button("PNG")
                 .on_hover_text("Export this view as a PNG at the size set in File ▸ Export PNG")
@@ -627,8 +786,18 @@ fn tile_ui(
                     };
                 }
             }
-        });
-    });
+        }
+    }
+}
+
+/// The view itself, under the tile's header.
+fn tile_body_ui(
+    ui: &mut Ui,
+    session: &Session,
+    chrome: &mut Chrome,
+    kind: ViewKind,
+    commands: &mut Vec<Command>,
+) {
     match kind {
         ViewKind::Trajectory => {
             let plane = plane_in_view(session, &chrome.settings);

@@ -13,8 +13,12 @@ use crate::widgets::{ERROR_COLOUR, number_field_ui, problems_ui, unit_field_ui, 
 
 /// Draws the whole panel for `doc`, a copy of the session's document: the caller hands the
 /// edited scenario to the session as a command when anything changed.
-pub fn model_panel_ui(ui: &mut Ui, doc: &mut Document) -> PanelChanges {
+/// `open_notes` unfolds the notes (on opening a demo, whose notes say what to look at).
+pub fn model_panel_ui(ui: &mut Ui, doc: &mut Document, open_notes: bool) -> PanelChanges {
     let mut changes = PanelChanges::default();
+    // the scroll bar takes its width from the right
+    let right = ui.max_rect().right() - ui.spacing().scroll.bar_width;
+    ui.data_mut(|d| d.insert_temp(panel_right_id(), right));
     egui::ScrollArea::vertical()
         .auto_shrink([false, false])
         .show(ui, |ui| {
@@ -31,6 +35,25 @@ pub fn model_panel_ui(ui: &mut Ui, doc: &mut Document) -> PanelChanges {
                     changes.view = true;
                 }
             });
+            egui::CollapsingHeader::new(RichText::new("Notes").strong())
+                .default_open(false)
+                .open(open_notes.then_some(true))
+                .show(ui, |ui| {
+                    let label = ui.label(RichText::new("what this scenario is about").weak());
+                    if ui
+                        .add(
+                            // less than the room: the field's frame is drawn outside
+                            // its width, and the panel would widen to it every frame
+                            egui::TextEdit::multiline(&mut doc.scenario.notes)
+                                .desired_width(ui.available_width() - 12.0)
+                                .desired_rows(6),
+                        )
+                        .labelled_by(label.id)
+                        .changed()
+                    {
+                        changes.view = true;
+                    }
+                });
             egui::CollapsingHeader::new(RichText::new("States").strong())
                 .default_open(true)
                 .show(ui, |ui| states_ui(ui, doc, &mut changes));
@@ -58,20 +81,6 @@ pub fn model_panel_ui(ui: &mut Ui, doc: &mut Document) -> PanelChanges {
                 )
                 .show(ui, |ui| {
                     crate::map_panel::map_section_ui(ui, doc, &mut changes)
-                });
-            egui::CollapsingHeader::new(RichText::new("Notes").strong())
-                .default_open(false)
-                .show(ui, |ui| {
-                    if ui
-                        .add(
-                            egui::TextEdit::multiline(&mut doc.scenario.notes)
-                                .desired_width(f32::INFINITY)
-                                .desired_rows(4),
-                        )
-                        .changed()
-                    {
-                        changes.view = true;
-                    }
                 });
         });
     changes
@@ -173,8 +182,10 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                 ui.horizontal(|ui| {
                     let label = ui.label(format!("d{name}/dt ="));
                     let state = &mut doc.scenario.states[idx];
+                    // as wide as the panel allows (the menu button after it keeps its room),
+                    // so the panel's width is the user's, not the longest rate's
                     let edit = egui::TextEdit::singleline(&mut state.rate)
-                        .desired_width(220.0)
+                        .desired_width(room_to_panel_edge(ui, 40.0))
                         .code_editor();
                     if ui
                         .add(edit)
@@ -229,6 +240,21 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         rename_everywhere(&mut doc.scenario, &old, &new);
         changes.model = true;
     }
+}
+
+/// Where the model panel's right edge was when its drawing began.
+fn panel_right_id() -> Id {
+    Id::new("model_panel_right_edge")
+}
+
+/// The width from the cursor to the panel's right edge, less `keep` for what follows:
+/// measured against the edge as it was before the content was laid out (a width taken from
+/// the room the content itself makes would grow the panel a little every frame).
+fn room_to_panel_edge(ui: &Ui, keep: f32) -> f32 {
+    let right = ui
+        .data(|d| d.get_temp::<f32>(panel_right_id()))
+        .unwrap_or(ui.cursor().min.x + 200.0);
+    (right - ui.cursor().min.x - keep).clamp(90.0, 600.0)
 }
 
 /// A row's menu ("…") with Remove in it; true when Remove was chosen. Remove sits in a
@@ -530,7 +556,7 @@ fn cut_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                 changes.cut |= ui
                     .add(
                         egui::TextEdit::singleline(expr)
-                            .desired_width(220.0)
+                            .desired_width(room_to_panel_edge(ui, 12.0))
                             .code_editor(),
                     )
                     .labelled_by(label.id)

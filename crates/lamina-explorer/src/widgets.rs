@@ -97,11 +97,7 @@ pub fn problems_ui<'a>(ui: &mut Ui, problems: impl Iterator<Item = &'a Problem>)
         } else {
             WARNING_COLOUR
         };
-        ui.label(
-            RichText::new(&problem.message)
-                .color(colour)
-                .monospace()
-                .small(),
-        );
+        // full size: an error is what the user must read next
+        ui.label(RichText::new(&problem.message).color(colour).monospace());
     }
 }

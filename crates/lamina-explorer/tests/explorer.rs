@@ -383,11 +383,11 @@ fn title_rect(h: &Harness<'static, ExplorerApp>, title: &str) -> egui::Rect {
 #[test]
 fn four_views_too_narrow_for_one_row_go_into_two() {
     // the demo has a sweep, so it shows four main views; with the analysis panel open, a
-    // window 1200 wide leaves each under the narrowest width that stays readable
+    // window 1300 wide leaves each under the narrowest width that stays readable in one row
     let mut app = app();
     app.show_analysis_panel(true);
     let mut h = Harness::builder()
-        .with_size(egui::vec2(1200.0, 900.0))
+        .with_size(egui::vec2(1300.0, 900.0))
         .with_max_steps(20)
         // an idle window now settles, and kittest then checks every widget for an accessible
         // name; the model panel's name and unit fields have none yet
@@ -407,6 +407,22 @@ fn four_views_too_narrow_for_one_row_go_into_two() {
     let trajectory = title_rect(&h, "Trajectory (3D)");
     let orbit = title_rect(&h, "Orbit diagram");
     assert!((trajectory.top() - orbit.top()).abs() < 1.0, "one row");
+    // too narrow for two side by side: one view at a time, chosen by tabs
+    h.set_size(egui::vec2(1050.0, 750.0));
+    steps(&mut h, 3);
+    assert_eq!(
+        h.query_all_by_label("Cut points").count(),
+        1,
+        "the cut view is a tab only"
+    );
+    h.get_by_label("Cut points").click();
+    steps(&mut h, 3);
+    assert_eq!(
+        h.query_all_by_label("Cut points").count(),
+        2,
+        "its tab and its title"
+    );
+    assert_eq!(h.query_all_by_label("Trajectory (3D)").count(), 1);
 }
 
 #[test]

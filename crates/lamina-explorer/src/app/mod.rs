@@ -67,6 +67,9 @@ impl ExplorerApp {
                 show_about: false,
                 show_shortcuts: false,
                 show_analysis: false,
+                show_model: true,
+                main_tab: 0,
+                lower_tab: Default::default(),
                 space_as_opened: None,
             },
             files: Files::new(options.native_dialogs, options.recovery),
@@ -346,8 +349,11 @@ impl ExplorerApp {
     /// Resets what the views keep when the document was replaced or new results came.
     fn sync_views(&mut self) {
         if self.chrome.view.generation != self.session.generation {
+            // a demo (notes and no file) opens with its notes shown: they say what to look at
+            let doc = &self.session.doc;
             self.chrome.view = ViewState {
                 generation: self.session.generation,
+                open_notes: doc.path.is_none() && !doc.scenario.notes.trim().is_empty(),
                 ..ViewState::default()
             };
         }
@@ -372,12 +378,17 @@ impl ExplorerApp {
         layout::menu_bar_ui(ui, &self.session, &mut self.chrome, &mut commands);
         layout::status_bar_ui(ui, &self.session);
         let mut draft = self.session.doc.clone();
+        let open_notes = std::mem::take(&mut self.chrome.view.open_notes);
         let changes = egui::Panel::left("model_panel")
             .resizable(true)
-            .default_size(430.0)
-            .min_size(300.0)
-            .show(ui, |ui| model_panel_ui(ui, &mut draft))
-            .inner;
+            .default_size(380.0)
+            .min_size(280.0)
+            .max_size(720.0)
+            .show_collapsible(ui, &mut self.chrome.show_model, |ui| {
+                model_panel_ui(ui, &mut draft, open_notes)
+            })
+            .map(|r| r.inner)
+            .unwrap_or_default();
         if changes.any() {
             commands.push(Command::Edit {
                 scenario: Box::new(draft.scenario),
@@ -386,20 +397,21 @@ impl ExplorerApp {
         } else if changes.slider_held != self.session.runs.slider_held() {
             commands.push(Command::HoldSlider(changes.slider_held));
         }
-        if self.chrome.show_analysis {
-            egui::Panel::right("analysis_panel")
-                .resizable(true)
-                .default_size(330.0)
-                .min_size(260.0)
-                .show(ui, |ui| {
-                    analysis_panel_ui(
-                        ui,
-                        &self.session,
-                        &mut self.chrome.view.summary,
-                        &mut commands,
-                    )
-                });
-        }
+        egui::Panel::right("analysis_panel")
+            .resizable(true)
+            .default_size(320.0)
+            .min_size(240.0)
+            .max_size(640.0)
+            // a closed analysis panel leaves no handle: the Analysis button opens it
+            .drag_to_open(false)
+            .show_collapsible(ui, &mut self.chrome.show_analysis, |ui| {
+                analysis_panel_ui(
+                    ui,
+                    &self.session,
+                    &mut self.chrome.view.summary,
+                    &mut commands,
+                )
+            });
         layout::lower_views_ui(ui, &self.session, &mut self.chrome);
         layout::main_views_ui(ui, &self.session, &mut self.chrome, &mut commands);
         help::about_window(&ctx, &mut self.chrome.show_about);
