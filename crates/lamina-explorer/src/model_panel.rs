@@ -244,7 +244,7 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
 
 /// Where the model panel's right edge was when its drawing began.
 fn panel_right_id() -> Id {
-    Id::new("model_panel_right_edge")
+    Id::unique("model_panel_right_edge")
 }
 
 /// The width from the cursor to the panel's right edge, less `keep` for what follows:
