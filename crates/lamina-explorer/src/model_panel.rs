@@ -9,7 +9,9 @@ use lamina_scenario::{
 
 use crate::document::{Document, rename_everywhere};
 use crate::vocabulary::PanelChanges;
-use crate::widgets::{ERROR_COLOUR, number_field_ui, problems_ui, unit_field_ui, unit_suffix};
+use crate::widgets::{
+    ERROR_COLOUR, name_for_readers, number_field_ui, problems_ui, unit_field_ui, unit_suffix,
+};
 
 /// Draws the whole panel for `doc`, a copy of the session's document: the caller hands the
 /// edited scenario to the session as a command when anything changed.
@@ -91,7 +93,13 @@ fn state_names(scenario: &Scenario) -> Vec<String> {
 }
 
 /// A name field that renames everywhere when editing ends, if the new name is free and valid.
-fn name_field_ui(ui: &mut Ui, id: Id, current: &str, scenario: &Scenario) -> Option<String> {
+fn name_field_ui(
+    ui: &mut Ui,
+    id: Id,
+    current: &str,
+    scenario: &Scenario,
+    what: &str,
+) -> Option<String> {
     let buffer_id = id.with("buffer");
     let mut text: String = ui
         .data_mut(|d| d.get_temp(buffer_id))
@@ -101,6 +109,7 @@ fn name_field_ui(ui: &mut Ui, id: Id, current: &str, scenario: &Scenario) -> Opt
             .id(id)
             .desired_width(56.0),
     );
+    name_for_readers(ui, &response, &format!("name of {what} {current}"));
     if ui
         .data_mut(|d| d.remove_temp::<bool>(id.with("focus_when_drawn")))
         .is_some()
@@ -162,9 +171,13 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             ui.end_row();
             for idx in 0..n_states {
                 let name = doc.scenario.states[idx].name.clone();
-                if let Some(new) =
-                    name_field_ui(ui, Id::unique(("state_name", idx)), &name, &doc.scenario)
-                {
+                if let Some(new) = name_field_ui(
+                    ui,
+                    Id::unique(("state_name", idx)),
+                    &name,
+                    &doc.scenario,
+                    "state",
+                ) {
                     rename = Some((name.clone(), new));
                 }
                 let start = &mut doc.scenario.states[idx].start;
@@ -307,6 +320,7 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                 Id::unique(("parameter_name", idx)),
                 &name,
                 &doc.scenario,
+                "parameter",
             ) {
                 rename = Some((name.clone(), new));
             }
@@ -456,19 +470,29 @@ fn method_label(m: MethodChoice) -> &'static str {
     }
 }
 
-fn axes_ui(ui: &mut Ui, id: &str, names: &[String], axes: &mut (String, String)) -> bool {
+/// The two axes a cloud view starts with (`what`: "cut" or "strobe").
+fn axes_ui(
+    ui: &mut Ui,
+    id: &str,
+    what: &str,
+    names: &[String],
+    axes: &mut (String, String),
+) -> bool {
     let mut changed = false;
     ui.horizontal(|ui| {
         ui.label("axes");
         for (k, axis) in [&mut axes.0, &mut axes.1].into_iter().enumerate() {
-            ComboBox::from_id_salt((id, k))
+            let response = ComboBox::from_id_salt((id, k))
                 .selected_text(axis.as_str())
                 .width(64.0)
                 .show_ui(ui, |ui| {
                     for n in names {
                         changed |= ui.selectable_value(axis, n.clone(), n).changed();
                     }
-                });
+                })
+                .response;
+            let which = if k == 0 { "horizontal" } else { "vertical" };
+            name_for_readers(ui, &response, &format!("{which} axis of the {what} view"));
         }
     });
     changed
@@ -591,7 +615,7 @@ fn cut_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             }
         }
     });
-    changes.view |= axes_ui(ui, "cut_axes", &names, &mut cut.axes);
+    changes.view |= axes_ui(ui, "cut_axes", "cut", &names, &mut cut.axes);
     problems_ui(ui, doc.problems_at("cut"));
 }
 
@@ -649,6 +673,6 @@ fn strobe_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         .on_hover_text("Time of sample 0; the samples are at first at + k × period")
         .changed();
     });
-    changes.view |= axes_ui(ui, "strobe_axes", &names, &mut strobe.axes);
+    changes.view |= axes_ui(ui, "strobe_axes", "strobe", &names, &mut strobe.axes);
     problems_ui(ui, doc.problems_at("strobe"));
 }

@@ -78,6 +78,14 @@ pub fn copy_button_ui(ui: &mut Ui, what: &str, text: impl FnOnce() -> String) {
     }
 }
 
+/// Gives the widget `response` the name `name` for screen readers (and tests), where no
+/// label stands beside it to name it.
+pub fn name_for_readers(ui: &Ui, response: &Response, name: &str) {
+    ui.ctx().accesskit_node_builder(response.id, |node| {
+        node.set_label(name);
+    });
+}
+
 /// Shortest text that reads back as `v`.
 pub fn format_value(v: f64) -> String {
     let plain = format!("{v}");

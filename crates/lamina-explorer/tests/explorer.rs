@@ -25,9 +25,6 @@ fn harness(app: ExplorerApp) -> Harness<'static, ExplorerApp> {
     Harness::builder()
         .with_size(egui::vec2(1500.0, 950.0))
         .with_max_steps(20)
-        // an idle window now settles, and kittest then checks every widget for an accessible
-        // name; the model panel's name and unit fields have none yet
-        .with_accessibility_check(false)
         .build_ui_state(|ui, app: &mut ExplorerApp| app.show_ui(ui), app)
 }
 
@@ -389,9 +386,6 @@ fn four_views_too_narrow_for_one_row_go_into_two() {
     let mut h = Harness::builder()
         .with_size(egui::vec2(1300.0, 900.0))
         .with_max_steps(20)
-        // an idle window now settles, and kittest then checks every widget for an accessible
-        // name; the model panel's name and unit fields have none yet
-        .with_accessibility_check(false)
         .build_ui_state(|ui, app: &mut ExplorerApp| app.show_ui(ui), app);
     steps(&mut h, 3);
     let trajectory = title_rect(&h, "Trajectory (3D)");
