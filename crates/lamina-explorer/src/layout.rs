@@ -369,7 +369,8 @@ pub fn lower_views_ui(ui: &mut Ui, session: &Session, chrome: &mut Chrome) {
             }
             let height = ui.available_height();
             ui.horizontal(|ui| {
-                let third = (width - 16.0) / 3.0;
+                // two separators between three columns, each with spacing on both sides
+                let third = (width - 2.0 * (2.0 * ui.spacing().item_spacing.x + 6.0)) / 3.0;
                 let column = |ui: &mut Ui, add: &mut dyn FnMut(&mut Ui)| {
                     ui.allocate_ui_with_layout(
                         vec2(third, height),
@@ -501,7 +502,7 @@ const MIN_TILE_WIDTH: f32 = 330.0;
 /// Narrowest a main view is laid out two to a row; below this the views become tabs.
 const MIN_TWO_ROW_TILE_WIDTH: f32 = 260.0;
 
-/// Height of the row of tabs over the main views when they are tabs.
+/// Height of one line of tabs over the main views when they are tabs.
 const TAB_BAR_HEIGHT: f32 = 28.0;
 
 /// How the main views share the central area.
@@ -528,21 +529,21 @@ fn arrangement(width: f32, n: usize) -> Arrangement {
     }
 }
 
-/// The tabs over the main views when they are too narrow to share the area; returns the
-/// view to show.
+/// The tabs over the main views when they are too narrow to share the area (on as many lines
+/// as they need); returns the view to show and where the tabs end.
 fn main_tabs_ui(
     ui: &mut Ui,
     session: &Session,
     chrome: &mut Chrome,
     shown: &[usize],
     full: Rect,
-) -> usize {
+) -> (usize, f32) {
     if !shown.contains(&chrome.main_tab) {
         chrome.main_tab = shown[0];
     }
     let bar = Rect::from_min_size(full.min, vec2(full.width(), TAB_BAR_HEIGHT));
     let mut bar_ui = ui.new_child(egui::UiBuilder::new().max_rect(bar).id_salt("main_tabs"));
-    bar_ui.horizontal(|ui| {
+    bar_ui.horizontal_wrapped(|ui| {
         for &i in shown {
             let kind = if MAIN_VIEWS[i] == ViewKind::Orbit {
                 crate::map_panel::fourth_view(session, chrome.view.fourth)
@@ -555,7 +556,7 @@ fn main_tabs_ui(
                 );
         }
     });
-    chrome.main_tab
+    (chrome.main_tab, bar_ui.min_rect().bottom())
 }
 
 /// The main views side by side (or, when four would be too narrow, in two rows of two),
@@ -581,8 +582,8 @@ pub fn main_views_ui(
         let gap = 8.0;
         let (full, shown) = match arrangement(full.width(), shown.len()) {
             Arrangement::Tabs => {
-                let tab = main_tabs_ui(ui, session, chrome, &shown, full);
-                (full.with_min_y(full.top() + TAB_BAR_HEIGHT), vec![tab])
+                let (tab, bar_bottom) = main_tabs_ui(ui, session, chrome, &shown, full);
+                (full.with_min_y(bar_bottom + gap / 2.0), vec![tab])
             }
             _ => (full, shown),
         };

@@ -120,6 +120,9 @@ fn switching_direction_to_both_doubles_the_count_without_a_new_run() {
     let rising = h.state().n_cut_points();
     let runs = h.state().n_runs_started();
     assert!(rising > 10);
+    // the demo opens with its notes shown: the cut's settings are further down the panel
+    h.get_by_label("both").scroll_to_me();
+    steps(&mut h, 5);
     h.get_by_label("both").click();
     h.step();
     h.step();

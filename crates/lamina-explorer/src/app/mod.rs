@@ -87,6 +87,8 @@ impl ExplorerApp {
             None => {
                 app.session.note("opened the built-in demo scenario");
                 app.apply_view_block();
+                // its notes say what to look at
+                app.chrome.view.open_notes = true;
             }
         }
         app
