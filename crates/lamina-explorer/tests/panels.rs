@@ -11,6 +11,9 @@ fn choosing_another_swept_parameter_takes_its_slider_range() {
     steps(&mut h, 3);
     let sweep = h.state().scenario().sweep.clone().expect("the demo sweeps");
     assert_eq!(sweep.parameter, "a");
+    // the demo opens with its notes shown: the sweep's settings are further down the panel
+    h.get_by_label("Sweep (orbit diagram)").scroll_to_me();
+    steps(&mut h, 5);
     h.get_by_label("Sweep (orbit diagram)").click();
     steps(&mut h, 3);
     h.get_by_role_and_label(egui::accesskit::Role::ComboBox, "parameter")
