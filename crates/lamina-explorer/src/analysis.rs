@@ -234,6 +234,16 @@ fn exponents_section_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Comma
             ui.label(RichText::new(e.to_string()).color(crate::widgets::ERROR_COLOUR));
         }
         Some(Ok(s)) => {
+            // exponents are rates: per unit of the model's time
+            let per_time = session
+                .doc
+                .scenario
+                .time
+                .unit
+                .as_deref()
+                .map(str::trim)
+                .filter(|u| !u.is_empty())
+                .map_or(String::new(), |u| format!(" 1/{u}"));
             copy_button_ui(ui, "the exponents", || {
                 crate::tables::exponents_tsv(&s.exponents, &s.spread)
             });
@@ -245,10 +255,15 @@ fn exponents_section_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Comma
                         ui.label(format!("λ{}", i + 1));
                         ui.label(
                             RichText::new(format!(
-                                "{l:+.5}  ± {:.1e}",
+                                "{l:+.5}{per_time}  ± {:.1e}",
                                 s.spread.get(i).copied().unwrap_or(f64::NAN)
                             ))
                             .monospace(),
+                        )
+                        .on_hover_text(
+                            "Average rate of growth (+) or shrinking (-) of small \
+                             differences along the run, per unit of time; ± is how much the \
+                             running estimate still moved over the last part of the run",
                         );
                         ui.end_row();
                     }

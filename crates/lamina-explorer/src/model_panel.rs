@@ -420,34 +420,50 @@ fn integrator_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             changes.model = true;
         }
         ui.end_row();
-        ui.label("rtol");
-        changes.model |= number_field_ui(ui, Id::unique("rtol"), &mut s.integrator.rtol, 80.0).on_hover_text("Relative tolerance per step").changed();
+        let time_unit = s.time.unit.clone().filter(|u| !u.trim().is_empty());
+        let unit_label = |ui: &mut Ui| {
+            if let Some(unit) = &time_unit {
+                ui.label(unit);
+            }
+        };
+        ui.label("rtol").on_hover_text(RTOL_TIP);
+        changes.model |= number_field_ui(ui, Id::unique("rtol"), &mut s.integrator.rtol, 80.0).on_hover_text(RTOL_TIP).changed();
         ui.end_row();
-        ui.label("atol");
-        changes.model |= number_field_ui(ui, Id::unique("atol"), &mut s.integrator.atol, 80.0).on_hover_text("Absolute tolerance per step").changed();
+        ui.label("atol").on_hover_text(ATOL_TIP);
+        changes.model |= number_field_ui(ui, Id::unique("atol"), &mut s.integrator.atol, 80.0).on_hover_text(ATOL_TIP).changed();
         ui.end_row();
-        ui.label("max step");
+        ui.label("max step").on_hover_text(MAX_STEP_TIP);
         ui.horizontal(|ui| {
             let mut limited = s.integrator.max_step.is_some();
-            if ui.checkbox(&mut limited, "").on_hover_text("Limit the step size (to resolve fast switching)").changed() {
+            if ui.checkbox(&mut limited, "").on_hover_text(MAX_STEP_TIP).changed() {
                 s.integrator.max_step = limited.then_some(0.1);
                 changes.model = true;
             }
             if let Some(max) = &mut s.integrator.max_step {
-                changes.model |= number_field_ui(ui, Id::unique("max_step"), max, 64.0).changed();
+                changes.model |= number_field_ui(ui, Id::unique("max_step"), max, 64.0).on_hover_text(MAX_STEP_TIP).changed();
+                unit_label(ui);
             }
         });
         ui.end_row();
         ui.label("start time");
-        changes.model |= number_field_ui(ui, Id::unique("t_start"), &mut s.time.start, 80.0).on_hover_text("Time at the start state").changed();
+        ui.horizontal(|ui| {
+            changes.model |= number_field_ui(ui, Id::unique("t_start"), &mut s.time.start, 80.0).on_hover_text("Time at the start state (where the rates' t begins)").changed();
+            unit_label(ui);
+        });
         ui.end_row();
-        ui.label("settle");
-        changes.model |= number_field_ui(ui, Id::unique("settle"), &mut s.time.settle, 80.0)
-            .on_hover_text("Transient integrated but not recorded")
-            .changed();
+        ui.label("settle").on_hover_text(SETTLE_TIP);
+        ui.horizontal(|ui| {
+            changes.model |= number_field_ui(ui, Id::unique("settle"), &mut s.time.settle, 80.0)
+                .on_hover_text(SETTLE_TIP)
+                .changed();
+            unit_label(ui);
+        });
         ui.end_row();
-        ui.label("span");
-        changes.model |= number_field_ui(ui, Id::unique("span"), &mut s.time.span, 80.0).on_hover_text("Length of the recorded window after the transient").changed();
+        ui.label("span").on_hover_text(SPAN_TIP);
+        ui.horizontal(|ui| {
+            changes.model |= number_field_ui(ui, Id::unique("span"), &mut s.time.span, 80.0).on_hover_text(SPAN_TIP).changed();
+            unit_label(ui);
+        });
         ui.end_row();
         ui.label("time unit");
         changes.view |= unit_field_ui(ui, &mut s.time.unit, "Unit of time, shown beside times, on axes and in captions (free text)");
@@ -460,6 +476,22 @@ fn integrator_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             .chain(doc.problems_at("limits")),
     );
 }
+
+/// What rtol means.
+const RTOL_TIP: &str = "Relative tolerance: the error each step may make, as a fraction of the \
+    state's size (1e-9: about nine digits per step). Smaller is more accurate and slower";
+/// What atol means.
+const ATOL_TIP: &str = "Absolute tolerance: the error each step may make where a state is near \
+    zero, in the state's own units. Set it well below the smallest size that matters";
+/// What the step limit is for.
+const MAX_STEP_TIP: &str = "Longest step the integrator may take, in the model's time. Set it \
+    below the shortest feature of a drive (a pulse, a ramp) the steps could step over";
+/// What settle means.
+const SETTLE_TIP: &str = "Time integrated first and not recorded, so the start-up transient \
+    dies out before cut points and strobe samples are kept";
+/// What span means.
+const SPAN_TIP: &str = "Length of the recorded window after settling: cut points and strobe \
+    samples come from it (Run on adds another span)";
 
 fn method_label(m: MethodChoice) -> &'static str {
     match m {
@@ -590,7 +622,10 @@ fn cut_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         }
     }
     ui.horizontal(|ui| {
-        ui.label("direction");
+        ui.label("direction").on_hover_text(
+            "Which crossings of the cut are recorded: g is the plane's left side minus its \
+             offset, or the level expression",
+        );
         for (d, text, tip) in [
             (
                 Direction::Rising,
@@ -649,6 +684,7 @@ fn strobe_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         });
         changes.strobe = true;
     }
+    let time_unit = doc.scenario.time.unit.clone();
     let Some(strobe) = &mut doc.scenario.strobe else {
         return;
     };
@@ -670,8 +706,14 @@ fn strobe_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             &mut strobe.first_at,
             56.0,
         )
-        .on_hover_text("Time of sample 0; the samples are at first at + k × period")
+        .on_hover_text(
+            "Time of sample 0 (the phase of the sampling); the samples are at first at + k × \
+             period, only those in the recorded window are kept",
+        )
         .changed();
+        if let Some(unit) = time_unit.as_deref().filter(|u| !u.trim().is_empty()) {
+            ui.label(unit);
+        }
     });
     changes.view |= axes_ui(ui, "strobe_axes", "strobe", &names, &mut strobe.axes);
     problems_ui(ui, doc.problems_at("strobe"));

@@ -145,3 +145,17 @@ fn the_camera_and_3d_axes_are_saved_in_the_view_block_and_restored_on_open() {
     assert!((zoom - 1.75).abs() < 1e-6, "{zoom}");
     assert_eq!(reopened.space_axes(), [1, 0, 2]);
 }
+
+#[test]
+fn the_time_unit_stands_beside_the_time_settings() {
+    let mut window = app();
+    window.edit_scenario(|s| s.time.unit = Some("ms".into()));
+    let mut h = harness(window);
+    steps(&mut h, 3);
+    // start time, settle, span and the strobe's first sample, each followed by its unit
+    assert!(
+        h.query_all_by_label("ms").count() >= 4,
+        "{}",
+        h.query_all_by_label("ms").count()
+    );
+}
