@@ -191,7 +191,20 @@ pub fn describe_change(before: &Scenario, after: &Scenario) -> Option<(String, S
         {
             return Some(("move the cut".into(), "cut.offset".into()));
         }
+        if let (Some(cb), Some(ca)) = (&b.cut, &a.cut)
+            && cb.surface == ca.surface
+            && cb.direction == ca.direction
+        {
+            return Some(("axes of the cut view".into(), "cut.axes".into()));
+        }
         return Some(block("cut", b.cut.is_some(), a.cut.is_some(), "cut"));
+    }
+    if let (Some(sb), Some(sa)) = (&b.strobe, &a.strobe)
+        && sb.period == sa.period
+        && sb.first_at == sa.first_at
+        && sb.axes != sa.axes
+    {
+        return Some(("axes of the strobe view".into(), "strobe.axes".into()));
     }
     if b.strobe != a.strobe {
         return Some(block(
