@@ -465,6 +465,17 @@ fn integrator_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             unit_label(ui);
         });
         ui.end_row();
+        ui.label("most points").on_hover_text(MAX_POINTS_TIP);
+        changes.model |= ui
+            .add(egui::DragValue::new(&mut s.limits.max_points).range(1..=100_000_000))
+            .on_hover_text(MAX_POINTS_TIP)
+            .changed();
+        ui.end_row();
+        ui.label("escape size").on_hover_text(ESCAPE_TIP);
+        changes.model |= number_field_ui(ui, Id::unique("escape"), &mut s.limits.escape, 80.0)
+            .on_hover_text(ESCAPE_TIP)
+            .changed();
+        ui.end_row();
         ui.label("time unit");
         changes.view |= unit_field_ui(ui, &mut s.time.unit, "Unit of time, shown beside times, on axes and in captions (free text)");
         ui.end_row();
@@ -486,6 +497,12 @@ const ATOL_TIP: &str = "Absolute tolerance: the error each step may make where a
 /// What the step limit is for.
 const MAX_STEP_TIP: &str = "Longest step the integrator may take, in the model's time. Set it \
     below the shortest feature of a drive (a pulse, a ramp) the steps could step over";
+/// What the point limit does.
+const MAX_POINTS_TIP: &str = "A run stops after this many cut points or strobe samples (it says \
+    so in the log): a bound on memory for long spans";
+/// What the escape size does.
+const ESCAPE_TIP: &str = "A run stops as escaped when any state's magnitude passes this size: \
+    the model is running away (unbounded), and the rest of the run would say nothing";
 /// What settle means.
 const SETTLE_TIP: &str = "Time integrated first and not recorded, so the start-up transient \
     dies out before cut points and strobe samples are kept";

@@ -64,6 +64,7 @@ fn every_kind_of_change_can_be_undone_and_redone() {
         s.integrator.rtol = 1e-8
     });
     undo_and_redo(&mut app, "time window", |s| s.time.span *= 2.0);
+    undo_and_redo(&mut app, "run limits", |s| s.limits.escape = 1e3);
     undo_and_redo(&mut app, "move the cut", |s| {
         if let Some(lamina_scenario::Cut {
             surface: lamina_scenario::Surface::Plane { offset, .. },
