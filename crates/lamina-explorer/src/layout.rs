@@ -156,7 +156,17 @@ pub fn menu_bar_ui(
                 if ui.button("Stop   Esc").clicked() {
                     commands.push(Command::Stop);
                 }
-                if ui.button("Run on   F6").on_hover_text(RUN_ON_TIP).clicked() {
+                let error = session
+                    .doc
+                    .first_error()
+                    .map(|p| format!("{}: {}", p.field, p.message));
+                let off = run_on_off_reason(session, error.as_deref());
+                let item = ui.add_enabled(off.is_none(), egui::Button::new("Run on   F6"));
+                let item = match &off {
+                    Some(reason) => item.on_disabled_hover_text(format!("Run on is off: {reason}")),
+                    None => item.on_hover_text(RUN_ON_TIP),
+                };
+                if item.clicked() {
                     commands.push(Command::RunOn);
                 }
             });

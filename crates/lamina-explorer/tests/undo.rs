@@ -92,6 +92,13 @@ fn typing_in_one_field_is_one_step_and_a_drag_of_the_cut_is_one_step() {
         });
     }
     assert_eq!(app.n_undo_steps(), 2, "a drag of the cut: one step");
+    assert!(
+        app.messages()
+            .filter(|m| m.starts_with("re-sliced"))
+            .count()
+            <= 1,
+        "a drag of the cut: at most one line in the log"
+    );
     assert_eq!(app.undo_label(), Some("move the cut"));
     app.command(Command::Undo);
     assert_eq!(*app.scenario(), typed);
@@ -193,5 +200,29 @@ fn a_new_parameter_takes_the_keyboard_on_its_name() {
     assert!(
         h.query_all_by_value(&name).any(|field| field.is_focused()),
         "the new name field has the keyboard"
+    );
+}
+
+#[test]
+fn a_drag_of_the_cut_writes_one_line_in_the_log() {
+    let mut h = harness(common::van_der_pol_app());
+    steps(&mut h, 2);
+    h.state_mut().command(Command::Run);
+    common::wait_until(&mut h, |a| !a.is_running());
+    for k in 1..=20 {
+        h.state_mut().command(Command::MoveCut {
+            offset: 0.01 * k as f64,
+        });
+        h.step();
+    }
+    let lines = h
+        .state()
+        .messages()
+        .filter(|m| m.starts_with("re-sliced"))
+        .count();
+    assert_eq!(lines, 1, "one line for the drag");
+    assert!(
+        h.state().n_cut_points() > 0,
+        "the cut points follow the drag"
     );
 }

@@ -115,6 +115,18 @@ impl Session {
         }
     }
 
+    /// Adds a line to the message log, or replaces the last line if it starts with `kind`
+    /// too (a drag that repeats one action every frame gives one line, not hundreds).
+    pub fn note_in_place(&mut self, kind: &str, message: String) {
+        match self.log.last_mut() {
+            Some((when, last)) if last.starts_with(kind) => {
+                *when = Instant::now();
+                *last = message;
+            }
+            _ => self.note(message),
+        }
+    }
+
     /// Puts `doc` in place of the current document: stops every job, clears results,
     /// analysis (resting points, rechecks and branch with it), sweep, orbit marks and picked
     /// axes, and queues a run if so set.

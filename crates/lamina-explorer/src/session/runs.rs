@@ -356,11 +356,15 @@ impl Session {
         let n_steps = run.stored().n_steps();
         run.set_cut(Some(cut));
         self.results.cut.set_cut_points(&points);
-        self.note(format!(
-            "re-sliced {n_steps} stored steps in {:.1} ms: {} cut points",
-            took.as_secs_f64() * 1e3,
-            points.len()
-        ));
+        // a drag of the cut re-slices every frame: one line for the drag, kept up to date
+        self.note_in_place(
+            "re-sliced ",
+            format!(
+                "re-sliced {n_steps} stored steps in {:.1} ms: {} cut points",
+                took.as_secs_f64() * 1e3,
+                points.len()
+            ),
+        );
     }
 
     /// Samples the stored run again with the scenario's strobe.
