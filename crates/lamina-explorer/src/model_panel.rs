@@ -210,7 +210,7 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                     {
                         changes.model = true;
                     }
-                    if n_states > 1 && row_menu_ui(ui, "state", &name) {
+                    if n_states > 1 && row_menu_ui(ui, "state", &name, &doc.scenario) {
                         remove = Some(idx);
                     }
                 });
@@ -255,6 +255,11 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
     }
 }
 
+/// Whether `expression` uses the name `name` (as a whole word).
+fn uses_name(expression: &str, name: &str) -> bool {
+    crate::document::rename_in_expression(expression, name, "\u{1}") != expression
+}
+
 /// Where the model panel's right edge was when its drawing began.
 fn panel_right_id() -> Id {
     Id::unique("model_panel_right_edge")
@@ -273,13 +278,28 @@ fn room_to_panel_edge(ui: &Ui, keep: f32) -> f32 {
 /// A row's menu ("…") with Remove in it; true when Remove was chosen. Remove sits in a
 /// menu, not on a button of its own, so the row that slides up under the pointer after a
 /// removal is not removed by the next click.
-fn row_menu_ui(ui: &mut Ui, what: &str, name: &str) -> bool {
+fn row_menu_ui(ui: &mut Ui, what: &str, name: &str, scenario: &Scenario) -> bool {
     let mut remove = false;
+    let users: Vec<String> = scenario
+        .states
+        .iter()
+        .filter(|s| s.name != name && uses_name(&s.rate, name))
+        .map(|s| format!("d{}/dt", s.name))
+        .collect();
+    let tip = if users.is_empty() {
+        "Edit ▸ Undo (Ctrl+Z) brings it back".to_string()
+    } else {
+        format!(
+            "{name} is used in {}: they will show an error until it is replaced or brought \
+             back with Edit ▸ Undo (Ctrl+Z)",
+            users.join(", ")
+        )
+    };
     let response = ui
         .menu_button("…", |ui| {
             if ui
                 .button(format!("Remove {what} {name}"))
-                .on_hover_text("Edit ▸ Undo (Ctrl+Z) brings it back")
+                .on_hover_text(tip)
                 .clicked()
             {
                 remove = true;
@@ -347,7 +367,7 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             {
                 changes.model = true;
             }
-            if row_menu_ui(ui, "parameter", &name) {
+            if row_menu_ui(ui, "parameter", &name, &doc.scenario) {
                 remove = Some(idx);
             }
         });
