@@ -15,7 +15,8 @@ use crate::vocabulary::{Command, JobKind, Pending, Purpose};
 enum DialogAnswer {
     Picked(Purpose, PathBuf),
     Cancelled,
-    Unavailable(Purpose),
+    /// No dialog could be shown: the purpose and the path it was to suggest.
+    Unavailable(Purpose, Option<PathBuf>),
 }
 
 /// File dialogs, prompts and recovery.
@@ -116,7 +117,9 @@ impl Files {
             };
             match picked {
                 Some(path) => DialogAnswer::Picked(purpose, path),
-                None if started.elapsed() < DIALOG_NOT_SHOWN => DialogAnswer::Unavailable(purpose),
+                None if started.elapsed() < DIALOG_NOT_SHOWN => {
+                    DialogAnswer::Unavailable(purpose, suggested)
+                }
                 None => DialogAnswer::Cancelled,
             }
         });
@@ -171,10 +174,14 @@ impl ExplorerApp {
                 match answer {
                     DialogAnswer::Picked(purpose, path) => self.path_chosen(ctx, purpose, path),
                     DialogAnswer::Cancelled => self.files.after_save = None,
-                    DialogAnswer::Unavailable(purpose) => {
+                    DialogAnswer::Unavailable(purpose, suggested) => {
+                        // the path field starts where the dialog would have
+                        let text = suggested
+                            .map(|p| p.display().to_string())
+                            .unwrap_or_default();
                         self.files.prompt = Some((
                             purpose,
-                            String::new(),
+                            text,
                             Some(
                                 "No file dialog is available on this desktop: type a path instead."
                                     .into(),
