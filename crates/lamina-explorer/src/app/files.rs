@@ -137,14 +137,20 @@ impl Files {
 }
 
 impl Files {
-    /// `suggested` with a folder: a bare file name goes into the folder of the file used
-    /// last, else the working folder (unless that is the file system's root, as for a program
-    /// started from a desktop menu), else the home folder; no suggestion gives the folder
-    /// itself, ending in a separator, ready for a file name.
+    /// `suggested` as a whole path: a relative path with a folder is taken from the working
+    /// folder; a bare file name goes into the folder of the file used last, else the working
+    /// folder (unless that is the file system's root, as for a program started from a desktop
+    /// menu), else the home folder; no suggestion gives the folder itself, ending in a
+    /// separator, ready for a file name.
     fn in_a_folder(&self, suggested: Option<PathBuf>) -> PathBuf {
         let name = suggested.unwrap_or_default();
         if name.is_absolute() {
             return name;
+        }
+        let has_folder = name.parent().is_some_and(|p| !p.as_os_str().is_empty());
+        if has_folder {
+            // a relative path with its folder: from the working folder, where it points now
+            return std::path::absolute(&name).unwrap_or(name);
         }
         let cwd = std::env::current_dir()
             .ok()
@@ -272,6 +278,9 @@ impl ExplorerApp {
 
     /// Opens `path`, replacing the current scenario (already confirmed).
     pub(crate) fn open_path(&mut self, path: PathBuf) {
+        // the whole path: recent files, saves and suggestions stay right if the working
+        // folder is not the one the window started in
+        let path = std::path::absolute(&path).unwrap_or(path);
         match lamina_scenario::load_file(&path) {
             Ok(scenario) => {
                 let format_note = scenario.format_note();
@@ -670,5 +679,35 @@ pub fn dialogs_ui(app: &mut ExplorerApp, ctx: &Context, commands: &mut Vec<Comma
         if !open {
             app.files.alert = None;
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use std::path::PathBuf;
+
+    use super::Files;
+
+    #[test]
+    fn a_suggested_path_becomes_a_whole_one() {
+        let mut files = Files::new(false, false);
+        files.last_folder = Some(PathBuf::from("/data/runs"));
+        // [common practice] a save dialog starts in the folder used last
+        assert_eq!(
+            files.in_a_folder(Some(PathBuf::from("cut_points.csv"))),
+            PathBuf::from("/data/runs/cut_points.csv")
+        );
+        assert_eq!(
+            files.in_a_folder(Some(PathBuf::from("/tmp/a.csv"))),
+            PathBuf::from("/tmp/a.csv")
+        );
+        let cwd = std::env::current_dir().expect("cwd");
+        assert_eq!(
+            files.in_a_folder(Some(PathBuf::from("demos/b.csv"))),
+            cwd.join("demos/b.csv"),
+            "a folder given relative to the working folder, never doubled"
+        );
+        let folder = files.in_a_folder(None);
+        assert_eq!(folder.to_string_lossy(), "/data/runs/");
     }
 }
