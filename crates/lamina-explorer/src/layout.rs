@@ -512,6 +512,14 @@ const MIN_TILE_WIDTH: f32 = 330.0;
 /// Narrowest a main view is laid out two to a row; below this the views become tabs.
 const MIN_TWO_ROW_TILE_WIDTH: f32 = 260.0;
 
+/// Narrowest the 3D view is laid out while its neighbours can spare the room (its axis
+/// pickers and reset button fit in one line).
+const MIN_TRAJECTORY_WIDTH: f32 = 330.0;
+
+/// Narrowest the 3D view's neighbours are made to give it [`MIN_TRAJECTORY_WIDTH`] (a plot
+/// with two axis pickers still reads at this width).
+const MIN_NEIGHBOUR_WIDTH: f32 = 220.0;
+
 /// Height of one line of tabs over the main views when they are tabs.
 const TAB_BAR_HEIGHT: f32 = 28.0;
 
@@ -640,10 +648,37 @@ fn row_ui(
         .map(|&i| settings.tile_weights[i].max(0.05))
         .sum();
     let usable = band.width() - gap * (row.len() as f32 - 1.0);
+    let mut widths: Vec<f32> = row
+        .iter()
+        .map(|&i| usable * settings.tile_weights[i].max(0.05) / total_weight)
+        .collect();
+    // the 3D view's row of axis pickers needs more room than a plot's: give it that much
+    // where the others keep a readable width
+    if let Some(k) = row
+        .iter()
+        .position(|&i| MAIN_VIEWS[i] == ViewKind::Trajectory)
+        && row.len() > 1
+        && widths[k] < MIN_TRAJECTORY_WIDTH
+        && usable - MIN_TRAJECTORY_WIDTH >= MIN_NEIGHBOUR_WIDTH * (row.len() - 1) as f32
+    {
+        let others = usable - MIN_TRAJECTORY_WIDTH;
+        let rest: f32 = widths
+            .iter()
+            .enumerate()
+            .filter(|(j, _)| *j != k)
+            .map(|(_, w)| w)
+            .sum();
+        for (j, w) in widths.iter_mut().enumerate() {
+            *w = if j == k {
+                MIN_TRAJECTORY_WIDTH
+            } else {
+                *w * others / rest
+            };
+        }
+    }
     let mut x = band.left();
     let mut rects = Vec::new();
-    for &i in row {
-        let w = usable * settings.tile_weights[i].max(0.05) / total_weight;
+    for (&i, &w) in row.iter().zip(&widths) {
         rects.push((
             i,
             Rect::from_min_size(egui::pos2(x, band.top()), vec2(w, band.height())),
