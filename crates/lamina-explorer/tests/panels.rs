@@ -159,3 +159,45 @@ fn the_time_unit_stands_beside_the_time_settings() {
         h.query_all_by_label("ms").count()
     );
 }
+
+#[test]
+fn a_demo_opens_with_its_notes_shown_and_a_file_without() {
+    let mut h = harness(app());
+    steps(&mut h, 3);
+    let notes = h.state().scenario().notes.clone();
+    assert!(!notes.is_empty());
+    assert!(
+        h.query_by_value(&notes).is_some(),
+        "the built-in demo's notes are shown"
+    );
+    h.state_mut()
+        .command(lamina_explorer::Command::LoadDemo("Relay loop"));
+    steps(&mut h, 3);
+    let notes = h.state().scenario().notes.clone();
+    assert!(
+        h.query_by_value(&notes).is_some(),
+        "another demo's notes too"
+    );
+}
+
+#[test]
+fn the_lower_row_becomes_tabs_in_a_narrow_window() {
+    let mut window = app();
+    window.show_analysis_panel(true);
+    let mut h = egui_kittest::Harness::builder()
+        .with_size(egui::vec2(1100.0, 750.0))
+        .with_max_steps(20)
+        .build_ui_state(
+            |ui, app: &mut lamina_explorer::ExplorerApp| app.show_ui(ui),
+            window,
+        );
+    steps(&mut h, 3);
+    // one of the three at a time: the log is a tab until chosen
+    assert!(
+        h.query_by_label_contains("opened the built-in demo")
+            .is_none()
+    );
+    h.get_by_label("Messages").click();
+    steps(&mut h, 3);
+    h.get_by_label_contains("opened the built-in demo");
+}
