@@ -14,9 +14,6 @@ fn measure(n_points: usize) -> (f64, f64) {
     let app = ExplorerApp::benchmark_scene(n_points);
     let mut h = Harness::builder()
         .with_size(egui::vec2(1600.0, 1000.0))
-        // an idle window settles, and kittest then checks accessible names, which the model
-        // panel's name and unit fields lack
-        .with_accessibility_check(false)
         .build_ui_state(|ui, app: &mut ExplorerApp| app.show_ui(ui), app);
     for _ in 0..5 {
         h.step();

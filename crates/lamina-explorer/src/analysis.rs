@@ -13,7 +13,7 @@ use crate::rest_panel::{recheck_row_ui, resting_points_section_ui};
 use crate::session::{Session, map_points};
 use crate::views::plot_input;
 use crate::vocabulary::{Command, JobKind, OrbitMap, RecheckTarget};
-use crate::widgets::unit_suffix;
+use crate::widgets::{copy_button_ui, unit_suffix};
 
 /// The recurrence summary of the shown cloud, kept with the (map, revision, length) it was
 /// made for: the search reads every point, so it is redone only when those change.
@@ -183,10 +183,20 @@ fn cycle_section_ui(
                 ))
                 .small(),
             );
-            ui.label(RichText::new("multipliers of the map").weak());
+            ui.horizontal(|ui| {
+                ui.label(RichText::new("multipliers of the map").weak());
+                copy_button_ui(ui, "the multipliers of the map", || {
+                    crate::tables::multipliers_tsv(&r.multipliers)
+                });
+            });
             multiplier_rows_ui(ui, "map_multipliers", &r.multipliers);
             if let Some(f) = &r.floquet {
-                ui.label(RichText::new("Floquet multipliers (with the trivial 1)").weak());
+                ui.horizontal(|ui| {
+                    ui.label(RichText::new("Floquet multipliers (with the trivial 1)").weak());
+                    copy_button_ui(ui, "the Floquet multipliers", || {
+                        crate::tables::multipliers_tsv(f)
+                    });
+                });
                 multiplier_rows_ui(ui, "floquet_multipliers", f);
             }
             unit_circle_ui(ui, r);
@@ -225,6 +235,19 @@ fn exponents_section_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Comma
             ui.label(RichText::new(e.to_string()).color(crate::widgets::ERROR_COLOUR));
         }
         Some(Ok(s)) => {
+            // exponents are rates: per unit of the model's time
+            let per_time = session
+                .doc
+                .scenario
+                .time
+                .unit
+                .as_deref()
+                .map(str::trim)
+                .filter(|u| !u.is_empty())
+                .map_or(String::new(), |u| format!(" 1/{u}"));
+            copy_button_ui(ui, "the exponents", || {
+                crate::tables::exponents_tsv(&s.exponents, &s.spread)
+            });
             egui::Grid::new("exponents")
                 .num_columns(2)
                 .striped(true)
@@ -233,10 +256,15 @@ fn exponents_section_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Comma
                         ui.label(format!("λ{}", i + 1));
                         ui.label(
                             RichText::new(format!(
-                                "{l:+.5}  ± {:.1e}",
+                                "{l:+.5}{per_time}  ± {:.1e}",
                                 s.spread.get(i).copied().unwrap_or(f64::NAN)
                             ))
                             .monospace(),
+                        )
+                        .on_hover_text(
+                            "Average rate of growth (+) or shrinking (-) of small \
+                             differences along the run, per unit of time; ± is how much the \
+                             running estimate still moved over the last part of the run",
                         );
                         ui.end_row();
                     }

@@ -8,7 +8,7 @@ use lamina_core::branch::{BranchOf, BranchPoint};
 
 use crate::session::Session;
 use crate::views::orbit::BranchOverlay;
-use crate::vocabulary::{Command, JobKind};
+use crate::vocabulary::{Command, JobKind, unit_suffix};
 use crate::widgets::ERROR_COLOUR;
 
 /// The "Follow branch" section.
@@ -18,15 +18,12 @@ pub fn branch_section_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Comm
     let range = session.branch_range();
     match &range {
         Ok(r) => {
-            let name = session
-                .doc
-                .scenario
-                .parameters
-                .get(r.parameter)
-                .map_or("?", |p| p.name.as_str());
+            let parameter = session.doc.scenario.parameters.get(r.parameter);
+            let name = parameter.map_or("?", |p| p.name.as_str());
+            let unit = unit_suffix(parameter.and_then(|p| p.unit.as_deref()));
             ui.label(
                 RichText::new(format!(
-                    "{name} over [{}, {}] (the sweep's range)",
+                    "{name} over [{}, {}]{unit} (the sweep's range)",
                     r.from, r.to
                 ))
                 .small(),
@@ -89,10 +86,19 @@ pub fn branch_section_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Comm
     if !branch.special.is_empty() {
         ui.label(RichText::new("special points (click to run there)").weak());
     }
+    let scenario = &session.doc.scenario;
+    let value_unit = unit_suffix(
+        scenario
+            .parameters
+            .iter()
+            .find(|p| p.name == pname)
+            .and_then(|p| p.unit.as_deref()),
+    );
+    let time_unit = unit_suffix(scenario.time.unit.as_deref());
     for s in &branch.special {
-        let mut text = format!("{} at {pname} = {:.8}", s.kind.words(), s.value);
+        let mut text = format!("{} at {pname} = {:.8}{value_unit}", s.kind.words(), s.value);
         if let Some(period) = s.period {
-            text.push_str(&format!(", period {period:.6}"));
+            text.push_str(&format!(", period {period:.6}{time_unit}"));
         }
         if ui
             .link(text)

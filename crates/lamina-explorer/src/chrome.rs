@@ -29,6 +29,8 @@ pub struct ViewState {
     pub time_plot: TimePlotView,
     /// The finished run's dense path, which the 3D view and the time plot draw.
     pub dense: DensePath,
+    /// Open the model panel's notes on the next frame (a demo was just opened).
+    pub open_notes: bool,
 }
 
 /// The window's own state around the session: settings, the views' state and which of the
@@ -44,4 +46,26 @@ pub struct Chrome {
     pub show_shortcuts: bool,
     /// The analysis panel is open.
     pub show_analysis: bool,
+    /// The model panel is open (it can be folded away to give the views the room).
+    pub show_model: bool,
+    /// The main view shown when the views are too narrow to stand side by side and become
+    /// tabs (an index into the main views).
+    pub main_tab: usize,
+    /// The lower view shown when the lower row is too narrow and becomes tabs.
+    pub lower_tab: LowerTab,
+    /// The 3D view's axes and camera (turn, tilt, zoom) as the document was opened: a save
+    /// writes them into the view block only when they have changed since.
+    pub space_as_opened: Option<([usize; 3], [f32; 3])>,
+}
+
+/// The views of the lower row.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum LowerTab {
+    /// The return times (or the strobe's sample spacing).
+    #[default]
+    ReturnTimes,
+    /// The first-return map.
+    ReturnMap,
+    /// The message log.
+    Messages,
 }

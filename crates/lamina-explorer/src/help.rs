@@ -20,6 +20,8 @@ pub const SHORTCUTS: &[(&str, &str)] = &[
         "F6",
         "Run on: integrate another span from where the run ended",
     ),
+    ("Ctrl+Z", "Undo the last change to the scenario"),
+    ("Ctrl+Shift+Z  or  Ctrl+Y", "Redo"),
     ("Ctrl+N", "New scenario"),
     ("Ctrl+O", "Open a scenario"),
     ("Ctrl+S", "Save"),

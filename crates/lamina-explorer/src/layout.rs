@@ -4,7 +4,7 @@
 use egui::{Color32, Rect, RichText, Sense, Ui, vec2};
 use lamina_scenario::Surface;
 
-use crate::chrome::Chrome;
+use crate::chrome::{Chrome, LowerTab};
 use crate::document::DEMOS;
 use crate::results::{AxisLabels, RunState};
 use crate::session::Session;
@@ -160,6 +160,7 @@ pub fn menu_bar_ui(
                     }
                 });
             });
+            edit_menu_ui(ui, session, commands);
             ui.menu_button("Run", |ui| {
                 if ui.button("Run from the start   F5").clicked() {
                     commands.push(Command::Run);
@@ -167,7 +168,17 @@ pub fn menu_bar_ui(
                 if ui.button("Stop   Esc").clicked() {
                     commands.push(Command::Stop);
                 }
-                if ui.button("Run on   F6").on_hover_text(RUN_ON_TIP).clicked() {
+                let error = session
+                    .doc
+                    .first_error()
+                    .map(|p| format!("{}: {}", p.field, p.message));
+                let off = run_on_off_reason(session, error.as_deref());
+                let item = ui.add_enabled(off.is_none(), egui::Button::new("Run on   F6"));
+                let item = match &off {
+                    Some(reason) => item.on_disabled_hover_text(format!("Run on is off: {reason}")),
+                    None => item.on_hover_text(RUN_ON_TIP),
+                };
+                if item.clicked() {
                     commands.push(Command::RunOn);
                 }
             });
@@ -182,11 +193,43 @@ pub fn menu_bar_ui(
             ui.separator();
             run_buttons_ui(ui, session, commands);
             ui.separator();
+            ui.toggle_value(&mut chrome.show_model, "Model")
+                .on_hover_text("Show or fold away the model panel (its width: drag its edge)");
             ui.toggle_value(&mut chrome.show_analysis, "Analysis")
                 .on_hover_text(
                     "Periodic orbit (Floquet multipliers) and Lyapunov exponents of the scenario",
                 );
         });
+    });
+}
+
+/// The Edit menu: Undo and Redo, each naming the change it acts on.
+fn edit_menu_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Command>) {
+    ui.menu_button("Edit", |ui| {
+        let undo = session.history.undo_label();
+        let text = undo.map_or("Undo".to_string(), |l| format!("Undo: {l}"));
+        if ui
+            .add_enabled(
+                undo.is_some(),
+                egui::Button::new(text).shortcut_text("Ctrl+Z"),
+            )
+            .on_disabled_hover_text("Nothing to undo")
+            .clicked()
+        {
+            commands.push(Command::Undo);
+        }
+        let redo = session.history.redo_label();
+        let text = redo.map_or("Redo".to_string(), |l| format!("Redo: {l}"));
+        if ui
+            .add_enabled(
+                redo.is_some(),
+                egui::Button::new(text).shortcut_text("Ctrl+Shift+Z"),
+            )
+            .on_disabled_hover_text("Nothing to redo")
+            .clicked()
+        {
+            commands.push(Command::Redo);
+        }
     });
 }
 
@@ -220,12 +263,13 @@ fn run_buttons_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Command>) {
     {
         commands.push(Command::Stop);
     }
-    let can_run_on = !running && session.results.run.is_some();
-    if ui
-        .add_enabled(can_run_on, egui::Button::new("Run on"))
-        .on_hover_text(RUN_ON_TIP)
-        .clicked()
-    {
+    let run_on_off = run_on_off_reason(session, error.as_deref());
+    let run_on = ui.add_enabled(run_on_off.is_none(), egui::Button::new("Run on"));
+    let run_on = match &run_on_off {
+        Some(reason) => run_on.on_disabled_hover_text(format!("Run on is off: {reason}")),
+        None => run_on.on_hover_text(RUN_ON_TIP),
+    };
+    if run_on.clicked() {
         commands.push(Command::RunOn);
     }
     if let Some(reason) = error {
@@ -239,6 +283,24 @@ fn run_buttons_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Command>) {
                 .color(crate::widgets::WARNING_COLOUR),
         );
     }
+}
+
+/// Why "Run on" cannot go now, or `None` when it can.
+fn run_on_off_reason(session: &Session, error: Option<&str>) -> Option<String> {
+    if let Some(reason) = error {
+        let first_line = reason.lines().next().unwrap_or("");
+        return Some(format!("fix this first — {first_line}"));
+    }
+    if session.is_running() {
+        return Some("the run is still going".into());
+    }
+    if session.results.run.is_none() {
+        return Some("there is no finished run yet: press Run".into());
+    }
+    if session.runs.stale {
+        return Some("the model changed since this run: press Run".into());
+    }
+    None
 }
 
 /// The status line: run state, points, steps, times.
@@ -277,12 +339,27 @@ pub fn status_bar_ui(ui: &mut Ui, session: &Session) {
             let time_unit = unit_suffix(session.doc.scenario.time.unit.as_deref());
             ui.label(format!("t = {:.6}{time_unit}", r.t_reached));
             ui.separator();
-            ui.label(format!("{:.2} s", r.elapsed.as_secs_f64()));
+            let total = r.elapsed.as_secs_f64();
+            match session.runs.parts {
+                0 | 1 => ui.label(format!("{total:.2} s")),
+                parts => ui
+                    .label(format!(
+                        "{:.2} s ({total:.2} s in all, {parts} parts)",
+                        session.runs.last_part.as_secs_f64()
+                    ))
+                    .on_hover_text(
+                        "The last part (Run on) took the first time; the run and every Run on since took the second",
+                    ),
+            };
         });
     });
 }
 
-/// The return-time sequence, the first-return map and the message log.
+/// Narrowest a lower view is laid out beside the others; below this they become tabs.
+const MIN_LOWER_WIDTH: f32 = 260.0;
+
+/// The return-time sequence, the first-return map and the message log: side by side, or as
+/// tabs where the row is too narrow for three.
 pub fn lower_views_ui(ui: &mut Ui, session: &Session, chrome: &mut Chrome) {
     egui::Panel::bottom("lower_views")
         .resizable(true)
@@ -290,82 +367,120 @@ pub fn lower_views_ui(ui: &mut Ui, session: &Session, chrome: &mut Chrome) {
         .min_size(120.0)
         .show(ui, |ui| {
             let width = ui.available_width();
+            if width < 3.0 * MIN_LOWER_WIDTH {
+                ui.horizontal(|ui| {
+                    for (tab, text) in [
+                        (LowerTab::ReturnTimes, return_times_title(session)),
+                        (LowerTab::ReturnMap, "First-return map"),
+                        (LowerTab::Messages, "Messages"),
+                    ] {
+                        ui.selectable_value(&mut chrome.lower_tab, tab, text);
+                    }
+                });
+                let height = ui.available_height();
+                ui.allocate_ui_with_layout(
+                    vec2(width, height),
+                    egui::Layout::top_down(egui::Align::Min),
+                    |ui| match chrome.lower_tab {
+                        LowerTab::ReturnTimes => return_times_body_ui(ui, session),
+                        LowerTab::ReturnMap => first_return_body_ui(ui, session, chrome),
+                        LowerTab::Messages => messages_body_ui(ui, session),
+                    },
+                );
+                return;
+            }
             let height = ui.available_height();
             ui.horizontal(|ui| {
-                let third = (width - 16.0) / 3.0;
-                let source_is_cut =
-                    !session.results.cut.is_empty() || session.results.strobe.is_empty();
-                ui.allocate_ui_with_layout(
-                    vec2(third, height),
-                    egui::Layout::top_down(egui::Align::Min),
-                    |ui| {
-                        ui.label(
-                            RichText::new(if source_is_cut {
-                                "Return times (cut)"
-                            } else {
-                                "Sample spacing (strobe)"
-                            })
-                            .small()
-                            .strong(),
-                        );
-                        let cloud = if source_is_cut {
-                            &session.results.cut
-                        } else {
-                            &session.results.strobe
-                        };
-                        let source = if source_is_cut { "cut" } else { "strobe" };
-                        let unit = session.doc.scenario.time.unit.as_deref();
-                        let label = unit.map_or(source.to_owned(), |u| format!("{source}, {u}"));
-                        series::return_times_ui(ui, cloud, &label);
-                    },
-                );
+                // two separators between three columns, each with spacing on both sides
+                let third = (width - 2.0 * (2.0 * ui.spacing().item_spacing.x + 6.0)) / 3.0;
+                let column = |ui: &mut Ui, add: &mut dyn FnMut(&mut Ui)| {
+                    ui.allocate_ui_with_layout(
+                        vec2(third, height),
+                        egui::Layout::top_down(egui::Align::Min),
+                        |ui| {
+                            ui.set_max_width(third);
+                            add(ui);
+                        },
+                    );
+                };
+                column(ui, &mut |ui| {
+                    ui.label(RichText::new(return_times_title(session)).strong());
+                    return_times_body_ui(ui, session);
+                });
                 ui.separator();
-                ui.allocate_ui_with_layout(
-                    vec2(third, height),
-                    egui::Layout::top_down(egui::Align::Min),
-                    |ui| {
-                        ui.label(RichText::new("First-return map").small().strong());
-                        let cloud = if source_is_cut {
-                            &session.results.cut
-                        } else {
-                            &session.results.strobe
-                        };
-                        let fixed = source_is_cut
-                            .then(|| session.doc.scenario.cut_fixed_state())
-                            .flatten();
-                        series::first_return_map_ui(
-                            ui,
-                            cloud,
-                            &session.axis_labels(),
-                            &mut chrome.settings.map_coordinate,
-                            fixed,
-                        );
-                    },
-                );
+                column(ui, &mut |ui| {
+                    ui.label(RichText::new("First-return map").strong());
+                    first_return_body_ui(ui, session, chrome);
+                });
                 ui.separator();
-                ui.allocate_ui_with_layout(
-                    vec2(third, height),
-                    egui::Layout::top_down(egui::Align::Min),
-                    |ui| {
-                        ui.label(RichText::new("Messages").small().strong());
-                        egui::ScrollArea::vertical()
-                            .stick_to_bottom(true)
-                            .auto_shrink([false, false])
-                            .show(ui, |ui| {
-                                let start = session.log.first().map(|(t, _)| *t);
-                                for (t, line) in &session.log {
-                                    let secs =
-                                        start.map_or(0.0, |s| t.duration_since(s).as_secs_f64());
-                                    ui.label(
-                                        RichText::new(format!("{secs:7.1} s  {line}"))
-                                            .monospace()
-                                            .small(),
-                                    );
-                                }
-                            });
-                    },
-                );
+                column(ui, &mut |ui| {
+                    ui.label(RichText::new("Messages").strong());
+                    messages_body_ui(ui, session);
+                });
             });
+        });
+}
+
+/// Whether the lower views show the cut's points (else the strobe's).
+fn lower_source_is_cut(session: &Session) -> bool {
+    !session.results.cut.is_empty() || session.results.strobe.is_empty()
+}
+
+fn return_times_title(session: &Session) -> &'static str {
+    if lower_source_is_cut(session) {
+        "Return times (cut)"
+    } else {
+        "Sample spacing (strobe)"
+    }
+}
+
+fn return_times_body_ui(ui: &mut Ui, session: &Session) {
+    let source_is_cut = lower_source_is_cut(session);
+    let cloud = if source_is_cut {
+        &session.results.cut
+    } else {
+        &session.results.strobe
+    };
+    let source = if source_is_cut { "cut" } else { "strobe" };
+    let unit = session.doc.scenario.time.unit.as_deref();
+    let label = unit.map_or(source.to_owned(), |u| format!("{source}, {u}"));
+    series::return_times_ui(ui, cloud, &label);
+}
+
+fn first_return_body_ui(ui: &mut Ui, session: &Session, chrome: &mut Chrome) {
+    let source_is_cut = lower_source_is_cut(session);
+    let cloud = if source_is_cut {
+        &session.results.cut
+    } else {
+        &session.results.strobe
+    };
+    // the coordinate a plane cut fixes is one value at every point: not worth a map
+    let fixed = source_is_cut
+        .then(|| session.doc.scenario.cut_fixed_state())
+        .flatten();
+    series::first_return_map_ui(
+        ui,
+        cloud,
+        &session.axis_labels(),
+        &mut chrome.settings.map_coordinate,
+        fixed,
+    );
+}
+
+/// The message log, newest at the bottom, each line wrapped to the width.
+fn messages_body_ui(ui: &mut Ui, session: &Session) {
+    egui::ScrollArea::vertical()
+        .stick_to_bottom(true)
+        .auto_shrink([false, false])
+        .show(ui, |ui| {
+            let start = session.log.first().map(|(t, _)| *t);
+            for (t, line) in &session.log {
+                let secs = start.map_or(0.0, |s| t.duration_since(s).as_secs_f64());
+                ui.add(
+                    egui::Label::new(RichText::new(format!("{secs:7.1} s  {line}")).monospace())
+                        .wrap(),
+                );
+            }
         });
 }
 
@@ -408,11 +523,79 @@ fn plane_in_view(session: &Session, settings: &Settings) -> Option<(PlaneGeometr
     ))
 }
 
-/// Narrowest a main view is laid out side by side with the others; below this four or five
-/// views go into two rows.
+/// Narrowest a main view is laid out side by side with all the others; below this the views
+/// go into two rows.
 const MIN_TILE_WIDTH: f32 = 330.0;
 
-/// The main views side by side (or, when four or five would be too narrow, in two rows),
+/// Narrowest a main view is laid out two to a row; below this the views become tabs.
+const MIN_TWO_ROW_TILE_WIDTH: f32 = 260.0;
+
+/// Narrowest the 3D view is laid out while its neighbours can spare the room (its axis
+/// pickers and reset button fit in one line).
+const MIN_TRAJECTORY_WIDTH: f32 = 330.0;
+
+/// Narrowest the 3D view's neighbours are made to give it [`MIN_TRAJECTORY_WIDTH`] (a plot
+/// with two axis pickers still reads at this width).
+const MIN_NEIGHBOUR_WIDTH: f32 = 220.0;
+
+/// Height of one line of tabs over the main views when they are tabs.
+const TAB_BAR_HEIGHT: f32 = 28.0;
+
+/// How the main views share the central area.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum Arrangement {
+    /// All in one row.
+    OneRow,
+    /// Two rows (the first two above, the rest below).
+    TwoRows,
+    /// One view at a time, chosen by tabs.
+    Tabs,
+}
+
+/// The arrangement of `n` views across `width`: one row while each keeps
+/// [`MIN_TILE_WIDTH`], else two rows while two side by side keep
+/// [`MIN_TWO_ROW_TILE_WIDTH`], else tabs.
+fn arrangement(width: f32, n: usize) -> Arrangement {
+    if n <= 1 || width / n as f32 >= MIN_TILE_WIDTH {
+        Arrangement::OneRow
+    } else if n >= 3 && width / 2.0 >= MIN_TWO_ROW_TILE_WIDTH {
+        Arrangement::TwoRows
+    } else {
+        Arrangement::Tabs
+    }
+}
+
+/// The tabs over the main views when they are too narrow to share the area (on as many lines
+/// as they need); returns the view to show and where the tabs end.
+fn main_tabs_ui(
+    ui: &mut Ui,
+    session: &Session,
+    chrome: &mut Chrome,
+    shown: &[usize],
+    full: Rect,
+) -> (usize, f32) {
+    if !shown.contains(&chrome.main_tab) {
+        chrome.main_tab = shown[0];
+    }
+    let bar = Rect::from_min_size(full.min, vec2(full.width(), TAB_BAR_HEIGHT));
+    let mut bar_ui = ui.new_child(egui::UiBuilder::new().max_rect(bar).id_salt("main_tabs"));
+    bar_ui.horizontal_wrapped(|ui| {
+        for &i in shown {
+            let kind = if MAIN_VIEWS[i] == ViewKind::Orbit {
+                crate::map_panel::fourth_view(session, chrome.view.fourth)
+            } else {
+                MAIN_VIEWS[i]
+            };
+            ui.selectable_value(&mut chrome.main_tab, i, kind.title())
+                .on_hover_text(
+                    "The window is too narrow for the views side by side: one at a time",
+                );
+        }
+    });
+    (chrome.main_tab, bar_ui.min_rect().bottom())
+}
+
+/// The main views side by side (or, when four would be too narrow, in two rows of two),
 /// resizable, each with an enlarge button.
 pub fn main_views_ui(
     ui: &mut Ui,
@@ -433,12 +616,16 @@ pub fn main_views_ui(
             _ => vec![0, 4, 1, 2],
         };
         let gap = 8.0;
-        let n = shown.len();
-        let rows: Vec<&[usize]> = if n >= 4 && (full.width() / n as f32) < MIN_TILE_WIDTH {
-            // five: the 3D view and the time plot above, the three 2D views below
-            vec![&shown[..n / 2], &shown[n / 2..]]
-        } else {
-            vec![&shown[..]]
+        let (full, shown) = match arrangement(full.width(), shown.len()) {
+            Arrangement::Tabs => {
+                let (tab, bar_bottom) = main_tabs_ui(ui, session, chrome, &shown, full);
+                (full.with_min_y(bar_bottom + gap / 2.0), vec![tab])
+            }
+            _ => (full, shown),
+        };
+        let rows: Vec<&[usize]> = match arrangement(full.width(), shown.len()) {
+            Arrangement::TwoRows => vec![&shown[..2], &shown[2..]],
+            _ => vec![&shown[..]],
         };
         let row_height = (full.height() - gap * (rows.len() as f32 - 1.0)) / rows.len() as f32;
         let mut rects = Vec::new();
@@ -479,10 +666,37 @@ fn row_ui(
         .map(|&i| tile_weight(settings, i).max(0.05))
         .sum();
     let usable = band.width() - gap * (row.len() as f32 - 1.0);
+    let mut widths: Vec<f32> = row
+        .iter()
+        .map(|&i| usable * tile_weight(settings, i).max(0.05) / total_weight)
+        .collect();
+    // the 3D view's row of axis pickers needs more room than a plot's: give it that much
+    // where the others keep a readable width
+    if let Some(k) = row
+        .iter()
+        .position(|&i| MAIN_VIEWS[i] == ViewKind::Trajectory)
+        && row.len() > 1
+        && widths[k] < MIN_TRAJECTORY_WIDTH
+        && usable - MIN_TRAJECTORY_WIDTH >= MIN_NEIGHBOUR_WIDTH * (row.len() - 1) as f32
+    {
+        let others = usable - MIN_TRAJECTORY_WIDTH;
+        let rest: f32 = widths
+            .iter()
+            .enumerate()
+            .filter(|(j, _)| *j != k)
+            .map(|(_, w)| w)
+            .sum();
+        for (j, w) in widths.iter_mut().enumerate() {
+            *w = if j == k {
+                MIN_TRAJECTORY_WIDTH
+            } else {
+                *w * others / rest
+            };
+        }
+    }
     let mut x = band.left();
     let mut rects = Vec::new();
-    for &i in row {
-        let w = usable * tile_weight(settings, i).max(0.05) / total_weight;
+    for (&i, &w) in row.iter().zip(&widths) {
         rects.push((
             i,
             Rect::from_min_size(egui::pos2(x, band.top()), vec2(w, band.height())),
@@ -530,9 +744,39 @@ fn tile_ui(
     index: usize,
     commands: &mut Vec<Command>,
 ) {
+    // the buttons from the right first, then the title in the room left (cut with "…"), so
+    // the two never overlap however narrow the tile
     ui.horizontal(|ui| {
-        ui.add(egui::Label::new(RichText::new(kind.title()).strong()).truncate());
         ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
+            tile_buttons_ui(ui, chrome, kind, index, commands);
+            ui.allocate_ui_with_layout(
+                vec2(ui.available_width(), ui.spacing().interact_size.y),
+                egui::Layout::left_to_right(egui::Align::Center),
+                |ui| {
+                    ui.add(egui::Label::new(RichText::new(kind.title()).strong()).truncate())
+                        .on_hover_text(kind.title());
+                },
+            );
+        });
+    });
+    tile_body_ui(ui, session, chrome, kind, commands);
+}
+
+/// A tile narrower than this puts its less used buttons in a menu.
+const COMPACT_TILE_WIDTH: f32 = 420.0;
+
+/// The tile's buttons, laid out right to left: enlarge (or restore), then PNG, the other view
+/// of the fourth tile and the colouring, in a menu when the tile is narrow.
+fn tile_buttons_ui(
+    ui: &mut Ui,
+    chrome: &mut Chrome,
+    kind: ViewKind,
+    index: usize,
+    commands: &mut Vec<Command>,
+) {
+    let compact = ui.available_width() < COMPACT_TILE_WIDTH;
+    {
+        {
             let maximised = chrome.settings.maximised == Some(index);
             if ui
                 .small_button(if maximised { "restore" } else { "enlarge" })
@@ -545,6 +789,28 @@ fn tile_ui(
             {
                 chrome.settings.maximised = if maximised { None } else { Some(index) };
             }
+            if compact {
+                ui.menu_button("…", |ui| {
+                    tile_extra_buttons_ui(ui, chrome, kind, commands)
+                })
+                .response
+                .on_hover_text("PNG export and more for this view");
+            } else {
+                tile_extra_buttons_ui(ui, chrome, kind, commands);
+            }
+        }
+    }
+}
+
+/// PNG export, the switch of the fourth tile and the colouring of a cloud view.
+fn tile_extra_buttons_ui(
+    ui: &mut Ui,
+    chrome: &mut Chrome,
+    kind: ViewKind,
+    commands: &mut Vec<Command>,
+) {
+    {
+        {
             if ui
                 .small_button("PNG")
                 .on_hover_text("Export this view as a PNG at the size set in File ▸ Export PNG")
@@ -587,8 +853,18 @@ fn tile_ui(
                     };
                 }
             }
-        });
-    });
+        }
+    }
+}
+
+/// The view itself, under the tile's header.
+fn tile_body_ui(
+    ui: &mut Ui,
+    session: &Session,
+    chrome: &mut Chrome,
+    kind: ViewKind,
+    commands: &mut Vec<Command>,
+) {
     match kind {
         ViewKind::Trajectory => {
             let plane = plane_in_view(session, &chrome.settings);
@@ -691,14 +967,15 @@ fn tile_ui(
             ui.horizontal(|ui| match selected {
                 Some(k) => {
                     let text = cloud.readout(k, &session.results.names, &session.doc.scenario);
-                    ui.label(RichText::new(&text).monospace().small());
+                    // the button first: a long line is cut, never the button
                     if ui
                         .small_button("copy")
                         .on_hover_text("Copy this point's values to the clipboard")
                         .clicked()
                     {
-                        ui.ctx().copy_text(text);
+                        ui.ctx().copy_text(text.clone());
                     }
+                    ui.add(egui::Label::new(RichText::new(&text).monospace().small()).truncate());
                 }
                 None => {
                     ui.label(

@@ -20,6 +20,7 @@ mod results;
 mod session;
 mod settings;
 mod sweep_panel;
+mod tables;
 mod time_plot_tile;
 mod views;
 mod vocabulary;

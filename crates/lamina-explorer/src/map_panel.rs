@@ -61,12 +61,35 @@ pub fn map_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChange
         return;
     };
     let mut changed = false;
+    let units: Vec<(String, Option<String>)> = doc
+        .scenario
+        .parameters
+        .iter()
+        .map(|p| (p.name.clone(), p.unit.clone()))
+        .collect();
+    let unit_of = |name: &str| {
+        units
+            .iter()
+            .find(|(n, _)| n == name)
+            .and_then(|(_, u)| u.as_deref())
+            .map(str::trim)
+            .filter(|u| !u.is_empty())
+            .map(str::to_string)
+    };
+    let ranges: Vec<(f64, f64)> = doc.scenario.parameters.iter().map(|p| p.range).collect();
+    let time_unit = doc
+        .scenario
+        .time
+        .unit
+        .clone()
+        .filter(|u| !u.trim().is_empty());
     egui::Grid::new("map_grid")
         .num_columns(2)
         .spacing([8.0, 4.0])
         .show(ui, |ui| {
             for (axis, name) in [(&mut map.x, "across"), (&mut map.y, "up")] {
-                ui.label(format!("parameter {name}"));
+                let label = ui.label(format!("parameter {name}"));
+                let before = axis.parameter.clone();
                 ComboBox::from_id_salt(("map_parameter", name))
                     .selected_text(axis.parameter.as_str())
                     .show_ui(ui, |ui| {
@@ -75,7 +98,19 @@ pub fn map_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChange
                                 .selectable_value(&mut axis.parameter, p.clone(), p)
                                 .changed();
                         }
-                    });
+                    })
+                    .response
+                    .labelled_by(label.id);
+                if axis.parameter != before
+                    && let Some(&(lo, hi)) = parameters
+                        .iter()
+                        .position(|p| *p == axis.parameter)
+                        .and_then(|i| ranges.get(i))
+                {
+                    // another parameter: its slider's range, not the old one's numbers
+                    axis.from = lo;
+                    axis.to = hi;
+                }
                 ui.end_row();
                 ui.label("from … to");
                 ui.horizontal(|ui| {
@@ -92,6 +127,9 @@ pub fn map_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChange
                         number_field_ui(ui, egui::Id::unique(("map_to", name)), &mut axis.to, 64.0)
                             .on_hover_text("Last value")
                             .changed();
+                    if let Some(unit) = unit_of(&axis.parameter) {
+                        ui.label(unit);
+                    }
                 });
                 ui.end_row();
                 ui.label("values");
@@ -102,14 +140,31 @@ pub fn map_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChange
                 ui.end_row();
             }
             ui.label("settle per cell");
-            changed |= number_field_ui(ui, egui::Id::unique("map_settle"), &mut map.settle, 64.0)
-                .on_hover_text("Transient at each cell, not recorded")
-                .changed();
+            ui.horizontal(|ui| {
+                changed |=
+                    number_field_ui(ui, egui::Id::unique("map_settle"), &mut map.settle, 64.0)
+                        .on_hover_text(
+                            "Time integrated at each cell before it is judged, so the \
+                             transient dies out; not recorded",
+                        )
+                        .changed();
+                if let Some(unit) = &time_unit {
+                    ui.label(unit);
+                }
+            });
             ui.end_row();
             ui.label("span per cell");
-            changed |= number_field_ui(ui, egui::Id::unique("map_span"), &mut map.span, 64.0)
-                .on_hover_text("Recorded time at each cell, after the transient")
-                .changed();
+            ui.horizontal(|ui| {
+                changed |= number_field_ui(ui, egui::Id::unique("map_span"), &mut map.span, 64.0)
+                    .on_hover_text(
+                        "Time recorded at each cell after settling: its points decide the \
+                         regime (periodic, quasi-periodic, chaotic...)",
+                    )
+                    .changed();
+                if let Some(unit) = &time_unit {
+                    ui.label(unit);
+                }
+            });
             ui.end_row();
             ui.label("judged by");
             ui.horizontal(|ui| {

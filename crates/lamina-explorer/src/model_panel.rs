@@ -9,12 +9,18 @@ use lamina_scenario::{
 
 use crate::document::{Document, rename_everywhere};
 use crate::vocabulary::PanelChanges;
-use crate::widgets::{ERROR_COLOUR, number_field_ui, problems_ui, unit_field_ui, unit_suffix};
+use crate::widgets::{
+    ERROR_COLOUR, name_for_readers, number_field_ui, problems_ui, unit_field_ui, unit_suffix,
+};
 
 /// Draws the whole panel for `doc`, a copy of the session's document: the caller hands the
 /// edited scenario to the session as a command when anything changed.
-pub fn model_panel_ui(ui: &mut Ui, doc: &mut Document) -> PanelChanges {
+/// `open_notes` unfolds the notes (on opening a demo, whose notes say what to look at).
+pub fn model_panel_ui(ui: &mut Ui, doc: &mut Document, open_notes: bool) -> PanelChanges {
     let mut changes = PanelChanges::default();
+    // the scroll bar takes its width from the right
+    let right = ui.max_rect().right() - ui.spacing().scroll.bar_width;
+    ui.data_mut(|d| d.insert_temp(panel_right_id(), right));
     egui::ScrollArea::vertical()
         .auto_shrink([false, false])
         .show(ui, |ui| {
@@ -31,6 +37,25 @@ pub fn model_panel_ui(ui: &mut Ui, doc: &mut Document) -> PanelChanges {
                     changes.view = true;
                 }
             });
+            egui::CollapsingHeader::new(RichText::new("Notes").strong())
+                .default_open(false)
+                .open(open_notes.then_some(true))
+                .show(ui, |ui| {
+                    let label = ui.label(RichText::new("what this scenario is about").weak());
+                    if ui
+                        .add(
+                            // less than the room: the field's frame is drawn outside
+                            // its width, and the panel would widen to it every frame
+                            egui::TextEdit::multiline(&mut doc.scenario.notes)
+                                .desired_width(ui.available_width() - 12.0)
+                                .desired_rows(6),
+                        )
+                        .labelled_by(label.id)
+                        .changed()
+                    {
+                        changes.view = true;
+                    }
+                });
             egui::CollapsingHeader::new(RichText::new("States").strong())
                 .default_open(true)
                 .show(ui, |ui| states_ui(ui, doc, &mut changes));
@@ -59,20 +84,6 @@ pub fn model_panel_ui(ui: &mut Ui, doc: &mut Document) -> PanelChanges {
                 .show(ui, |ui| {
                     crate::map_panel::map_section_ui(ui, doc, &mut changes)
                 });
-            egui::CollapsingHeader::new(RichText::new("Notes").strong())
-                .default_open(false)
-                .show(ui, |ui| {
-                    if ui
-                        .add(
-                            egui::TextEdit::multiline(&mut doc.scenario.notes)
-                                .desired_width(f32::INFINITY)
-                                .desired_rows(4),
-                        )
-                        .changed()
-                    {
-                        changes.view = true;
-                    }
-                });
         });
     changes
 }
@@ -82,7 +93,13 @@ fn state_names(scenario: &Scenario) -> Vec<String> {
 }
 
 /// A name field that renames everywhere when editing ends, if the new name is free and valid.
-fn name_field_ui(ui: &mut Ui, id: Id, current: &str, scenario: &Scenario) -> Option<String> {
+fn name_field_ui(
+    ui: &mut Ui,
+    id: Id,
+    current: &str,
+    scenario: &Scenario,
+    what: &str,
+) -> Option<String> {
     let buffer_id = id.with("buffer");
     let mut text: String = ui
         .data_mut(|d| d.get_temp(buffer_id))
@@ -92,6 +109,22 @@ fn name_field_ui(ui: &mut Ui, id: Id, current: &str, scenario: &Scenario) -> Opt
             .id(id)
             .desired_width(56.0),
     );
+    name_for_readers(ui, &response, &format!("name of {what} {current}"));
+    if ui
+        .data_mut(|d| d.remove_temp::<bool>(id.with("focus_when_drawn")))
+        .is_some()
+    {
+        response.request_focus();
+        // the whole name selected, so typing replaces it
+        if let Some(mut state) = egui::TextEdit::load_state(ui.ctx(), id) {
+            let all = egui::text::CCursorRange::two(
+                egui::text::CCursor::new(0),
+                egui::text::CCursor::new(text.chars().count()),
+            );
+            state.cursor.set_char_range(Some(all));
+            state.store(ui.ctx(), id);
+        }
+    }
     let taken = text != current
         && (scenario.states.iter().any(|s| s.name == text)
             || scenario.parameters.iter().any(|p| p.name == text));
@@ -138,9 +171,13 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             ui.end_row();
             for idx in 0..n_states {
                 let name = doc.scenario.states[idx].name.clone();
-                if let Some(new) =
-                    name_field_ui(ui, Id::unique(("state_name", idx)), &name, &doc.scenario)
-                {
+                if let Some(new) = name_field_ui(
+                    ui,
+                    Id::unique(("state_name", idx)),
+                    &name,
+                    &doc.scenario,
+                    "state",
+                ) {
                     rename = Some((name.clone(), new));
                 }
                 let start = &mut doc.scenario.states[idx].start;
@@ -158,8 +195,10 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                 ui.horizontal(|ui| {
                     let label = ui.label(format!("d{name}/dt ="));
                     let state = &mut doc.scenario.states[idx];
+                    // as wide as the panel allows (the menu button after it keeps its room),
+                    // so the panel's width is the user's, not the longest rate's
                     let edit = egui::TextEdit::singleline(&mut state.rate)
-                        .desired_width(220.0)
+                        .desired_width(room_to_panel_edge(ui, 40.0))
                         .code_editor();
                     if ui
                         .add(edit)
@@ -171,12 +210,7 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                     {
                         changes.model = true;
                     }
-                    if ui
-                        .small_button("remove")
-                        .on_hover_text(format!("Remove state {name}"))
-                        .clicked()
-                        && n_states > 1
-                    {
+                    if n_states > 1 && row_menu_ui(ui, "state", &name, &doc.scenario) {
                         remove = Some(idx);
                     }
                 });
@@ -197,6 +231,7 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         .clicked()
     {
         let name = free_name(&doc.scenario, "s");
+        focus_new_name(ui, Id::unique(("state_name", doc.scenario.states.len())));
         doc.scenario.states.push(State {
             name,
             start: 0.0,
@@ -218,6 +253,69 @@ fn states_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         rename_everywhere(&mut doc.scenario, &old, &new);
         changes.model = true;
     }
+}
+
+/// Whether `expression` uses the name `name` (as a whole word).
+fn uses_name(expression: &str, name: &str) -> bool {
+    crate::document::rename_in_expression(expression, name, "\u{1}") != expression
+}
+
+/// Where the model panel's right edge was when its drawing began.
+fn panel_right_id() -> Id {
+    Id::unique("model_panel_right_edge")
+}
+
+/// The width from the cursor to the panel's right edge, less `keep` for what follows:
+/// measured against the edge as it was before the content was laid out (a width taken from
+/// the room the content itself makes would grow the panel a little every frame).
+fn room_to_panel_edge(ui: &Ui, keep: f32) -> f32 {
+    let right = ui
+        .data(|d| d.get_temp::<f32>(panel_right_id()))
+        .unwrap_or(ui.cursor().min.x + 200.0);
+    (right - ui.cursor().min.x - keep).clamp(90.0, 600.0)
+}
+
+/// A row's menu ("…") with Remove in it; true when Remove was chosen. Remove sits in a
+/// menu, not on a button of its own, so the row that slides up under the pointer after a
+/// removal is not removed by the next click.
+fn row_menu_ui(ui: &mut Ui, what: &str, name: &str, scenario: &Scenario) -> bool {
+    let mut remove = false;
+    let users: Vec<String> = scenario
+        .states
+        .iter()
+        .filter(|s| s.name != name && uses_name(&s.rate, name))
+        .map(|s| format!("d{}/dt", s.name))
+        .collect();
+    let tip = if users.is_empty() {
+        "Edit ▸ Undo (Ctrl+Z) brings it back".to_string()
+    } else {
+        format!(
+            "{name} is used in {}: they will show an error until it is replaced or brought \
+             back with Edit ▸ Undo (Ctrl+Z)",
+            users.join(", ")
+        )
+    };
+    let response = ui
+        .menu_button("…", |ui| {
+            if ui
+                .button(format!("Remove {what} {name}"))
+                .on_hover_text(tip)
+                .clicked()
+            {
+                remove = true;
+                ui.close();
+            }
+        })
+        .response;
+    let named = format!("Remove {what} {name}…");
+    response.widget_info(|| egui::WidgetInfo::labeled(egui::Role::Button, true, &named));
+    response.on_hover_text(named);
+    remove
+}
+
+/// Asks for the keyboard on the name field `id` when it is next drawn (a row just added).
+fn focus_new_name(ui: &Ui, id: Id) {
+    ui.data_mut(|d| d.insert_temp(id.with("focus_when_drawn"), true));
 }
 
 fn free_name(scenario: &Scenario, stem: &str) -> String {
@@ -242,6 +340,7 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                 Id::unique(("parameter_name", idx)),
                 &name,
                 &doc.scenario,
+                "parameter",
             ) {
                 rename = Some((name.clone(), new));
             }
@@ -268,11 +367,7 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             {
                 changes.model = true;
             }
-            if ui
-                .small_button("remove")
-                .on_hover_text(format!("Remove parameter {name}"))
-                .clicked()
-            {
+            if row_menu_ui(ui, "parameter", &name, &doc.scenario) {
                 remove = Some(idx);
             }
         });
@@ -304,6 +399,10 @@ fn parameters_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         .clicked()
     {
         let name = free_name(&doc.scenario, "p");
+        focus_new_name(
+            ui,
+            Id::unique(("parameter_name", doc.scenario.parameters.len())),
+        );
         doc.scenario.parameters.push(Parameter {
             name,
             value: 1.0,
@@ -341,34 +440,61 @@ fn integrator_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             changes.model = true;
         }
         ui.end_row();
-        ui.label("rtol");
-        changes.model |= number_field_ui(ui, Id::unique("rtol"), &mut s.integrator.rtol, 80.0).on_hover_text("Relative tolerance per step").changed();
+        let time_unit = s.time.unit.clone().filter(|u| !u.trim().is_empty());
+        let unit_label = |ui: &mut Ui| {
+            if let Some(unit) = &time_unit {
+                ui.label(unit);
+            }
+        };
+        ui.label("rtol").on_hover_text(RTOL_TIP);
+        changes.model |= number_field_ui(ui, Id::unique("rtol"), &mut s.integrator.rtol, 80.0).on_hover_text(RTOL_TIP).changed();
         ui.end_row();
-        ui.label("atol");
-        changes.model |= number_field_ui(ui, Id::unique("atol"), &mut s.integrator.atol, 80.0).on_hover_text("Absolute tolerance per step").changed();
+        ui.label("atol").on_hover_text(ATOL_TIP);
+        changes.model |= number_field_ui(ui, Id::unique("atol"), &mut s.integrator.atol, 80.0).on_hover_text(ATOL_TIP).changed();
         ui.end_row();
-        ui.label("max step");
+        ui.label("max step").on_hover_text(MAX_STEP_TIP);
         ui.horizontal(|ui| {
             let mut limited = s.integrator.max_step.is_some();
-            if ui.checkbox(&mut limited, "").on_hover_text("Limit the step size (to resolve fast switching)").changed() {
+            if ui.checkbox(&mut limited, "").on_hover_text(MAX_STEP_TIP).changed() {
                 s.integrator.max_step = limited.then_some(0.1);
                 changes.model = true;
             }
             if let Some(max) = &mut s.integrator.max_step {
-                changes.model |= number_field_ui(ui, Id::unique("max_step"), max, 64.0).changed();
+                changes.model |= number_field_ui(ui, Id::unique("max_step"), max, 64.0).on_hover_text(MAX_STEP_TIP).changed();
+                unit_label(ui);
             }
         });
         ui.end_row();
         ui.label("start time");
-        changes.model |= number_field_ui(ui, Id::unique("t_start"), &mut s.time.start, 80.0).on_hover_text("Time at the start state").changed();
+        ui.horizontal(|ui| {
+            changes.model |= number_field_ui(ui, Id::unique("t_start"), &mut s.time.start, 80.0).on_hover_text("Time at the start state (where the rates' t begins)").changed();
+            unit_label(ui);
+        });
         ui.end_row();
-        ui.label("settle");
-        changes.model |= number_field_ui(ui, Id::unique("settle"), &mut s.time.settle, 80.0)
-            .on_hover_text("Transient integrated but not recorded")
+        ui.label("settle").on_hover_text(SETTLE_TIP);
+        ui.horizontal(|ui| {
+            changes.model |= number_field_ui(ui, Id::unique("settle"), &mut s.time.settle, 80.0)
+                .on_hover_text(SETTLE_TIP)
+                .changed();
+            unit_label(ui);
+        });
+        ui.end_row();
+        ui.label("span").on_hover_text(SPAN_TIP);
+        ui.horizontal(|ui| {
+            changes.model |= number_field_ui(ui, Id::unique("span"), &mut s.time.span, 80.0).on_hover_text(SPAN_TIP).changed();
+            unit_label(ui);
+        });
+        ui.end_row();
+        ui.label("most points").on_hover_text(MAX_POINTS_TIP);
+        changes.model |= ui
+            .add(egui::DragValue::new(&mut s.limits.max_points).range(1..=100_000_000))
+            .on_hover_text(MAX_POINTS_TIP)
             .changed();
         ui.end_row();
-        ui.label("span");
-        changes.model |= number_field_ui(ui, Id::unique("span"), &mut s.time.span, 80.0).on_hover_text("Length of the recorded window after the transient").changed();
+        ui.label("escape size").on_hover_text(ESCAPE_TIP);
+        changes.model |= number_field_ui(ui, Id::unique("escape"), &mut s.limits.escape, 80.0)
+            .on_hover_text(ESCAPE_TIP)
+            .changed();
         ui.end_row();
         ui.label("time unit");
         changes.view |= unit_field_ui(ui, &mut s.time.unit, "Unit of time, shown beside times, on axes and in captions (free text)");
@@ -382,6 +508,28 @@ fn integrator_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
     );
 }
 
+/// What rtol means.
+const RTOL_TIP: &str = "Relative tolerance: the error each step may make, as a fraction of the \
+    state's size (1e-9: about nine digits per step). Smaller is more accurate and slower";
+/// What atol means.
+const ATOL_TIP: &str = "Absolute tolerance: the error each step may make where a state is near \
+    zero, in the state's own units. Set it well below the smallest size that matters";
+/// What the step limit is for.
+const MAX_STEP_TIP: &str = "Longest step the integrator may take, in the model's time. Set it \
+    below the shortest feature of a drive (a pulse, a ramp) the steps could step over";
+/// What the point limit does.
+const MAX_POINTS_TIP: &str = "A run stops after this many cut points or strobe samples (it says \
+    so in the log): a bound on memory for long spans";
+/// What the escape size does.
+const ESCAPE_TIP: &str = "A run stops as escaped when any state's magnitude passes this size: \
+    the model is running away (unbounded), and the rest of the run would say nothing";
+/// What settle means.
+const SETTLE_TIP: &str = "Time integrated first and not recorded, so the start-up transient \
+    dies out before cut points and strobe samples are kept";
+/// What span means.
+const SPAN_TIP: &str = "Length of the recorded window after settling: cut points and strobe \
+    samples come from it (Run on adds another span)";
+
 fn method_label(m: MethodChoice) -> &'static str {
     match m {
         MethodChoice::Automatic => "automatic (explicit / stiff)",
@@ -391,19 +539,29 @@ fn method_label(m: MethodChoice) -> &'static str {
     }
 }
 
-fn axes_ui(ui: &mut Ui, id: &str, names: &[String], axes: &mut (String, String)) -> bool {
+/// The two axes a cloud view starts with (`what`: "cut" or "strobe").
+fn axes_ui(
+    ui: &mut Ui,
+    id: &str,
+    what: &str,
+    names: &[String],
+    axes: &mut (String, String),
+) -> bool {
     let mut changed = false;
     ui.horizontal(|ui| {
         ui.label("axes");
         for (k, axis) in [&mut axes.0, &mut axes.1].into_iter().enumerate() {
-            ComboBox::from_id_salt((id, k))
+            let response = ComboBox::from_id_salt((id, k))
                 .selected_text(axis.as_str())
                 .width(64.0)
                 .show_ui(ui, |ui| {
                     for n in names {
                         changed |= ui.selectable_value(axis, n.clone(), n).changed();
                     }
-                });
+                })
+                .response;
+            let which = if k == 0 { "horizontal" } else { "vertical" };
+            name_for_readers(ui, &response, &format!("{which} axis of the {what} view"));
         }
     });
     changed
@@ -491,7 +649,7 @@ fn cut_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
                 changes.cut |= ui
                     .add(
                         egui::TextEdit::singleline(expr)
-                            .desired_width(220.0)
+                            .desired_width(room_to_panel_edge(ui, 12.0))
                             .code_editor(),
                     )
                     .labelled_by(label.id)
@@ -501,7 +659,10 @@ fn cut_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         }
     }
     ui.horizontal(|ui| {
-        ui.label("direction");
+        ui.label("direction").on_hover_text(
+            "Which crossings of the cut are recorded: g is the plane's left side minus its \
+             offset, or the level expression",
+        );
         for (d, text, tip) in [
             (
                 Direction::Rising,
@@ -526,7 +687,7 @@ fn cut_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             }
         }
     });
-    changes.view |= axes_ui(ui, "cut_axes", &names, &mut cut.axes);
+    changes.view |= axes_ui(ui, "cut_axes", "cut", &names, &mut cut.axes);
     problems_ui(ui, doc.problems_at("cut"));
 }
 
@@ -560,6 +721,7 @@ fn strobe_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
         });
         changes.strobe = true;
     }
+    let time_unit = doc.scenario.time.unit.clone();
     let Some(strobe) = &mut doc.scenario.strobe else {
         return;
     };
@@ -581,9 +743,15 @@ fn strobe_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
             &mut strobe.first_at,
             56.0,
         )
-        .on_hover_text("Time of sample 0; the samples are at first at + k × period")
+        .on_hover_text(
+            "Time of sample 0 (the phase of the sampling); the samples are at first at + k × \
+             period, only those in the recorded window are kept",
+        )
         .changed();
+        if let Some(unit) = time_unit.as_deref().filter(|u| !u.trim().is_empty()) {
+            ui.label(unit);
+        }
     });
-    changes.view |= axes_ui(ui, "strobe_axes", &names, &mut strobe.axes);
+    changes.view |= axes_ui(ui, "strobe_axes", "strobe", &names, &mut strobe.axes);
     problems_ui(ui, doc.problems_at("strobe"));
 }

@@ -7,8 +7,9 @@ use egui::{RichText, Ui};
 use lamina_core::rest::RestError;
 
 use crate::session::{Session, recheck_words, stability_words};
+use crate::tables::{fixed, resting_points_tsv};
 use crate::vocabulary::{AnalysisError, Command, JobKind, RecheckTarget, unit_suffix};
-use crate::widgets::{ERROR_COLOUR, WARNING_COLOUR};
+use crate::widgets::{ERROR_COLOUR, WARNING_COLOUR, copy_button_ui};
 
 /// The "Resting points" section.
 pub fn resting_points_section_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Command>) {
@@ -58,16 +59,21 @@ pub fn resting_points_section_ui(ui: &mut Ui, session: &Session, commands: &mut 
                 );
             }
             let s = if report.points.len() == 1 { "" } else { "s" };
-            ui.label(
-                RichText::new(format!(
-                    "{} resting point{s} ({} of {} starts converged)",
-                    report.points.len(),
-                    report.n_converged,
-                    report.n_seeds
-                ))
-                .strong(),
-            );
             let scenario = &session.doc.scenario;
+            ui.horizontal(|ui| {
+                ui.label(
+                    RichText::new(format!(
+                        "{} resting point{s} ({} of {} starts converged)",
+                        report.points.len(),
+                        report.n_converged,
+                        report.n_seeds
+                    ))
+                    .strong(),
+                );
+                copy_button_ui(ui, "the resting points", || {
+                    resting_points_tsv(&report.points, scenario)
+                });
+            });
             for (i, point) in report.points.iter().enumerate() {
                 ui.separator();
                 ui.label(RichText::new(format!("{}. {}", i + 1, stability_words(point))).strong());
@@ -75,7 +81,14 @@ pub fn resting_points_section_ui(ui: &mut Ui, session: &Session, commands: &mut 
                     .states
                     .iter()
                     .zip(&point.state)
-                    .map(|(s, v)| format!("{} = {v:.9}{}", s.name, unit_suffix(s.unit.as_deref())))
+                    .map(|(s, v)| {
+                        format!(
+                            "{} = {}{}",
+                            s.name,
+                            fixed(*v, 9),
+                            unit_suffix(s.unit.as_deref())
+                        )
+                    })
                     .collect();
                 ui.label(RichText::new(state.join(", ")).monospace().small());
                 let eigen: Vec<String> = point
@@ -83,13 +96,13 @@ pub fn resting_points_section_ui(ui: &mut Ui, session: &Session, commands: &mut 
                     .iter()
                     .map(|e| {
                         if e.im == 0.0 {
-                            format!("{:.6}", e.re)
+                            fixed(e.re, 6)
                         } else {
                             format!(
-                                "{:.6} {} {:.6}i",
-                                e.re,
+                                "{} {} {}i",
+                                fixed(e.re, 6),
                                 if e.im < 0.0 { '-' } else { '+' },
-                                e.im.abs()
+                                fixed(e.im.abs(), 6)
                             )
                         }
                     })

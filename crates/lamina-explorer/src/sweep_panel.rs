@@ -8,7 +8,7 @@ use crate::document::Document;
 use crate::session::Session;
 use crate::views::orbit::orbit_diagram_ui;
 use crate::vocabulary::{Command, JobKind, PanelChanges};
-use crate::widgets::{number_field_ui, problems_ui};
+use crate::widgets::{number_field_ui, problems_ui, unit_suffix};
 
 /// The sweep block's fields in the model panel.
 pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
@@ -49,42 +49,68 @@ pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChan
         return;
     };
     let mut changed = false;
+    let unit_of_parameter = |name: &str| {
+        doc.scenario
+            .parameters
+            .iter()
+            .find(|p| p.name == name)
+            .and_then(|p| p.unit.clone())
+    };
+    let time_unit = unit_suffix(doc.scenario.time.unit.as_deref());
+    let ranges: Vec<(f64, f64)> = doc.scenario.parameters.iter().map(|p| p.range).collect();
+    let parameter_unit = unit_suffix(unit_of_parameter(&sweep.parameter).as_deref());
     egui::Grid::new("sweep_grid").num_columns(2).spacing([8.0, 4.0]).show(ui, |ui| {
-        ui.label("parameter");
+        let label = ui.label("parameter");
+        let before = sweep.parameter.clone();
         ComboBox::from_id_salt("sweep_parameter").selected_text(sweep.parameter.as_str()).show_ui(ui, |ui| {
             for p in &parameters {
                 changed |= ui.selectable_value(&mut sweep.parameter, p.clone(), p).changed();
             }
-        });
+        }).response.labelled_by(label.id).on_hover_text("The parameter the sweep varies");
+        if sweep.parameter != before
+            && let Some(&(lo, hi)) = parameters.iter().position(|p| *p == sweep.parameter).and_then(|i| ranges.get(i))
+        {
+            // another parameter: its slider's range, not the old one's numbers
+            sweep.from = lo;
+            sweep.to = hi;
+        }
         ui.end_row();
         ui.label("from … to");
         ui.horizontal(|ui| {
             changed |= number_field_ui(ui, egui::Id::unique("sweep_from"), &mut sweep.from, 64.0).on_hover_text("First value").changed();
             ui.label("…");
-            changed |= number_field_ui(ui, egui::Id::unique("sweep_to"), &mut sweep.to, 64.0).on_hover_text("Last value").changed();
+            changed |= number_field_ui(ui, egui::Id::unique("sweep_to"), &mut sweep.to, 64.0).on_hover_text("Last value (may be below the first: the sweep runs downwards)").changed();
+            if !parameter_unit.is_empty() {
+                ui.label(parameter_unit.trim());
+            }
         });
         ui.end_row();
         ui.label("values");
         changed |= ui.add(egui::DragValue::new(&mut sweep.values).range(2..=100_001)).on_hover_text("Number of parameter values, from and to included").changed();
         ui.end_row();
         ui.label("settle per value");
-        changed |= number_field_ui(ui, egui::Id::unique("sweep_settle"), &mut sweep.settle, 64.0).on_hover_text("Transient at each value, not kept").changed();
+        ui.horizontal(|ui| {
+            changed |= number_field_ui(ui, egui::Id::unique("sweep_settle"), &mut sweep.settle, 64.0).on_hover_text("Time integrated at each value before points are kept, so the transient after the change dies out; in the model's time").changed();
+            if !time_unit.is_empty() {
+                ui.label(time_unit.trim());
+            }
+        });
         ui.end_row();
         ui.label("keep");
-        changed |= ui.add(egui::DragValue::new(&mut sweep.keep).range(1..=100_000)).on_hover_text("Points kept per value").changed();
+        changed |= ui.add(egui::DragValue::new(&mut sweep.keep).range(1..=100_000)).on_hover_text("Cut points or strobe samples kept per value after settling: the dots drawn above each value in the orbit diagram").changed();
         ui.end_row();
         ui.label("points from");
         ui.horizontal(|ui| {
-            changed |= ui.selectable_value(&mut sweep.source, SweepSource::Cut, "cut").changed();
-            changed |= ui.selectable_value(&mut sweep.source, SweepSource::Strobe, "strobe").changed();
+            changed |= ui.selectable_value(&mut sweep.source, SweepSource::Cut, "cut").on_hover_text("Keep the crossings of the cut").changed();
+            changed |= ui.selectable_value(&mut sweep.source, SweepSource::Strobe, "strobe").on_hover_text("Keep the strobe samples (one per period of the drive)").changed();
         });
         ui.end_row();
-        ui.label("plotted");
+        let label = ui.label("plotted");
         ComboBox::from_id_salt("sweep_coordinate").selected_text(sweep.coordinate.as_str()).show_ui(ui, |ui| {
             for s in &states {
                 changed |= ui.selectable_value(&mut sweep.coordinate, s.clone(), s).changed();
             }
-        });
+        }).response.labelled_by(label.id).on_hover_text("The state drawn upwards in the orbit diagram");
         ui.end_row();
         ui.label("each value");
         ui.horizontal(|ui| {
@@ -129,6 +155,10 @@ pub fn orbit_tile_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Command>
         ui.label("No sweep: switch it on in the model panel.");
         return;
     };
+    if sweep.columns.is_empty() && !sweep.is_running() {
+        empty_orbit_tile_ui(ui, session);
+        return;
+    }
     let scenario = &session.doc.scenario;
     let plabel = session.swept_parameter_label();
     let clabel = scenario.state_label(coordinate);
@@ -148,4 +178,28 @@ pub fn orbit_tile_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Command>
             value,
         });
     }
+}
+
+/// What the orbit-diagram tile says before a sweep has run: what it will do and how to start.
+fn empty_orbit_tile_ui(ui: &mut Ui, session: &Session) {
+    let Some(sweep) = &session.doc.scenario.sweep else {
+        return;
+    };
+    ui.add_space(12.0);
+    ui.label(RichText::new("No orbit diagram yet.").strong());
+    let unit = session
+        .doc
+        .scenario
+        .parameters
+        .iter()
+        .find(|p| p.name == sweep.parameter)
+        .map(|p| unit_suffix(p.unit.as_deref()))
+        .unwrap_or_default();
+    ui.label(format!(
+        "Run sweep varies {} from {}{unit} to {}{unit} in {} values and draws {} kept points of {} above each value.",
+        sweep.parameter, sweep.from, sweep.to, sweep.values, sweep.keep, sweep.coordinate
+    ));
+    ui.label(
+        RichText::new("Its settings are under Sweep (orbit diagram) in the model panel.").weak(),
+    );
 }

@@ -235,6 +235,10 @@ impl PanelChanges {
 /// applied after the frame is drawn, in order.
 #[derive(Clone, Debug, PartialEq)]
 pub enum Command {
+    /// Take the last change to the document back.
+    Undo,
+    /// Do the last undone change again.
+    Redo,
     /// Run from the start.
     Run,
     /// Stop the run.
@@ -314,6 +318,20 @@ pub enum Command {
         /// Parameter indices with their new values.
         values: Vec<(usize, f64)>,
     },
+}
+
+impl Command {
+    /// Whether the command may change the scenario (and so is recorded for undo).
+    pub fn may_change_document(&self) -> bool {
+        matches!(
+            self,
+            Self::Edit { .. }
+                | Self::SetParameterAndRun { .. }
+                | Self::MoveCut { .. }
+                | Self::ChooseCloudAxes(..)
+                | Self::SetParametersAndRun { .. }
+        )
+    }
 }
 
 /// The kinds of background work.

@@ -1,5 +1,5 @@
 //! Small widgets shared by the panels: a number field that accepts any float notation, a unit
-//! field, and the in-place problem message.
+//! field, a copy button, and the in-place problem message.
 
 use egui::{Color32, Response, RichText, Ui};
 use lamina_scenario::Problem;
@@ -64,6 +64,28 @@ pub fn unit_field_ui(ui: &mut Ui, unit: &mut Option<String>, hint: &str) -> bool
     }
 }
 
+/// A small "copy" button that puts `text()` on the clipboard (made only when clicked);
+/// `what` says what is copied, in the tooltip.
+pub fn copy_button_ui(ui: &mut Ui, what: &str, text: impl FnOnce() -> String) {
+    if ui
+        .small_button("copy")
+        .on_hover_text(format!(
+            "Copy {what} as tab-separated text (pastes into a spreadsheet)"
+        ))
+        .clicked()
+    {
+        ui.ctx().copy_text(text());
+    }
+}
+
+/// Gives the widget `response` the name `name` for screen readers (and tests), where no
+/// label stands beside it to name it.
+pub fn name_for_readers(ui: &Ui, response: &Response, name: &str) {
+    ui.ctx().accesskit_node_builder(response.id, |node| {
+        node.set_label(name);
+    });
+}
+
 /// Shortest text that reads back as `v`.
 pub fn format_value(v: f64) -> String {
     let plain = format!("{v}");
@@ -83,11 +105,7 @@ pub fn problems_ui<'a>(ui: &mut Ui, problems: impl Iterator<Item = &'a Problem>)
         } else {
             WARNING_COLOUR
         };
-        ui.label(
-            RichText::new(&problem.message)
-                .color(colour)
-                .monospace()
-                .small(),
-        );
+        // full size: an error is what the user must read next
+        ui.label(RichText::new(&problem.message).color(colour).monospace());
     }
 }

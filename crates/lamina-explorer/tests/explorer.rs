@@ -25,9 +25,6 @@ fn harness(app: ExplorerApp) -> Harness<'static, ExplorerApp> {
     Harness::builder()
         .with_size(egui::vec2(1500.0, 950.0))
         .with_max_steps(20)
-        // an idle window now settles, and kittest then checks every widget for an accessible
-        // name; the model panel's name and unit fields have none yet
-        .with_accessibility_check(false)
         .build_ui_state(|ui, app: &mut ExplorerApp| app.show_ui(ui), app)
 }
 
@@ -123,6 +120,9 @@ fn switching_direction_to_both_doubles_the_count_without_a_new_run() {
     let rising = h.state().n_cut_points();
     let runs = h.state().n_runs_started();
     assert!(rising > 10);
+    // the demo opens with its notes shown: the cut's settings are further down the panel
+    h.get_by_label("both").scroll_to_me();
+    steps(&mut h, 5);
     h.get_by_label("both").click();
     h.step();
     h.step();
@@ -208,9 +208,10 @@ fn opening_a_demo_file_and_saving_it_gives_the_same_scenario() {
     // the edit made above (the short window) is unsaved: the window asks first
     h.get_by_label("Discard changes").click();
     steps(&mut h, 3);
+    // the field suggests a folder: replace it
     let path = h.get_by_label("path");
     path.focus();
-    path.type_text(&source.display().to_string());
+    path.set_text_value_accesskit(&source.display().to_string());
     steps(&mut h, 3);
     h.get_by_label("OK").click();
     steps(&mut h, 3);
@@ -382,15 +383,12 @@ fn title_rect(h: &Harness<'static, ExplorerApp>, title: &str) -> egui::Rect {
 #[test]
 fn four_views_too_narrow_for_one_row_go_into_two() {
     // the demo has a sweep, so it shows four main views; with the analysis panel open, a
-    // window 1200 wide leaves each under the narrowest width that stays readable
+    // window 1300 wide leaves each under the narrowest width that stays readable in one row
     let mut app = app();
     app.show_analysis_panel(true);
     let mut h = Harness::builder()
-        .with_size(egui::vec2(1200.0, 900.0))
+        .with_size(egui::vec2(1300.0, 900.0))
         .with_max_steps(20)
-        // an idle window now settles, and kittest then checks every widget for an accessible
-        // name; the model panel's name and unit fields have none yet
-        .with_accessibility_check(false)
         .build_ui_state(|ui, app: &mut ExplorerApp| app.show_ui(ui), app);
     steps(&mut h, 3);
     // five with the time plot: the 3D view and the time plot above, the 2D views below
@@ -412,6 +410,22 @@ fn four_views_too_narrow_for_one_row_go_into_two() {
     let trajectory = title_rect(&h, "Trajectory (3D)");
     let orbit = title_rect(&h, "Orbit diagram");
     assert!((trajectory.top() - orbit.top()).abs() < 1.0, "one row");
+    // too narrow for two side by side: one view at a time, chosen by tabs
+    h.set_size(egui::vec2(1050.0, 750.0));
+    steps(&mut h, 3);
+    assert_eq!(
+        h.query_all_by_label("Cut points").count(),
+        1,
+        "the cut view is a tab only"
+    );
+    h.get_by_label("Cut points").click();
+    steps(&mut h, 3);
+    assert_eq!(
+        h.query_all_by_label("Cut points").count(),
+        2,
+        "its tab and its title"
+    );
+    assert_eq!(h.query_all_by_label("Trajectory (3D)").count(), 1);
 }
 
 #[test]

@@ -180,9 +180,14 @@ fn a_map_naming_a_missing_parameter_can_be_removed_in_the_model_panel() {
     steps(&mut h, 3);
     assert!(h.state().document().first_error().is_some());
     if h.query_by_label("map two parameters").is_none() {
+        // further down the panel than the window shows
+        h.get_by_label("Regime map (two parameters)").scroll_to_me();
+        steps(&mut h, 5);
         h.get_by_label("Regime map (two parameters)").click();
         steps(&mut h, 3);
     }
+    h.get_by_label("map two parameters").scroll_to_me();
+    steps(&mut h, 5);
     h.get_by_label("map two parameters").click();
     steps(&mut h, 3);
     assert!(h.state().scenario().map.is_none());
@@ -192,6 +197,8 @@ fn a_map_naming_a_missing_parameter_can_be_removed_in_the_model_panel() {
         h.state().document().first_error()
     );
     // and a new one over the model's own parameters is valid at once
+    h.get_by_label("map two parameters").scroll_to_me();
+    steps(&mut h, 5);
     h.get_by_label("map two parameters").click();
     steps(&mut h, 3);
     let map = h.state().scenario().map.clone().expect("a map block");

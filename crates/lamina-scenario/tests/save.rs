@@ -27,6 +27,33 @@ fn round_trip(scenario: &Scenario) -> Scenario {
 }
 
 #[test]
+fn a_view_block_round_trips_and_a_file_without_one_loads() {
+    let mut scenario = load(MINIMAL);
+    assert_eq!(scenario.view, None, "the minimal file has no view block");
+    let names: Vec<String> = scenario.states.iter().map(|s| s.name.clone()).collect();
+    scenario.view = Some(View {
+        camera: Some(Camera {
+            yaw_deg: 33.25,
+            pitch_deg: -12.5,
+            zoom: 1.75,
+        }),
+        axes: Some((names[0].clone(), "t".into(), names[0].clone())),
+        colours: Some(Colours {
+            trajectory: Some("#336699".into()),
+            ..Colours::default()
+        }),
+    });
+    let back = round_trip(&scenario);
+    assert_eq!(back.view, scenario.view);
+    let text = to_ron_string(&back);
+    assert!(text.contains("yaw_deg: 33.25"), "{text}");
+    // and taken out again, the file has no view block and still loads
+    scenario.view = None;
+    let text = to_ron_string(&round_trip(&scenario));
+    assert!(!text.contains("view:"), "{text}");
+}
+
+#[test]
 fn the_example_saves_in_a_stable_readable_layout() {
     let scenario = load(EXAMPLE);
     assert_eq!(to_ron_string(&scenario), EXAMPLE_SAVED);

@@ -176,7 +176,7 @@ impl fmt::Display for Loss {
             Self::ThroughMinusOne => write!(f, "through -1 (period doubling)"),
             Self::ComplexPair => write!(
                 f,
-                "through the circle as a complex pair (torus birth: a second frequency)"
+                "with a complex pair crossing the circle (torus birth: a second frequency)"
             ),
         }
     }
@@ -268,8 +268,8 @@ impl fmt::Display for Outlook {
             ),
             Self::NearCircle { largest, loss } => write!(
                 f,
-                "close to the unit circle: m = {largest} (|m| = {}); stability would be lost \
-                 there {loss}",
+                "close to the unit circle: m = {largest} (|m| = {}); if it reached the \
+                 circle, stability would be lost {loss}",
                 Number(largest.modulus())
             ),
             Self::OnCircle { largest } => write!(

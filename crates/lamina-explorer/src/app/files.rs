@@ -15,7 +15,8 @@ use crate::vocabulary::{Command, JobKind, Pending, Purpose};
 enum DialogAnswer {
     Picked(Purpose, PathBuf),
     Cancelled,
-    Unavailable(Purpose),
+    /// No dialog could be shown: the purpose and the path it was to suggest.
+    Unavailable(Purpose, Option<PathBuf>),
 }
 
 /// File dialogs, prompts and recovery.
@@ -35,6 +36,8 @@ pub struct Files {
     closing: bool,
     /// A message to show in a window (a failed open or save).
     pub alert: Option<String>,
+    /// The folder of the file opened or saved last: where a file name without a folder is put.
+    pub last_folder: Option<PathBuf>,
 }
 
 /// How often unsaved edits are copied for recovery.
@@ -74,11 +77,13 @@ impl Files {
             recovery_revision: u64::MAX,
             closing: false,
             alert: None,
+            last_folder: None,
         }
     }
 
     /// Asks for a path: a desktop dialog on a helper thread, or the path field.
     pub fn ask_path(&mut self, purpose: Purpose, suggested: Option<PathBuf>, waker: Waker) {
+        let suggested = Some(self.in_a_folder(suggested));
         if !self.native {
             let text = suggested
                 .map(|p| p.display().to_string())
@@ -112,7 +117,9 @@ impl Files {
             };
             match picked {
                 Some(path) => DialogAnswer::Picked(purpose, path),
-                None if started.elapsed() < DIALOG_NOT_SHOWN => DialogAnswer::Unavailable(purpose),
+                None if started.elapsed() < DIALOG_NOT_SHOWN => {
+                    DialogAnswer::Unavailable(purpose, suggested)
+                }
                 None => DialogAnswer::Cancelled,
             }
         });
@@ -129,6 +136,39 @@ impl Files {
     }
 }
 
+impl Files {
+    /// `suggested` as a whole path: a relative path with a folder is taken from the working
+    /// folder; a bare file name goes into the folder of the file used last, else the working
+    /// folder (unless that is the file system's root, as for a program started from a desktop
+    /// menu), else the home folder; no suggestion gives the folder itself, ending in a
+    /// separator, ready for a file name.
+    fn in_a_folder(&self, suggested: Option<PathBuf>) -> PathBuf {
+        let name = suggested.unwrap_or_default();
+        if name.is_absolute() {
+            return name;
+        }
+        let has_folder = name.parent().is_some_and(|p| !p.as_os_str().is_empty());
+        if has_folder {
+            // a relative path with its folder: from the working folder, where it points now
+            return std::path::absolute(&name).unwrap_or(name);
+        }
+        let cwd = std::env::current_dir()
+            .ok()
+            .filter(|d| d.parent().is_some());
+        let home = std::env::var_os("HOME").map(PathBuf::from);
+        let folder = self.last_folder.clone().or(cwd).or(home);
+        match folder {
+            Some(folder) if name.as_os_str().is_empty() => {
+                let mut text = folder.into_os_string();
+                text.push(std::path::MAIN_SEPARATOR_STR);
+                PathBuf::from(text)
+            }
+            Some(folder) => folder.join(name),
+            None => name,
+        }
+    }
+}
+
 impl ExplorerApp {
     /// Polls the dialog thread and writes the recovery copy; runs every frame.
     pub(crate) fn files_tick(&mut self, ctx: &Context) {
@@ -140,10 +180,14 @@ impl ExplorerApp {
                 match answer {
                     DialogAnswer::Picked(purpose, path) => self.path_chosen(ctx, purpose, path),
                     DialogAnswer::Cancelled => self.files.after_save = None,
-                    DialogAnswer::Unavailable(purpose) => {
+                    DialogAnswer::Unavailable(purpose, suggested) => {
+                        // the path field starts where the dialog would have
+                        let text = suggested
+                            .map(|p| p.display().to_string())
+                            .unwrap_or_default();
                         self.files.prompt = Some((
                             purpose,
-                            String::new(),
+                            text,
                             Some(
                                 "No file dialog is available on this desktop: type a path instead."
                                     .into(),
@@ -234,10 +278,14 @@ impl ExplorerApp {
 
     /// Opens `path`, replacing the current scenario (already confirmed).
     pub(crate) fn open_path(&mut self, path: PathBuf) {
+        // the whole path: recent files, saves and suggestions stay right if the working
+        // folder is not the one the window started in
+        let path = std::path::absolute(&path).unwrap_or(path);
         match lamina_scenario::load_file(&path) {
             Ok(scenario) => {
                 let format_note = scenario.format_note();
                 self.chrome.settings.remember(path.clone());
+                self.files.last_folder = absolute_folder(&path);
                 self.replace_document(
                     Document::new(scenario, Some(path.clone())),
                     format!("opened {}", path.display()),
@@ -295,14 +343,69 @@ impl ExplorerApp {
             self.chrome.settings.space.pitch = camera.pitch_deg.to_radians() as f32;
             self.chrome.settings.space.zoom = camera.zoom as f32;
         }
+        self.chrome.space_as_opened = Some(self.space_now());
     }
 
-    /// Writes the scenario to `path`; true on success.
+    /// The 3D view's axes and camera now.
+    fn space_now(&self) -> ([usize; 3], [f32; 3]) {
+        let space = &self.chrome.settings.space;
+        (space.axes, [space.yaw, space.pitch, space.zoom])
+    }
+
+    /// The view block to save: the scenario's own while the 3D view's axes and camera are
+    /// as opened (so an untouched file saves as it was), else the view as shown now.
+    pub(crate) fn view_block_to_save(&self) -> Option<lamina_scenario::View> {
+        if self.chrome.space_as_opened == Some(self.space_now()) {
+            self.session.doc.scenario.view.clone()
+        } else {
+            Some(self.view_block_now())
+        }
+    }
+
+    /// The view block as the window shows the scenario now: the 3D view's camera and axes
+    /// (the axes left out where one is the time within the drive period, which a scenario
+    /// cannot name and which is the default for such a model anyway), the colours kept.
+    pub(crate) fn view_block_now(&self) -> lamina_scenario::View {
+        let scenario = &self.session.doc.scenario;
+        let space = &self.chrome.settings.space;
+        let n = scenario.states.len();
+        let name = |axis: usize| -> Option<String> {
+            if axis < n {
+                Some(scenario.states[axis].name.clone())
+            } else if axis == n {
+                Some("t".into())
+            } else {
+                None
+            }
+        };
+        let axes = match space.axes.map(name) {
+            [Some(a), Some(b), Some(c)] => Some((a, b, c)),
+            _ => None,
+        };
+        // whole hundredths of a degree and of the zoom: a saved file reads as typed
+        let round = |v: f64| (v * 100.0).round() / 100.0;
+        lamina_scenario::View {
+            camera: Some(lamina_scenario::Camera {
+                yaw_deg: round(f64::from(space.yaw).to_degrees().rem_euclid(360.0)),
+                pitch_deg: round(f64::from(space.pitch).to_degrees()).clamp(-90.0, 90.0),
+                zoom: round(f64::from(space.zoom)).max(0.01),
+            }),
+            axes,
+            colours: scenario.view.as_ref().and_then(|v| v.colours.clone()),
+        }
+    }
+
+    /// Writes the scenario to `path`, with the view block as shown now; true on success.
     pub(crate) fn save_to(&mut self, path: PathBuf) -> bool {
-        match lamina_scenario::save_file(&path, &self.session.doc.scenario) {
+        let mut scenario = self.session.doc.scenario.clone();
+        scenario.view = self.view_block_to_save();
+        match lamina_scenario::save_file(&path, &scenario) {
             Ok(()) => {
+                self.session.doc.scenario.view = scenario.view;
+                self.chrome.space_as_opened = Some(self.space_now());
                 self.session.doc.mark_saved(path.clone());
                 self.chrome.settings.remember(path.clone());
+                self.files.last_folder = absolute_folder(&path);
                 self.clear_recovery();
                 self.session.note(format!("saved {}", path.display()));
                 true
@@ -415,6 +518,12 @@ impl ExplorerApp {
             self.proceed_without_ctx(pending);
         }
     }
+}
+
+/// The folder of `path`, made absolute.
+pub(super) fn absolute_folder(path: &std::path::Path) -> Option<PathBuf> {
+    let absolute = std::path::absolute(path).ok()?;
+    absolute.parent().map(std::path::Path::to_path_buf)
 }
 
 /// A file-name-friendly version of a title.
@@ -570,5 +679,35 @@ pub fn dialogs_ui(app: &mut ExplorerApp, ctx: &Context, commands: &mut Vec<Comma
         if !open {
             app.files.alert = None;
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use std::path::PathBuf;
+
+    use super::Files;
+
+    #[test]
+    fn a_suggested_path_becomes_a_whole_one() {
+        let mut files = Files::new(false, false);
+        files.last_folder = Some(PathBuf::from("/data/runs"));
+        // [common practice] a save dialog starts in the folder used last
+        assert_eq!(
+            files.in_a_folder(Some(PathBuf::from("cut_points.csv"))),
+            PathBuf::from("/data/runs/cut_points.csv")
+        );
+        assert_eq!(
+            files.in_a_folder(Some(PathBuf::from("/tmp/a.csv"))),
+            PathBuf::from("/tmp/a.csv")
+        );
+        let cwd = std::env::current_dir().expect("cwd");
+        assert_eq!(
+            files.in_a_folder(Some(PathBuf::from("demos/b.csv"))),
+            cwd.join("demos/b.csv"),
+            "a folder given relative to the working folder, never doubled"
+        );
+        let folder = files.in_a_folder(None);
+        assert_eq!(folder.to_string_lossy(), "/data/runs/");
     }
 }

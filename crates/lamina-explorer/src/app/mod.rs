@@ -68,16 +68,28 @@ impl ExplorerApp {
                 show_about: false,
                 show_shortcuts: false,
                 show_analysis: false,
+                show_model: true,
+                main_tab: 0,
+                lower_tab: Default::default(),
+                space_as_opened: None,
             },
             files: Files::new(options.native_dialogs, options.recovery),
             png_export: None,
             shown_title: None,
         };
+        app.files.last_folder = app
+            .chrome
+            .settings
+            .recent
+            .first()
+            .and_then(|p| files::absolute_folder(p));
         match file {
             Some(path) => app.open_path(path),
             None => {
                 app.session.note("opened the built-in demo scenario");
                 app.apply_view_block();
+                // its notes say what to look at
+                app.chrome.view.open_notes = true;
             }
         }
         app
@@ -289,6 +301,49 @@ impl ExplorerApp {
         self.session.log.iter().map(|(_, line)| line.as_str())
     }
 
+    /// The name of the change Undo would take back ("remove parameter k3").
+    pub fn undo_label(&self) -> Option<&str> {
+        self.session.history.undo_label()
+    }
+
+    /// The name of the change Redo would do again.
+    pub fn redo_label(&self) -> Option<&str> {
+        self.session.history.redo_label()
+    }
+
+    /// Number of changes that can be undone.
+    pub fn n_undo_steps(&self) -> usize {
+        self.session.history.n_undo()
+    }
+
+    /// The 3D view's camera: turn and tilt in degrees, zoom.
+    pub fn camera(&self) -> (f64, f64, f64) {
+        let space = &self.chrome.settings.space;
+        (
+            f64::from(space.yaw).to_degrees(),
+            f64::from(space.pitch).to_degrees(),
+            f64::from(space.zoom),
+        )
+    }
+
+    /// Turns the 3D view as a drag would: turn and tilt in degrees, zoom.
+    pub fn set_camera(&mut self, yaw_deg: f64, pitch_deg: f64, zoom: f64) {
+        let space = &mut self.chrome.settings.space;
+        space.yaw = yaw_deg.to_radians() as f32;
+        space.pitch = pitch_deg.to_radians() as f32;
+        space.zoom = zoom as f32;
+    }
+
+    /// The 3D view's axes: state indices, the number of states for the time.
+    pub fn space_axes(&self) -> [usize; 3] {
+        self.chrome.settings.space.axes
+    }
+
+    /// Chooses the 3D view's axes as its pickers would.
+    pub fn set_space_axes(&mut self, axes: [usize; 3]) {
+        self.chrome.settings.space.axes = axes;
+    }
+
     /// Opens or closes the analysis panel (orbits and exponents).
     pub fn show_analysis_panel(&mut self, on: bool) {
         self.chrome.show_analysis = on;
@@ -297,8 +352,11 @@ impl ExplorerApp {
     /// Resets what the views keep when the document was replaced or new results came.
     fn sync_views(&mut self) {
         if self.chrome.view.generation != self.session.generation {
+            // a demo (notes and no file) opens with its notes shown: they say what to look at
+            let doc = &self.session.doc;
             self.chrome.view = ViewState {
                 generation: self.session.generation,
+                open_notes: doc.path.is_none() && !doc.scenario.notes.trim().is_empty(),
                 ..ViewState::default()
             };
         }
@@ -323,12 +381,17 @@ impl ExplorerApp {
         layout::menu_bar_ui(ui, &self.session, &mut self.chrome, &mut commands);
         layout::status_bar_ui(ui, &self.session);
         let mut draft = self.session.doc.clone();
+        let open_notes = std::mem::take(&mut self.chrome.view.open_notes);
         let changes = egui::Panel::left("model_panel")
             .resizable(true)
-            .default_size(430.0)
-            .min_size(300.0)
-            .show(ui, |ui| model_panel_ui(ui, &mut draft))
-            .inner;
+            .default_size(380.0)
+            .min_size(280.0)
+            .max_size(720.0)
+            .show_collapsible(ui, &mut self.chrome.show_model, |ui| {
+                model_panel_ui(ui, &mut draft, open_notes)
+            })
+            .map(|r| r.inner)
+            .unwrap_or_default();
         if changes.any() {
             commands.push(Command::Edit {
                 scenario: Box::new(draft.scenario),
@@ -337,20 +400,21 @@ impl ExplorerApp {
         } else if changes.slider_held != self.session.runs.slider_held() {
             commands.push(Command::HoldSlider(changes.slider_held));
         }
-        if self.chrome.show_analysis {
-            egui::Panel::right("analysis_panel")
-                .resizable(true)
-                .default_size(330.0)
-                .min_size(260.0)
-                .show(ui, |ui| {
-                    analysis_panel_ui(
-                        ui,
-                        &self.session,
-                        &mut self.chrome.view.summary,
-                        &mut commands,
-                    )
-                });
-        }
+        egui::Panel::right("analysis_panel")
+            .resizable(true)
+            .default_size(320.0)
+            .min_size(240.0)
+            .max_size(640.0)
+            // a closed analysis panel leaves no handle: the Analysis button opens it
+            .drag_to_open(false)
+            .show_collapsible(ui, &mut self.chrome.show_analysis, |ui| {
+                analysis_panel_ui(
+                    ui,
+                    &self.session,
+                    &mut self.chrome.view.summary,
+                    &mut commands,
+                )
+            });
         layout::lower_views_ui(ui, &self.session, &mut self.chrome);
         layout::main_views_ui(ui, &self.session, &mut self.chrome, &mut commands);
         help::about_window(&ctx, &mut self.chrome.show_about);
@@ -386,6 +450,15 @@ impl ExplorerApp {
             if i.consume_shortcut(&shortcut(Modifiers::NONE, Key::Escape)) {
                 commands.push(Command::Stop);
             }
+            // Ctrl+Shift+Z before Ctrl+Z: a shortcut matches with extra modifiers held
+            if i.consume_shortcut(&shortcut(Modifiers::COMMAND | Modifiers::SHIFT, Key::Z))
+                || i.consume_shortcut(&shortcut(Modifiers::COMMAND, Key::Y))
+            {
+                commands.push(Command::Redo);
+            }
+            if i.consume_shortcut(&shortcut(Modifiers::COMMAND, Key::Z)) {
+                commands.push(Command::Undo);
+            }
             if i.consume_shortcut(&shortcut(Modifiers::COMMAND | Modifiers::SHIFT, Key::S)) {
                 commands.push(Command::SaveAs);
             }
@@ -402,6 +475,18 @@ impl ExplorerApp {
                 self.chrome.show_shortcuts = !self.chrome.show_shortcuts;
             }
         });
+        if commands
+            .iter()
+            .any(|c| matches!(c, Command::Undo | Command::Redo))
+        {
+            // a field being typed in keeps its own text while focused: let it go, so it shows
+            // the value undo brings back (the document's undo replaces the field's own)
+            ctx.memory_mut(|m| {
+                if let Some(id) = m.focused() {
+                    m.surrender_focus(id);
+                }
+            });
+        }
         commands
     }
 

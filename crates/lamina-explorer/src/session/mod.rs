@@ -16,6 +16,7 @@ use std::time::Instant;
 
 mod analysis;
 mod branch;
+mod history;
 mod map;
 mod recheck;
 mod rest;
@@ -23,6 +24,7 @@ mod runs;
 mod sweep;
 
 pub use analysis::{AnalysisState, map_points};
+pub use history::History;
 pub use map::MapState;
 pub use recheck::recheck_words;
 pub use rest::stability_words;
@@ -32,7 +34,7 @@ pub use sweep::SweepState;
 use crate::document::Document;
 use crate::jobs::{Waker, no_waker};
 use crate::results::{AxisLabels, Results};
-use crate::vocabulary::{CloudAxis, Command, JobKind, OrbitMap, ViewKind};
+use crate::vocabulary::{CloudAxis, Command, JobKind, OrbitMap, PanelChanges, ViewKind};
 
 /// The most lines the message log keeps.
 const MAX_LOG: usize = 500;
@@ -70,6 +72,8 @@ pub struct Session {
     pub revision: u64,
     /// Start a run when a document is opened.
     pub autostart: bool,
+    /// Undo and redo of the document's changes.
+    pub history: History,
     /// A run is due at the end of this frame (a document was just opened).
     pub(crate) pending_run: bool,
     pub(crate) waker: Waker,
@@ -92,6 +96,7 @@ impl Session {
             generation: 0,
             revision: 0,
             autostart,
+            history: History::default(),
             pending_run: autostart,
             waker: no_waker(),
         }
@@ -110,6 +115,18 @@ impl Session {
         }
     }
 
+    /// Adds a line to the message log, or replaces the last line if it starts with `kind`
+    /// too (a drag that repeats one action every frame gives one line, not hundreds).
+    pub fn note_in_place(&mut self, kind: &str, message: String) {
+        match self.log.last_mut() {
+            Some((when, last)) if last.starts_with(kind) => {
+                *when = Instant::now();
+                *last = message;
+            }
+            _ => self.note(message),
+        }
+    }
+
     /// Puts `doc` in place of the current document: stops every job, clears results,
     /// analysis (resting points, rechecks and branch with it), sweep, orbit marks and picked
     /// axes, and queues a run if so set.
@@ -121,6 +138,7 @@ impl Session {
         self.axes = PickedAxes::default();
         self.results = Results::new(state_names(&doc));
         self.doc = doc;
+        self.history.clear();
         self.generation += 1;
         self.revision += 1;
         self.note(message);
@@ -142,32 +160,45 @@ impl Session {
         self.runs.is_running()
     }
 
-    /// Applies one command that concerns the document, its results or its jobs.
+    /// Applies one command that concerns the document, its results or its jobs. A command
+    /// that changes the scenario is recorded for undo; any other seals the last undo step.
     pub fn apply(&mut self, command: Command) {
+        if !command.may_change_document() {
+            self.history.seal();
+            self.apply_inner(command);
+            return;
+        }
+        // an edit in a field or a drag of the cut may merge with the step before; a click
+        // that sets values is a step of its own
+        let merges = matches!(command, Command::Edit { .. } | Command::MoveCut { .. });
+        // the end of a drag of the cut closes its step: the next drag is a step of its own
+        let ends_drag = matches!(
+            command,
+            Command::MoveCut {
+                drag: crate::vocabulary::DragPhase::Ends | crate::vocabulary::DragPhase::Single,
+                ..
+            }
+        );
+        if !merges {
+            self.history.seal();
+        }
+        let before = self.doc.scenario.clone();
+        self.apply_inner(command);
+        self.history
+            .record(&before, &self.doc.scenario, Instant::now());
+        if !merges || ends_drag {
+            self.history.seal();
+        }
+    }
+
+    fn apply_inner(&mut self, command: Command) {
         match command {
+            Command::Undo => self.undo(),
+            Command::Redo => self.redo(),
             Command::Run => self.start_run(),
             Command::Stop => self.stop_run(),
             Command::RunOn => self.run_on(),
-            Command::Edit { scenario, changes } => {
-                let had_strobe = self.doc.scenario.strobe.is_some();
-                let names_before = names_of(&self.doc.scenario);
-                self.doc.scenario = *scenario;
-                if names_of(&self.doc.scenario) != names_before && !self.sweep.is_empty() {
-                    // the orbit diagram's indices would point at other states or parameters
-                    self.sweep = SweepState::default();
-                    self.note("the orbit diagram was cleared: the states or parameters changed");
-                }
-                if self.doc.scenario.strobe.is_some() != had_strobe {
-                    // a strobe switched on or off: the orbit search follows, as on opening
-                    self.analysis
-                        .choose_map(OrbitMap::default_for(&self.doc.scenario));
-                }
-                self.doc.changed();
-                if changes.outdates_results() {
-                    self.outdate();
-                }
-                self.react_to_edit(changes);
-            }
+            Command::Edit { scenario, changes } => self.take_scenario(*scenario, changes),
             Command::HoldSlider(held) => self.runs.hold_slider(held),
             Command::SetParameterAndRun { index, value } => {
                 let Some(parameter) = self.doc.scenario.parameters.get_mut(index) else {
@@ -217,6 +248,66 @@ impl Session {
             | Command::LoadDemo(_)
             | Command::Recover { .. } => {}
         }
+    }
+
+    /// Puts an edited `scenario` in place and acts on what changed: clears an orbit diagram
+    /// whose indices no longer fit, follows a strobe switched on or off, outdates results.
+    fn take_scenario(&mut self, scenario: lamina_scenario::Scenario, changes: PanelChanges) {
+        let had_strobe = self.doc.scenario.strobe.is_some();
+        let names_before = names_of(&self.doc.scenario);
+        self.doc.scenario = scenario;
+        if names_of(&self.doc.scenario) != names_before && !self.sweep.is_empty() {
+            // the orbit diagram's indices would point at other states or parameters
+            self.sweep = SweepState::default();
+            self.note("the orbit diagram was cleared: the states or parameters changed");
+        }
+        if self.doc.scenario.strobe.is_some() != had_strobe {
+            // a strobe switched on or off: the orbit search follows, as on opening
+            self.analysis
+                .choose_map(OrbitMap::default_for(&self.doc.scenario));
+        }
+        self.doc.changed();
+        if changes.outdates_results() {
+            self.outdate();
+        }
+        self.react_to_edit(changes);
+    }
+
+    /// Takes the last change back.
+    fn undo(&mut self) {
+        match self.history.undo(&self.doc.scenario) {
+            Some((scenario, label)) => {
+                self.restore(scenario);
+                self.note(format!("undone: {label}"));
+            }
+            None => self.note("nothing to undo"),
+        }
+    }
+
+    /// Does the last undone change again.
+    fn redo(&mut self) {
+        match self.history.redo(&self.doc.scenario) {
+            Some((scenario, label)) => {
+                self.restore(scenario);
+                self.note(format!("redone: {label}"));
+            }
+            None => self.note("nothing to redo"),
+        }
+    }
+
+    /// Puts a scenario from the history in place, acting on it as on the edit it reverses.
+    fn restore(&mut self, scenario: lamina_scenario::Scenario) {
+        let changes = changes_between(&self.doc.scenario, &scenario);
+        if self.doc.scenario.cut.as_ref().map(|c| &c.axes) != scenario.cut.as_ref().map(|c| &c.axes)
+        {
+            self.axes.cut = None;
+        }
+        if self.doc.scenario.strobe.as_ref().map(|s| &s.axes)
+            != scenario.strobe.as_ref().map(|s| &s.axes)
+        {
+            self.axes.strobe = None;
+        }
+        self.take_scenario(scenario, changes);
     }
 
     /// A change that outdates results: the shown orbit and spectrum no longer describe the
@@ -316,6 +407,27 @@ impl Session {
             self.start_run();
         }
         self.run_timers()
+    }
+}
+
+/// What going from `before` to `after` touches, as the model panel would have said it.
+fn changes_between(
+    before: &lamina_scenario::Scenario,
+    after: &lamina_scenario::Scenario,
+) -> PanelChanges {
+    let model = before.states != after.states
+        || before.parameters != after.parameters
+        || before.integrator != after.integrator
+        || before.time != after.time
+        || before.limits != after.limits;
+    let cut = before.cut != after.cut;
+    let strobe = before.strobe != after.strobe;
+    PanelChanges {
+        model,
+        cut,
+        strobe,
+        view: !model && !cut && !strobe,
+        ..PanelChanges::default()
     }
 }
 

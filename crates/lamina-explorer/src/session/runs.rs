@@ -35,6 +35,10 @@ pub struct RunControl {
     resample_when_back: bool,
     /// The model was edited since the results were computed.
     pub stale: bool,
+    /// Parts of the shown run: 1 after Run, one more for each Run on.
+    pub parts: u32,
+    /// How long the last part took (the whole run's time is `Results::elapsed`).
+    pub last_part: Duration,
 }
 
 impl RunControl {
@@ -115,6 +119,7 @@ impl Session {
             elapsed,
         } = finished;
         self.results.elapsed += elapsed;
+        self.runs.last_part = elapsed;
         self.results.t_reached = outcome.t_reached;
         self.results.n_steps = outcome.stats.n_accepted;
         self.results.state = match outcome.reason {
@@ -122,8 +127,19 @@ impl Session {
             StopReason::Cancelled { .. } => RunState::Stopped,
             other => RunState::EndedEarly(other),
         };
+        // the status line shows the whole run's time: a Run on says both, so they agree
+        let time = if self.runs.parts > 1 {
+            format!(
+                "{:.2} s ({:.2} s in all, {} parts)",
+                elapsed.as_secs_f64(),
+                self.results.elapsed.as_secs_f64(),
+                self.runs.parts
+            )
+        } else {
+            format!("{:.2} s", elapsed.as_secs_f64())
+        };
         let message = format!(
-            "run {}: {} cut points, {} strobe samples, {} steps, {} rate evaluations in {:.2} s",
+            "run {}: {} cut points, {} strobe samples, {} steps, {} rate evaluations in {time}",
             match outcome.reason {
                 StopReason::Finished => "finished".to_string(),
                 other => other.to_string(),
@@ -132,7 +148,6 @@ impl Session {
             self.results.strobe.len(),
             outcome.stats.n_accepted,
             outcome.stats.n_rate_evaluations,
-            elapsed.as_secs_f64()
         );
         for change in outcome.method_changes.iter().take(20) {
             self.note(change.to_string());
@@ -194,6 +209,7 @@ impl Session {
         ));
         self.results = Results::new(self.state_names());
         self.results.strobe_period = period;
+        self.runs.parts = 0;
         self.launch(run, message);
         self.runs.stale = false;
     }
@@ -209,6 +225,7 @@ impl Session {
             Ok(job) => {
                 self.runs.job = Some(job);
                 self.runs.n_started += 1;
+                self.runs.parts += 1;
                 self.results.state = RunState::Running;
                 self.note(message.to_string());
             }
@@ -229,6 +246,11 @@ impl Session {
     pub(crate) fn run_on(&mut self) {
         if self.runs.is_running() {
             self.note("the run is still going");
+            return;
+        }
+        if let Some(problem) = self.doc.first_error() {
+            let message = format!("cannot run on: {problem}");
+            self.note(message);
             return;
         }
         if self.runs.stale {
@@ -350,11 +372,15 @@ impl Session {
         run.set_cut(Some(cut));
         self.results.cut.set_cut_points(&points);
         if log {
-            self.note(format!(
-                "re-sliced {n_steps} stored steps in {:.1} ms: {} cut points",
-                took.as_secs_f64() * 1e3,
-                points.len()
-            ));
+            // a drag of the cut re-slices every frame: one line for the drag, kept up to date
+            self.note_in_place(
+                "re-sliced ",
+                format!(
+                    "re-sliced {n_steps} stored steps in {:.1} ms: {} cut points",
+                    took.as_secs_f64() * 1e3,
+                    points.len()
+                ),
+            );
         }
     }
 

@@ -22,8 +22,6 @@ pub fn harness(app: ExplorerApp) -> Harness<'static, ExplorerApp> {
     Harness::builder()
         .with_size(egui::vec2(1500.0, 950.0))
         .with_max_steps(20)
-        // the model panel's name and unit fields have no accessible names yet
-        .with_accessibility_check(false)
         .build_ui_state(|ui, app: &mut ExplorerApp| app.show_ui(ui), app)
 }
 
