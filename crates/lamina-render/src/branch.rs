@@ -5,7 +5,7 @@ use plotters::element::DashedPathElement;
 use plotters::prelude::*;
 
 use crate::figure::{FONT, Figure, RenderError, draw_error};
-use crate::plots::{INK, picture, range_of};
+use crate::plots::{INK, draw_key, picture, range_of};
 
 /// One piece of a branch, drawn as one line: stable or not throughout.
 #[derive(Clone, Debug, PartialEq)]
@@ -174,14 +174,7 @@ pub fn branch_png(
             (x0, x1),
             (y0, y1),
         );
-        chart
-            .configure_series_labels()
-            .position(corner)
-            .background_style(WHITE.mix(0.85))
-            .border_style(INK)
-            .label_font((FONT, font(0.022, 11.0)).into_font().color(&INK))
-            .draw()
-            .map_err(draw_error)?;
+        draw_key(&mut chart, corner, font(0.022, 11.0))?;
         Ok(())
     })
 }

@@ -6,8 +6,8 @@
 use lamina_core::recurrence::RecurrenceKind;
 use plotters::prelude::*;
 
-use crate::figure::{FONT, Figure, RenderError, draw_error};
-use crate::plots::{INK, TRACE, axes, body, dot_radius, font_size, picture};
+use crate::figure::{Figure, RenderError, draw_error};
+use crate::plots::{TRACE, axes, body, dot_radius, draw_key, font_size, picture};
 
 /// The one fixed colour of each repeat period, 1 to 12 returns: Lamina's own palette, chosen
 /// so that neighbouring periods (a period doubling 1, 2, 4, 8) differ clearly.
@@ -104,18 +104,11 @@ pub fn orbit_diagram_png(
                 .label(kind.to_string())
                 .legend(move |(x, y)| Circle::new((x, y), 4, colour.filled()));
         }
-        chart
-            .configure_series_labels()
-            .position(SeriesLabelPosition::UpperRight)
-            .background_style(WHITE.mix(0.85))
-            .border_style(INK)
-            .label_font(
-                (FONT, font_size(figure, 0.02, 11.0))
-                    .into_font()
-                    .color(&INK),
-            )
-            .draw()
-            .map_err(draw_error)?;
+        draw_key(
+            &mut chart,
+            SeriesLabelPosition::UpperRight,
+            font_size(figure, 0.02, 11.0),
+        )?;
         Ok(())
     })
 }

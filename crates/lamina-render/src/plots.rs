@@ -417,6 +417,23 @@ pub fn split_where_it_wraps(
     pieces
 }
 
+/// Draws the chart's key (the labelled series) in `corner` on a pale box, in text of
+/// `size` pixels.
+pub(crate) fn draw_key<'a, DB: DrawingBackend + 'a, CT: CoordTranslate>(
+    chart: &mut ChartContext<'a, DB, CT>,
+    corner: SeriesLabelPosition,
+    size: f64,
+) -> Result<(), RenderError> {
+    chart
+        .configure_series_labels()
+        .position(corner)
+        .background_style(WHITE.mix(0.85))
+        .border_style(INK)
+        .label_font((FONT, size).into_font().color(&INK))
+        .draw()
+        .map_err(draw_error)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -4,8 +4,8 @@
 
 use plotters::prelude::*;
 
-use crate::figure::{FONT, Figure, RenderError, draw_error};
-use crate::plots::{INK, axes, body, font_size, picture, thousands};
+use crate::figure::{Figure, RenderError, draw_error};
+use crate::plots::{axes, body, draw_key, font_size, picture, thousands};
 
 /// The colours of the time plot's lines, in the order of the states shown (the window's time
 /// plot uses the same): Lamina's deep blue, coral, green, sand, plum, then they repeat.
@@ -120,18 +120,11 @@ pub fn time_plot_png(figure: &Figure, series: &[TimeSeries]) -> Result<Vec<u8>, 
                 .label(label)
                 .legend(move |(x, y)| diamond_at(x, y, cut_colour));
         }
-        chart
-            .configure_series_labels()
-            .position(SeriesLabelPosition::UpperRight)
-            .background_style(WHITE.mix(0.85))
-            .border_style(INK)
-            .label_font(
-                (FONT, font_size(figure, 0.02, 11.0))
-                    .into_font()
-                    .color(&INK),
-            )
-            .draw()
-            .map_err(draw_error)?;
+        draw_key(
+            &mut chart,
+            SeriesLabelPosition::UpperRight,
+            font_size(figure, 0.02, 11.0),
+        )?;
         Ok(())
     })
 }

@@ -79,28 +79,31 @@ impl History {
     /// keeps `current` for redo.
     pub fn undo(&mut self, current: &Scenario) -> Option<(Scenario, String)> {
         let step = self.undo.pop()?;
-        self.redo.push(Step {
-            scenario: current.clone(),
-            label: step.label.clone(),
-            key: step.key,
-            last: step.last,
-        });
-        self.sealed = true;
-        Some((step.scenario, step.label))
+        Some(self.swap(step, current, Direction::Back))
     }
 
     /// Does the last undone step again: returns the scenario to restore and the step's name,
     /// and keeps `current` for undo.
     pub fn redo(&mut self, current: &Scenario) -> Option<(Scenario, String)> {
         let step = self.redo.pop()?;
-        self.undo.push(Step {
+        Some(self.swap(step, current, Direction::Forward))
+    }
+
+    /// Keeps `current` under `step`'s name on the other list from the one `step` came off
+    /// (redo's after an undo, undo's after a redo), and returns `step`'s scenario and name.
+    fn swap(&mut self, step: Step, current: &Scenario, went: Direction) -> (Scenario, String) {
+        let kept = Step {
             scenario: current.clone(),
             label: step.label.clone(),
             key: step.key,
             last: step.last,
-        });
+        };
+        match went {
+            Direction::Back => self.redo.push(kept),
+            Direction::Forward => self.undo.push(kept),
+        }
         self.sealed = true;
-        Some((step.scenario, step.label))
+        (step.scenario, step.label)
     }
 
     /// The name of the step Undo would take back.
@@ -264,6 +267,15 @@ fn list_change(word: &str, key: &str, before: &[&str], after: &[&str]) -> Option
             Some((format!("rename {old} to {new}"), format!("{key}.rename")))
         }
     }
+}
+
+/// Which way a step of the history was taken.
+#[derive(Clone, Copy)]
+enum Direction {
+    /// Undone.
+    Back,
+    /// Redone.
+    Forward,
 }
 
 #[cfg(test)]
