@@ -486,14 +486,21 @@ fn draw_box(
     .into_iter()
     .enumerate()
     {
-        let p = projection.screen_from_unit(end).0;
-        painter.text(
-            p,
-            egui::Align2::CENTER_CENTER,
-            axis_name(axes[k], labels),
-            font.clone(),
-            Color32::from_gray(170),
+        let centre = projection.screen_from_unit(end).0;
+        let colour = Color32::from_gray(170);
+        let galley = painter.layout_no_wrap(axis_name(axes[k], labels), font.clone(), colour);
+        // kept whole inside the view: a turned or zoomed box may put an axis end outside it
+        let clip = painter.clip_rect();
+        let half = galley.size() / 2.0;
+        let x = centre.x.clamp(
+            clip.left() + half.x,
+            (clip.right() - half.x).max(clip.left() + half.x),
         );
+        let y = centre.y.clamp(
+            clip.top() + half.y,
+            (clip.bottom() - half.y).max(clip.top() + half.y),
+        );
+        painter.galley(egui::pos2(x, y) - half, galley, colour);
     }
 }
 
