@@ -9,7 +9,7 @@ use lamina_core::branch::{BranchOf, BranchPoint};
 use crate::session::Session;
 use crate::views::orbit::BranchOverlay;
 use crate::vocabulary::{Command, JobKind, unit_suffix};
-use crate::widgets::ERROR_COLOUR;
+use crate::widgets::{ERROR_COLOUR, WARNING_COLOUR};
 
 /// The "Follow branch" section.
 pub fn branch_section_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Command>) {
@@ -83,6 +83,14 @@ pub fn branch_section_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Comm
         }
         None => {}
     }
+    if branch.is_outdated(&session.doc.scenario) {
+        // its points and special points belong to another model: not offered to click
+        ui.label(
+            RichText::new("outdated: the scenario changed since; follow it again")
+                .color(WARNING_COLOUR),
+        );
+        return;
+    }
     if !branch.special.is_empty() {
         ui.label(RichText::new("special points (click to run there)").weak());
     }
@@ -130,6 +138,9 @@ fn shown(p: &BranchPoint, coordinate: usize) -> Vec<f64> {
 /// their signed arclength, so a growing branch is drawn right too) and the special points.
 pub fn branch_overlay(session: &Session, coordinate: usize) -> BranchOverlay {
     let branch = &session.analysis.branch;
+    if branch.is_outdated(&session.doc.scenario) {
+        return BranchOverlay::default();
+    }
     let mut points: Vec<&BranchPoint> = branch.points.iter().collect();
     points.sort_by(|a, b| a.arclength.total_cmp(&b.arclength));
     let mut overlay = BranchOverlay::default();

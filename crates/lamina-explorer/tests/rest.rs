@@ -1,6 +1,7 @@
 //! Resting points and rechecks through the window (egui_kittest): the Lorenz model's three
 //! resting points listed with their stability, marked in the 3D view, outdated by a change
-//! of parameter and gone with the document; a forced model told it has none; the recheck of
+//! of parameter and gone with the document; a branch outdated by another equation but not by
+//! a move of its own parameter; a forced model told it has none; the recheck of
 //! an orbit and of a run's points showing the digits that agree.
 
 use egui_kittest::Harness;
@@ -178,6 +179,17 @@ fn the_branch_of_a_resting_point_of_x_m_minus_x_squared_turns_at_a_fold() {
     steps(&mut h, 2);
     // a click on the special point sets the parameter there and runs
     assert!(h.state().scenario().parameters[0].value.abs() < 1e-7);
+    wait_until(&mut h, |a| !a.is_running());
+    // moving the branch's own parameter leaves the branch valid: its special points stay
+    steps(&mut h, 2);
+    h.get_by_label_contains("fold at m = ");
+    assert!(h.query_by_label_contains("follow it again").is_none());
+    // another equation outdates it: said so, and its special points are no longer offered
+    h.state_mut()
+        .edit_scenario(|s| s.states[0].rate = "m - x^2 + 0.25".into());
+    steps(&mut h, 3);
+    h.get_by_label_contains("outdated: the scenario changed since; follow it again");
+    assert!(h.query_by_label_contains("fold at m = ").is_none());
     wait_until(&mut h, |a| !a.is_running());
 
     // a new document leaves no branch behind

@@ -44,6 +44,37 @@ pub struct BranchState {
     pub progress: f64,
     /// The finished branch, or why there is none.
     pub done: Option<Result<Branch, AnalysisError>>,
+    /// What the branch was computed from, to tell when the scenario has moved away from it.
+    basis: Option<BranchBasis>,
+}
+
+/// The parts of a scenario a branch depends on: the model with every parameter but the one
+/// the branch moves, the integrator, and the cut and strobe an orbit's branch is taken on.
+/// Moving the branch's own parameter (a click on a special point does) leaves it valid.
+#[derive(Clone, Debug, PartialEq)]
+struct BranchBasis {
+    states: Vec<(String, String)>,
+    parameters: Vec<(String, Option<f64>)>,
+    integrator: lamina_scenario::Integrator,
+    cut: Option<(lamina_scenario::Surface, lamina_scenario::Direction)>,
+    strobe: Option<(String, f64)>,
+}
+
+impl BranchBasis {
+    /// The basis of `scenario` for a branch in parameter `moved`.
+    fn of(scenario: &lamina_scenario::Scenario, moved: usize) -> Self {
+        Self {
+            states: (scenario.states.iter())
+                .map(|s| (s.name.clone(), s.rate.clone()))
+                .collect(),
+            parameters: (scenario.parameters.iter().enumerate())
+                .map(|(i, p)| (p.name.clone(), (i != moved).then_some(p.value)))
+                .collect(),
+            integrator: scenario.integrator.clone(),
+            cut: (scenario.cut.as_ref()).map(|c| (c.surface.clone(), c.direction)),
+            strobe: (scenario.strobe.as_ref()).map(|s| (s.period.clone(), s.first_at)),
+        }
+    }
 }
 
 impl BranchState {
@@ -55,6 +86,16 @@ impl BranchState {
     /// Asks the job to stop; whether one was going.
     pub fn cancel(&self) -> bool {
         self.job.as_ref().inspect(|j| j.cancel()).is_some()
+    }
+
+    /// Whether `scenario` has moved away from the one the branch was followed in (another
+    /// equation, another value of a parameter the branch does not move, another integrator,
+    /// cut or strobe): the branch no longer describes it.
+    pub fn is_outdated(&self, scenario: &lamina_scenario::Scenario) -> bool {
+        match (&self.basis, self.following) {
+            (Some(basis), Some((_, moved))) => *basis != BranchBasis::of(scenario, moved),
+            _ => false,
+        }
     }
 }
 
@@ -194,6 +235,7 @@ impl Session {
                 let branch = &mut self.analysis.branch;
                 branch.job = Some(job);
                 branch.following = Some((of, range.parameter));
+                branch.basis = Some(BranchBasis::of(&self.doc.scenario, range.parameter));
                 branch.points.clear();
                 branch.special.clear();
                 branch.progress = 0.0;
