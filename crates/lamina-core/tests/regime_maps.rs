@@ -11,9 +11,9 @@ use lamina_core::Interrupt;
 use lamina_core::integrate::Method;
 use lamina_core::model::Model;
 use lamina_core::regime_map::{
-    MapAxisSpec, MapCell, MapProblem, Regime, RegimeMapSpec, run_cells, run_cells_in_order,
+    Failure, MapAxisSpec, MapCell, MapProblem, Regime, RegimeMapSpec, run_cells, run_cells_in_order,
 };
-use lamina_core::run::{Cut, Direction, RunSpec, Strobe, StrobeSpec};
+use lamina_core::run::{Cut, Direction, RunSpec, StopReason, Strobe, StrobeSpec};
 use lamina_core::sweep::SweepSource;
 
 fn no_strobe(_: &Model) -> Option<Strobe> {
@@ -309,6 +309,31 @@ fn driven_cells(m: &Model, spec: RegimeMapSpec) -> Vec<MapCell> {
     };
     let indices: Vec<usize> = (0..spec.n_cells()).collect();
     run_cells(&problem, &indices, &Interrupt::new(), &|_| {}).expect("map runs")
+}
+
+#[test]
+fn a_cell_where_the_strobe_period_has_no_value_fails_and_says_why() {
+    let m = model(
+        &[("x", 0.0, "v"), ("v", 0.0, "-0.4*v - x + a*cos(w*t)")],
+        &[("a", 1.0), ("w", 1.0)],
+    );
+    let cells = driven_cells(
+        &m,
+        map(axis(0, 0.5, 1.0, 2), axis(1, 0.0, 1.0, 2), 80.0, 60.0),
+    );
+    for cell in &cells {
+        if cell.y == 0.0 {
+            // [analytic] the period 2 pi / w is infinite at w = 0: nothing can be sampled
+            assert_eq!(
+                cell.regime,
+                Regime::Failed(Failure::Stopped(StopReason::StrobePeriod)),
+                "{cell:?}"
+            );
+            assert_eq!(cell.regime.word(), "failed");
+        } else {
+            assert_eq!(cell.regime, Regime::Periodic { returns: 1 }, "{cell:?}");
+        }
+    }
 }
 
 #[test]

@@ -9,7 +9,7 @@ use common::*;
 use lamina_core::Interrupt;
 use lamina_core::integrate::Method;
 use lamina_core::model::Model;
-use lamina_core::run::{Direction, Strobe};
+use lamina_core::run::{Direction, StopReason, Strobe, StrobeSpec};
 use lamina_core::sweep::{SweepColumn, SweepSource, SweepSpec, sweep_follow, sweep_restart};
 
 /// Brusselator x' = A - (B + 1) x + x^2 y, y' = B x - x^2 y with A = 1 (REFERENCES case 12).
@@ -235,4 +235,48 @@ fn a_sweep_without_its_source_is_refused() {
         &|_| {},
     );
     assert!(result.is_err());
+}
+
+#[test]
+fn a_value_where_the_strobe_period_has_no_value_says_why() {
+    let m = model(
+        &[("x", 0.0, "v"), ("v", 0.0, "-0.4*v - x + cos(w*t)")],
+        &[("w", 1.0)],
+    );
+    let period = StrobeSpec {
+        period: "2*pi/w".into(),
+        first_at: 0.0,
+    };
+    let strobe_for = move |m: &Model| Strobe::compile(&period, m).ok();
+    let spec = SweepSpec {
+        parameter: 0,
+        from: 0.0,
+        to: 1.0,
+        values: 2,
+        settle: 80.0,
+        keep: 8,
+        span: 60.0,
+        follow: false,
+        source: SweepSource::Strobe,
+    };
+    let columns = sweep_restart(
+        &m,
+        &spec_for_sweep(),
+        None,
+        &strobe_for,
+        &spec,
+        &[0, 1],
+        &Interrupt::new(),
+        &|_| {},
+    )
+    .expect("sweep runs");
+    // [analytic] the period 2 pi / w is infinite at w = 0: nothing is sampled, and the
+    // column says why instead of looking like a run that recorded nothing
+    assert_eq!(columns[0].reason, StopReason::StrobePeriod);
+    assert!(columns[0].points.is_empty());
+    assert!(columns[0].reason.is_trouble());
+    // [analytic] at w = 1 the damped oscillator settles on its one response of the drive's
+    // period: the kept samples are taken
+    assert!(!columns[1].reason.is_trouble(), "{:?}", columns[1].reason);
+    assert_eq!(columns[1].points.len(), 8);
 }

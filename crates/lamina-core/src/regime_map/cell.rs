@@ -172,7 +172,22 @@ pub fn run_cell(
     let autonomous = !model.uses_time();
     let (cut, strobe) = match map.source {
         SweepSource::Cut => (problem.cut.cloned(), None),
-        SweepSource::Strobe => (None, (problem.strobe_for)(&model)),
+        SweepSource::Strobe => match (problem.strobe_for)(&model) {
+            Some(strobe) => (None, Some(strobe)),
+            None => {
+                // the period has no valid value in this cell: say so instead of running
+                return MapCell {
+                    index,
+                    x,
+                    y,
+                    regime: Regime::Failed(Failure::Stopped(StopReason::StrobePeriod)),
+                    lyapunov: None,
+                    settled: true,
+                    n_points: 0,
+                    end: (start.0, start.1.to_vec()),
+                };
+            }
+        },
     };
     let run_spec = RunSpec {
         t_start: start.0,

@@ -106,6 +106,9 @@ pub enum StopReason {
     /// The time is too far from 0 for the run: a part of the window, the strobe times or
     /// the steps the model needs are lost in rounding there (the run would stand still).
     TimeTooCoarse(TimeResolution),
+    /// The strobe's period is not a positive finite number at the run's parameter values (a
+    /// sweep or map value where `2*pi/w` meets `w = 0`, say): no run was made.
+    StrobePeriod,
 }
 
 impl StopReason {
@@ -119,6 +122,7 @@ impl StopReason {
                 | Self::StepTooSmall { .. }
                 | Self::Chattering { .. }
                 | Self::TimeTooCoarse(_)
+                | Self::StrobePeriod
         )
     }
 }
@@ -145,6 +149,10 @@ impl std::fmt::Display for StopReason {
                 "the model chatters at t = {t}: its switches pile up with vanishing time between them (a sliding mode)"
             ),
             Self::TimeTooCoarse(problem) => write!(f, "{problem}"),
+            Self::StrobePeriod => write!(
+                f,
+                "the strobe period is not a positive finite number at these parameter values, so nothing was sampled"
+            ),
         }
     }
 }

@@ -94,6 +94,18 @@ pub fn run_value(
     };
     let (cut, strobe) = match spec.source {
         SweepSource::Cut => (cut.cloned(), None),
+        SweepSource::Strobe if strobe.is_none() => {
+            // the period has no valid value here: say so instead of running unsampled
+            let end = (start.0, start.1.to_vec());
+            return SweepColumn {
+                index,
+                value,
+                points: Vec::new(),
+                times: Vec::new(),
+                reason: StopReason::StrobePeriod,
+                end,
+            };
+        }
         SweepSource::Strobe => (None, strobe),
     };
     let mut sink = KeepSink {
