@@ -14,14 +14,20 @@ use crate::vocabulary::{JobKind, PointSet, Purpose, ViewKind};
 impl ExplorerApp {
     /// A file beside the scenario (or in the working folder) to suggest for an export.
     fn suggested_export(&self, file_name: String) -> PathBuf {
-        let dir = self
-            .session
-            .doc
-            .path
-            .as_ref()
+        let doc = &self.session.doc;
+        let dir = (doc.path.as_ref())
             .and_then(|p| p.parent().map(Path::to_path_buf))
             .unwrap_or_default();
-        dir.join(file_name)
+        // named after the scenario's file (or its title), so exports of several scenarios
+        // in one folder do not overwrite one another
+        let stem = (doc.path.as_ref())
+            .and_then(|p| p.file_stem())
+            .map(|s| s.to_string_lossy().into_owned())
+            .unwrap_or_else(|| doc.scenario.title.clone());
+        match file_name_part(&stem) {
+            Some(prefix) => dir.join(format!("{prefix}_{file_name}")),
+            None => dir.join(file_name),
+        }
     }
 
     pub(crate) fn request_csv_export(&mut self, set: PointSet) {
@@ -183,5 +189,48 @@ impl ExplorerApp {
     /// Whether a PNG export is being drawn.
     pub fn is_exporting_png(&self) -> bool {
         self.png_export.is_some()
+    }
+}
+
+/// `text` made fit for a file name: letters and digits kept (lower case), every other run of
+/// characters one `_`, at most 40 characters; `None` when nothing is left.
+fn file_name_part(text: &str) -> Option<String> {
+    let mut part = String::new();
+    for c in text.chars() {
+        if c.is_alphanumeric() {
+            part.extend(c.to_lowercase());
+        } else if !part.is_empty() && !part.ends_with('_') {
+            part.push('_');
+        }
+        if part.chars().count() >= 40 {
+            break;
+        }
+    }
+    let part = part.trim_end_matches('_').to_string();
+    (!part.is_empty()).then_some(part)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::file_name_part;
+
+    #[test]
+    fn a_title_becomes_a_plain_file_name_part() {
+        // [common practice] file names of letters, digits and underscores travel between
+        // systems unharmed
+        assert_eq!(
+            file_name_part("Clocked buck converter").as_deref(),
+            Some("clocked_buck_converter")
+        );
+        assert_eq!(
+            file_name_part("  Relay loop (v2): 10 ms/div ").as_deref(),
+            Some("relay_loop_v2_10_ms_div")
+        );
+        assert_eq!(
+            file_name_part("clocked_resonator").as_deref(),
+            Some("clocked_resonator")
+        );
+        assert_eq!(file_name_part(" -- ").as_deref(), None);
+        assert!(file_name_part(&"x".repeat(100)).is_some_and(|p| p.len() == 40));
     }
 }
