@@ -18,4 +18,6 @@ mod tangent;
 pub use driver::{spectrum, workspace_bytes};
 pub use result::{ExponentSink, Spectrum};
 pub use settings::{ExponentError, ExponentSettings};
-pub use summary::{Trace, Verdict, classify, kaplan_yorke, settled_spectrum, zero_band};
+pub use summary::{
+    Trace, Verdict, admits_chaos, classify, kaplan_yorke, settled_spectrum, zero_band,
+};

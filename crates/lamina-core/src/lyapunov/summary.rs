@@ -168,6 +168,14 @@ impl Verdict {
     }
 }
 
+/// Whether a bounded motion of a flow of `flow_dimension` dimensions (the states, plus one
+/// for the time of a forced model) can be chaotic or quasi-periodic: not below three, by the
+/// Poincaré–Bendixson theorem (a bounded orbit of a plane flow tends to a resting point or a
+/// periodic orbit).
+pub fn admits_chaos(flow_dimension: usize) -> bool {
+    flow_dimension >= 3
+}
+
 /// An exponent counts as zero when it lies within this many spreads of zero...
 const ZERO_BAND_SPREADS: f64 = 6.0;
 /// ...or within this fraction of the largest exponent magnitude.
@@ -209,7 +217,8 @@ pub fn classify(
         .zip(&band)
         .filter(|(l, b)| **l > **b)
         .count();
-    let plane_flow = n_states + usize::from(time_direction_omitted) < 3;
+    let flow_dimension = n_states + usize::from(time_direction_omitted);
+    let plane_flow = !admits_chaos(flow_dimension);
     if n_positive > 0 {
         if plane_flow {
             return Verdict::Undecided;
@@ -232,7 +241,6 @@ pub fn classify(
             .is_some_and(|(l, b)| *l < -*b);
     // every direction of the flow zero within its band: no exponent is resolved from zero
     // (a span short against the model's time scale), which says nothing of the motion
-    let flow_dimension = n_states + usize::from(time_direction_omitted);
     match (n_zero, complete) {
         (0, _) => Verdict::Equilibrium,
         (1, true) => Verdict::Periodic,

@@ -3,6 +3,7 @@
 //! Lyapunov exponent.
 
 use super::regime::{Failure, Regime};
+use crate::lyapunov::admits_chaos;
 use crate::recurrence::{Recurrence, RecurrenceSettings, find_recurrence};
 
 /// What a cell's run recorded, for [`classify`].
@@ -27,11 +28,6 @@ pub struct Evidence<'a> {
     pub flow_dimension: usize,
 }
 
-/// The least flow dimension in which a bounded motion can be chaotic or quasi-periodic
-/// (Poincaré–Bendixson theorem: a bounded orbit of a plane flow tends to a resting point or a
-/// periodic orbit).
-const LEAST_DIMENSION_FOR_CHAOS: usize = 3;
-
 /// The regime of a cell, and whether its points had settled (`false`: the points still
 /// converged or drifted at the end of the span, and the regime is the one they approach).
 ///
@@ -51,7 +47,7 @@ pub fn classify(evidence: &Evidence<'_>, settings: &RecurrenceSettings) -> (Regi
         .exponent
         .filter(|(l, b)| l.is_finite() && b.is_finite());
     let negative = exponent.is_some_and(|(l, band)| l < -band);
-    let can_be_chaotic = evidence.flow_dimension >= LEAST_DIMENSION_FOR_CHAOS;
+    let can_be_chaotic = admits_chaos(evidence.flow_dimension);
     let positive = can_be_chaotic && exponent.is_some_and(|(l, band)| l > band);
     let resting = negative && evidence.autonomous;
     match find_recurrence(evidence.points, settings) {
