@@ -3,14 +3,14 @@
 //! regime-map tile (run, stop, export, hover a cell for its values, click one to run the
 //! model there). The job itself is in `session/map.rs`.
 
-use egui::{ComboBox, RichText, Ui};
+use egui::{RichText, Ui};
 use lamina_scenario::{MapAxis, RegimeMap, Scenario, SweepSource};
 
 use crate::document::Document;
 use crate::session::Session;
 use crate::views::regime_map::regime_map_ui;
 use crate::vocabulary::{Command, JobKind, PanelChanges, PointSet, ViewKind};
-use crate::widgets::{number_field_ui, problems_ui};
+use crate::widgets::{number_field_ui, parameter_choice_ui, problems_ui};
 
 /// A map block over the scenario's first two parameters, each over its slider range, from
 /// the strobe if the scenario has one, else the cut.
@@ -89,28 +89,15 @@ pub fn map_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChange
         .show(ui, |ui| {
             for (axis, name) in [(&mut map.x, "across"), (&mut map.y, "up")] {
                 let label = ui.label(format!("parameter {name}"));
-                let before = axis.parameter.clone();
-                ComboBox::from_id_salt(("map_parameter", name))
-                    .selected_text(axis.parameter.as_str())
-                    .show_ui(ui, |ui| {
-                        for p in &parameters {
-                            changed |= ui
-                                .selectable_value(&mut axis.parameter, p.clone(), p)
-                                .changed();
-                        }
-                    })
-                    .response
-                    .labelled_by(label.id);
-                if axis.parameter != before
-                    && let Some(&(lo, hi)) = parameters
-                        .iter()
-                        .position(|p| *p == axis.parameter)
-                        .and_then(|i| ranges.get(i))
-                {
-                    // another parameter: its slider's range, not the old one's numbers
-                    axis.from = lo;
-                    axis.to = hi;
-                }
+                changed |= parameter_choice_ui(
+                    ui,
+                    ("map_parameter", name),
+                    label.id,
+                    &mut axis.parameter,
+                    (&parameters, &ranges),
+                    (&mut axis.from, &mut axis.to),
+                )
+                .1;
                 ui.end_row();
                 ui.label("from … to");
                 ui.horizontal(|ui| {

@@ -8,7 +8,7 @@ use crate::document::Document;
 use crate::session::Session;
 use crate::views::orbit::orbit_diagram_ui;
 use crate::vocabulary::{Command, JobKind, PanelChanges};
-use crate::widgets::{number_field_ui, problems_ui, unit_suffix};
+use crate::widgets::{number_field_ui, parameter_choice_ui, problems_ui, unit_suffix};
 
 /// The sweep block's fields in the model panel.
 pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChanges) {
@@ -61,19 +61,9 @@ pub fn sweep_section_ui(ui: &mut Ui, doc: &mut Document, changes: &mut PanelChan
     let parameter_unit = unit_suffix(unit_of_parameter(&sweep.parameter).as_deref());
     egui::Grid::new("sweep_grid").num_columns(2).spacing([8.0, 4.0]).show(ui, |ui| {
         let label = ui.label("parameter");
-        let before = sweep.parameter.clone();
-        ComboBox::from_id_salt("sweep_parameter").selected_text(sweep.parameter.as_str()).show_ui(ui, |ui| {
-            for p in &parameters {
-                changed |= ui.selectable_value(&mut sweep.parameter, p.clone(), p).changed();
-            }
-        }).response.labelled_by(label.id).on_hover_text("The parameter the sweep varies");
-        if sweep.parameter != before
-            && let Some(&(lo, hi)) = parameters.iter().position(|p| *p == sweep.parameter).and_then(|i| ranges.get(i))
-        {
-            // another parameter: its slider's range, not the old one's numbers
-            sweep.from = lo;
-            sweep.to = hi;
-        }
+        let (response, chosen) = parameter_choice_ui(ui, "sweep_parameter", label.id, &mut sweep.parameter, (&parameters, &ranges), (&mut sweep.from, &mut sweep.to));
+        response.on_hover_text("The parameter the sweep varies");
+        changed |= chosen;
         ui.end_row();
         ui.label("from … to");
         ui.horizontal(|ui| {

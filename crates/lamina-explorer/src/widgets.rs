@@ -1,5 +1,6 @@
-//! Small widgets shared by the panels: a number field that accepts any float notation, a unit
-//! field, a copy button, and the in-place problem message.
+//! Small widgets shared by the panels: a number field that accepts any float notation, a
+//! parameter choice that takes the new parameter's range, a unit field, a copy button, and the
+//! in-place problem message.
 
 use egui::{Color32, Response, RichText, Ui};
 use lamina_scenario::Problem;
@@ -10,6 +11,39 @@ pub use crate::vocabulary::unit_suffix;
 pub const ERROR_COLOUR: Color32 = Color32::from_rgb(226, 84, 72);
 /// The colour of warning text.
 pub const WARNING_COLOUR: Color32 = Color32::from_rgb(222, 170, 60);
+
+/// A combo box choosing the parameter named in `chosen` among `names`, labelled by `label`.
+/// When the choice changes, `from` and `to` take the new parameter's slider range (from
+/// `ranges`, in the order of `names`): a newly swept parameter gets its own range, not the
+/// old one's numbers. Returns the box's response and whether the choice changed.
+pub fn parameter_choice_ui(
+    ui: &mut Ui,
+    id_salt: impl std::hash::Hash + std::fmt::Debug,
+    label: egui::Id,
+    chosen: &mut String,
+    (names, ranges): (&[String], &[(f64, f64)]),
+    (from, to): (&mut f64, &mut f64),
+) -> (Response, bool) {
+    let before = chosen.clone();
+    let response = egui::ComboBox::from_id_salt(id_salt)
+        .selected_text(chosen.as_str())
+        .show_ui(ui, |ui| {
+            for name in names {
+                ui.selectable_value(chosen, name.clone(), name);
+            }
+        })
+        .response
+        .labelled_by(label);
+    let changed = *chosen != before;
+    if changed
+        && let Some(&(lo, hi)) =
+            (names.iter().position(|n| n == chosen)).and_then(|i| ranges.get(i))
+    {
+        *from = lo;
+        *to = hi;
+    }
+    (response, changed)
+}
 
 /// A text field for a float that keeps what the user types (so `1e-9` stays `1e-9`) and
 /// writes `value` whenever the text parses to a finite number. Marked red while it does not.
