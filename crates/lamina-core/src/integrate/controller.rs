@@ -63,14 +63,11 @@ impl PiController {
     /// Next step size after a step of size `h` was accepted with scaled error `err <= 1`.
     #[inline]
     pub(crate) fn accepted(&mut self, h: f64, err: f64) -> f64 {
-        // err^alpha / err_prev^beta with one log and one exponential (err = 0 gives 0)
+        // safety * err_prev^beta / err^alpha with one log and one exponential (err = 0 gives
+        // the largest growth); multiplied, not divided, because the next step waits for it
         let ln_err = err.ln();
-        let fac = (self.alpha * ln_err - self.beta * self.ln_previous_error).exp();
-        // h_new = h / fac with fac limited to 1/max_factor ..= 1/min_factor
-        let fac = (fac / SAFETY)
-            .max(1.0 / self.max_factor)
-            .min(1.0 / self.min_factor);
-        let mut h_new = h / fac;
+        let growth = SAFETY * (self.beta * self.ln_previous_error - self.alpha * ln_err).exp();
+        let mut h_new = h * growth.clamp(self.min_factor, self.max_factor);
         self.ln_previous_error = ln_err.max(PREVIOUS_ERROR_FLOOR.ln());
         if self.after_rejection {
             h_new = h_new.min(h);

@@ -4,17 +4,41 @@
 //! its dense output in [`Integrator::segment`].
 
 /// One stage state in a single pass over the states:
-/// `combine!(out = y + h * (a1, k1; a2, k2; ...))` writes `out[i] = y[i] + h * (a1 k1[i] + ...)`.
+/// `combine!(out = y + h * (a1, k1; a2, k2; ...; an, kn))` writes
+/// `out[i] = (y[i] + h * (a1 k1[i] + ...)) + (h an) kn[i]`.
+///
+/// The last stage listed should be the one evaluated last: the rest of the sum is formed
+/// while its rates are still being computed, so that stage waits for one multiplication and
+/// one addition only. In a small model's step the stages wait on each other in one long
+/// chain, and this chain is what bounds the step's time.
 /// All slices are cut to the length of `y` first so the loop runs without bounds checks.
 macro_rules! combine {
-    ($out:ident = $y:ident + $h:ident * ($a0:expr, $k0:ident $(; $a:expr, $k:ident)* $(;)?)) => {{
+    ($out:ident = $y:ident + $h:ident * ($($a:expr, $k:ident);+ $(;)?)) => {
+        combine!(@split $out, $y, $h, [] $($a, $k);+)
+    };
+    (@split $out:ident, $y:ident, $h:ident, [$($da:expr, $dk:ident);*] $a:expr, $k:ident; $($rest:tt)+) => {
+        combine!(@split $out, $y, $h, [$($da, $dk;)* $a, $k] $($rest)+)
+    };
+    (@split $out:ident, $y:ident, $h:ident, [] $al:expr, $kl:ident) => {{
+        let n = $y.len();
+        let out: &mut [f64] = &mut $out[..n];
+        let y: &[f64] = &$y[..n];
+        let $kl: &[f64] = &$kl[..n];
+        let h_last = $h * $al;
+        for i in 0..n {
+            out[i] = y[i] + h_last * $kl[i];
+        }
+    }};
+    (@split $out:ident, $y:ident, $h:ident, [$a0:expr, $k0:ident $(; $a:expr, $k:ident)*] $al:expr, $kl:ident) => {{
         let n = $y.len();
         let out: &mut [f64] = &mut $out[..n];
         let y: &[f64] = &$y[..n];
         let $k0: &[f64] = &$k0[..n];
         $(let $k: &[f64] = &$k[..n];)*
+        let $kl: &[f64] = &$kl[..n];
+        let h_last = $h * $al;
         for i in 0..n {
-            out[i] = y[i] + $h * ($a0 * $k0[i] $(+ $a * $k[i])*);
+            out[i] = (y[i] + $h * ($a0 * $k0[i] $(+ $a * $k[i])*)) + h_last * $kl[i];
         }
     }};
 }
