@@ -14,22 +14,25 @@
 /// All slices are cut to the length of `y` first so the loop runs without bounds checks.
 macro_rules! combine {
     ($out:ident = $y:ident + $h:ident * ($($a:expr, $k:ident);+ $(;)?)) => {
-        combine!(@split $out, $y, $h, [] $($a, $k);+)
+        combine!([false] $out = $y + $h * ($($a, $k);+))
     };
-    (@split $out:ident, $y:ident, $h:ident, [$($da:expr, $dk:ident);*] $a:expr, $k:ident; $($rest:tt)+) => {
-        combine!(@split $out, $y, $h, [$($da, $dk;)* $a, $k] $($rest)+)
+    ([$fused:expr] $out:ident = $y:ident + $h:ident * ($($a:expr, $k:ident);+ $(;)?)) => {
+        combine!(@split $fused, $out, $y, $h, [] $($a, $k);+)
     };
-    (@split $out:ident, $y:ident, $h:ident, [] $al:expr, $kl:ident) => {{
+    (@split $fused:expr, $out:ident, $y:ident, $h:ident, [$($da:expr, $dk:ident);*] $a:expr, $k:ident; $($rest:tt)+) => {
+        combine!(@split $fused, $out, $y, $h, [$($da, $dk;)* $a, $k] $($rest)+)
+    };
+    (@split $fused:expr, $out:ident, $y:ident, $h:ident, [] $al:expr, $kl:ident) => {{
         let n = $y.len();
         let out: &mut [f64] = &mut $out[..n];
         let y: &[f64] = &$y[..n];
         let $kl: &[f64] = &$kl[..n];
         let h_last = $h * $al;
         for i in 0..n {
-            out[i] = y[i] + h_last * $kl[i];
+            out[i] = $crate::integrate::add_product::<{ $fused }>(y[i], h_last, $kl[i]);
         }
     }};
-    (@split $out:ident, $y:ident, $h:ident, [$a0:expr, $k0:ident $(; $a:expr, $k:ident)*] $al:expr, $kl:ident) => {{
+    (@split $fused:expr, $out:ident, $y:ident, $h:ident, [$a0:expr, $k0:ident $(; $a:expr, $k:ident)*] $al:expr, $kl:ident) => {{
         let n = $y.len();
         let out: &mut [f64] = &mut $out[..n];
         let y: &[f64] = &$y[..n];
@@ -38,9 +41,21 @@ macro_rules! combine {
         let $kl: &[f64] = &$kl[..n];
         let h_last = $h * $al;
         for i in 0..n {
-            out[i] = (y[i] + $h * ($a0 * $k0[i] $(+ $a * $k[i])*)) + h_last * $kl[i];
+            let older = y[i] + $h * ($a0 * $k0[i] $(+ $a * $k[i])*);
+            out[i] = $crate::integrate::add_product::<{ $fused }>(older, h_last, $kl[i]);
         }
     }};
+}
+
+/// `base + a b`, with one fused multiply-add when `FUSED` (only inside code compiled for a
+/// processor that has the instruction: elsewhere it would be a slow library call).
+#[inline(always)]
+pub(crate) fn add_product<const FUSED: bool>(base: f64, a: f64, b: f64) -> f64 {
+    if FUSED {
+        a.mul_add(b, base)
+    } else {
+        base + a * b
+    }
 }
 
 mod auto;
