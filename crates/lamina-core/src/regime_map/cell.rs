@@ -1,6 +1,6 @@
 //! One cell of a regime map: the model at the cell's two parameter values, run from a start
-//! over the settle time and the span, its points and motion recorded, its largest Lyapunov
-//! exponent estimated over one more span, and the whole classified.
+//! over the settle time and the span, its points, motion and largest Lyapunov exponent
+//! recorded in the same pass over the span, and the whole classified.
 
 use std::ops::ControlFlow;
 
@@ -11,6 +11,7 @@ use crate::Interrupt;
 use crate::lyapunov::{ExponentSettings, spectrum};
 use crate::model::Model;
 use crate::recurrence::RecurrenceSettings;
+use crate::rest::{RestNewtonSettings, eigenvalues_of, solve_resting_point};
 use crate::run::{Cut, CutPoint, Run, RunSpec, Sink, StopReason, Strobe, StrobeSample};
 use crate::sweep::SweepSource;
 
@@ -58,8 +59,10 @@ pub struct MapCell {
     pub y: f64,
     /// What the cell settles into.
     pub regime: Regime,
-    /// The largest Lyapunov exponent's estimate over one span after the recorded one
-    /// (`None` for a cell that escaped or failed before it).
+    /// The largest Lyapunov exponent: for a cell at rest, the largest real part of the
+    /// eigenvalues of the Jacobian at its resting point; otherwise the estimate over the
+    /// recorded span (over one span after it for a model with switches: see [`run_cell`]).
+    /// `None` for a cell that escaped or failed before it was estimated.
     pub lyapunov: Option<f64>,
     /// Whether the points had settled (`false`: the regime is the one they approach).
     pub settled: bool,
@@ -149,10 +152,20 @@ impl Sink for CellSink {
 }
 
 /// Runs cell `index` of `problem`'s map from `start` (time and state): the model with the
-/// cell's parameter values settles for the map's settle time, its points and motion are
-/// recorded over the span, then its largest Lyapunov exponent is estimated over one more
-/// span from where the recorded run ended, and the cell is classified ([`classify`]) with
-/// the recurrence tolerances of the run's integrator.
+/// cell's parameter values settles for the map's settle time, then its points, its motion
+/// and its largest Lyapunov exponent are recorded over the span in one pass (the run carries
+/// one tangent vector: [`Run::carry_tangent`]), and the cell is classified ([`classify`])
+/// with the recurrence tolerances of the run's integrator.
+///
+/// A model with switches (rates with `sign`, `step`, `min`, `max`, ...) is run without the
+/// tangent vector, and its exponent is estimated over one more span from where the recorded
+/// run ended by [`spectrum`], which carries the vector through the switches with saltation
+/// matrices.
+///
+/// A cell of a model that does not use `t` whose motion over the span stays within the
+/// recurrence tolerance rests: its exponent is then the exact one, the largest real part of
+/// the eigenvalues of the Jacobian at the resting point that Newton's method finds from the
+/// run's end (when it lies within that tolerance; the span's estimate otherwise).
 ///
 /// A run that escapes gives [`Regime::Escaped`], one stopped by other numerical trouble
 /// [`Regime::Failed`] with its reason; a raised `interrupt` gives a cancelled cell
@@ -197,8 +210,9 @@ pub fn run_cell(
         ..problem.run.clone()
     };
     let mut sink = CellSink::new(map.source, model.start().len());
-    let outcome =
-        Run::new(model.clone(), run_spec, cut, strobe, false).execute(&mut sink, interrupt);
+    let mut run = Run::new(model.clone(), run_spec, cut, strobe, false);
+    let one_pass = run.carry_tangent(&exponent_settings());
+    let outcome = run.execute(&mut sink, interrupt);
     let mut cell = MapCell {
         index,
         x,
@@ -220,35 +234,17 @@ pub fn run_cell(
         cell.regime = regime;
         return cell;
     }
-    model.set_start(&cell.end.1);
-    let exponent_run = RunSpec {
-        t_start: cell.end.0,
-        settle: 0.0,
-        span: map.span,
-        ..problem.run.clone()
-    };
-    let settings = ExponentSettings {
-        count: Some(1),
-        trace_samples: EXPONENT_SAMPLES,
-        ..ExponentSettings::default()
-    };
-    let exponent = match spectrum(model, &exponent_run, &settings, &mut (), interrupt) {
-        Ok(s) if matches!(s.reason, StopReason::Cancelled { .. }) => {
-            cell.regime = Regime::Failed(Failure::Stopped(s.reason));
-            return cell;
+    let exponent = if one_pass {
+        run.largest_exponent()
+            .map(|e| with_band(&mut cell, e.value, e.spread))
+    } else {
+        match exponent_over_next_span(problem, &mut model, &mut cell, interrupt) {
+            Ok(exponent) => exponent,
+            Err(reason) => {
+                cell.regime = Regime::Failed(Failure::Stopped(reason));
+                return cell;
+            }
         }
-        Ok(s) if s.reason == StopReason::Finished => {
-            let largest = s.largest();
-            let spread = s.spread.first().copied().unwrap_or(f64::NAN);
-            let band = (ZERO_BAND_SPREADS * spread).max(ZERO_BAND_RELATIVE * largest.abs());
-            cell.lyapunov = largest.is_finite().then_some(largest);
-            Some((largest, band))
-        }
-        Ok(s) => {
-            cell.lyapunov = s.largest().is_finite().then(|| s.largest());
-            None
-        }
-        Err(_) => None,
     };
     let evidence = Evidence {
         points: &sink.points,
@@ -262,5 +258,81 @@ pub fn run_cell(
     let (regime, settled) = classify(&evidence, &recurrence);
     cell.regime = regime;
     cell.settled = settled;
+    // resting by its motion (not only approaching rest): the exponent is known exactly
+    if regime == Regime::Resting && settled && autonomous {
+        let near = recurrence.tolerance(sink.size());
+        if let Some(exact) = resting_exponent(&mut model, &cell.end.1, near, problem.run.escape) {
+            cell.lyapunov = Some(exact);
+        }
+    }
     cell
+}
+
+/// How the cell's largest exponent is estimated: one vector, the trace samples the spread is
+/// taken from, the other settings as the exponent report has them.
+fn exponent_settings() -> ExponentSettings {
+    ExponentSettings {
+        count: Some(1),
+        trace_samples: EXPONENT_SAMPLES,
+        ..ExponentSettings::default()
+    }
+}
+
+/// Records `largest` as the cell's exponent when finite, and returns it with the band around
+/// zero within which it counts as zero for the classification.
+fn with_band(cell: &mut MapCell, largest: f64, spread: f64) -> (f64, f64) {
+    cell.lyapunov = largest.is_finite().then_some(largest);
+    let band = (ZERO_BAND_SPREADS * spread).max(ZERO_BAND_RELATIVE * largest.abs());
+    (largest, band)
+}
+
+/// The two-pass estimate for a model with switches: the largest exponent by [`spectrum`] over
+/// one more span from where the recorded run ended (`model` is moved there). `None` when it
+/// could not be estimated; `Err` with the reason when the interrupt was raised.
+fn exponent_over_next_span(
+    problem: &MapProblem<'_>,
+    model: &mut Model,
+    cell: &mut MapCell,
+    interrupt: &Interrupt,
+) -> Result<Option<(f64, f64)>, StopReason> {
+    model.set_start(&cell.end.1);
+    let exponent_run = RunSpec {
+        t_start: cell.end.0,
+        settle: 0.0,
+        span: problem.map.span,
+        ..problem.run.clone()
+    };
+    let settings = exponent_settings();
+    match spectrum(model.clone(), &exponent_run, &settings, &mut (), interrupt) {
+        Ok(s) if matches!(s.reason, StopReason::Cancelled { .. }) => Err(s.reason),
+        Ok(s) if s.reason == StopReason::Finished => {
+            let spread = s.spread.first().copied().unwrap_or(f64::NAN);
+            Ok(Some(with_band(cell, s.largest(), spread)))
+        }
+        Ok(s) => {
+            cell.lyapunov = s.largest().is_finite().then(|| s.largest());
+            Ok(None)
+        }
+        Err(_) => Ok(None),
+    }
+}
+
+/// The largest real part of the eigenvalues of the Jacobian at the resting point that
+/// Newton's method reaches from `state`, when it lies within `near` of it (largest state
+/// difference); `None` otherwise or when Newton's method fails.
+fn resting_exponent(model: &mut Model, state: &[f64], near: f64, escape: f64) -> Option<f64> {
+    let n = state.len();
+    let rest = solve_resting_point(model, state, escape, &RestNewtonSettings::default()).ok()?;
+    let distance = (rest.state.iter().zip(state))
+        .map(|(a, b)| (a - b).abs())
+        .fold(0.0, f64::max);
+    if distance > near {
+        return None;
+    }
+    let eigenvalues = eigenvalues_of(&rest.jacobian, n)?;
+    let largest = eigenvalues
+        .iter()
+        .map(|e| e.re)
+        .fold(f64::NEG_INFINITY, f64::max);
+    largest.is_finite().then_some(largest)
 }
