@@ -40,3 +40,63 @@ impl Integrator {
         Ok(())
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::integrate::{FnRates, Method, StepControl};
+
+    #[test]
+    fn a_scaled_linear_part_stays_the_same_solution_scaled() {
+        // x' = -x, q' = (1 + x) q: q is linear in itself, so q scaled is again a solution
+        let system = || {
+            FnRates::new(2, |_t, y: &[f64], dy: &mut [f64]| {
+                dy[0] = -y[0];
+                dy[1] = (1.0 + y[0]) * y[1];
+            })
+        };
+        let control = StepControl {
+            rtol: 1e-10,
+            atol: 1e-300,
+            ..StepControl::default()
+        };
+        for method in [
+            Method::Dp5,
+            Method::Dp853,
+            Method::Rodas4,
+            Method::Automatic,
+        ] {
+            let (mut plain_rates, mut scaled_rates) = (system(), system());
+            let mut plain = Integrator::new(method, control, 2);
+            let mut scaled = Integrator::new(method, control, 2);
+            plain.reset(&mut plain_rates, 0.0, &[1.0, 1.0]);
+            scaled.reset(&mut scaled_rates, 0.0, &[1.0, 1.0]);
+            let mut factor = 1.0;
+            while plain.t() < 5.0 {
+                plain.step_lazy(&mut plain_rates, 5.0).expect("steps");
+            }
+            while scaled.t() < 5.0 {
+                scaled.step_lazy(&mut scaled_rates, 5.0).expect("steps");
+                scaled
+                    .scale_tail(&mut scaled_rates, 1, 0.5)
+                    .expect("scales");
+                factor *= 0.5;
+            }
+            // [analytic] q(t) = exp(t + 1 - exp(-t)) from q(0) = 1, x(0) = 1; the scaled run
+            // ends at the same value times the product of the factors (to round-off where
+            // the steps are the same, to the tolerance where the error control of the stiff
+            // method's difference Jacobian chose others)
+            let exact = (5.0 + 1.0 - (-5.0f64).exp()).exp();
+            let back = scaled.x()[1] / factor;
+            assert!((back / plain.x()[1] - 1.0).abs() < 1e-8, "{method:?}");
+            assert!(
+                (back / exact - 1.0).abs() < 1e-7,
+                "{method:?}: {back} vs {exact}"
+            );
+            // the scaled dense output is the scaled solution too
+            let mut end = [0.0; 2];
+            scaled.segment().end_state(&mut end);
+            assert!((end[1] / scaled.x()[1] - 1.0).abs() < 1e-12, "{method:?}");
+        }
+    }
+}
