@@ -169,6 +169,19 @@ fn a_resting_cell_reports_the_exact_exponent_of_its_resting_point() {
     // = -0.25, determinant A^2 = 0.25, so eigenvalues -0.125 +- 0.484i (REFERENCES case 20)
     let l = c.lyapunov.expect("an exponent");
     assert!((l + 0.125).abs() < 1e-9, "{c:?}");
+    // [analytic] after 200 at the decay rate 0.125 the state is within e^-25 of the stable
+    // resting point: the cell needs no span, it ends where the settle time did
+    assert_eq!(c.end.0, 200.0, "{c:?}");
+    // the same cell with a settle time too short to be sure still rests after its span, and
+    // gets the exact exponent from its end
+    let c = cell(&m, &cut, (0.5, 1.0), 110.0, 200.0, 1e-9);
+    assert_eq!(c.regime, Regime::Resting, "{c:?}");
+    assert_eq!(c.end.0, 310.0, "{c:?}");
+    // [analytic] -0.125, as above
+    assert!(
+        c.lyapunov.is_some_and(|l| (l + 0.125).abs() < 1e-9),
+        "{c:?}"
+    );
 
     let damped = model(
         &[("x", 1.0, "-a*x + y"), ("y", 0.0, "-x - b*y")],

@@ -6,12 +6,12 @@ use std::ops::ControlFlow;
 
 use super::classify::{Evidence, classify};
 use super::regime::{Failure, Regime};
+use super::resting::{resting_exponent, rests_for_good};
 use super::spec::RegimeMapSpec;
 use crate::Interrupt;
 use crate::lyapunov::{ExponentSettings, spectrum};
 use crate::model::Model;
 use crate::recurrence::RecurrenceSettings;
-use crate::rest::{RestNewtonSettings, eigenvalues_of, solve_resting_point};
 use crate::run::{Cut, CutPoint, Run, RunSpec, Sink, StopReason, Strobe, StrobeSample};
 use crate::sweep::SweepSource;
 
@@ -165,7 +165,11 @@ impl Sink for CellSink {
 /// A cell of a model that does not use `t` whose motion over the span stays within the
 /// recurrence tolerance rests: its exponent is then the exact one, the largest real part of
 /// the eigenvalues of the Jacobian at the resting point that Newton's method finds from the
-/// run's end (when it lies within that tolerance; the span's estimate otherwise).
+/// run's end (when it lies within that tolerance; the span's estimate otherwise). When the
+/// settle time already ends so close to a stable resting point that the linearised flow
+/// cannot move the state by that tolerance over any time ([`rests_for_good`]), the span is
+/// not run at all: the cell rests, with the exact exponent, no points and its end where the
+/// settle time ended.
 ///
 /// A run that escapes gives [`Regime::Escaped`], one stopped by other numerical trouble
 /// [`Regime::Failed`] with its reason; a raised `interrupt` gives a cancelled cell
@@ -190,14 +194,8 @@ pub fn run_cell(
             None => {
                 // the period has no valid value in this cell: say so instead of running
                 return MapCell {
-                    index,
-                    x,
-                    y,
                     regime: Regime::Failed(Failure::Stopped(StopReason::StrobePeriod)),
-                    lyapunov: None,
-                    settled: true,
-                    n_points: 0,
-                    end: (start.0, start.1.to_vec()),
+                    ..cell_at(index, (x, y), start.0, start.1.to_vec(), 0)
                 };
             }
         },
@@ -211,26 +209,36 @@ pub fn run_cell(
     };
     let mut sink = CellSink::new(map.source, model.start().len());
     let mut run = Run::new(model.clone(), run_spec, cut, strobe, false);
+    let recurrence = RecurrenceSettings::for_control(&problem.run.control);
+    let settle = run.execute_settle(&mut sink, interrupt);
+    if let Some(regime) = stopped(settle.reason) {
+        return MapCell {
+            regime,
+            ..cell_at(index, (x, y), settle.t_reached, settle.final_state, 0)
+        };
+    }
+    // at rest for good already: the span could not show any motion
+    if autonomous {
+        let tolerance = |size| recurrence.tolerance(size);
+        let escape = problem.run.escape;
+        if let Some(exact) = rests_for_good(&mut model, &settle.final_state, tolerance, escape) {
+            return MapCell {
+                lyapunov: Some(exact),
+                ..cell_at(index, (x, y), settle.t_reached, settle.final_state, 0)
+            };
+        }
+    }
     let one_pass = run.carry_tangent(&exponent_settings());
     let outcome = run.execute(&mut sink, interrupt);
-    let mut cell = MapCell {
+    let n_points = sink.n_points;
+    let mut cell = cell_at(
         index,
-        x,
-        y,
-        regime: Regime::Resting,
-        lyapunov: None,
-        settled: true,
-        n_points: sink.n_points,
-        end: (outcome.t_reached, outcome.final_state),
-    };
-    let stopped = match outcome.reason {
-        StopReason::Finished | StopReason::SinkStopped { .. } | StopReason::PointLimit { .. } => {
-            None
-        }
-        StopReason::Escaped { t, .. } => Some(Regime::Escaped { t }),
-        other => Some(Regime::Failed(Failure::Stopped(other))),
-    };
-    if let Some(regime) = stopped {
+        (x, y),
+        outcome.t_reached,
+        outcome.final_state,
+        n_points,
+    );
+    if let Some(regime) = stopped(outcome.reason) {
         cell.regime = regime;
         return cell;
     }
@@ -254,18 +262,46 @@ pub fn run_cell(
         autonomous,
         flow_dimension: sink.low.len() + usize::from(!autonomous),
     };
-    let recurrence = RecurrenceSettings::for_control(&problem.run.control);
     let (regime, settled) = classify(&evidence, &recurrence);
     cell.regime = regime;
     cell.settled = settled;
     // resting by its motion (not only approaching rest): the exponent is known exactly
     if regime == Regime::Resting && settled && autonomous {
         let near = recurrence.tolerance(sink.size());
-        if let Some(exact) = resting_exponent(&mut model, &cell.end.1, near, problem.run.escape) {
+        if let Some((_, _, exact)) =
+            resting_exponent(&mut model, &cell.end.1, near, problem.run.escape)
+        {
             cell.lyapunov = Some(exact);
         }
     }
     cell
+}
+
+/// A resting, settled cell at `(x, y)` without an exponent, whose run ended at `t` in `state`
+/// with `n_points` recorded.
+fn cell_at(index: usize, (x, y): (f64, f64), t: f64, state: Vec<f64>, n_points: usize) -> MapCell {
+    MapCell {
+        index,
+        x,
+        y,
+        regime: Regime::Resting,
+        lyapunov: None,
+        settled: true,
+        n_points,
+        end: (t, state),
+    }
+}
+
+/// The regime of a cell whose run stopped for `reason` before its end: escaped, or failed
+/// with the reason; `None` for a run that went through.
+fn stopped(reason: StopReason) -> Option<Regime> {
+    match reason {
+        StopReason::Finished | StopReason::SinkStopped { .. } | StopReason::PointLimit { .. } => {
+            None
+        }
+        StopReason::Escaped { t, .. } => Some(Regime::Escaped { t }),
+        other => Some(Regime::Failed(Failure::Stopped(other))),
+    }
 }
 
 /// How the cell's largest exponent is estimated: one vector, the trace samples the spread is
@@ -315,24 +351,4 @@ fn exponent_over_next_span(
         }
         Err(_) => Ok(None),
     }
-}
-
-/// The largest real part of the eigenvalues of the Jacobian at the resting point that
-/// Newton's method reaches from `state`, when it lies within `near` of it (largest state
-/// difference); `None` otherwise or when Newton's method fails.
-fn resting_exponent(model: &mut Model, state: &[f64], near: f64, escape: f64) -> Option<f64> {
-    let n = state.len();
-    let rest = solve_resting_point(model, state, escape, &RestNewtonSettings::default()).ok()?;
-    let distance = (rest.state.iter().zip(state))
-        .map(|(a, b)| (a - b).abs())
-        .fold(0.0, f64::max);
-    if distance > near {
-        return None;
-    }
-    let eigenvalues = eigenvalues_of(&rest.jacobian, n)?;
-    let largest = eigenvalues
-        .iter()
-        .map(|e| e.re)
-        .fold(f64::NEG_INFINITY, f64::max);
-    largest.is_finite().then_some(largest)
 }

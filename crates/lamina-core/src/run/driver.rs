@@ -315,10 +315,12 @@ impl Run {
     ///
     /// Returns false, and the run goes on without it, for a model with switches (whose
     /// tangent vector would need saltation matrices at every switch: use
-    /// [`crate::lyapunov::spectrum`]), for a run that stores its steps or that has started.
+    /// [`crate::lyapunov::spectrum`]), for a run that stores its steps, that carries one
+    /// already or that has passed the start of the recorded window.
     pub fn carry_tangent(&mut self, settings: &ExponentSettings) -> bool {
         let switches = !self.model.program().switches().is_empty();
-        if switches || self.store || self.started {
+        let passed = self.t() > self.spec.t_record();
+        if switches || self.store || self.tangent.is_some() || passed {
             return false;
         }
         let t_record = self.spec.t_record();
@@ -424,6 +426,17 @@ impl Run {
                 self.next_strobe += 1;
             }
         }
+    }
+
+    /// Integrates the settle time only, from where the run stands to the start of the
+    /// recorded window (reported as finished there, progress 1 included); [`Run::execute`]
+    /// goes on over the span.
+    pub fn execute_settle(&mut self, sink: &mut dyn Sink, interrupt: &Interrupt) -> RunOutcome {
+        let t_end = self.t_end;
+        self.t_end = self.spec.t_record().min(t_end);
+        let outcome = self.execute(sink, interrupt);
+        self.t_end = t_end;
+        outcome
     }
 
     /// Integrates from where the run stands to the end of the window, reporting to `sink`.
