@@ -35,8 +35,9 @@ pub(crate) struct OneVector {
     t_end: f64,
     /// Sum of the logarithms of the rescaling factors' inverses (the vector's lengths).
     log_sum: f64,
-    estimate: f64,
-    /// Time of the latest estimate.
+    /// The vector's length at the latest step (after its rescaling, if any).
+    length: f64,
+    /// Time of the latest step.
     t: f64,
     samples: SampledTrace,
     n_rescales: u64,
@@ -53,7 +54,7 @@ impl OneVector {
             t_from,
             t_end: t_from + span,
             log_sum: 0.0,
-            estimate: f64::NAN,
+            length: 1.0,
             t: t_from,
             samples: SampledTrace::new(1, t_from, span, settings.trace_samples),
             n_rescales: 0,
@@ -68,35 +69,50 @@ impl OneVector {
         let _ = orthonormalise(out, self.n, &mut [0.0]);
     }
 
-    /// Takes the vector `q` at the end of a step at `t`: updates the running estimate and
-    /// returns the factor to scale the vector by when it has grown or shrunk past the growth
-    /// limit (its length is then added to the sum). `None` in the factor's place when no
-    /// rescaling is due; `Err(())` when the vector is not finite or has vanished.
+    /// Takes the vector `q` at the end of a step at `t` (sampling the running estimate when a
+    /// sample is due) and returns the factor to scale the vector by when it has grown or
+    /// shrunk past the growth limit (its length is then added to the sum). `None` in the
+    /// factor's place when no rescaling is due; `Err(())` when the vector is not finite or has
+    /// vanished.
     pub(crate) fn observe(&mut self, t: f64, q: &[f64]) -> Result<Option<f64>, ()> {
         let length = q.iter().map(|v| v * v).sum::<f64>().sqrt();
         if !(length.is_finite() && length > 0.0) {
             return Err(());
         }
         self.t = t;
-        self.estimate = (self.log_sum + length.ln()) / (t - self.t_from);
+        self.length = length;
+        // the logarithm only where the estimate is read: at samples and rescalings
         if self.samples.is_due(t, self.t_end) {
-            self.samples.push(t, &[self.estimate]);
+            let estimate = self.estimate();
+            self.samples.push(t, &[estimate]);
         }
         let stretched = length > self.growth_limit || length * self.growth_limit < 1.0;
         if !stretched {
             return Ok(None);
         }
         self.log_sum += length.ln();
+        self.length = 1.0;
         self.n_rescales += 1;
         Ok(Some(1.0 / length))
     }
 
+    /// The running estimate at the latest step: the logarithm of the vector's growth since
+    /// the start over the time since the start (not a number before any step).
+    fn estimate(&self) -> f64 {
+        (self.log_sum + self.length.ln()) / (self.t - self.t_from)
+    }
+
     /// The estimate at the latest step, with its spread.
     pub(crate) fn result(&self) -> LargestExponent {
+        let estimate = if self.t > self.t_from {
+            self.estimate()
+        } else {
+            f64::NAN
+        };
         let mut samples = self.samples.clone();
-        samples.close(self.t, &[self.estimate]);
+        samples.close(self.t, &[estimate]);
         LargestExponent {
-            value: self.estimate,
+            value: estimate,
             spread: samples.spread(self.tail_fraction)[0],
             time: self.t - self.t_from,
             n_rescales: self.n_rescales,
