@@ -1,9 +1,12 @@
 //! The largest Lyapunov exponent a regime-map cell estimates in the same pass as its recorded
 //! span (a run that carries one tangent vector) against the exponent run over the same
 //! window, the published Lorenz value (REFERENCES case 9), the zero exponent of a limit cycle
-//! and the exact exponent of a resting point (REFERENCES cases 12 and 20).
+//! and the exact exponent of a resting point (REFERENCES cases 12 and 20); a model with
+//! switches keeps the exponent run, and an interrupt stops the span at the next step.
 
 mod common;
+
+use std::ops::ControlFlow;
 
 use common::*;
 use lamina_core::Interrupt;
@@ -11,7 +14,7 @@ use lamina_core::integrate::Method;
 use lamina_core::lyapunov::{ExponentSettings, LargestExponent, spectrum};
 use lamina_core::model::Model;
 use lamina_core::regime_map::{MapAxisSpec, MapCell, MapProblem, Regime, RegimeMapSpec, run_cell};
-use lamina_core::run::{Collect, Cut, Direction, Run, RunSpec, StopReason, Strobe};
+use lamina_core::run::{Collect, Cut, CutPoint, Direction, Run, RunSpec, Sink, StopReason, Strobe};
 use lamina_core::sweep::SweepSource;
 
 fn no_strobe(_: &Model) -> Option<Strobe> {
@@ -211,4 +214,56 @@ fn a_vector_rescaled_thousands_of_times_stays_finite_and_on_the_value() {
     assert_agree(&one, other, "growth limit 1.5");
     // J. C. Sprott, Chaos and Time-Series Analysis (2003) (REFERENCES case 9): 0.906 +- 0.02
     assert!((one.value - 0.906).abs() <= 0.02, "{one:?}");
+}
+
+#[test]
+fn a_model_with_switches_keeps_the_exponent_run_over_one_more_span() {
+    // the Brusselator with a switch that never changes branch on its cycle (x stays far
+    // below 100): the same flow, but a model whose tangent vector would need saltation
+    // matrices, so its cell takes its exponent from the exponent run
+    let m = model(
+        &[
+            ("x", 1.3, "a - (b + 1)*x + x^2*y - max(x - 100, 0)"),
+            ("y", 2.0, "b*x - x^2*y"),
+        ],
+        &[("a", 1.0), ("b", 3.0)],
+    );
+    let cut = level(&m, "x - a", Direction::Rising);
+    let run = spec(Method::Dp853, 1e-9, 100.0, 400.0);
+    let mut pass = Run::new(m.clone(), run, Some(cut.clone()), None, false);
+    assert!(!pass.carry_tangent(&cell_settings()));
+    let c = cell(&m, &cut, (1.0, 3.0), 100.0, 400.0, 1e-9);
+    // REFERENCES case 23 [analytic]: above the Hopf curve, one return per turn to x = A
+    assert_eq!(c.regime, Regime::Periodic { returns: 1 }, "{c:?}");
+    // [analytic] 0 for a limit cycle of an autonomous model
+    assert!(c.lyapunov.is_some_and(|l| l.abs() < 0.01), "{c:?}");
+}
+
+/// Raises the interrupt at the first cut point.
+struct RaiseAtFirstPoint<'a>(&'a Interrupt);
+
+impl Sink for RaiseAtFirstPoint<'_> {
+    fn cut_point(&mut self, _point: &CutPoint) -> ControlFlow<()> {
+        self.0.raise();
+        ControlFlow::Continue(())
+    }
+}
+
+#[test]
+fn an_interrupt_raised_in_the_span_stops_the_run_at_the_next_step() {
+    let (mut m, cut) = brusselator();
+    m.set_parameter(1, 3.0);
+    let run = spec(Method::Dp853, 1e-9, 10.0, 400.0);
+    let mut pass = Run::new(m, run, Some(cut), None, false);
+    assert!(pass.carry_tangent(&cell_settings()));
+    let interrupt = Interrupt::new();
+    let outcome = pass.execute(&mut RaiseAtFirstPoint(&interrupt), &interrupt);
+    let StopReason::Cancelled { t } = outcome.reason else {
+        panic!("{outcome:?}")
+    };
+    assert_eq!(outcome.n_cut_points, 1);
+    assert!(t > 10.0 && t < 20.0, "{outcome:?}");
+    // the estimate up to where it stopped is kept
+    let partial = pass.largest_exponent().expect("an estimate");
+    assert_eq!(partial.time, t - 10.0);
 }
