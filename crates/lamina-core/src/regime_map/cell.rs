@@ -167,7 +167,7 @@ impl Sink for CellSink {
 /// the eigenvalues of the Jacobian at the resting point that Newton's method finds from the
 /// run's end (when it lies within that tolerance; the span's estimate otherwise). When the
 /// settle time already ends so close to a stable resting point that the linearised flow
-/// cannot move the state by that tolerance over any time ([`rests_for_good`]), the span is
+/// cannot move the state by that tolerance over any time (a bound from the Lyapunov equation), the span is
 /// not run at all: the cell rests, with the exact exponent, no points and its end where the
 /// settle time ended.
 ///
