@@ -66,6 +66,7 @@ mod dop853_tableau;
 mod dp5;
 mod integrator;
 mod linear;
+mod rescale;
 mod rodas;
 mod rodas_matrix;
 mod rodas_tableau;

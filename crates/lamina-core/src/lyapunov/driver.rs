@@ -7,7 +7,8 @@ use std::ops::ControlFlow;
 use super::chatter::ChatterWatch;
 use super::qr::{longest_column, orthonormalise};
 use super::result::{ExponentSink, Spectrum};
-use super::summary::{Trace, Verdict, classify, kaplan_yorke, settled_spectrum, unless_moving};
+use super::sampling::SampledTrace;
+use super::summary::{Verdict, classify, kaplan_yorke, settled_spectrum, unless_moving};
 use super::tangent::{Tangent, tilted_axes};
 use super::{ExponentError, ExponentSettings};
 use crate::integrate::{Integrator, Interrupt, Method, Rates, Stats, StepControl, TangentLayout};
@@ -136,9 +137,7 @@ struct Work {
     log_sums: Vec<f64>,
     /// Running estimates at the latest good step.
     estimates: Vec<f64>,
-    trace: Trace,
-    sample_every: f64,
-    next_sample: f64,
+    samples: SampledTrace,
     stats: Stats,
     n_steps: u64,
     n_qr: u64,
@@ -158,7 +157,6 @@ impl Work {
     fn new(model: Model, m: usize, run: &RunSpec, settings: &ExponentSettings) -> Self {
         let n = model.dim();
         let x = model.start().to_vec();
-        let samples = settings.trace_samples.max(1) as f64;
         let chatter = ChatterWatch::new(&model);
         Self {
             chatter,
@@ -171,9 +169,7 @@ impl Work {
             t: run.t_start,
             log_sums: vec![0.0; m],
             estimates: vec![f64::NAN; m],
-            trace: Trace::new(m),
-            sample_every: run.span / samples,
-            next_sample: run.t_record() + run.span / samples,
+            samples: SampledTrace::new(m, run.t_record(), run.span, settings.trace_samples),
             stats: Stats::default(),
             n_steps: 0,
             n_qr: 0,
@@ -306,7 +302,7 @@ impl Work {
             {
                 *estimate = (sum + r.ln()) / elapsed;
             }
-            if (t1 >= self.next_sample || t1 >= t_end) && self.sample(sink, t1).is_break() {
+            if self.samples.is_due(t1, t_end) && self.sample(sink, t1).is_break() {
                 break StopReason::SinkStopped { t: t1 };
             }
             let stretched = longest > self.growth_limit
@@ -333,10 +329,7 @@ impl Work {
 
     /// Records a trace sample at `t` and passes it to the sink.
     fn sample(&mut self, sink: &mut dyn ExponentSink, t: f64) -> ControlFlow<()> {
-        self.trace.push(t, &self.estimates);
-        while self.next_sample <= t {
-            self.next_sample += self.sample_every;
-        }
+        self.samples.push(t, &self.estimates);
         sink.estimate(t, &self.estimates)
     }
 
@@ -363,10 +356,8 @@ impl Work {
     fn finish(mut self, reason: StopReason, settings: &ExponentSettings) -> Spectrum {
         let t_record = self.run.t_record();
         let averaged = self.t > t_record;
-        if averaged && self.trace.t.last().is_none_or(|&t| t < self.t) {
-            self.trace.push(self.t, &self.estimates);
-        }
-        let spread = self.trace.spread(t_record, settings.tail_fraction);
+        self.samples.close(self.t, &self.estimates);
+        let spread = self.samples.spread(settings.tail_fraction);
         let model = self.tangent.model_mut();
         let omitted = model.uses_time();
         let (n_saltations, n_not_transversal) = self
@@ -414,7 +405,7 @@ impl Work {
             n_not_transversal,
             kaplan_yorke,
             verdict,
-            trace: self.trace,
+            trace: self.samples.into_trace(),
             reason,
             stats: self.stats,
             n_reorthonormalisations: self.n_qr,

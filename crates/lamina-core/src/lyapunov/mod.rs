@@ -9,15 +9,20 @@
 
 mod chatter;
 mod driver;
+mod largest;
 mod qr;
 mod result;
+mod sampling;
 mod settings;
 mod summary;
 mod tangent;
 
 pub use driver::{spectrum, workspace_bytes};
+pub use largest::LargestExponent;
+pub(crate) use largest::OneVector;
 pub use result::{ExponentSink, Spectrum};
 pub use settings::{ExponentError, ExponentSettings};
 pub use summary::{
     Trace, Verdict, admits_chaos, classify, kaplan_yorke, settled_spectrum, zero_band,
 };
+pub(crate) use tangent::Tangent;

@@ -1,11 +1,12 @@
 //! One cell of a regime map: the model at the cell's two parameter values, run from a start
-//! over the settle time and the span, its points and motion recorded, its largest Lyapunov
-//! exponent estimated over one more span, and the whole classified.
+//! over the settle time and the span, its points, motion and largest Lyapunov exponent
+//! recorded in the same pass over the span, and the whole classified.
 
 use std::ops::ControlFlow;
 
 use super::classify::{Evidence, classify};
 use super::regime::{Failure, Regime};
+use super::resting::{resting_exponent, rests_for_good};
 use super::spec::RegimeMapSpec;
 use crate::Interrupt;
 use crate::lyapunov::{ExponentSettings, spectrum};
@@ -58,8 +59,10 @@ pub struct MapCell {
     pub y: f64,
     /// What the cell settles into.
     pub regime: Regime,
-    /// The largest Lyapunov exponent's estimate over one span after the recorded one
-    /// (`None` for a cell that escaped or failed before it).
+    /// The largest Lyapunov exponent: for a cell at rest, the largest real part of the
+    /// eigenvalues of the Jacobian at its resting point; otherwise the estimate over the
+    /// recorded span (over one span after it for a model with switches: see [`run_cell`]).
+    /// `None` for a cell that escaped or failed before it was estimated.
     pub lyapunov: Option<f64>,
     /// Whether the points had settled (`false`: the regime is the one they approach).
     pub settled: bool,
@@ -149,10 +152,24 @@ impl Sink for CellSink {
 }
 
 /// Runs cell `index` of `problem`'s map from `start` (time and state): the model with the
-/// cell's parameter values settles for the map's settle time, its points and motion are
-/// recorded over the span, then its largest Lyapunov exponent is estimated over one more
-/// span from where the recorded run ended, and the cell is classified ([`classify`]) with
-/// the recurrence tolerances of the run's integrator.
+/// cell's parameter values settles for the map's settle time, then its points, its motion
+/// and its largest Lyapunov exponent are recorded over the span in one pass (the run carries
+/// one tangent vector: [`Run::carry_tangent`]), and the cell is classified ([`classify`])
+/// with the recurrence tolerances of the run's integrator.
+///
+/// A model with switches (rates with `sign`, `step`, `min`, `max`, ...) is run without the
+/// tangent vector, and its exponent is estimated over one more span from where the recorded
+/// run ended by [`spectrum`], which carries the vector through the switches with saltation
+/// matrices.
+///
+/// A cell of a model that does not use `t` whose motion over the span stays within the
+/// recurrence tolerance rests: its exponent is then the exact one, the largest real part of
+/// the eigenvalues of the Jacobian at the resting point that Newton's method finds from the
+/// run's end (when it lies within that tolerance; the span's estimate otherwise). When the
+/// settle time already ends so close to a stable resting point that the linearised flow
+/// cannot move the state by that tolerance over any time (a bound from the Lyapunov equation), the span is
+/// not run at all: the cell rests, with the exact exponent, no points and its end where the
+/// settle time ended.
 ///
 /// A run that escapes gives [`Regime::Escaped`], one stopped by other numerical trouble
 /// [`Regime::Failed`] with its reason; a raised `interrupt` gives a cancelled cell
@@ -177,14 +194,8 @@ pub fn run_cell(
             None => {
                 // the period has no valid value in this cell: say so instead of running
                 return MapCell {
-                    index,
-                    x,
-                    y,
                     regime: Regime::Failed(Failure::Stopped(StopReason::StrobePeriod)),
-                    lyapunov: None,
-                    settled: true,
-                    n_points: 0,
-                    end: (start.0, start.1.to_vec()),
+                    ..cell_at(index, (x, y), start.0, start.1.to_vec(), 0)
                 };
             }
         },
@@ -197,58 +208,51 @@ pub fn run_cell(
         ..problem.run.clone()
     };
     let mut sink = CellSink::new(map.source, model.start().len());
-    let outcome =
-        Run::new(model.clone(), run_spec, cut, strobe, false).execute(&mut sink, interrupt);
-    let mut cell = MapCell {
-        index,
-        x,
-        y,
-        regime: Regime::Resting,
-        lyapunov: None,
-        settled: true,
-        n_points: sink.n_points,
-        end: (outcome.t_reached, outcome.final_state),
-    };
-    let stopped = match outcome.reason {
-        StopReason::Finished | StopReason::SinkStopped { .. } | StopReason::PointLimit { .. } => {
-            None
+    let mut run = Run::new(model.clone(), run_spec, cut, strobe, false);
+    let recurrence = RecurrenceSettings::for_control(&problem.run.control);
+    let settle = run.execute_settle(&mut sink, interrupt);
+    if let Some(regime) = stopped(settle.reason) {
+        return MapCell {
+            regime,
+            ..cell_at(index, (x, y), settle.t_reached, settle.final_state, 0)
+        };
+    }
+    // at rest for good already: the span could not show any motion
+    if autonomous {
+        let tolerance = |size| recurrence.tolerance(size);
+        let escape = problem.run.escape;
+        if let Some(exact) = rests_for_good(&mut model, &settle.final_state, tolerance, escape) {
+            return MapCell {
+                lyapunov: Some(exact),
+                ..cell_at(index, (x, y), settle.t_reached, settle.final_state, 0)
+            };
         }
-        StopReason::Escaped { t, .. } => Some(Regime::Escaped { t }),
-        other => Some(Regime::Failed(Failure::Stopped(other))),
-    };
-    if let Some(regime) = stopped {
+    }
+    let one_pass = run.carry_tangent(&exponent_settings());
+    let outcome = run.execute(&mut sink, interrupt);
+    let n_points = sink.n_points;
+    let mut cell = cell_at(
+        index,
+        (x, y),
+        outcome.t_reached,
+        outcome.final_state,
+        n_points,
+    );
+    if let Some(regime) = stopped(outcome.reason) {
         cell.regime = regime;
         return cell;
     }
-    model.set_start(&cell.end.1);
-    let exponent_run = RunSpec {
-        t_start: cell.end.0,
-        settle: 0.0,
-        span: map.span,
-        ..problem.run.clone()
-    };
-    let settings = ExponentSettings {
-        count: Some(1),
-        trace_samples: EXPONENT_SAMPLES,
-        ..ExponentSettings::default()
-    };
-    let exponent = match spectrum(model, &exponent_run, &settings, &mut (), interrupt) {
-        Ok(s) if matches!(s.reason, StopReason::Cancelled { .. }) => {
-            cell.regime = Regime::Failed(Failure::Stopped(s.reason));
-            return cell;
+    let exponent = if one_pass {
+        run.largest_exponent()
+            .map(|e| with_band(&mut cell, e.value, e.spread))
+    } else {
+        match exponent_over_next_span(problem, &mut model, &mut cell, interrupt) {
+            Ok(exponent) => exponent,
+            Err(reason) => {
+                cell.regime = Regime::Failed(Failure::Stopped(reason));
+                return cell;
+            }
         }
-        Ok(s) if s.reason == StopReason::Finished => {
-            let largest = s.largest();
-            let spread = s.spread.first().copied().unwrap_or(f64::NAN);
-            let band = (ZERO_BAND_SPREADS * spread).max(ZERO_BAND_RELATIVE * largest.abs());
-            cell.lyapunov = largest.is_finite().then_some(largest);
-            Some((largest, band))
-        }
-        Ok(s) => {
-            cell.lyapunov = s.largest().is_finite().then(|| s.largest());
-            None
-        }
-        Err(_) => None,
     };
     let evidence = Evidence {
         points: &sink.points,
@@ -258,9 +262,93 @@ pub fn run_cell(
         autonomous,
         flow_dimension: sink.low.len() + usize::from(!autonomous),
     };
-    let recurrence = RecurrenceSettings::for_control(&problem.run.control);
     let (regime, settled) = classify(&evidence, &recurrence);
     cell.regime = regime;
     cell.settled = settled;
+    // resting by its motion (not only approaching rest): the exponent is known exactly
+    if regime == Regime::Resting && settled && autonomous {
+        let near = recurrence.tolerance(sink.size());
+        if let Some((_, _, exact)) =
+            resting_exponent(&mut model, &cell.end.1, near, problem.run.escape)
+        {
+            cell.lyapunov = Some(exact);
+        }
+    }
     cell
+}
+
+/// A resting, settled cell at `(x, y)` without an exponent, whose run ended at `t` in `state`
+/// with `n_points` recorded.
+fn cell_at(index: usize, (x, y): (f64, f64), t: f64, state: Vec<f64>, n_points: usize) -> MapCell {
+    MapCell {
+        index,
+        x,
+        y,
+        regime: Regime::Resting,
+        lyapunov: None,
+        settled: true,
+        n_points,
+        end: (t, state),
+    }
+}
+
+/// The regime of a cell whose run stopped for `reason` before its end: escaped, or failed
+/// with the reason; `None` for a run that went through.
+fn stopped(reason: StopReason) -> Option<Regime> {
+    match reason {
+        StopReason::Finished | StopReason::SinkStopped { .. } | StopReason::PointLimit { .. } => {
+            None
+        }
+        StopReason::Escaped { t, .. } => Some(Regime::Escaped { t }),
+        other => Some(Regime::Failed(Failure::Stopped(other))),
+    }
+}
+
+/// How the cell's largest exponent is estimated: one vector, the trace samples the spread is
+/// taken from, the other settings as the exponent report has them.
+fn exponent_settings() -> ExponentSettings {
+    ExponentSettings {
+        count: Some(1),
+        trace_samples: EXPONENT_SAMPLES,
+        ..ExponentSettings::default()
+    }
+}
+
+/// Records `largest` as the cell's exponent when finite, and returns it with the band around
+/// zero within which it counts as zero for the classification.
+fn with_band(cell: &mut MapCell, largest: f64, spread: f64) -> (f64, f64) {
+    cell.lyapunov = largest.is_finite().then_some(largest);
+    let band = (ZERO_BAND_SPREADS * spread).max(ZERO_BAND_RELATIVE * largest.abs());
+    (largest, band)
+}
+
+/// The two-pass estimate for a model with switches: the largest exponent by [`spectrum`] over
+/// one more span from where the recorded run ended (`model` is moved there). `None` when it
+/// could not be estimated; `Err` with the reason when the interrupt was raised.
+fn exponent_over_next_span(
+    problem: &MapProblem<'_>,
+    model: &mut Model,
+    cell: &mut MapCell,
+    interrupt: &Interrupt,
+) -> Result<Option<(f64, f64)>, StopReason> {
+    model.set_start(&cell.end.1);
+    let exponent_run = RunSpec {
+        t_start: cell.end.0,
+        settle: 0.0,
+        span: problem.map.span,
+        ..problem.run.clone()
+    };
+    let settings = exponent_settings();
+    match spectrum(model.clone(), &exponent_run, &settings, &mut (), interrupt) {
+        Ok(s) if matches!(s.reason, StopReason::Cancelled { .. }) => Err(s.reason),
+        Ok(s) if s.reason == StopReason::Finished => {
+            let spread = s.spread.first().copied().unwrap_or(f64::NAN);
+            Ok(Some(with_band(cell, s.largest(), spread)))
+        }
+        Ok(s) => {
+            cell.lyapunov = s.largest().is_finite().then(|| s.largest());
+            Ok(None)
+        }
+        Err(_) => Ok(None),
+    }
 }

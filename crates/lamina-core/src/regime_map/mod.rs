@@ -13,6 +13,7 @@ mod cell;
 mod classify;
 mod driver;
 mod regime;
+mod resting;
 mod spec;
 
 pub use cell::{MapCell, MapProblem, run_cell};

@@ -5,13 +5,37 @@
 use std::ops::ControlFlow;
 
 use super::graze::{self, Bracket, Turns};
+use super::tangent::CarriedTangent;
 use super::time_resolution::{
     TimeResolution, check_time_resolution, step_lost_to_time, time_spacing,
 };
 use super::{Cut, CutPoint, RunSpec, StoredRun, Strobe, StrobeSample};
-use crate::integrate::{Integrator, Interrupt, Method, MethodChange, Rates, Stats, StepError};
+use crate::integrate::{
+    DenseSegment, Integrator, Interrupt, Method, MethodChange, Rates, Stats, StepError,
+};
+use crate::lyapunov::{ExponentSettings, LargestExponent};
 use crate::model::Model;
 use crate::switching::{Chattering, Switching};
+
+/// Evaluates `$body` with `$rates` the system that run `$run`'s integrator steps: the model's
+/// held rates at its switches, the model with its tangent vector over the recorded window, or
+/// the model itself (a macro rather than a `dyn Rates`, so that each stays inlined in the
+/// stepper).
+macro_rules! with_system {
+    ($run:ident, $rates:ident => $body:expr) => {
+        match (&mut $run.switching, &mut $run.tangent) {
+            (Some($rates), _) => $body,
+            (None, Some(tangent)) if tangent.active => {
+                let $rates = &mut tangent.system;
+                $body
+            }
+            (None, _) => {
+                let $rates = &mut $run.model;
+                $body
+            }
+        }
+    };
+}
 
 /// Receives what a run finds. Returning `ControlFlow::Break` stops the run at once.
 pub trait Sink {
@@ -222,6 +246,11 @@ pub struct Run {
     end_state: Vec<f64>,
     /// The rates at the end of the step just taken (for the cut's slope there).
     end_rates: Vec<f64>,
+    /// The tangent vector carried over the recorded window ([`Run::carry_tangent`]).
+    tangent: Option<CarriedTangent>,
+    /// The model's part of the last step's dense output when the integrator carries the
+    /// tangent vector too ([`model_part`]).
+    model_segment: DenseSegment,
 }
 
 /// How often progress is reported, in accepted steps.
@@ -266,7 +295,50 @@ impl Run {
             },
             end_state: vec![0.0; dim],
             end_rates: vec![0.0; dim],
+            tangent: None,
+            model_segment: DenseSegment {
+                dim,
+                ..DenseSegment::default()
+            },
         }
+    }
+
+    /// Carries one tangent vector (`q' = J q`) along with the model over the recorded window,
+    /// so that the run estimates the largest Lyapunov exponent in the same pass as its cut
+    /// points and strobe samples ([`Run::largest_exponent`]), with the growth limit, trace
+    /// samples and tail fraction of `settings` as [`crate::lyapunov::spectrum`] uses them for
+    /// one vector. The settle time is stepped without it. Cut points, strobe samples, the
+    /// escape check and the steps reported to the sink see the model's states only; the
+    /// integrator's error control covers the tangent vector too, so the steps are not those of
+    /// a run without it. The vector is rescaled to unit length between steps whenever it has
+    /// grown or shrunk past the growth limit, without restarting the integrator.
+    ///
+    /// Returns false, and the run goes on without it, for a model with switches (whose
+    /// tangent vector would need saltation matrices at every switch: use
+    /// [`crate::lyapunov::spectrum`]), for a run that stores its steps, that carries one
+    /// already or that has passed the start of the recorded window.
+    pub fn carry_tangent(&mut self, settings: &ExponentSettings) -> bool {
+        let switches = !self.model.program().switches().is_empty();
+        let passed = self.t() > self.spec.t_record();
+        if switches || self.store || self.tangent.is_some() || passed {
+            return false;
+        }
+        let t_record = self.spec.t_record();
+        let span = self.t_end - t_record;
+        self.tangent = Some(CarriedTangent::new(&self.model, t_record, span, settings));
+        true
+    }
+
+    /// The largest Lyapunov exponent estimated from the carried tangent vector over the
+    /// recorded window up to where the run stands (`None` without [`Run::carry_tangent`] or
+    /// before the recorded window).
+    pub fn largest_exponent(&self) -> Option<LargestExponent> {
+        self.tangent.as_ref().and_then(CarriedTangent::result)
+    }
+
+    /// The model's states (the integrator's first values).
+    fn state(&self) -> &[f64] {
+        &self.integrator.x()[..self.end_state.len()]
     }
 
     /// The model being integrated.
@@ -326,12 +398,12 @@ impl Run {
         self.cut = cut;
         self.last_crossing = None;
         self.slope_prev = None;
+        let (t, x) = if self.started {
+            (self.integrator.t(), self.state().to_vec())
+        } else {
+            (self.spec.t_start, self.model.start().to_vec())
+        };
         if let Some(cut) = &mut self.cut {
-            let (t, x) = if self.started {
-                (self.integrator.t(), self.integrator.x().to_vec())
-            } else {
-                (self.spec.t_start, self.model.start().to_vec())
-            };
             self.g_prev = cut.value(t, &x, self.model.parameters());
         }
     }
@@ -356,6 +428,17 @@ impl Run {
         }
     }
 
+    /// Integrates the settle time only, from where the run stands to the start of the
+    /// recorded window (reported as finished there, progress 1 included); [`Run::execute`]
+    /// goes on over the span.
+    pub fn execute_settle(&mut self, sink: &mut dyn Sink, interrupt: &Interrupt) -> RunOutcome {
+        let t_end = self.t_end;
+        self.t_end = self.spec.t_record().min(t_end);
+        let outcome = self.execute(sink, interrupt);
+        self.t_end = t_end;
+        outcome
+    }
+
     /// Integrates from where the run stands to the end of the window, reporting to `sink`.
     pub fn execute(&mut self, sink: &mut dyn Sink, interrupt: &Interrupt) -> RunOutcome {
         let reason = self.advance(sink, interrupt);
@@ -364,7 +447,7 @@ impl Run {
             stats: self.integrator.stats(),
             t_reached: self.t(),
             final_state: if self.started {
-                self.integrator.x().to_vec()
+                self.state().to_vec()
             } else {
                 self.model.start().to_vec()
             },
@@ -392,10 +475,7 @@ impl Run {
                 return reason;
             }
             self.switching = Switching::new(&self.model, t_start, &start);
-            match &mut self.switching {
-                Some(switching) => self.integrator.reset(switching, t_start, &start),
-                None => self.integrator.reset(&mut self.model, t_start, &start),
-            }
+            with_system!(self, rates => self.integrator.reset(rates, t_start, &start));
             if let Some(cut) = &mut self.cut {
                 self.g_prev = cut.value(t_start, &start, self.model.parameters());
             }
@@ -410,16 +490,14 @@ impl Run {
             if interrupt.is_raised() {
                 return StopReason::Cancelled { t };
             }
+            let t_limit = self.start_tangent_if_due(t);
             if let Err(err) = self.measure_start_slope() {
                 return stop_reason(&self.spec, err);
             }
             // the dense output costs DOP853 three more evaluations: build it only for a stored
             // step, a strobe sample inside the step, a cut crossing (found from the end state)
             // or a switch of the model's branches
-            let stepped = match &mut self.switching {
-                Some(switching) => self.integrator.step_lazy(switching, self.t_end),
-                None => self.integrator.step_lazy(&mut self.model, self.t_end),
-            };
+            let stepped = with_system!(self, rates => self.integrator.step_lazy(rates, t_limit));
             if let Err(err) = stepped {
                 return stop_reason(&self.spec, err);
             }
@@ -430,10 +508,8 @@ impl Run {
             // a stiff step that will be sampled must have an interpolant that resolves the
             // solution; a long one is taken again shorter until it does
             if self.integrator.active_method() == Method::Rodas4 && self.wants_dense() {
-                let refined = match &mut self.switching {
-                    Some(switching) => self.integrator.ensure_accurate_dense(switching),
-                    None => self.integrator.ensure_accurate_dense(&mut self.model),
-                };
+                let refined =
+                    with_system!(self, rates => self.integrator.ensure_accurate_dense(rates));
                 if let Err(err) = refined {
                     return stop_reason(&self.spec, err);
                 }
@@ -480,7 +556,8 @@ impl Run {
             }
         }
         if self.cut.is_some() {
-            self.end_state.copy_from_slice(self.integrator.x());
+            let n = self.end_state.len();
+            self.end_state.copy_from_slice(&self.integrator.x()[..n]);
             let Ok((g1, _, turns)) = self.screen_cut(t1) else {
                 return false;
             };
@@ -502,12 +579,10 @@ impl Run {
         if self.slope_prev.is_some() {
             return Ok(());
         }
-        let rates = match &mut self.switching {
-            Some(switching) => self.integrator.rates_here(switching)?,
-            None => self.integrator.rates_here(&mut self.model)?,
-        };
-        self.end_rates.copy_from_slice(rates);
-        let (t, x) = (self.integrator.t(), self.integrator.x());
+        let rates = with_system!(self, rates => self.integrator.rates_here(rates))?;
+        let n = self.end_rates.len();
+        self.end_rates.copy_from_slice(&rates[..n]);
+        let (t, x) = (self.integrator.t(), &self.integrator.x()[..n]);
         self.slope_prev = Some(cut.slope(t, x, &self.end_rates, self.model.parameters()));
         Ok(())
     }
@@ -522,11 +597,9 @@ impl Run {
         // after a step its last stage holds the rates at its end (first same as last)
         let rates = match self.integrator.end_rates() {
             Some(rates) => rates,
-            None => match &mut self.switching {
-                Some(switching) => self.integrator.rates_here(switching)?,
-                None => self.integrator.rates_here(&mut self.model)?,
-            },
+            None => with_system!(self, rates => self.integrator.rates_here(rates))?,
         };
+        let rates = &rates[..self.end_state.len()];
         let parameters = self.model.parameters();
         let g1 = cut.value(t1, &self.end_state, parameters);
         let d1 = cut.slope(t1, &self.end_state, rates, parameters);
@@ -543,9 +616,10 @@ impl Run {
         let t_start = self.spec.t_start;
         let total = (self.t_end - t_start).max(f64::MIN_POSITIVE);
         let t1 = self.integrator.t();
-        self.end_state.copy_from_slice(self.integrator.x());
+        let n = self.end_state.len();
+        self.end_state.copy_from_slice(&self.integrator.x()[..n]);
         if self.store && t1 > self.spec.t_record() {
-            if let Err(err) = dense(&mut self.integrator, &mut self.switching, &mut self.model) {
+            if let Err(err) = self.dense() {
                 return Some(stop_reason(&self.spec, err));
             }
             self.stored.push(self.integrator.segment(), &self.end_state);
@@ -558,6 +632,11 @@ impl Run {
         }
         if let Some(reason) = self.check_state(t1, &self.end_state) {
             return Some(reason);
+        }
+        if let Some(tangent) = self.tangent.as_mut().filter(|tangent| tangent.active)
+            && let Err(err) = tangent.after_step(&mut self.integrator, t1)
+        {
+            return Some(stop_reason(&self.spec, err));
         }
         if self
             .integrator
@@ -606,14 +685,13 @@ impl Run {
                     ga: g0,
                     gb: g1,
                 }; 3];
-                if let Err(err) = dense(&mut self.integrator, &mut self.switching, &mut self.model)
-                {
+                if let Err(err) = self.dense() {
                     return Some(stop_reason(&self.spec, err));
                 }
                 let Some(cut) = &mut self.cut else {
                     return None;
                 };
-                let segment = self.integrator.segment();
+                let segment = model_part(self.integrator.segment(), &self.model_segment);
                 let (t0, h, dim) = (segment.t0, segment.h, segment.dim);
                 let parameters = self.model.parameters();
                 let (start, terms) = segment.coeffs.split_at(dim);
@@ -645,7 +723,7 @@ impl Run {
                     if !cut.direction.crosses(bracket.ga, bracket.gb) {
                         continue;
                     }
-                    let segment = self.integrator.segment();
+                    let segment = model_part(self.integrator.segment(), &self.model_segment);
                     let (start, terms) = segment.coeffs.split_at(dim);
                     let parameters = self.model.parameters();
                     let t = if turns.is_empty() {
@@ -677,16 +755,17 @@ impl Run {
                 }
             }
         }
-        if let Some(strobe) = &self.strobe {
-            let last_step = t1 >= self.t_end;
-            let inside = |t: f64| t < t1 || (last_step && t <= self.t_end);
+        if let Some(strobe) = self.strobe {
+            let t_end = self.t_end;
+            let last_step = t1 >= t_end;
+            let inside = |t: f64| t < t1 || (last_step && t <= t_end);
             if !inside(strobe.time_of(self.next_strobe)) {
                 return None;
             }
-            if let Err(err) = dense(&mut self.integrator, &mut self.switching, &mut self.model) {
+            if let Err(err) = self.dense() {
                 return Some(stop_reason(&self.spec, err));
             }
-            let segment = self.integrator.segment();
+            let segment = model_part(self.integrator.segment(), &self.model_segment);
             loop {
                 let t = strobe.time_of(self.next_strobe);
                 if !inside(t) {
@@ -750,16 +829,49 @@ impl Run {
     }
 }
 
-/// Builds the dense output of the last step with the rates it was taken with: the model's,
-/// or its held rates when it switches.
-fn dense(
-    integrator: &mut Integrator,
-    switching: &mut Option<Switching>,
-    model: &mut Model,
-) -> Result<(), StepError> {
-    match switching {
-        Some(switching) => integrator.ensure_dense(switching),
-        None => integrator.ensure_dense(model),
+impl Run {
+    /// Builds the dense output of the last step with the rates it was taken with (the
+    /// model's, its held rates when it switches, or the variational system's), and copies
+    /// the model's part of it when the integrator carries the tangent vector.
+    fn dense(&mut self) -> Result<(), StepError> {
+        with_system!(self, rates => self.integrator.ensure_dense(rates))?;
+        let segment = self.integrator.segment();
+        let copy = &mut self.model_segment;
+        if segment.dim != copy.dim {
+            copy.t0 = segment.t0;
+            copy.h = segment.h;
+            copy.coeffs.clear();
+            for term in segment.coeffs.chunks_exact(segment.dim) {
+                copy.coeffs.extend_from_slice(&term[..copy.dim]);
+            }
+        }
+        Ok(())
+    }
+
+    /// Starts the carried tangent vector once the run reaches the recorded window at `t`;
+    /// the time the next step may not pass: the end of the window, or the start of the
+    /// recorded one while the tangent vector waits for it.
+    fn start_tangent_if_due(&mut self, t: f64) -> f64 {
+        let t_record = self.spec.t_record();
+        let Some(tangent) = self.tangent.as_mut().filter(|tangent| !tangent.active) else {
+            return self.t_end;
+        };
+        if t < t_record {
+            return t_record.min(self.t_end);
+        }
+        let x = self.integrator.x().to_vec();
+        tangent.activate(&mut self.integrator, t, &x);
+        self.t_end
+    }
+}
+
+/// The model's part of the last step's dense output: `segment` itself, or `copy` (made by
+/// `Run::dense`) when the segment carries the tangent vector too.
+fn model_part<'a>(segment: &'a DenseSegment, copy: &'a DenseSegment) -> &'a DenseSegment {
+    if segment.dim == copy.dim {
+        segment
+    } else {
+        copy
     }
 }
 

@@ -9,6 +9,7 @@ pub(crate) mod root;
 mod spec;
 mod stored;
 mod strobe;
+mod tangent;
 mod time_resolution;
 
 pub use cut::{Cut, CutPoint, Direction, Surface};
