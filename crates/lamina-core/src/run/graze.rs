@@ -66,8 +66,11 @@ pub(crate) fn screen(g0: f64, g1: f64, m0: f64, m1: f64, reach: f64) -> Turns {
     // most steps: p' has one sign at both ends and at its vertex, so no root inside
     // (decided without a square root)
     if m0 * m1 > 0.0 {
-        let vertex = -qb / (2.0 * qa);
-        if !(vertex > 0.0 && vertex < 1.0) || (qc + vertex * (qb + vertex * qa)) * m0 > 0.0 {
+        // the vertex -qb / (2 qa) lies inside (0, 1) when qb and 2 qa + qb have opposite
+        // signs to qa and its value qc - qb^2 / (4 qa) has the sign of m0 when
+        // (4 qa qc - qb^2) qa m0 > 0 (without the division, which every step would wait on)
+        let inside = qa * qb < 0.0 && qa * (2.0 * qa + qb) > 0.0;
+        if !inside || (4.0 * qa * qc - qb * qb) * qa * m0 > 0.0 {
             return turns;
         }
     }
