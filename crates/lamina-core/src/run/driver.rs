@@ -678,6 +678,9 @@ impl Run {
             let mut n_brackets = usize::from(cut.direction.crosses(g0, g1));
             if n_brackets == 0 && turns.is_empty() {
                 // most steps
+            } else if t1 < self.spec.t_record() {
+                // a step of the settle time: its crossings are not kept, so they are neither
+                // located nor given a dense output
             } else {
                 let mut brackets = [Bracket {
                     a: 0.0,
