@@ -555,7 +555,7 @@ impl Run {
                 return true;
             }
         }
-        if self.cut.is_some() {
+        if self.cut.is_some() && t1 >= self.spec.t_record() {
             let n = self.end_state.len();
             self.end_state.copy_from_slice(&self.integrator.x()[..n]);
             let Ok((g1, _, turns)) = self.screen_cut(t1) else {
@@ -603,7 +603,8 @@ impl Run {
         let parameters = self.model.parameters();
         let g1 = cut.value(t1, &self.end_state, parameters);
         let d1 = cut.slope(t1, &self.end_state, rates, parameters);
-        let Some(d0) = self.slope_prev else {
+        // a step of the settle time hides no crossing that is kept
+        let Some(d0) = self.slope_prev.filter(|_| t1 >= self.spec.t_record()) else {
             return Ok((g1, d1, Turns::default()));
         };
         let h = self.integrator.segment().h;
