@@ -1,6 +1,7 @@
 //! The variational equations: the model's state together with tangent vectors that move with
 //! the linearised flow, `x' = f(t, x)`, `q_k' = J(t, x) q_k`, as one system of `Rates`.
 
+use crate::expr::DirectionalKernel;
 use crate::integrate::{Rates, TangentLayout};
 use crate::model::Model;
 
@@ -11,8 +12,12 @@ pub(crate) struct Tangent {
     model: Model,
     n: usize,
     m: usize,
-    /// Row-major Jacobian at the last evaluation.
+    /// Row-major Jacobian at the last evaluation (where there is no directional kernel).
     jacobian: Vec<f64>,
+    /// The model's rates with their derivatives along the `m` vectors in one machine-code
+    /// call, looked up on the first evaluation (the code is shared by every clone of the
+    /// model); `Some(None)` where the host has no machine code.
+    directional: Option<Option<DirectionalKernel>>,
 }
 
 impl Tangent {
@@ -24,6 +29,7 @@ impl Tangent {
             n,
             m,
             jacobian: vec![0.0; n * n],
+            directional: None,
         }
     }
 
@@ -44,16 +50,16 @@ impl Rates for Tangent {
     }
 
     fn rates(&mut self, t: f64, y: &[f64], dy: &mut [f64]) {
-        let n = self.n;
-        let (x, vectors) = y.split_at(n);
-        let (dx, dvectors) = dy.split_at_mut(n);
-        self.model.rates(t, x, dx);
-        self.model.jacobian(t, x, &mut self.jacobian);
-        for (q, dq) in vectors.chunks_exact(n).zip(dvectors.chunks_exact_mut(n)) {
-            for (row, out) in self.jacobian.chunks_exact(n).zip(dq.iter_mut()) {
-                *out = row.iter().zip(q).map(|(a, b)| a * b).sum();
-            }
+        let model = &self.model;
+        let kernel = self
+            .directional
+            .get_or_insert_with(|| model.program().directional_kernel(self.m));
+        if let Some(kernel) = kernel
+            && kernel.eval(t, y, model.parameters(), dy)
+        {
+            return;
         }
+        self.rates_by_matrix(t, y, dy);
     }
 
     /// The tangent vectors one after another, so the stiff method factorises the model's
@@ -64,6 +70,25 @@ impl Rates for Tangent {
 
     fn model_jacobian(&mut self, t: f64, x: &[f64], jacobian: &mut [f64]) {
         self.model.jacobian(t, x, jacobian);
+    }
+}
+
+impl Tangent {
+    /// The rates without the directional kernel: the model's rates, its Jacobian, and the
+    /// Jacobian times each vector.
+    #[cold]
+    #[inline(never)]
+    fn rates_by_matrix(&mut self, t: f64, y: &[f64], dy: &mut [f64]) {
+        let n = self.n;
+        let (x, vectors) = y.split_at(n);
+        let (dx, dvectors) = dy.split_at_mut(n);
+        self.model.rates(t, x, dx);
+        self.model.jacobian(t, x, &mut self.jacobian);
+        for (q, dq) in vectors.chunks_exact(n).zip(dvectors.chunks_exact_mut(n)) {
+            for (row, out) in self.jacobian.chunks_exact(n).zip(dq.iter_mut()) {
+                *out = row.iter().zip(q).map(|(a, b)| a * b).sum();
+            }
+        }
     }
 }
 
