@@ -30,6 +30,11 @@ impl DirectionalKernel {
         self.m
     }
 
+    /// Whether both kernels run the same machine code (made once, then shared).
+    pub fn shares_code_with(&self, other: &Self) -> bool {
+        self.code.same_code_as(&other.code)
+    }
+
     /// Evaluates at time `t` with parameters `p`, where `y` is the state `x` (n values)
     /// followed by the vectors `q_0 .. q_{m-1}` (n values each): writes the outputs followed by
     /// `J q_0 .. J q_{m-1}` (one value per output each) into `out`. The outputs are those of

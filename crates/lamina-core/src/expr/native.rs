@@ -41,8 +41,7 @@ pub(super) struct NativeCode {
     n_states: usize,
     n_parameters: usize,
     n_outputs: usize,
-    /// Keeps the code mapped while any copy of `entry` exists (held, never read).
-    #[allow(dead_code)]
+    /// Keeps the code mapped while any copy of `entry` exists (and tells copies apart).
     owner: Arc<Owner>,
 }
 
@@ -213,6 +212,11 @@ impl NativeCode {
             n_outputs,
             owner: Arc::new(Owner(Mutex::new(Some(module)))),
         })
+    }
+
+    /// Whether both copies share one piece of machine code.
+    pub(super) fn same_code_as(&self, other: &Self) -> bool {
+        Arc::ptr_eq(&self.owner, &other.owner)
     }
 
     /// Evaluates every output into `out`. Returns `false` (and evaluates nothing) when a slice

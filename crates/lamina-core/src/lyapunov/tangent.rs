@@ -111,3 +111,52 @@ pub(crate) fn tilted_axes(n: usize, m: usize, out: &mut [f64]) {
         }
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::model::{ModelSpec, ParameterSpec, StateSpec};
+
+    #[test]
+    fn one_call_and_the_matrix_path_give_the_same_rates() {
+        let state = |name: &str, rate: &str| StateSpec {
+            name: name.into(),
+            start: 1.0,
+            rate: rate.into(),
+        };
+        let model = Model::compile(&ModelSpec {
+            states: vec![
+                state("x", "a - (b + 1)*x + x^2*y"),
+                state("y", "b*x - x^2*y"),
+            ],
+            parameters: vec![
+                ParameterSpec {
+                    name: "a".into(),
+                    value: 1.0,
+                },
+                ParameterSpec {
+                    name: "b".into(),
+                    value: 3.0,
+                },
+            ],
+        })
+        .expect("compiles");
+        for m in 1..=2 {
+            let mut tangent = Tangent::new(model.clone(), m);
+            let mut y = vec![0.7, 2.9];
+            let mut axes = vec![0.0; 2 * m];
+            tilted_axes(2, m, &mut axes);
+            y.extend_from_slice(&axes);
+            let (mut one_call, mut by_matrix) = (vec![0.0; y.len()], vec![0.0; y.len()]);
+            tangent.rates(0.0, &y, &mut one_call);
+            assert!(matches!(tangent.directional, Some(Some(_))), "machine code");
+            tangent.rates_by_matrix(0.0, &y, &mut by_matrix);
+            // the rates bit for bit, the derivatives to rounding
+            assert_eq!(one_call[..2], by_matrix[..2]);
+            for (a, b) in one_call[2..].iter().zip(&by_matrix[2..]) {
+                // [common practice] forward mode and the matrix product sum in another order
+                assert!((a - b).abs() <= 1e-14 * (1.0 + b.abs()), "{a} vs {b}");
+            }
+        }
+    }
+}
