@@ -94,7 +94,8 @@ proptest! {
         if jacobian.iter().all(|v| v.is_finite()) {
             let expected = jacobian_times(&jacobian, 2, &input, m);
             let sizes = sizes(&input, 2, m, 3);
-            for (i, ((&d, &e), &size)) in native[3..].iter().zip(&expected).zip(&sizes).enumerate() {
+            let derivatives = native[3..].iter().zip(&expected).zip(&sizes);
+            for (i, ((&d, &e), &size)) in derivatives.enumerate() {
                 prop_assert!(d.is_nan() || agrees(d, e, size), "derivative {i}: {d} vs {e:?}");
             }
         }
