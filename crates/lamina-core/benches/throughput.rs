@@ -349,6 +349,64 @@ fn report_jacobian() {
     );
 }
 
+/// Prints the time of the chain's rates with the Jacobian times `m` vectors: the directional
+/// kernel's one call, against the rates, the Jacobian and the matrix product (the path without
+/// it), for 1, 3, 4 and 20 vectors (where one call stops paying); and the time to make the
+/// kernel.
+fn report_directional() {
+    let mut model = typed_chain();
+    let parameters = model.parameters().to_vec();
+    let n = 20;
+    for m in [1, 3, 4, 20] {
+        let started = ProcessTime::now();
+        let kernel = model
+            .program()
+            .clone()
+            .directional_kernel(m)
+            .expect("machine code");
+        let making = started.elapsed().as_secs_f64();
+        let mut y: Vec<f64> = (0..n).map(|i| 0.1 * i as f64 - 0.7).collect();
+        y.extend((0..n * m).map(|k| (1.0 + 0.3 * k as f64).sin()));
+        let mut out = vec![0.0; n * (m + 1)];
+        let mut jacobian = vec![0.0; n * n];
+        const N: usize = 20_000;
+        let mut time = |one_call: bool| {
+            let started = ProcessTime::now();
+            for k in 0..N {
+                let t = k as f64 * 1e-3;
+                if one_call {
+                    kernel.eval(t, &y, &parameters, &mut out);
+                } else {
+                    let (x, vectors) = y.split_at(n);
+                    let (dx, dvectors) = out.split_at_mut(n);
+                    model.rates(t, x, dx);
+                    model.jacobian(t, x, &mut jacobian);
+                    for (q, dq) in vectors.chunks_exact(n).zip(dvectors.chunks_exact_mut(n)) {
+                        for (row, o) in jacobian.chunks_exact(n).zip(dq.iter_mut()) {
+                            *o = row.iter().zip(q).map(|(a, b)| a * b).sum();
+                        }
+                    }
+                }
+                black_box(&out);
+            }
+            started.elapsed().as_secs_f64() / N as f64
+        };
+        let mut one_call = Vec::new();
+        let mut by_matrix = Vec::new();
+        for _ in 0..ROUNDS {
+            one_call.push(time(true));
+            by_matrix.push(time(false));
+        }
+        println!(
+            "  chain rates and Jacobian times {m} vector(s): one call {:.2} us, rates + \
+             Jacobian + product {:.2} us; making the one call {:.1} ms",
+            median(one_call) * 1e6,
+            median(by_matrix) * 1e6,
+            making * 1e3
+        );
+    }
+}
+
 fn median(mut v: Vec<f64>) -> f64 {
     v.sort_by(f64::total_cmp);
     v[v.len() / 2]
@@ -381,6 +439,7 @@ fn main() {
     println!("  chain typed/native: {:.3}", chain.typed / chain.native);
     report_code_generation();
     report_jacobian();
+    report_directional();
 
     // A stored run of 10^6 steps, re-sliced by a moved plane.
     let mut model = typed_lorenz();

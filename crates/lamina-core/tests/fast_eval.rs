@@ -2,93 +2,13 @@
 //! machine code and closures) against the straight-line reference evaluator on random
 //! expressions: the results must be the same numbers, bit for bit.
 
-use lamina_core::expr::{N_REGISTERS, Names, Program};
+use lamina_core::expr::{N_REGISTERS, Program};
 mod common;
+
+use common::{any_expression, names};
 
 use lamina_core::model::Model;
 use proptest::prelude::*;
-
-fn names(states: &[&str], parameters: &[&str]) -> Names {
-    Names {
-        states: states.iter().map(|s| s.to_string()).collect(),
-        parameters: parameters.iter().map(|s| s.to_string()).collect(),
-    }
-}
-
-/// Random expressions over x, y (states), a, b (parameters) and t, using every operator and
-/// function (values may leave a function's domain: NaN must then agree too).
-fn any_expression() -> impl Strategy<Value = String> {
-    let leaf = prop_oneof![
-        Just("x".to_string()),
-        Just("y".to_string()),
-        Just("a".to_string()),
-        Just("b".to_string()),
-        Just("t".to_string()),
-        Just("pi".to_string()),
-        (-3.0f64..3.0).prop_map(|c| format!("{c:.3}")),
-        (0u32..4).prop_map(|c| c.to_string()),
-    ];
-    let f1 = prop_oneof![
-        Just("sin"),
-        Just("cos"),
-        Just("tan"),
-        Just("asin"),
-        Just("acos"),
-        Just("atan"),
-        Just("sinh"),
-        Just("cosh"),
-        Just("tanh"),
-        Just("exp"),
-        Just("ln"),
-        Just("log10"),
-        Just("sqrt"),
-        Just("abs"),
-        Just("sign"),
-        Just("floor"),
-        Just("ceil"),
-        Just("step"),
-    ];
-    let f2 = prop_oneof![Just("atan2"), Just("min"), Just("max")];
-    let quad = (
-        prop_oneof![Just("+"), Just("-")],
-        prop_oneof![Just("+"), Just("-")],
-        0usize..4,
-    );
-    let op = prop_oneof![
-        Just("+"),
-        Just("-"),
-        Just("*"),
-        Just("/"),
-        Just("%"),
-        Just("^")
-    ];
-    leaf.prop_recursive(5, 40, 2, move |inner| {
-        let four = (inner.clone(), inner.clone(), inner.clone(), inner.clone());
-        prop_oneof![
-            // the shapes fused on four leaves: a*b ± c*d, (a ± b)*c ± d, d - (a ± b)*c
-            2 => (four, quad.clone()).prop_map(|((a, b, c, d), (o1, o2, shape))| match shape {
-                0 => format!("({a} * {b} {o1} {c} * {d})"),
-                1 => format!("(({a} {o1} {b}) * {c} {o2} {d})"),
-                2 => format!("({d} {o2} ({a} {o1} {b}) * {c})"),
-                _ => format!("({d} {o2} {c} * ({a} {o1} {b}))"),
-            }),
-            3 => (inner.clone(), op.clone(), inner.clone())
-                .prop_map(|(p, o, q)| format!("({p} {o} {q})")),
-            2 => (inner.clone(), inner.clone(), inner.clone())
-                .prop_map(|(p, q, r)| format!("({p} * {q} + {r})")),
-            2 => (inner.clone(), inner.clone(), inner.clone())
-                .prop_map(|(p, q, r)| format!("({r} - {p} * {q})")),
-            2 => (inner.clone(), inner.clone(), inner.clone())
-                .prop_map(|(p, q, r)| format!("(({p} - {q}) * {r})")),
-            1 => (inner.clone(), -4i32..6).prop_map(|(p, n)| format!("({p})^{n}")),
-            1 => (inner.clone(), -3i32..0).prop_map(|(p, n)| format!("({p})^({n})")),
-            2 => (f1.clone(), inner.clone()).prop_map(|(f, p)| format!("{f}({p})")),
-            1 => (f2.clone(), inner.clone(), inner.clone())
-                .prop_map(|(f, p, q)| format!("{f}({p}, {q})")),
-            1 => inner.clone().prop_map(|p| format!("-({p})")),
-        ]
-    })
-}
 
 fn same(fast: f64, reference: f64) -> bool {
     fast.to_bits() == reference.to_bits() || (fast.is_nan() && reference.is_nan())

@@ -1,9 +1,11 @@
 //! Typed expressions: parsing with `meval`, compiling a whole system of expressions into one
 //! evaluation program with shared subexpressions, compiling it into machine code (or fast
 //! closures where there is none),
-//! forward-mode derivatives from it, and its switching functions.
+//! forward-mode derivatives from it (also as machine code along given vectors), and its
+//! switching functions.
 
 mod compile;
+mod directional;
 mod error;
 mod functions;
 mod fuse;
@@ -19,6 +21,7 @@ mod program;
 mod switches;
 mod tangent;
 
+pub use directional::DirectionalKernel;
 pub use error::{CompileError, ExprError, ExprErrorKind};
 pub use functions::{CONSTANTS, FUNCTIONS, is_reserved};
 pub use kernel::Kernel;

@@ -27,6 +27,7 @@ use cranelift_module::{Linkage, Module, default_libcall_names};
 
 use super::instr::{Func1, Instr};
 use super::native_calls::{Call, calls};
+use super::native_tangent::{Sparse, tangents};
 
 /// The generated function: `(states, parameters, time, outputs)`.
 type Entry = extern "C" fn(*const f64, *const f64, f64, *mut f64);
@@ -40,8 +41,7 @@ pub(super) struct NativeCode {
     n_states: usize,
     n_parameters: usize,
     n_outputs: usize,
-    /// Keeps the code mapped while any copy of `entry` exists (held, never read).
-    #[allow(dead_code)]
+    /// Keeps the code mapped while any copy of `entry` exists (and tells copies apart).
     owner: Arc<Owner>,
 }
 
@@ -89,13 +89,60 @@ impl NativeCode {
         let n_outputs = outputs.len().checked_mul(n_states)?;
         Self::build(instrs, n_outputs, n_states, n_parameters, |g| {
             let values = g.values(instrs)?;
-            let tangents = super::native_tangent::tangents(g, instrs, &values)?;
+            let tangents = tangents(g, instrs, &values, |g, i| {
+                let one = g.b.ins().f64const(1.0);
+                Some(Sparse::new(vec![(i, one)]))
+            })?;
             let zero = g.b.ins().f64const(0.0);
             for (row, &o) in outputs.iter().enumerate() {
                 let tangent = tangents.get(o as usize)?;
                 for j in 0..n_states {
                     let v = tangent.get(j).unwrap_or(zero);
                     g.store(v, row * n_states + j)?;
+                }
+            }
+            Some(())
+        })
+    }
+
+    /// Machine code for the outputs and their derivatives along `m` given vectors, in one
+    /// function: it reads `x` (`n_states` values) followed by the vectors `q_0 .. q_{m-1}`
+    /// (`n_states` values each), and writes the outputs followed by `J q_0 .. J q_{m-1}`
+    /// (one value per output each), `J` the Jacobian with respect to the states. Forward mode
+    /// along the vectors: state `i` is seeded with `q_k[i]` along direction `k`, and the
+    /// tangents go through the instructions by the rules of [`Self::compile_jacobian`]. The
+    /// outputs are those of [`Self::compile`] bit for bit (the same values are emitted); the
+    /// derivatives agree with the Jacobian times the vectors to rounding (summed in another
+    /// order).
+    pub(super) fn compile_directional(
+        instrs: &[Instr],
+        outputs: &[u32],
+        n_states: usize,
+        n_parameters: usize,
+        m: usize,
+    ) -> Option<Self> {
+        let n_inputs = n_states.checked_mul(m.checked_add(1)?)?;
+        let n_outputs = outputs.len().checked_mul(m.checked_add(1)?)?;
+        let n_out = outputs.len();
+        Self::build(instrs, n_outputs, n_inputs, n_parameters, |g| {
+            let values = g.values(instrs)?;
+            let tangents = tangents(g, instrs, &values, |g, i| {
+                let entries = (0..m)
+                    .map(|k| {
+                        let at = (k + 1).checked_mul(n_states)?.checked_add(i as usize)?;
+                        Some((u32::try_from(k).ok()?, g.load_input(at)?))
+                    })
+                    .collect::<Option<Vec<_>>>()?;
+                Some(Sparse::new(entries))
+            })?;
+            let zero = g.b.ins().f64const(0.0);
+            for (row, &o) in outputs.iter().enumerate() {
+                let v = values.get(o as usize).copied()?;
+                g.store(v, row)?;
+                let tangent = tangents.get(o as usize)?;
+                for k in 0..m {
+                    let v = tangent.get(k).unwrap_or(zero);
+                    g.store(v, (k + 1) * n_out + row)?;
                 }
             }
             Some(())
@@ -165,6 +212,11 @@ impl NativeCode {
             n_outputs,
             owner: Arc::new(Owner(Mutex::new(Some(module)))),
         })
+    }
+
+    /// Whether both copies share one piece of machine code.
+    pub(super) fn same_code_as(&self, other: &Self) -> bool {
+        Arc::ptr_eq(&self.owner, &other.owner)
     }
 
     /// Evaluates every output into `out`. Returns `false` (and evaluates nothing) when a slice
@@ -307,6 +359,12 @@ impl Gen<'_, '_> {
             values.push(v);
         }
         Some(values)
+    }
+
+    /// Loads element `k` of the states argument.
+    pub(super) fn load_input(&mut self, k: usize) -> Option<Value> {
+        let at = offset(u32::try_from(k).ok()?)?;
+        Some(self.b.ins().load(F64, MemFlagsData::trusted(), self.x, at))
     }
 
     /// `a^n` as the reference computes it (`f64::powi`).

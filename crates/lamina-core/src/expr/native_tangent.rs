@@ -1,6 +1,9 @@
-//! Forward-mode tangents in machine code: the Jacobian with respect to the states, generated
-//! instruction by instruction with the coefficients and zero-skipping of [`super::tangent`],
-//! but only along the states each value depends on (a sparse tangent per value).
+//! Forward-mode tangents in machine code, generated instruction by instruction with the
+//! coefficients and zero-skipping of [`super::tangent`]. Each value carries a sparse tangent:
+//! entries along a list of directions, where the seed of a state says which directions and
+//! what entries. The Jacobian seeds state `i` with a unit entry along direction `i` (so a value
+//! carries only the states it depends on); the derivative along given vectors seeds state `i`
+//! with entry `q_k[i]` along direction `k`, for every vector `k`.
 
 use cranelift_codegen::ir::condcodes::FloatCC;
 use cranelift_codegen::ir::{InstBuilder, Value};
@@ -9,12 +12,17 @@ use super::instr::{Func1, Func2, Instr};
 use super::native::Gen;
 use super::native_calls::{Call, FUNC1, FUNC2};
 
-/// The tangent of one value: `(state index, entry)` for the states it may depend on, in
-/// increasing order; every other entry is zero.
+/// The tangent of one value: `(direction, entry)` for the directions along which it may vary,
+/// in increasing order; every other entry is zero.
 #[derive(Clone, Default)]
 pub(super) struct Sparse(Vec<(u32, Value)>);
 
 impl Sparse {
+    /// The tangent with these `(direction, entry)` pairs, directions in increasing order.
+    pub(super) fn new(entries: Vec<(u32, Value)>) -> Self {
+        Self(entries)
+    }
+
     /// Entry `j`, if it may be nonzero.
     pub(super) fn get(&self, j: usize) -> Option<Value> {
         self.0
@@ -24,11 +32,13 @@ impl Sparse {
     }
 }
 
-/// Emits the tangent of every instruction given their `values`.
+/// Emits the tangent of every instruction given their `values`; `seed(g, i)` emits the tangent
+/// of state `i`.
 pub(super) fn tangents(
     g: &mut Gen<'_, '_>,
     instrs: &[Instr],
     values: &[Value],
+    mut seed: impl FnMut(&mut Gen<'_, '_>, u32) -> Option<Sparse>,
 ) -> Option<Vec<Sparse>> {
     let mut tangents: Vec<Sparse> = Vec::with_capacity(instrs.len());
     for (idx, instr) in instrs.iter().enumerate() {
@@ -37,10 +47,7 @@ pub(super) fn tangents(
         let this = values.get(idx).copied()?;
         let out = match *instr {
             Instr::Const(_) | Instr::Param(_) | Instr::Time => Sparse::default(),
-            Instr::State(i) => {
-                let one = g.b.ins().f64const(1.0);
-                Sparse(vec![(i, one)])
-            }
+            Instr::State(i) => seed(g, i)?,
             Instr::Neg(a) => {
                 let c = g.b.ins().f64const(-1.0);
                 combine1(g, &tan(a)?, c)

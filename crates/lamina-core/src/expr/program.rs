@@ -1,6 +1,6 @@
 //! The compiled evaluation program: one straight-line instruction list for all outputs.
 
-use std::sync::{Arc, OnceLock};
+use std::sync::{Arc, Mutex, OnceLock};
 
 use super::compile::{Builder, compile_expression};
 use super::instr::{Func1, Instr};
@@ -30,6 +30,10 @@ pub struct Scratch {
 /// instructions never change after it is compiled, so every clone can run the same code).
 type SharedCode = Arc<OnceLock<Option<Box<NativeCode>>>>;
 
+/// Machine code made at most once per number of vectors `m` (the key) for a program and all its
+/// clones; `None` where the host has none. Looked up once per tangent system, not per call.
+type SharedDirectional = Arc<Mutex<Vec<(usize, Option<NativeCode>)>>>;
+
 #[derive(Clone, Debug)]
 pub struct Program {
     pub(super) instrs: Vec<Instr>,
@@ -44,6 +48,10 @@ pub struct Program {
     /// map or a sweep clones the model for every cell or value, and making the code again for
     /// each cost more than a cell's exponent.
     native_jacobian: SharedCode,
+    /// Machine code of the outputs with their derivatives along `m` vectors, one per `m`
+    /// asked for, made on the first [`Program::directional_kernel`] of this program or any
+    /// clone with that `m`, then shared by all (as the Jacobian's code).
+    native_directional: SharedDirectional,
     n_states: usize,
     n_parameters: usize,
     uses_time: bool,
@@ -110,6 +118,7 @@ impl Program {
             fast,
             native: SharedCode::default(),
             native_jacobian: SharedCode::default(),
+            native_directional: SharedDirectional::default(),
             instrs: kept,
             outputs,
             n_states,
@@ -178,6 +187,28 @@ impl Program {
     /// The machine code of the Jacobian, made on the first call; `None` if the host has none.
     pub(super) fn native_jacobian_code(&self) -> Option<&NativeCode> {
         self.made_once(&self.native_jacobian, NativeCode::compile_jacobian)
+    }
+
+    /// The machine code of the outputs with their derivatives along `m` vectors, made on the
+    /// first call for this `m`; `None` if the host has none.
+    pub(super) fn native_directional_code(&self, m: usize) -> Option<NativeCode> {
+        // a poisoned lock only means a panic elsewhere while it was held: the list is intact
+        let mut made = self
+            .native_directional
+            .lock()
+            .unwrap_or_else(std::sync::PoisonError::into_inner);
+        if let Some((_, code)) = made.iter().find(|(k, _)| *k == m) {
+            return code.clone();
+        }
+        let code = NativeCode::compile_directional(
+            &self.instrs,
+            &self.outputs,
+            self.n_states,
+            self.n_parameters,
+            m,
+        );
+        made.push((m, code.clone()));
+        code
     }
 
     /// The code in `cell`, made by `make` from this program on the first call.

@@ -1,14 +1,17 @@
 //! Forward-mode derivatives: tangents pushed through the instruction list alongside the
-//! values, several directions at once.
+//! values, several directions at once (the states, given vectors, a parameter or the time).
 
 use super::instr::Instr;
 use super::program::{Program, Scratch};
 
-/// Which inputs carry a unit tangent.
+/// Which inputs carry a tangent.
 #[derive(Clone, Copy)]
-enum Seed {
+enum Seed<'a> {
     /// Direction `j` is state `j` (all states at once).
     States,
+    /// Direction `k` is the vector `k` of these `m` vectors of `n_states` values each, one
+    /// after another: state `i` carries `q_k[i]` along it.
+    Vectors(&'a [f64], usize),
     /// One direction: parameter `idx`.
     Parameter(usize),
     /// One direction: the time.
@@ -18,10 +21,18 @@ enum Seed {
 impl Program {
     /// Values and tangents for `n_dir` directions; tangent of slot `s`, direction `d` at
     /// `s * n_dir + d`.
-    fn propagate(&self, scratch: &mut Scratch, t: f64, x: &[f64], p: &[f64], seed: Seed) -> usize {
+    fn propagate(
+        &self,
+        scratch: &mut Scratch,
+        t: f64,
+        x: &[f64],
+        p: &[f64],
+        seed: Seed<'_>,
+    ) -> usize {
         self.run(scratch, t, x, p);
         let n_dir = match seed {
             Seed::States => self.n_states(),
+            Seed::Vectors(_, m) => m,
             Seed::Parameter(_) | Seed::Time => 1,
         };
         let Scratch {
@@ -38,11 +49,16 @@ impl Program {
             let val = |slot: u32| values[slot as usize];
             match *instr {
                 Instr::Const(_) => {}
-                Instr::State(i) => {
-                    if let Seed::States = seed {
-                        out[i as usize] = 1.0;
+                Instr::State(i) => match seed {
+                    Seed::States => out[i as usize] = 1.0,
+                    Seed::Vectors(vectors, _) => {
+                        let n = self.n_states();
+                        for (k, o) in out.iter_mut().enumerate() {
+                            *o = vectors[k * n + i as usize];
+                        }
                     }
-                }
+                    Seed::Parameter(_) | Seed::Time => {}
+                },
                 Instr::Param(i) => {
                     if let Seed::Parameter(k) = seed
                         && k == i as usize
@@ -121,6 +137,33 @@ impl Program {
         for (row, &slot) in self.outputs.iter().enumerate() {
             let s = slot as usize;
             out[row * n..(row + 1) * n].copy_from_slice(&scratch.tangents[s * n..(s + 1) * n]);
+        }
+    }
+
+    /// The outputs and their derivatives along `m` vectors by tangents pushed through the
+    /// instruction list itself: the reference the machine code of
+    /// [`Program::directional_kernel`] reproduces bit for bit. `y` is the state (`n` values)
+    /// followed by the vectors (`n` values each); `out` receives the outputs followed by
+    /// `J q_0 .. J q_{m-1}` (one value per output each).
+    pub fn directional_reference(
+        &self,
+        scratch: &mut Scratch,
+        t: f64,
+        y: &[f64],
+        p: &[f64],
+        m: usize,
+        out: &mut [f64],
+    ) {
+        let n = self.n_states();
+        let (x, vectors) = y.split_at(n);
+        self.propagate(scratch, t, x, p, Seed::Vectors(&vectors[..n * m], m));
+        let n_out = self.outputs.len();
+        for (row, &slot) in self.outputs.iter().enumerate() {
+            let s = slot as usize;
+            out[row] = scratch.values[s];
+            for k in 0..m {
+                out[(k + 1) * n_out + row] = scratch.tangents[s * m + k];
+            }
         }
     }
 
