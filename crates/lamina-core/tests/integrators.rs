@@ -598,3 +598,51 @@ fn stepping_without_reset_starts_from_zero() {
         assert_eq!(integrator.segment().start_state(), &[0.0]);
     }
 }
+
+/// The harmonic oscillator (REFERENCES case 2) with a value riding along that varies much
+/// faster than the states, `q' = 40 cos(40 t) x`.
+fn oscillator_with_rider() -> impl Rates {
+    FnRates::new(3, |t: f64, y: &[f64], dy: &mut [f64]| {
+        dy[0] = y[1];
+        dy[1] = -4.0 * y[0];
+        dy[2] = 40.0 * (40.0 * t).cos() * y[0];
+    })
+}
+
+#[test]
+fn values_left_out_of_the_error_control_ride_along_on_the_states_steps() {
+    for method in [
+        Method::Dp5,
+        Method::Dp853,
+        Method::Rodas4,
+        Method::Automatic,
+    ] {
+        let mut alone = harmonic_oscillator().0;
+        let mut states = Integrator::new(method, control(1e-9, 1e-12), 2);
+        states.reset(&mut alone, 0.0, &[0.8, -0.3]);
+        let mut rider = oscillator_with_rider();
+        let mut both = Integrator::new(method, control(1e-9, 1e-12), 3);
+        both.control_error_of_first(Some(2));
+        both.reset(&mut rider, 0.0, &[0.8, -0.3, 0.0]);
+        while states.t() < 10.0 {
+            states.step(&mut alone, 10.0).expect("steps");
+            both.step(&mut rider, 10.0).expect("steps");
+            // [analytic] the states' rates do not involve the rider, so the states' stages,
+            // errors and steps are the same to the bit when only the states are measured
+            assert_eq!(both.t(), states.t(), "{method:?}");
+            assert_eq!(&both.x()[..2], states.x(), "{method:?}");
+        }
+        let steps_alone = states.stats().n_accepted;
+        // with the rider measured too, its fast wiggle shortens the steps
+        let mut all = Integrator::new(method, control(1e-9, 1e-12), 3);
+        all.reset(&mut rider, 0.0, &[0.8, -0.3, 0.0]);
+        while all.t() < 10.0 {
+            all.step(&mut rider, 10.0).expect("steps");
+        }
+        assert!(
+            all.stats().n_accepted > steps_alone,
+            "{method:?}: {} steps with the rider measured, {steps_alone} without",
+            all.stats().n_accepted
+        );
+    }
+}

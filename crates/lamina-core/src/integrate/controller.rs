@@ -7,7 +7,7 @@
 //! limited to `min_factor <= h_new / h <= max_factor`. Rodas4 uses Gustafsson's predictive
 //! controller as in Hairer & Wanner's RODAS (Solving ODEs II, sec. IV.8).
 
-use super::{Method, Rates};
+use super::{ErrorScale, Method, Rates};
 
 /// Safety factor applied to every proposed step.
 const SAFETY: f64 = 0.9;
@@ -229,15 +229,16 @@ pub(crate) fn initial_step<R: Rates + ?Sized>(
     f1: &mut [f64],
     order: i32,
     h_max: f64,
-    rtol: f64,
-    atol: f64,
+    scale: ErrorScale,
 ) -> f64 {
     let n = x.len();
     let (x, f0, y1, f1) = (&x[..n], &f0[..n], &mut y1[..n], &mut f1[..n]);
+    // the norms over the values the error control measures
+    let (rtol, atol, controlled) = (scale.rtol, scale.atol, scale.controlled.min(n));
     // a first guess for explicit Euler: h = 0.01 * norm(x) / norm(f0)
     let mut norm_f_sq = 0.0;
     let mut norm_x_sq = 0.0;
-    for i in 0..n {
+    for i in 0..controlled {
         let sk = atol + rtol * x[i].abs();
         norm_f_sq += (f0[i] / sk).powi(2);
         norm_x_sq += (x[i] / sk).powi(2);
@@ -255,7 +256,7 @@ pub(crate) fn initial_step<R: Rates + ?Sized>(
     }
     rates.rates(t + h, y1, f1);
     let mut der2_sq = 0.0;
-    for i in 0..n {
+    for i in 0..controlled {
         let sk = atol + rtol * x[i].abs();
         der2_sq += ((f1[i] - f0[i]) / sk).powi(2);
     }

@@ -2,8 +2,8 @@
 //! error estimate, and three more stages for the seventh-order dense output of an accepted
 //! step, evaluated only when that output is wanted.
 
-use super::Rates;
 use super::dop853_tableau::*;
+use super::{ErrorScale, Rates};
 
 /// Number of coefficient vectors of the interpolant.
 pub(super) const N_TERMS: usize = 8;
@@ -107,8 +107,7 @@ impl Dop853 {
         t: f64,
         x: &[f64],
         h: f64,
-        rtol: f64,
-        atol: f64,
+        scale: ErrorScale,
         n_rate_evaluations: &mut u64,
     ) -> f64 {
         // fused multiply-adds shorten the chain of stages each step waits on
@@ -116,9 +115,9 @@ impl Dop853 {
         if std::arch::is_x86_feature_detected!("fma") {
             // SAFETY: the processor has the instructions the function is compiled for
             #[allow(unsafe_code)]
-            return unsafe { self.attempt_fused(rates, t, x, h, rtol, atol, n_rate_evaluations) };
+            return unsafe { self.attempt_fused(rates, t, x, h, scale, n_rate_evaluations) };
         }
-        self.attempt_any_size::<R, false>(rates, t, x, h, rtol, atol, n_rate_evaluations)
+        self.attempt_any_size::<R, false>(rates, t, x, h, scale, n_rate_evaluations)
     }
 
     /// [`Dop853::attempt`] compiled with fused multiply-adds.
@@ -131,11 +130,10 @@ impl Dop853 {
         t: f64,
         x: &[f64],
         h: f64,
-        rtol: f64,
-        atol: f64,
+        scale: ErrorScale,
         n_rate_evaluations: &mut u64,
     ) -> f64 {
-        self.attempt_any_size::<R, true>(rates, t, x, h, rtol, atol, n_rate_evaluations)
+        self.attempt_any_size::<R, true>(rates, t, x, h, scale, n_rate_evaluations)
     }
 
     /// [`Dop853::attempt`] through the stage loops compiled for the number of states.
@@ -147,19 +145,18 @@ impl Dop853 {
         t: f64,
         x: &[f64],
         h: f64,
-        rtol: f64,
-        atol: f64,
+        scale: ErrorScale,
         n_rate_evaluations: &mut u64,
     ) -> f64 {
         let e = n_rate_evaluations;
         // the stage loops compiled for the common small sizes run fully unrolled, with the
         // states in registers (about a fifth less time per step for three states)
         match x.len() {
-            1 => self.attempt_sized::<R, 1, FUSED>(rates, t, x, h, rtol, atol, e),
-            2 => self.attempt_sized::<R, 2, FUSED>(rates, t, x, h, rtol, atol, e),
-            3 => self.attempt_sized::<R, 3, FUSED>(rates, t, x, h, rtol, atol, e),
-            4 => self.attempt_sized::<R, 4, FUSED>(rates, t, x, h, rtol, atol, e),
-            _ => self.attempt_sized::<R, 0, FUSED>(rates, t, x, h, rtol, atol, e),
+            1 => self.attempt_sized::<R, 1, FUSED>(rates, t, x, h, scale, e),
+            2 => self.attempt_sized::<R, 2, FUSED>(rates, t, x, h, scale, e),
+            3 => self.attempt_sized::<R, 3, FUSED>(rates, t, x, h, scale, e),
+            4 => self.attempt_sized::<R, 4, FUSED>(rates, t, x, h, scale, e),
+            _ => self.attempt_sized::<R, 0, FUSED>(rates, t, x, h, scale, e),
         }
     }
 
@@ -172,8 +169,7 @@ impl Dop853 {
         t: f64,
         x: &[f64],
         h: f64,
-        rtol: f64,
-        atol: f64,
+        scale: ErrorScale,
         n_rate_evaluations: &mut u64,
     ) -> f64 {
         let x = if D == 0 { x } else { &x[..D] };
@@ -210,6 +206,12 @@ impl Dop853 {
         let x_new = &mut self.x_new[..n];
         let (k1, k6, k7, k8, k9) = (&k1[..n], &k6[..n], &k7[..n], &k8[..n], &k9[..n]);
         let (k10, k11, k12) = (&k10[..n], &k11[..n], &k12[..n]);
+        let ErrorScale {
+            rtol,
+            atol,
+            controlled,
+        } = scale;
+        let controlled = controlled.min(n);
         let mut err5_sq = 0.0;
         let mut err3_sq = 0.0;
         let mut finite = true;
@@ -236,8 +238,10 @@ impl Dop853 {
                 + ER11 * k11[i]
                 + ER12 * k12[i])
                 / sk;
-            err3_sq += e3 * e3;
-            err5_sq += e5 * e5;
+            if i < controlled {
+                err3_sq += e3 * e3;
+                err5_sq += e5 * e5;
+            }
         }
         if !finite {
             return f64::NAN;
@@ -246,7 +250,7 @@ impl Dop853 {
         if denominator <= 0.0 {
             denominator = 1.0;
         }
-        h.abs() * err5_sq * (1.0 / (n.max(1) as f64 * denominator)).sqrt()
+        h.abs() * err5_sq * (1.0 / (controlled.max(1) as f64 * denominator)).sqrt()
     }
 
     /// Completes an accepted attempt of size `h` from `(t, x)`: evaluates stage 13 (`f` at

@@ -3,7 +3,7 @@
 //! Coefficients: Dormand & Prince, J. Comput. Appl. Math. 6 (1980) 19–26, as used in
 //! Hairer's DOPRI5; dense output as in DOPRI5's `CONTD5`.
 
-use super::Rates;
+use super::{ErrorScale, Rates};
 
 pub(super) const C2: f64 = 0.2;
 pub(super) const C3: f64 = 0.3;
@@ -127,8 +127,7 @@ impl Dp5 {
         t: f64,
         x: &[f64],
         h: f64,
-        rtol: f64,
-        atol: f64,
+        scale: ErrorScale,
         n_rate_evaluations: &mut u64,
     ) -> f64 {
         let [k1, k2, k3, k4, k5, k6, k7] = &mut self.k;
@@ -152,19 +151,22 @@ impl Dp5 {
         let n = x.len();
         let (x, x_new) = (&x[..n], &x_new[..n]);
         let (k1, k3, k4, k5, k6, k7) = (&k1[..n], &k3[..n], &k4[..n], &k5[..n], &k6[..n], &k7[..n]);
+        let (rtol, atol, controlled) = (scale.rtol, scale.atol, scale.controlled.min(n));
         let mut err_sq = 0.0;
         let mut finite = true;
         for i in 0..n {
-            let sk = atol + rtol * x[i].abs().max(x_new[i].abs());
-            let e =
-                h * (E1 * k1[i] + E3 * k3[i] + E4 * k4[i] + E5 * k5[i] + E6 * k6[i] + E7 * k7[i]);
-            err_sq += (e / sk) * (e / sk);
             finite &= x_new[i].is_finite();
+            if i < controlled {
+                let sk = atol + rtol * x[i].abs().max(x_new[i].abs());
+                let e = h
+                    * (E1 * k1[i] + E3 * k3[i] + E4 * k4[i] + E5 * k5[i] + E6 * k6[i] + E7 * k7[i]);
+                err_sq += (e / sk) * (e / sk);
+            }
         }
         if !finite {
             return f64::NAN;
         }
-        (err_sq / n.max(1) as f64).sqrt()
+        (err_sq / controlled.max(1) as f64).sqrt()
     }
 
     /// Completes an accepted attempt of size `h` from `x`: with `dense` builds the

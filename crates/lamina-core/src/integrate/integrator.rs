@@ -3,7 +3,7 @@
 use super::controller::{StepRule, initial_step};
 use super::stepper::Stepper;
 use super::stiffness::{MethodChange, StiffnessWatch};
-use super::{DenseSegment, Method, Rates, Stats, StepControl, StepError};
+use super::{DenseSegment, ErrorScale, Method, Rates, Stats, StepControl, StepError};
 
 /// Smallest step allowed regardless of `t` (a step below the floating-point resolution of `t`
 /// is refused separately).
@@ -56,6 +56,8 @@ pub struct Integrator {
     pub(super) change: Option<MethodChange>,
     pub(super) segment: DenseSegment,
     pub(super) stats: Stats,
+    /// How many leading values the error control measures (`None`: all).
+    pub(super) error_states: Option<usize>,
 }
 
 impl Integrator {
@@ -80,6 +82,7 @@ impl Integrator {
             change: None,
             segment: Self::empty_segment(method, 0.0, dim),
             stats: Stats::default(),
+            error_states: None,
         }
     }
 
@@ -284,9 +287,15 @@ impl Integrator {
             let clipped = 1.01 * h_wanted >= remaining;
             let h = if clipped { remaining } else { h_wanted };
 
-            let err = self
-                .stepper
-                .attempt(rates, t, &self.x, h, &self.control, &mut self.stats);
+            let err = self.stepper.attempt(
+                rates,
+                t,
+                &self.x,
+                h,
+                &self.control,
+                self.controlled(),
+                &mut self.stats,
+            );
             let stats = &mut self.stats;
             let finite = err.is_finite()
                 && (err > 1.0 || self.stepper.finish(rates, t, &self.x, h, stats, dense));
@@ -344,15 +353,35 @@ impl Integrator {
             return Err(StepError::StepTooSmall { t, h });
         }
         self.ensure_f0(rates)?;
-        let err = self
-            .stepper
-            .attempt(rates, t, &self.x, h, &self.control, &mut self.stats);
+        let err = self.stepper.attempt(
+            rates,
+            t,
+            &self.x,
+            h,
+            &self.control,
+            self.controlled(),
+            &mut self.stats,
+        );
         let stats = &mut self.stats;
         if !(err.is_finite() && self.stepper.finish(rates, t, &self.x, h, stats, true)) {
             return Err(StepError::NotFinite { t });
         }
         self.commit(h, t + h);
         Ok(())
+    }
+
+    /// Makes the error control measure only the first `n` values of the state (`None`: all
+    /// of them, the default), kept through [`Integrator::reset`]. For values that ride along
+    /// with the model's states on the same steps, as tangent vectors do: they follow the
+    /// linearised flow of the states, whose time scales the states' control already
+    /// resolves, so their own control would only shorten the steps.
+    pub fn control_error_of_first(&mut self, n: Option<usize>) {
+        self.error_states = n;
+    }
+
+    /// How many leading values the error control measures now.
+    fn controlled(&self) -> usize {
+        self.error_states.unwrap_or(usize::MAX).min(self.x.len())
     }
 
     /// Current time.
@@ -420,9 +449,13 @@ impl Integrator {
     fn automatic_initial_step<R: Rates + ?Sized>(&mut self, rates: &mut R, h_max: f64) -> f64 {
         let order = self.stepper.order();
         let (f0, y1, f1) = self.stepper.f0_and_scratch();
-        let (rtol, atol) = (self.control.rtol, self.control.atol);
+        let scale = ErrorScale {
+            rtol: self.control.rtol,
+            atol: self.control.atol,
+            controlled: self.error_states.unwrap_or(usize::MAX),
+        };
         self.stats.n_rate_evaluations += 1;
-        initial_step(rates, self.t, &self.x, f0, y1, f1, order, h_max, rtol, atol)
+        initial_step(rates, self.t, &self.x, f0, y1, f1, order, h_max, scale)
     }
 
     /// Makes the last attempt (of size `h`, ending at `t_end`) the current state.

@@ -58,6 +58,16 @@ pub(crate) fn add_product<const FUSED: bool>(base: f64, a: f64, b: f64) -> f64 {
     }
 }
 
+/// What a step attempt measures its error against: `atol + rtol |x_i|` for each of the first
+/// `controlled` values (all of them, unless values that only ride along are left out: see
+/// [`Integrator::control_error_of_first`]).
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct ErrorScale {
+    pub(crate) rtol: f64,
+    pub(crate) atol: f64,
+    pub(crate) controlled: usize,
+}
+
 mod auto;
 mod controller;
 pub mod dense;

@@ -26,7 +26,7 @@
 use super::Stats;
 use super::rodas_matrix::IterationMatrix;
 use super::rodas_tableau::*;
-use super::{Rates, StepControl};
+use super::{ErrorScale, Rates};
 
 /// Number of coefficient vectors of the interpolant.
 pub(super) const N_TERMS: usize = 5;
@@ -166,11 +166,11 @@ impl Rodas {
         t: f64,
         x: &[f64],
         h: f64,
-        control: &StepControl,
+        scale: ErrorScale,
         stats: &mut Stats,
     ) -> f64 {
         let n = x.len();
-        self.tolerance = (control.rtol, control.atol);
+        self.tolerance = (scale.rtol, scale.atol);
         if !self.jacobian_current {
             self.evaluate_jacobian(rates, t, x, stats);
         }
@@ -185,20 +185,22 @@ impl Rodas {
             return f64::NAN;
         }
         let (ys, u6) = (&self.y_stage, &self.u[5]);
-        let (rtol, atol) = (control.rtol, control.atol);
+        let (rtol, atol, controlled) = (scale.rtol, scale.atol, scale.controlled.min(n));
         let mut err_sq = 0.0;
         let mut finite = true;
         for i in 0..n {
             let xn = ys[i] + u6[i];
             self.x_new[i] = xn;
             finite &= xn.is_finite();
-            let sk = atol + rtol * x[i].abs().max(xn.abs());
-            err_sq += (u6[i] / sk).powi(2);
+            if i < controlled {
+                let sk = atol + rtol * x[i].abs().max(xn.abs());
+                err_sq += (u6[i] / sk).powi(2);
+            }
         }
         if !finite {
             return f64::NAN;
         }
-        (err_sq / n.max(1) as f64).sqrt()
+        (err_sq / controlled.max(1) as f64).sqrt()
     }
 
     /// The Jacobian and the time derivative at `(t, x)`: exact from `rates` when it has

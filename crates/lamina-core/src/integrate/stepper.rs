@@ -3,7 +3,7 @@
 use super::dop853::{self, Dop853};
 use super::dp5::{self, Dp5};
 use super::rodas::{self, Rodas};
-use super::{Method, Rates, Stats, StepControl};
+use super::{ErrorScale, Method, Rates, Stats, StepControl};
 
 /// The stage storage of one method (enum dispatch, no allocation per step).
 // one or two per integrator, so the size difference of the variants does not matter
@@ -170,14 +170,19 @@ impl Stepper {
         x: &[f64],
         h: f64,
         control: &StepControl,
+        controlled: usize,
         stats: &mut Stats,
     ) -> f64 {
-        let (rtol, atol) = (control.rtol, control.atol);
+        let scale = ErrorScale {
+            rtol: control.rtol,
+            atol: control.atol,
+            controlled,
+        };
         let n_rate_evaluations = &mut stats.n_rate_evaluations;
         match self {
-            Self::Dp5(s) => s.attempt(rates, t, x, h, rtol, atol, n_rate_evaluations),
-            Self::Dp853(s) => s.attempt(rates, t, x, h, rtol, atol, n_rate_evaluations),
-            Self::Rodas(s) => s.attempt(rates, t, x, h, control, stats),
+            Self::Dp5(s) => s.attempt(rates, t, x, h, scale, n_rate_evaluations),
+            Self::Dp853(s) => s.attempt(rates, t, x, h, scale, n_rate_evaluations),
+            Self::Rodas(s) => s.attempt(rates, t, x, h, scale, stats),
         }
     }
 

@@ -36,11 +36,14 @@ impl CarriedTangent {
     }
 
     /// Starts stepping the variational system at `t` from the model's state `x`, with the
-    /// starting tangent vector (the integrator is reset: it keeps its work counters).
+    /// starting tangent vector (the integrator is reset: it keeps its work counters). The
+    /// error control measures the model's states only.
     pub(super) fn activate(&mut self, integrator: &mut Integrator, t: f64, x: &[f64]) {
         let mut y = vec![0.0; 2 * self.n];
         y[..self.n].copy_from_slice(x);
         self.exponent.start(&mut y[self.n..]);
+        // the vector follows the states' steps: only the states' errors choose them
+        integrator.control_error_of_first(Some(self.n));
         integrator.reset(&mut self.system, t, &y);
         self.active = true;
     }
