@@ -287,15 +287,9 @@ impl Integrator {
             let clipped = 1.01 * h_wanted >= remaining;
             let h = if clipped { remaining } else { h_wanted };
 
-            let err = self.stepper.attempt(
-                rates,
-                t,
-                &self.x,
-                h,
-                &self.control,
-                self.controlled(),
-                &mut self.stats,
-            );
+            let err =
+                self.stepper
+                    .attempt(rates, t, &self.x, h, self.error_scale(), &mut self.stats);
             let stats = &mut self.stats;
             let finite = err.is_finite()
                 && (err > 1.0 || self.stepper.finish(rates, t, &self.x, h, stats, dense));
@@ -353,15 +347,9 @@ impl Integrator {
             return Err(StepError::StepTooSmall { t, h });
         }
         self.ensure_f0(rates)?;
-        let err = self.stepper.attempt(
-            rates,
-            t,
-            &self.x,
-            h,
-            &self.control,
-            self.controlled(),
-            &mut self.stats,
-        );
+        let err = self
+            .stepper
+            .attempt(rates, t, &self.x, h, self.error_scale(), &mut self.stats);
         let stats = &mut self.stats;
         if !(err.is_finite() && self.stepper.finish(rates, t, &self.x, h, stats, true)) {
             return Err(StepError::NotFinite { t });
@@ -379,9 +367,14 @@ impl Integrator {
         self.error_states = n;
     }
 
-    /// How many leading values the error control measures now.
-    fn controlled(&self) -> usize {
-        self.error_states.unwrap_or(usize::MAX).min(self.x.len())
+    /// What the error control measures against: the tolerances over the leading values it
+    /// covers (see [`Integrator::control_error_of_first`]).
+    fn error_scale(&self) -> ErrorScale {
+        ErrorScale {
+            rtol: self.control.rtol,
+            atol: self.control.atol,
+            controlled: self.error_states.unwrap_or(usize::MAX).min(self.x.len()),
+        }
     }
 
     /// Current time.
@@ -448,12 +441,8 @@ impl Integrator {
     /// Hairer's initial step guess (one evaluation), limited to `h_max`.
     fn automatic_initial_step<R: Rates + ?Sized>(&mut self, rates: &mut R, h_max: f64) -> f64 {
         let order = self.stepper.order();
+        let scale = self.error_scale();
         let (f0, y1, f1) = self.stepper.f0_and_scratch();
-        let scale = ErrorScale {
-            rtol: self.control.rtol,
-            atol: self.control.atol,
-            controlled: self.error_states.unwrap_or(usize::MAX),
-        };
         self.stats.n_rate_evaluations += 1;
         initial_step(rates, self.t, &self.x, f0, y1, f1, order, h_max, scale)
     }

@@ -3,7 +3,7 @@
 use super::dop853::{self, Dop853};
 use super::dp5::{self, Dp5};
 use super::rodas::{self, Rodas};
-use super::{ErrorScale, Method, Rates, Stats, StepControl};
+use super::{ErrorScale, Method, Rates, Stats};
 
 /// The stage storage of one method (enum dispatch, no allocation per step).
 // one or two per integrator, so the size difference of the variants does not matter
@@ -169,15 +169,9 @@ impl Stepper {
         t: f64,
         x: &[f64],
         h: f64,
-        control: &StepControl,
-        controlled: usize,
+        scale: ErrorScale,
         stats: &mut Stats,
     ) -> f64 {
-        let scale = ErrorScale {
-            rtol: control.rtol,
-            atol: control.atol,
-            controlled,
-        };
         let n_rate_evaluations = &mut stats.n_rate_evaluations;
         match self {
             Self::Dp5(s) => s.attempt(rates, t, x, h, scale, n_rate_evaluations),
