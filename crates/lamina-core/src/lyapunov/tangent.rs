@@ -86,8 +86,8 @@ impl Rates for Tangent {
 
 impl Tangent {
     /// The rates without the directional kernel: the model's rates, its Jacobian, and the
-    /// Jacobian times each vector.
-    #[cold]
+    /// Jacobian times each vector (the path of every step for more vectors than one call
+    /// takes, or where there is no machine code).
     #[inline(never)]
     fn rates_by_matrix(&mut self, t: f64, y: &[f64], dy: &mut [f64]) {
         let n = self.n;

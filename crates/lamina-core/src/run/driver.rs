@@ -308,9 +308,10 @@ impl Run {
     /// points and strobe samples ([`Run::largest_exponent`]), with the growth limit, trace
     /// samples and tail fraction of `settings` as [`crate::lyapunov::spectrum`] uses them for
     /// one vector. The settle time is stepped without it. Cut points, strobe samples, the
-    /// escape check and the steps reported to the sink see the model's states only; the
-    /// integrator's error control covers the tangent vector too, so the steps are not those of
-    /// a run without it. The vector is rescaled to unit length between steps whenever it has
+    /// escape check and the steps reported to the sink see the model's states only, and so
+    /// does the integrator's error control (the vector rides on the states' steps). The
+    /// integrator starts afresh at the start of the recorded window, so the steps there are not
+    /// those of a run without the vector. The vector is rescaled to unit length between steps whenever it has
     /// grown or shrunk past the growth limit, without restarting the integrator.
     ///
     /// Returns false, and the run goes on without it, for a model with switches (whose
