@@ -207,30 +207,26 @@ pub fn menu_bar_ui(
 fn edit_menu_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Command>) {
     ui.menu_button("Edit", |ui| {
         let undo = session.history.undo_label();
-        let text = undo.map_or("Undo".to_string(), |l| format!("Undo: {l}"));
-        if ui
-            .add_enabled(
-                undo.is_some(),
-                egui::Button::new(text).shortcut_text("Ctrl+Z"),
-            )
-            .on_disabled_hover_text("Nothing to undo")
-            .clicked()
-        {
+        if history_item_ui(ui, "Undo", undo, "Ctrl+Z") {
             commands.push(Command::Undo);
         }
         let redo = session.history.redo_label();
-        let text = redo.map_or("Redo".to_string(), |l| format!("Redo: {l}"));
-        if ui
-            .add_enabled(
-                redo.is_some(),
-                egui::Button::new(text).shortcut_text("Ctrl+Shift+Z"),
-            )
-            .on_disabled_hover_text("Nothing to redo")
-            .clicked()
-        {
+        if history_item_ui(ui, "Redo", redo, "Ctrl+Shift+Z") {
             commands.push(Command::Redo);
         }
     });
+}
+
+/// One item of the Edit menu, `verb` naming the change it acts on (`label`; disabled with
+/// none); whether it was clicked.
+fn history_item_ui(ui: &mut Ui, verb: &str, label: Option<&str>, shortcut: &str) -> bool {
+    let text = label.map_or(verb.to_string(), |l| format!("{verb}: {l}"));
+    ui.add_enabled(
+        label.is_some(),
+        egui::Button::new(text).shortcut_text(shortcut),
+    )
+    .on_disabled_hover_text(format!("Nothing to {}", verb.to_lowercase()))
+    .clicked()
 }
 
 /// What "Run on" does.

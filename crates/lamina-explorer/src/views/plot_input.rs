@@ -95,6 +95,17 @@ mod tests {
     use super::*;
     use egui_kittest::Harness;
 
+    /// A turn of the mouse wheel away from the user by `dy` points.
+    fn wheel_up(dy: f32) -> egui::Event {
+        egui::Event::MouseWheel {
+            unit: egui::MouseWheelUnit::Point,
+            delta: egui::vec2(0.0, dy),
+            modifiers: egui::Modifiers::NONE,
+            phase: egui::TouchPhase::Move,
+            source: egui::MouseWheelSource::Wheel,
+        }
+    }
+
     #[test]
     fn the_wheel_zooms_a_plot_instead_of_panning_it() {
         // the last frame's bounds: [x0, y0, x1, y1]
@@ -114,13 +125,7 @@ mod tests {
         h.run();
         let before = *h.state();
         h.hover_at(egui::pos2(200.0, 150.0));
-        h.event(egui::Event::MouseWheel {
-            unit: egui::MouseWheelUnit::Point,
-            delta: egui::vec2(0.0, 120.0),
-            modifiers: egui::Modifiers::NONE,
-            phase: egui::TouchPhase::Move,
-            source: egui::MouseWheelSource::Wheel,
-        });
+        h.event(wheel_up(120.0));
         for _ in 0..10 {
             h.step();
         }
@@ -162,13 +167,7 @@ mod tests {
         assert!(b[0] <= 0.0 && b[2] >= 1000.0, "{b:?}");
         // the user zooms: the user's view stays while the data grows further
         h.hover_at(egui::pos2(200.0, 150.0));
-        h.event(egui::Event::MouseWheel {
-            unit: egui::MouseWheelUnit::Point,
-            delta: egui::vec2(0.0, 200.0),
-            modifiers: egui::Modifiers::NONE,
-            phase: egui::TouchPhase::Move,
-            source: egui::MouseWheelSource::Wheel,
-        });
+        h.event(wheel_up(200.0));
         for _ in 0..10 {
             h.step();
         }
