@@ -76,19 +76,7 @@ pub fn time_plot_png(figure: &Figure, series: &[TimeSeries]) -> Result<Vec<u8>, 
         // marks only when they can be told apart (one per MARK_SPACING pixels of width);
         // else the key says how many there are
         let room = figure.size.0 as usize / MARK_SPACING;
-        let most = |of: fn(&TimeSeries) -> usize| series.iter().map(of).max().unwrap_or(0);
-        let (n_strobe, n_cut) = (most(|s| s.strobe.len()), most(|s| s.cut.len()));
-        let strobe: Vec<(f64, f64)> = if n_strobe <= room {
-            series.iter().flat_map(|s| s.strobe.clone()).collect()
-        } else {
-            Vec::new()
-        };
-        if n_strobe > 0 {
-            let label = if strobe.is_empty() {
-                format!("{} strobe instants, too many to mark", thousands(n_strobe))
-            } else {
-                "strobe instant".to_owned()
-            };
+        if let Some((strobe, label)) = marks(series, |s| &s.strobe, room, "strobe instant") {
             chart
                 .draw_series(strobe.iter().map(|&(t, v)| {
                     EmptyElement::at((t, v))
@@ -100,17 +88,7 @@ pub fn time_plot_png(figure: &Figure, series: &[TimeSeries]) -> Result<Vec<u8>, 
         }
         let [r, g, b] = CUT_MARK;
         let cut_colour = RGBColor(r, g, b);
-        let cut: Vec<(f64, f64)> = if n_cut <= room {
-            series.iter().flat_map(|s| s.cut.clone()).collect()
-        } else {
-            Vec::new()
-        };
-        if n_cut > 0 {
-            let label = if cut.is_empty() {
-                format!("{} cut crossings, too many to mark", thousands(n_cut))
-            } else {
-                "cut crossing".to_owned()
-            };
+        if let Some((cut, label)) = marks(series, |s| &s.cut, room, "cut crossing") {
             chart
                 .draw_series(cut.iter().map(|&(t, v)| {
                     EmptyElement::at((t, v))
@@ -127,6 +105,27 @@ pub fn time_plot_png(figure: &Figure, series: &[TimeSeries]) -> Result<Vec<u8>, 
         )?;
         Ok(())
     })
+}
+
+/// The marks of one kind (`of` a series: its strobe instants or cut crossings, `one` the
+/// word for one of them) with their key: all of them when the series with the most has at
+/// most `room`, none (the key then counting them) when more; `None` when there are none.
+fn marks(
+    series: &[TimeSeries],
+    of: fn(&TimeSeries) -> &Vec<(f64, f64)>,
+    room: usize,
+    one: &str,
+) -> Option<(Vec<(f64, f64)>, String)> {
+    let most = series.iter().map(|s| of(s).len()).max().unwrap_or(0);
+    if most == 0 {
+        return None;
+    }
+    if most > room {
+        let label = format!("{} {one}s, too many to mark", thousands(most));
+        return Some((Vec::new(), label));
+    }
+    let all = series.iter().flat_map(|s| of(s).iter().copied()).collect();
+    Some((all, one.to_owned()))
 }
 
 fn square_at(x: i32, y: i32, colour: RGBColor) -> Rectangle<(i32, i32)> {
