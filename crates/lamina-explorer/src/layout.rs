@@ -168,19 +168,7 @@ pub fn menu_bar_ui(
                 if ui.button("Stop   Esc").clicked() {
                     commands.push(Command::Stop);
                 }
-                let error = session
-                    .doc
-                    .first_error()
-                    .map(|p| format!("{}: {}", p.field, p.message));
-                let off = run_on_off_reason(session, error.as_deref());
-                let item = ui.add_enabled(off.is_none(), egui::Button::new("Run on   F6"));
-                let item = match &off {
-                    Some(reason) => item.on_disabled_hover_text(format!("Run on is off: {reason}")),
-                    None => item.on_hover_text(RUN_ON_TIP),
-                };
-                if item.clicked() {
-                    commands.push(Command::RunOn);
-                }
+                run_on_ui(ui, session, "Run on   F6", commands);
             });
             ui.menu_button("Help", |ui| {
                 if ui.button("Keyboard shortcuts   F1").clicked() {
@@ -233,12 +221,32 @@ fn history_item_ui(ui: &mut Ui, verb: &str, label: Option<&str>, shortcut: &str)
 const RUN_ON_TIP: &str =
     "Run on: integrate another span from where the run ended, keeping what it found (F6)";
 
-fn run_buttons_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Command>) {
-    let running = session.is_running();
-    let error = session
+/// The first problem of the scenario, as the Run controls name it.
+fn first_error(session: &Session) -> Option<String> {
+    session
         .doc
         .first_error()
-        .map(|p| format!("{}: {}", p.field, p.message));
+        .map(|p| format!("{}: {}", p.field, p.message))
+}
+
+/// A "Run on" control labelled `text` (the menu item or the toolbar button): disabled with
+/// the reason while a run cannot go on.
+fn run_on_ui(ui: &mut Ui, session: &Session, text: &str, commands: &mut Vec<Command>) {
+    let error = first_error(session);
+    let off = run_on_off_reason(session, error.as_deref());
+    let item = ui.add_enabled(off.is_none(), egui::Button::new(text));
+    let item = match &off {
+        Some(reason) => item.on_disabled_hover_text(format!("Run on is off: {reason}")),
+        None => item.on_hover_text(RUN_ON_TIP),
+    };
+    if item.clicked() {
+        commands.push(Command::RunOn);
+    }
+}
+
+fn run_buttons_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Command>) {
+    let running = session.is_running();
+    let error = first_error(session);
     let run = ui.add_enabled(
         error.is_none(),
         egui::Button::new(RichText::new("Run").strong()),
@@ -259,15 +267,7 @@ fn run_buttons_ui(ui: &mut Ui, session: &Session, commands: &mut Vec<Command>) {
     {
         commands.push(Command::Stop);
     }
-    let run_on_off = run_on_off_reason(session, error.as_deref());
-    let run_on = ui.add_enabled(run_on_off.is_none(), egui::Button::new("Run on"));
-    let run_on = match &run_on_off {
-        Some(reason) => run_on.on_disabled_hover_text(format!("Run on is off: {reason}")),
-        None => run_on.on_hover_text(RUN_ON_TIP),
-    };
-    if run_on.clicked() {
-        commands.push(Command::RunOn);
-    }
+    run_on_ui(ui, session, "Run on", commands);
     if let Some(reason) = error {
         let first_line = reason.lines().next().unwrap_or("").to_string();
         ui.label(
