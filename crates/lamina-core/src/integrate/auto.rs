@@ -69,6 +69,7 @@ impl Integrator {
         }
         self.stepper.rates_changed();
         self.controller = StepRule::for_method(self.stepper.method());
+        self.finite_known = false;
     }
 
     /// Goes back to the start of the last accepted step: time, state and `f` there; the
@@ -89,6 +90,7 @@ impl Integrator {
         segment.coeffs.fill(0.0);
         segment.coeffs[..dim].copy_from_slice(&self.x);
         self.dense_ready = true;
+        self.finite_known = false;
     }
 
     /// Takes back the last accepted step: the integrator stands again at its start, with
@@ -167,6 +169,7 @@ impl Integrator {
     /// step and the step-size history is forgotten; the proposed step size is kept.
     pub fn restart(&mut self) {
         self.f0_valid = false;
+        self.finite_known = false;
         self.stepper.rates_changed();
         self.controller.reset();
     }

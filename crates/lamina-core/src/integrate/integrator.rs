@@ -43,6 +43,10 @@ pub struct Integrator {
     pub(super) h_chosen: bool,
     /// Whether the stepper's first stage holds `f(t, x)`.
     pub(super) f0_valid: bool,
+    /// Whether `x` and `f(t, x)` are known to be finite: true after an accepted step (every
+    /// stepper's attempt and completion check the new state and its rates) or a check by
+    /// [`Integrator::ensure_f0`]; false after anything else changes either.
+    pub(super) finite_known: bool,
     /// The stepper of the method in use.
     pub(super) stepper: Stepper,
     /// With `Automatic`, the stepper of the other method.
@@ -74,6 +78,7 @@ impl Integrator {
             h: 0.0,
             h_chosen: false,
             f0_valid: false,
+            finite_known: false,
             stepper: Stepper::new(method, dim),
             spare: (method == Method::Automatic).then(|| Stepper::stiff_partner(dim)),
             controller: StepRule::for_method(method),
@@ -166,6 +171,7 @@ impl Integrator {
         rates.rates(t0, &self.x, self.stepper.f0_mut());
         self.stats.n_rate_evaluations += 1;
         self.f0_valid = true;
+        self.finite_known = false;
     }
 
     /// One accepted step, never beyond `t_limit` (> t); on `Ok` the dense output of that step
@@ -429,9 +435,15 @@ impl Integrator {
             rates.rates(self.t, &self.x, self.stepper.f0_mut());
             self.stats.n_rate_evaluations += 1;
             self.f0_valid = true;
+            self.finite_known = false;
+        }
+        // after a step both were checked already (most calls)
+        if self.finite_known {
+            return Ok(());
         }
         let finite = |v: &[f64]| v.iter().all(|z| z.is_finite());
         if finite(&self.x) && finite(self.stepper.f0()) {
+            self.finite_known = true;
             Ok(())
         } else {
             Err(StepError::NotFinite { t: self.t })
@@ -458,6 +470,7 @@ impl Integrator {
         self.t = t_end;
         self.stats.n_accepted += 1;
         self.dense_ready = true;
+        self.finite_known = true;
     }
 
     /// As [`Integrator::commit`] for a step without dense output: the segment gets the
@@ -478,6 +491,7 @@ impl Integrator {
         self.t = t_end;
         self.stats.n_accepted += 1;
         self.dense_ready = false;
+        self.finite_known = true;
     }
 }
 

@@ -28,6 +28,8 @@ impl Integrator {
         if from >= dim {
             return Ok(());
         }
+        // a scaled value may overflow: the next step checks again
+        self.finite_known = false;
         let scale = |values: &mut [f64]| values.iter_mut().for_each(|v| *v *= factor);
         scale(&mut self.x[from..]);
         scale(&mut self.x_start[from..]);

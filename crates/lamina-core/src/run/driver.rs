@@ -653,14 +653,18 @@ impl Run {
 
     /// Escape and non-finite checks of a state.
     fn check_state(&self, t: f64, x: &[f64]) -> Option<StopReason> {
+        let escape = self.spec.escape;
+        // one comparison per value on every step: a value that is not finite or past the
+        // escape size fails it (the limit is finite, so an infinite value fails even
+        // without an escape size); only then which of the two
+        let limit = escape.min(f64::MAX);
+        if x.iter().all(|v| v.abs() <= limit) {
+            return None;
+        }
         if x.iter().any(|v| !v.is_finite()) {
             return Some(StopReason::NotFinite { t });
         }
-        let escape = self.spec.escape;
-        if x.iter().any(|v| v.abs() > escape) {
-            return Some(StopReason::Escaped { t, escape });
-        }
-        None
+        Some(StopReason::Escaped { t, escape })
     }
 
     /// Records the cut crossing and strobe samples of the step just taken, building the
