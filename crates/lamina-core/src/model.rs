@@ -163,6 +163,11 @@ impl Rates for Model {
     fn dim(&self) -> usize {
         self.start.len()
     }
+
+    /// The kernel's machine code, where the rates run as that.
+    fn machine_call(&self) -> Option<crate::expr::MachineCall<'_>> {
+        self.kernel.as_ref()?.machine_call()
+    }
     #[inline(always)]
     fn rates(&mut self, t: f64, x: &[f64], dx: &mut [f64]) {
         match &mut self.kernel {

@@ -274,3 +274,27 @@ fn kernels_move_between_threads() {
     fn send_and_share<T: Send + Sync>() {}
     send_and_share::<lamina_core::expr::DirectionalKernel>();
 }
+
+#[test]
+fn an_infinite_slope_along_a_zero_entry_leaves_the_derivative_finite() {
+    // [analytic] f = x^0.7 + 2 y at x = 0: df/dx = 0.7 x^-0.3 is infinite, but along
+    // q = (0, 1) the derivative is (skipped) + 2 * 1 = 2, as the reference's skipping of zero
+    // entries gives; the kernel's plain sums meet inf * 0 there and must hand over to its
+    // careful form
+    let n = names(&["x", "y"], &[]);
+    let program = Program::compile(&n, &[("f".into(), "x^0.7 + 2*y")]).expect("compiles");
+    let kernel = program.directional_kernel(1).expect("machine code");
+    let input = [0.0, 0.5, 0.0, 1.0];
+    let mut out = [0.0; 2];
+    assert!(kernel.eval(0.0, &input, &[], &mut out));
+    let mut scratch = program.scratch();
+    let mut reference = [0.0; 2];
+    program.directional_reference(&mut scratch, 0.0, &input, &[], 1, &mut reference);
+    assert_eq!(out[1], 2.0);
+    assert!(same(out[0], reference[0]) && same(out[1], reference[1]));
+    // along q = (1, 1) the slope itself is infinite, in both forms
+    let input = [0.0, 0.5, 1.0, 1.0];
+    assert!(kernel.eval(0.0, &input, &[], &mut out));
+    program.directional_reference(&mut scratch, 0.0, &input, &[], 1, &mut reference);
+    assert!(out[1].is_infinite() && same(out[1], reference[1]));
+}

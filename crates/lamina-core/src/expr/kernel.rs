@@ -1,7 +1,7 @@
 //! The closure evaluator, a [`Plan`] whose trees are compiled into closures, and the
 //! [`Kernel`], a program with fixed parameter values: machine code or closures.
 
-use super::native::NativeCode;
+use super::native::{MachineCall, NativeCode};
 use super::nodes::{Node, Root, compile};
 use super::plan::{Plan, Registers, Tree, registers};
 
@@ -203,6 +203,15 @@ impl Kernel {
                 compiled,
                 registers,
             } => compiled.eval(registers, t, x, &[], out),
+        }
+    }
+
+    /// The kernel's machine code with its parameter values as one call, looked up once for
+    /// many evaluations; `None` for closures.
+    pub fn machine_call(&self) -> Option<MachineCall<'_>> {
+        match &self.form {
+            Form::Native { code, parameters } => code.call_with(parameters),
+            Form::Closures { .. } => None,
         }
     }
 

@@ -25,6 +25,7 @@ pub use directional::DirectionalKernel;
 pub use error::{CompileError, ExprError, ExprErrorKind};
 pub use functions::{CONSTANTS, FUNCTIONS, is_reserved};
 pub use kernel::Kernel;
+pub use native::MachineCall;
 pub use plan::N_REGISTERS;
 pub use program::{Program, Scratch};
 pub use switches::{Branch, Switch, SwitchKind};

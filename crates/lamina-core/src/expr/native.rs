@@ -18,6 +18,7 @@
 
 use std::sync::{Arc, Mutex};
 
+use cranelift_codegen::ir::condcodes::FloatCC;
 use cranelift_codegen::ir::types::{F64, I32};
 use cranelift_codegen::ir::{AbiParam, FuncRef, InstBuilder, MemFlagsData, UserFuncName, Value};
 use cranelift_codegen::settings::{self, Configurable};
@@ -89,7 +90,7 @@ impl NativeCode {
         let n_outputs = outputs.len().checked_mul(n_states)?;
         Self::build(instrs, n_outputs, n_states, n_parameters, |g| {
             let values = g.values(instrs)?;
-            let tangents = tangents(g, instrs, &values, |g, i| {
+            let tangents = tangents(g, instrs, &values, true, |g, i| {
                 let one = g.b.ins().f64const(1.0);
                 Some(Sparse::new(vec![(i, one)]))
             })?;
@@ -114,6 +115,14 @@ impl NativeCode {
     /// outputs are those of [`Self::compile`] bit for bit (the same values are emitted); the
     /// derivatives agree with the Jacobian times the vectors to rounding (summed in another
     /// order).
+    ///
+    ///
+    /// The derivatives are first formed with plain sums of products; only where one of them
+    /// is not finite (a coefficient that is, say, the infinite slope of a square root at
+    /// zero, times a zero entry) are they formed again with the reference's rule that a zero
+    /// entry in a sum is skipped, which costs a comparison and a choice for every product.
+    /// Where the plain ones are finite, both are the same bit for bit (see
+    /// [`super::native_tangent::tangents`]).
     pub(super) fn compile_directional(
         instrs: &[Instr],
         outputs: &[u32],
@@ -126,7 +135,7 @@ impl NativeCode {
         let n_out = outputs.len();
         Self::build(instrs, n_outputs, n_inputs, n_parameters, |g| {
             let values = g.values(instrs)?;
-            let tangents = tangents(g, instrs, &values, |g, i| {
+            let mut seed = |g: &mut Gen<'_, '_>, i: u32| {
                 let entries = (0..m)
                     .map(|k| {
                         let at = (k + 1).checked_mul(n_states)?.checked_add(i as usize)?;
@@ -134,18 +143,44 @@ impl NativeCode {
                     })
                     .collect::<Option<Vec<_>>>()?;
                 Some(Sparse::new(entries))
-            })?;
+            };
             let zero = g.b.ins().f64const(0.0);
-            for (row, &o) in outputs.iter().enumerate() {
-                let v = values.get(o as usize).copied()?;
-                g.store(v, row)?;
-                let tangent = tangents.get(o as usize)?;
+            let plain = tangents(g, instrs, &values, false, &mut seed)?;
+            // v - v is zero for a finite value and NaN for any other: one sum to test
+            let mut test = zero;
+            for &o in outputs {
+                let tangent = plain.get(o as usize)?;
                 for k in 0..m {
-                    let v = tangent.get(k).unwrap_or(zero);
-                    g.store(v, (k + 1) * n_out + row)?;
+                    if let Some(v) = tangent.get(k) {
+                        let difference = g.b.ins().fsub(v, v);
+                        test = g.b.ins().fadd(test, difference);
+                    }
                 }
             }
-            Some(())
+            let finite = g.b.ins().fcmp(FloatCC::Equal, test, zero);
+            let store_plain = g.b.create_block();
+            let again = g.b.create_block();
+            g.b.ins().brif(finite, store_plain, &[], again, &[]);
+            g.b.seal_block(store_plain);
+            g.b.seal_block(again);
+            let store = |g: &mut Gen<'_, '_>, tangents: &[Sparse]| -> Option<()> {
+                for (row, &o) in outputs.iter().enumerate() {
+                    let v = values.get(o as usize).copied()?;
+                    g.store(v, row)?;
+                    let tangent = tangents.get(o as usize)?;
+                    for k in 0..m {
+                        let v = tangent.get(k).unwrap_or(zero);
+                        g.store(v, (k + 1) * n_out + row)?;
+                    }
+                }
+                Some(())
+            };
+            g.b.switch_to_block(store_plain);
+            store(g, &plain)?;
+            g.b.ins().return_(&[]);
+            g.b.switch_to_block(again);
+            let careful = tangents(g, instrs, &values, true, &mut seed)?;
+            store(g, &careful)
         })
     }
 
@@ -219,6 +254,17 @@ impl NativeCode {
         Arc::ptr_eq(&self.owner, &other.owner)
     }
 
+    /// The code with `parameters` as one call ([`MachineCall`]); `None` when `parameters` is
+    /// shorter than the code reads.
+    pub(super) fn call_with<'a>(&'a self, parameters: &'a [f64]) -> Option<MachineCall<'a>> {
+        (parameters.len() >= self.n_parameters).then_some(MachineCall {
+            entry: self.entry,
+            n_states: self.n_states,
+            n_outputs: self.n_outputs,
+            parameters,
+        })
+    }
+
     /// Evaluates every output into `out`. Returns `false` (and evaluates nothing) when a slice
     /// is shorter than the program needs.
     #[inline(always)]
@@ -228,6 +274,40 @@ impl NativeCode {
         }
         (self.entry)(x.as_ptr(), p.as_ptr(), t, out.as_mut_ptr());
         true
+    }
+}
+
+/// A program's machine code with its parameter values, looked up and checked once, for a
+/// caller that evaluates it many times in a row (the stages of a step): each evaluation is
+/// then two length comparisons and one call, without going through the kernel (or the
+/// tangent system) and its checks every time.
+#[derive(Clone, Copy)]
+pub struct MachineCall<'a> {
+    entry: Entry,
+    n_states: usize,
+    n_outputs: usize,
+    parameters: &'a [f64],
+}
+
+impl MachineCall<'_> {
+    /// Evaluates every output at `(t, x)` into `out` (NaN in every output when `x` or `out`
+    /// is shorter than the program needs), as the kernel it came from does.
+    #[inline(always)]
+    pub fn eval(&self, t: f64, x: &[f64], out: &mut [f64]) {
+        if x.len() < self.n_states || out.len() < self.n_outputs {
+            out.fill(f64::NAN);
+            return;
+        }
+        (self.entry)(x.as_ptr(), self.parameters.as_ptr(), t, out.as_mut_ptr());
+    }
+}
+
+impl std::fmt::Debug for MachineCall<'_> {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("MachineCall")
+            .field("n_states", &self.n_states)
+            .field("n_outputs", &self.n_outputs)
+            .finish_non_exhaustive()
     }
 }
 

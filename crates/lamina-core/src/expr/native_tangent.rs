@@ -33,11 +33,16 @@ impl Sparse {
 }
 
 /// Emits the tangent of every instruction given their `values`; `seed(g, i)` emits the tangent
-/// of state `i`.
+/// of state `i`. `careful` keeps the reference's skipping of zero entries in sums (so that a
+/// zero entry stays zero even where its coefficient is infinite or not a number); without it
+/// a sum's entries are the plain sums of products, bit for bit the careful ones wherever the
+/// coefficients are finite (and not finite where one that meets a zero entry is not: the
+/// caller then takes the careful form).
 pub(super) fn tangents(
     g: &mut Gen<'_, '_>,
     instrs: &[Instr],
     values: &[Value],
+    careful: bool,
     mut seed: impl FnMut(&mut Gen<'_, '_>, u32) -> Option<Sparse>,
 ) -> Option<Vec<Sparse>> {
     let mut tangents: Vec<Sparse> = Vec::with_capacity(instrs.len());
@@ -59,22 +64,22 @@ pub(super) fn tangents(
                 } else {
                     g.b.ins().f64const(-1.0)
                 };
-                combine2(g, &tan(a)?, one, &tan(b)?, cb)
+                combine2(g, &tan(a)?, one, &tan(b)?, cb, careful)
             }
-            Instr::Mul(a, b) => combine2(g, &tan(a)?, val(b)?, &tan(b)?, val(a)?),
+            Instr::Mul(a, b) => combine2(g, &tan(a)?, val(b)?, &tan(b)?, val(a)?, careful),
             Instr::Div(a, b) => {
                 let one = g.b.ins().f64const(1.0);
                 let inv = g.b.ins().fdiv(one, val(b)?);
                 let q = g.b.ins().fmul(this, inv);
                 let cb = g.b.ins().fneg(q);
-                combine2(g, &tan(a)?, inv, &tan(b)?, cb)
+                combine2(g, &tan(a)?, inv, &tan(b)?, cb, careful)
             }
             Instr::Rem(a, b) => {
                 let one = g.b.ins().f64const(1.0);
                 let q = g.b.ins().fdiv(val(a)?, val(b)?);
                 let q = g.b.ins().trunc(q);
                 let cb = g.b.ins().fneg(q);
-                combine2(g, &tan(a)?, one, &tan(b)?, cb)
+                combine2(g, &tan(a)?, one, &tan(b)?, cb, careful)
             }
             Instr::Pow(a, b) => {
                 let (base, exponent) = (val(a)?, val(b)?);
@@ -100,7 +105,7 @@ pub(super) fn tangents(
                     let term = g.b.ins().fmul(this, ln);
                     g.b.ins().select(varies?, term, zero)
                 };
-                combine2(g, &tan(a)?, da, &tb, db)
+                combine2(g, &tan(a)?, da, &tb, db, careful)
             }
             Instr::PowI(a, n) => {
                 let d = if n == 0 {
@@ -127,7 +132,7 @@ pub(super) fn tangents(
                         .iconst(cranelift_codegen::ir::types::I32, number as i64);
                 let da = g.call(Call::D2a, &[number, val(a)?, val(b)?])?;
                 let db = g.call(Call::D2b, &[number, val(a)?, val(b)?])?;
-                combine2(g, &tan(a)?, da, &tan(b)?, db)
+                combine2(g, &tan(a)?, da, &tan(b)?, db, careful)
             }
         };
         tangents.push(out);
@@ -135,7 +140,8 @@ pub(super) fn tangents(
     Some(tangents)
 }
 
-/// `ca * a` where `a` is not zero, else 0 (as `tangent::combine1`).
+/// `ca * a` where `a` is not zero, else 0 (as `tangent::combine1`), in both forms: the
+/// product of a zero entry may be -0, where the skipping gives +0.
 fn combine1(g: &mut Gen<'_, '_>, ta: &Sparse, ca: Value) -> Sparse {
     let zero = g.b.ins().f64const(0.0);
     let mut out = Vec::with_capacity(ta.0.len());
@@ -148,8 +154,17 @@ fn combine1(g: &mut Gen<'_, '_>, ta: &Sparse, ca: Value) -> Sparse {
 }
 
 /// `0 (+ ca * a where a is not zero) (+ cb * b where b is not zero)`, in that order (as
-/// `tangent::combine2`), over the union of both tangents' states.
-fn combine2(g: &mut Gen<'_, '_>, ta: &Sparse, ca: Value, tb: &Sparse, cb: Value) -> Sparse {
+/// `tangent::combine2`), over the union of both tangents' states; not `careful`, the plain
+/// `0 + ca * a + cb * b` of the entries there, the same value wherever the coefficients are
+/// finite.
+fn combine2(
+    g: &mut Gen<'_, '_>,
+    ta: &Sparse,
+    ca: Value,
+    tb: &Sparse,
+    cb: Value,
+    careful: bool,
+) -> Sparse {
     let zero = g.b.ins().f64const(0.0);
     let mut out = Vec::with_capacity(ta.0.len() + tb.0.len());
     let (mut i, mut k) = (0, 0);
@@ -175,6 +190,19 @@ fn combine2(g: &mut Gen<'_, '_>, ta: &Sparse, ca: Value, tb: &Sparse, cb: Value)
             }
             (None, None) => break,
         };
+        if !careful {
+            // from zero as the careful sum: a sum that starts at +0 is never -0, so a zero
+            // entry's product (+0 or -0 with a finite coefficient) leaves it as skipping would
+            let mut v = zero;
+            for (e, c) in [(a, ca), (b, cb)] {
+                if let Some(e) = e {
+                    let product = g.b.ins().fmul(c, e);
+                    v = g.b.ins().fadd(v, product);
+                }
+            }
+            out.push((j, v));
+            continue;
+        }
         let mut v = zero;
         if let Some(a) = a {
             v = term(g, v, a, ca, zero);

@@ -132,6 +132,30 @@ pub trait Rates {
         let _ = (t, x);
         jacobian.fill(0.0);
     }
+
+    /// The rates as one call of machine code, when [`Rates::rates`] is exactly that call
+    /// (a model's machine code with its parameter values): a stepper then makes its stage
+    /// evaluations through it directly, to the same results. `None` (the default) otherwise.
+    fn machine_call(&self) -> Option<crate::expr::MachineCall<'_>> {
+        None
+    }
+}
+
+/// Rates made by one [`crate::expr::MachineCall`], for the stepper's stages.
+pub(crate) struct DirectRates<'a> {
+    pub(crate) call: crate::expr::MachineCall<'a>,
+    pub(crate) dim: usize,
+}
+
+impl Rates for DirectRates<'_> {
+    fn dim(&self) -> usize {
+        self.dim
+    }
+
+    #[inline(always)]
+    fn rates(&mut self, t: f64, x: &[f64], dx: &mut [f64]) {
+        self.call.eval(t, x, dx);
+    }
 }
 
 /// Where a system of variational equations keeps its parts: the model's `n` states first,
