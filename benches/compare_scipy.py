@@ -12,8 +12,8 @@
    over the span (Lamina's work per cell, the vector again left out of the error control),
    and their ratios.
 
-Each side runs REPEATS times and its best rate counts, so that another busy process on the
-machine disturbs the ratio less.
+Each side runs REPEATS times, the two taking turns, and its best rate counts, so that another
+busy process on the machine disturbs the ratio less (and a busy spell slows both sides).
 
 SciPy is needed only for this comparison, never for the tests:
     python3 -m venv /tmp/venv-scipy && /tmp/venv-scipy/bin/pip install scipy
@@ -163,16 +163,24 @@ def main():
     if not os.path.exists(LAMINA):
         sys.exit(f"build first: cargo build --release (looked for {LAMINA})")
     repeats = int(sys.argv[1]) if len(sys.argv) > 1 else 3
-    n_l, cpu_l = min((lamina_rate() for _ in range(repeats)), key=lambda r: r[1] / r[0])
-    n_s, cpu_s, evals = min((scipy_rate() for _ in range(repeats)), key=lambda r: r[1] / r[0])
+    # the two sides take turns, so that a busy spell of the machine slows both alike
+    lamina_runs, scipy_runs = [], []
+    for _ in range(repeats):
+        lamina_runs.append(lamina_rate())
+        scipy_runs.append(scipy_rate())
+    n_l, cpu_l = min(lamina_runs, key=lambda r: r[1] / r[0])
+    n_s, cpu_s, evals = min(scipy_runs, key=lambda r: r[1] / r[0])
     rate_l, rate_s = n_l / cpu_l, n_s / cpu_s
     print(f"best of {repeats} runs each")
     print(f"lamina cut:    {n_l} crossings in {cpu_l:.3f} CPU-s: {rate_l:.0f} per CPU-second (process start and CSV output included)")
     print(f"scipy DOP853:  {n_s} crossings in {cpu_s:.3f} CPU-s: {rate_s:.0f} per CPU-second, {evals:.0f} evaluations per crossing")
     print(f"lamina/scipy: {rate_l / rate_s:.0f}")
-    cell_l = min(lamina_cell_seconds() for _ in range(repeats))
-    cell_s = min(scipy_cell_seconds(False) for _ in range(repeats))
-    cell_e = min(scipy_cell_seconds(True) for _ in range(repeats))
+    cells_l, cells_s, cells_e = [], [], []
+    for _ in range(repeats):
+        cells_l.append(lamina_cell_seconds())
+        cells_s.append(scipy_cell_seconds(False))
+        cells_e.append(scipy_cell_seconds(True))
+    cell_l, cell_s, cell_e = min(cells_l), min(cells_s), min(cells_e)
     print(f"lamina map:    {cell_l * 1e3:.2f} CPU-ms per cell (64 cells, process start included, largest exponent included)")
     print(f"scipy DOP853:  {cell_s * 1e3:.1f} CPU-ms per cell ({len(MAP_SUBSET)} cells, settle + span with events + repeat test)")
     print(f"               {cell_e * 1e3:.1f} CPU-ms per cell with the tangent vector riding over the span for the largest exponent, as Lamina does")
