@@ -116,7 +116,6 @@ impl NativeCode {
     /// derivatives agree with the Jacobian times the vectors to rounding (summed in another
     /// order).
     ///
-    ///
     /// The derivatives are first formed with plain sums of products; only where one of them
     /// is not finite (a coefficient that is, say, the infinite slope of a square root at
     /// zero, times a zero entry) are they formed again with the reference's rule that a zero

@@ -3,7 +3,7 @@
 //! step, evaluated only when that output is wanted.
 
 use super::dop853_tableau::*;
-use super::{DirectRates, ErrorScale, Rates};
+use super::{ErrorScale, Rates};
 
 /// Number of coefficient vectors of the interpolant.
 pub(super) const N_TERMS: usize = 8;
@@ -102,26 +102,6 @@ impl Dop853 {
     #[inline]
     #[allow(clippy::too_many_arguments)]
     pub(super) fn attempt<R: Rates + ?Sized>(
-        &mut self,
-        rates: &mut R,
-        t: f64,
-        x: &[f64],
-        h: f64,
-        scale: ErrorScale,
-        n_rate_evaluations: &mut u64,
-    ) -> f64 {
-        // rates that are one call of machine code are called directly, without looking the
-        // code up again for every stage
-        if let Some(call) = rates.machine_call() {
-            let mut direct = DirectRates { call, dim: x.len() };
-            return self.attempt_any_processor(&mut direct, t, x, h, scale, n_rate_evaluations);
-        }
-        self.attempt_any_processor(rates, t, x, h, scale, n_rate_evaluations)
-    }
-
-    /// [`Dop853::attempt`] compiled for the processor's instructions.
-    #[inline(always)]
-    fn attempt_any_processor<R: Rates + ?Sized>(
         &mut self,
         rates: &mut R,
         t: f64,

@@ -143,8 +143,15 @@ pub trait Rates {
 
 /// Rates made by one [`crate::expr::MachineCall`], for the stepper's stages.
 pub(crate) struct DirectRates<'a> {
-    pub(crate) call: crate::expr::MachineCall<'a>,
-    pub(crate) dim: usize,
+    call: crate::expr::MachineCall<'a>,
+    dim: usize,
+}
+
+impl<'a> DirectRates<'a> {
+    /// The rates of `call` for states like `x`.
+    pub(crate) fn new(call: crate::expr::MachineCall<'a>, x: &[f64]) -> Self {
+        Self { call, dim: x.len() }
+    }
 }
 
 impl Rates for DirectRates<'_> {

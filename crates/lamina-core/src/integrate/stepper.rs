@@ -3,7 +3,7 @@
 use super::dop853::{self, Dop853};
 use super::dp5::{self, Dp5};
 use super::rodas::{self, Rodas};
-use super::{ErrorScale, Method, Rates, Stats};
+use super::{DirectRates, ErrorScale, Method, Rates, Stats};
 
 /// The stage storage of one method (enum dispatch, no allocation per step).
 // one or two per integrator, so the size difference of the variants does not matter
@@ -172,10 +172,18 @@ impl Stepper {
         scale: ErrorScale,
         stats: &mut Stats,
     ) -> f64 {
-        let n_rate_evaluations = &mut stats.n_rate_evaluations;
+        // the explicit pairs only evaluate the rates: where those are one call of machine
+        // code, their stages make it directly instead of looking it up again for each
+        let n = &mut stats.n_rate_evaluations;
         match self {
-            Self::Dp5(s) => s.attempt(rates, t, x, h, scale, n_rate_evaluations),
-            Self::Dp853(s) => s.attempt(rates, t, x, h, scale, n_rate_evaluations),
+            Self::Dp5(s) => match rates.machine_call() {
+                Some(call) => s.attempt(&mut DirectRates::new(call, x), t, x, h, scale, n),
+                None => s.attempt(rates, t, x, h, scale, n),
+            },
+            Self::Dp853(s) => match rates.machine_call() {
+                Some(call) => s.attempt(&mut DirectRates::new(call, x), t, x, h, scale, n),
+                None => s.attempt(rates, t, x, h, scale, n),
+            },
             Self::Rodas(s) => s.attempt(rates, t, x, h, scale, stats),
         }
     }
