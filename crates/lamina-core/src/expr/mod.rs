@@ -4,6 +4,7 @@
 //! forward-mode derivatives from it (also as machine code along given vectors), and its
 //! switching functions.
 
+mod affine;
 mod compile;
 mod directional;
 mod error;

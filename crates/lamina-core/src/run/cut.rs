@@ -2,6 +2,7 @@
 //! location of crossings on a step's dense output.
 
 use super::graze::{self, Bracket, Turns};
+use super::level_plane::LevelPlane;
 use super::root::{brent, newton_bracketed};
 use super::{CutSpec, SpecError, SurfaceSpec};
 use crate::expr::{Program, Scratch};
@@ -61,6 +62,9 @@ pub struct Cut {
     /// Which crossings count.
     pub direction: Direction,
     scratch: Scratch,
+    /// For a level surface affine in the states and free of `t`, the plane it is at the
+    /// run's parameters: every value, slope and crossing is then taken as for a plane.
+    level_plane: Option<Box<LevelPlane>>,
 }
 
 impl Cut {
@@ -70,6 +74,7 @@ impl Cut {
             surface: Surface::Plane { normal, offset },
             direction,
             scratch: Scratch::default(),
+            level_plane: None,
         }
     }
 
@@ -97,6 +102,8 @@ impl Cut {
                 let program =
                     Program::compile(names, &[("cut surface".to_string(), expression.as_str())])?;
                 let scratch = program.scratch();
+                let level_plane = (program.is_affine_in_states() && !program.uses_time())
+                    .then(Box::<LevelPlane>::default);
                 Ok(Self {
                     surface: Surface::Level {
                         program,
@@ -104,7 +111,24 @@ impl Cut {
                     },
                     direction: spec.direction,
                     scratch,
+                    level_plane,
                 })
+            }
+        }
+    }
+
+    /// The plane `normal . x = offset` this cut is at `parameters`: a plane's own, or that of
+    /// a level surface affine in the states (`None` for any other level surface). Live runs,
+    /// re-slices and the cycle search all take a plane's arithmetic from here, so that they
+    /// agree to the last bit on which steps cross.
+    #[inline]
+    pub(crate) fn as_plane(&mut self, parameters: &[f64]) -> Option<(&[f64], f64)> {
+        match &self.surface {
+            Surface::Plane { normal, offset } => Some((normal, *offset)),
+            Surface::Level { program, .. } => {
+                self.level_plane
+                    .as_mut()?
+                    .at(program, &mut self.scratch, parameters)
             }
         }
     }
@@ -114,21 +138,28 @@ impl Cut {
     pub fn value(&mut self, t: f64, x: &[f64], parameters: &[f64]) -> f64 {
         match &self.surface {
             Surface::Plane { normal, offset } => plane_value(normal, *offset, x),
-            Surface::Level { program, .. } => program.eval_one(&mut self.scratch, t, x, parameters),
+            Surface::Level { program, .. } => {
+                if let Some(level_plane) = self.level_plane.as_mut()
+                    && let Some((normal, offset)) =
+                        level_plane.at(program, &mut self.scratch, parameters)
+                {
+                    return plane_value(normal, offset, x);
+                }
+                program.eval_one(&mut self.scratch, t, x, parameters)
+            }
         }
     }
 
     /// Gradient of `g` with respect to the states at `(t, x)` into `out` (length of `x`).
     pub fn gradient(&mut self, t: f64, x: &[f64], parameters: &[f64], out: &mut [f64]) {
-        match &self.surface {
-            Surface::Plane { normal, .. } => {
-                for (o, &w) in out.iter_mut().zip(normal) {
-                    *o = w;
-                }
+        if let Some((normal, _)) = self.as_plane(parameters) {
+            for (o, &w) in out.iter_mut().zip(normal) {
+                *o = w;
             }
-            Surface::Level { program, .. } => {
-                program.jacobian(&mut self.scratch, t, x, parameters, out);
-            }
+            return;
+        }
+        if let Surface::Level { program, .. } = &self.surface {
+            program.jacobian(&mut self.scratch, t, x, parameters, out);
         }
     }
 
@@ -138,6 +169,12 @@ impl Cut {
         match &self.surface {
             Surface::Plane { normal, .. } => normal.iter().zip(rates).map(|(n, f)| n * f).sum(),
             Surface::Level { program, .. } => {
+                if let Some(level_plane) = self.level_plane.as_mut()
+                    && let Some((normal, _)) =
+                        level_plane.at(program, &mut self.scratch, parameters)
+                {
+                    return normal.iter().zip(rates).map(|(n, f)| n * f).sum();
+                }
                 let mut small = [0.0; 16];
                 let mut large = Vec::new();
                 let gradient = if x.len() <= small.len() {
@@ -174,7 +211,7 @@ impl Cut {
         state: &mut [f64],
     ) -> Turns {
         let dim = start.len();
-        if let Surface::Plane { normal, .. } = &self.surface {
+        if let Some((normal, _)) = self.as_plane(parameters) {
             // the interpolant's slopes at the ends need its first three terms after the
             // start only: c1 + c2 at s = 0 and c1 - c2 - c3 at s = 1 (the nested form)
             let project = |j: usize| -> f64 {
@@ -217,8 +254,8 @@ impl Cut {
         out: &mut [Bracket; 3],
     ) -> usize {
         let dim = start.len();
-        if let Surface::Plane { normal, offset } = &self.surface
-            && let Some(g) = ProjectedPlane::new(normal, *offset, start, terms)
+        if let Some((normal, offset)) = self.as_plane(parameters)
+            && let Some(g) = ProjectedPlane::new(normal, offset, start, terms)
         {
             return graze::brackets(|s| g.value_and_slope(s).0, g0, g1, turns, out);
         }
@@ -248,23 +285,21 @@ impl Cut {
     ) -> f64 {
         let dim = start.len();
         let Bracket { a, b, ga, gb } = *bracket;
-        let s = match &self.surface {
-            Surface::Plane { normal, offset } => {
-                match ProjectedPlane::new(normal, *offset, start, terms) {
-                    Some(g) => newton_bracketed(|s| g.value_and_slope(s), a, b, ga, gb),
-                    None => brent(
-                        |s| {
-                            eval_split(start, terms, dim, s, state);
-                            plane_value(normal, *offset, state)
-                        },
-                        a,
-                        b,
-                        ga,
-                        gb,
-                    ),
-                }
-            }
-            Surface::Level { .. } => brent(
+        let s = match self.as_plane(parameters) {
+            Some((normal, offset)) => match ProjectedPlane::new(normal, offset, start, terms) {
+                Some(g) => newton_bracketed(|s| g.value_and_slope(s), a, b, ga, gb),
+                None => brent(
+                    |s| {
+                        eval_split(start, terms, dim, s, state);
+                        plane_value(normal, offset, state)
+                    },
+                    a,
+                    b,
+                    ga,
+                    gb,
+                ),
+            },
+            None => brent(
                 |s| {
                     eval_split(start, terms, dim, s, state);
                     self.value(t0 + s * h, state, parameters)
@@ -313,11 +348,11 @@ impl Cut {
         state: &mut [f64],
     ) -> f64 {
         let dim = start.len();
-        let s = match &self.surface {
-            Surface::Plane { normal, offset } => {
-                return locate_on_plane(normal, *offset, start, terms, t0, h, g0, g1, state);
+        let s = match self.as_plane(parameters) {
+            Some((normal, offset)) => {
+                return locate_on_plane(normal, offset, start, terms, t0, h, g0, g1, state);
             }
-            Surface::Level { .. } => brent(
+            None => brent(
                 |s| {
                     eval_split(start, terms, dim, s, state);
                     self.value(t0 + s * h, state, parameters)

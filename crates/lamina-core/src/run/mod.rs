@@ -4,6 +4,7 @@
 mod cut;
 mod driver;
 pub(crate) mod graze;
+mod level_plane;
 mod plane_scan;
 pub(crate) mod root;
 mod spec;

@@ -5,7 +5,7 @@ use std::ops::ControlFlow;
 
 use super::graze::{self, Bracket};
 use super::plane_scan;
-use super::{Cut, CutPoint, Strobe, StrobeSample, Surface};
+use super::{Cut, CutPoint, Strobe, StrobeSample};
 use crate::integrate::DenseSegment;
 use crate::integrate::dense::eval_split;
 
@@ -178,7 +178,7 @@ impl StoredRun {
             point.state.copy_from_slice(state);
             each(&point)
         };
-        if let Surface::Plane { .. } = &cut.surface {
+        if cut.as_plane(parameters).is_some() {
             self.reslice_plane(cut, parameters, &mut emit);
             return;
         }
@@ -282,10 +282,11 @@ impl StoredRun {
         emit: &mut impl FnMut(f64, &[f64]) -> ControlFlow<()>,
     ) {
         let dim = self.dim;
-        let Surface::Plane { normal, offset } = &cut.surface else {
+        let direction = cut.direction;
+        let Some((normal, offset)) = cut.as_plane(parameters) else {
             return;
         };
-        let (normal, offset, direction) = (normal.clone(), *offset, cut.direction);
+        let (normal, offset) = (normal.to_vec(), offset);
         if self.t0.is_empty() || dim == 0 || normal.len() != dim {
             return;
         }

@@ -36,8 +36,8 @@ pub(super) enum Timing {
 /// What the orbit records at each branch point.
 #[derive(Clone, Debug)]
 pub(super) enum Recording {
-    /// Its crossings of the cut.
-    Cut(Cut),
+    /// Its crossings of the cut (boxed: a cut is large beside the other kinds).
+    Cut(Box<Cut>),
     /// Its strobe samples.
     Strobe,
     /// Nothing but itself.
@@ -118,7 +118,7 @@ impl OrbitProblem {
     ) -> Result<Self, crate::run::SpecError> {
         let n = model.dim();
         let (timing, recording) = match map {
-            OrbitMap::Cut(cut) => (Timing::Autonomous, Recording::Cut(cut.clone())),
+            OrbitMap::Cut(cut) => (Timing::Autonomous, Recording::Cut(Box::new(cut.clone()))),
             OrbitMap::Flow => (Timing::Autonomous, Recording::Nothing),
             OrbitMap::Strobe(spec) => {
                 let period = Program::compile(
