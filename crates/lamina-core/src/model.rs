@@ -61,6 +61,22 @@ pub struct Model {
 impl Model {
     /// Compiles every rate of `spec`; errors are labelled `state NAME rate`.
     pub fn compile(spec: &ModelSpec) -> Result<Self, CompileError> {
+        Self::compile_with(spec, Program::specialise)
+    }
+
+    /// [`Model::compile`] without making machine code: the rates run by the closure evaluator
+    /// (the same numbers bit for bit), for a model evaluated only a few times, such as the
+    /// checks of a scenario, where making the code would cost more than it saves. A
+    /// [`Model::set_parameter`] makes the code after all.
+    pub fn compile_plain(spec: &ModelSpec) -> Result<Self, CompileError> {
+        Self::compile_with(spec, Program::specialise_closures)
+    }
+
+    /// Compiles `spec` with the kernel made by `kernel` from the program and the parameters.
+    fn compile_with(
+        spec: &ModelSpec,
+        kernel: fn(&Program, &[f64]) -> Option<Kernel>,
+    ) -> Result<Self, CompileError> {
         let names = spec.names();
         let sources: Vec<(String, &str)> = spec
             .states
@@ -72,7 +88,7 @@ impl Model {
         let parameters: Vec<f64> = spec.parameters.iter().map(|p| p.value).collect();
         Ok(Self {
             names,
-            kernel: program.specialise(&parameters),
+            kernel: kernel(&program, &parameters),
             program,
             parameters,
             start: spec.states.iter().map(|s| s.start).collect(),

@@ -335,6 +335,14 @@ fn free(module: JITModule) {
 fn new_module() -> Option<JITModule> {
     let mut flags = settings::builder();
     flags.set("opt_level", "speed").ok()?;
+    // the generated functions are checked where the tests run (debug builds); a release
+    // build skips the check, which took about an eighth of the time to make the code
+    let verify = if cfg!(debug_assertions) {
+        "true"
+    } else {
+        "false"
+    };
+    flags.set("enable_verifier", verify).ok()?;
     // long-range calls and absolute addresses, as the JIT needs (see `JITBuilder::with_flags`)
     flags.set("use_colocated_libcalls", "false").ok()?;
     flags.set("is_pic", "false").ok()?;

@@ -1,5 +1,6 @@
 //! The compiled evaluation program: one straight-line instruction list for all outputs.
 
+use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::{Arc, Mutex, OnceLock};
 
 use super::compile::{Builder, compile_expression};
@@ -9,6 +10,10 @@ use super::lower::lower;
 use super::native::NativeCode;
 use super::plan::{Registers, registers};
 use super::{CompileError, Names};
+
+/// How many Jacobians a program and its clones take without machine code before it is made
+/// (making it costs about as much as a few thousand of them for a small model).
+const JACOBIANS_BEFORE_CODE: usize = 256;
 
 /// Working memory of a [`Program`]; one per thread, made by [`Program::scratch`].
 #[derive(Clone, Debug, Default)]
@@ -48,6 +53,8 @@ pub struct Program {
     /// map or a sweep clones the model for every cell or value, and making the code again for
     /// each cost more than a cell's exponent.
     native_jacobian: SharedCode,
+    /// Jacobians asked of this program and its clones before its machine code was made.
+    jacobians_asked: Arc<AtomicUsize>,
     /// Machine code of the outputs with their derivatives along `m` vectors, one per `m`
     /// asked for, made on the first [`Program::directional_kernel`] of this program or any
     /// clone with that `m`, then shared by all (as the Jacobian's code).
@@ -118,6 +125,7 @@ impl Program {
             fast,
             native: SharedCode::default(),
             native_jacobian: SharedCode::default(),
+            jacobians_asked: Arc::default(),
             native_directional: SharedDirectional::default(),
             instrs: kept,
             outputs,
@@ -182,6 +190,14 @@ impl Program {
     /// The program's machine code, made on the first call; `None` if the host has none.
     fn native_code(&self) -> Option<NativeCode> {
         self.made_once(&self.native, NativeCode::compile).cloned()
+    }
+
+    /// Whether a Jacobian is still to be taken without machine code: true for the first
+    /// [`JACOBIANS_BEFORE_CODE`] asked of this program and its clones.
+    #[inline]
+    pub(super) fn jacobian_before_code(&self) -> bool {
+        self.native_jacobian.get().is_none()
+            && self.jacobians_asked.fetch_add(1, Ordering::Relaxed) < JACOBIANS_BEFORE_CODE
     }
 
     /// The machine code of the Jacobian, made on the first call; `None` if the host has none.

@@ -111,10 +111,16 @@ impl Program {
     }
 
     /// Jacobian of the outputs with respect to the states at `(t, x)`, row-major:
-    /// `out[i * n + j] = d output_i / d x_j`. Runs machine code (made on the first call) where
-    /// the host has a code generator, else [`Program::jacobian_reference`]; both give the same
-    /// numbers bit for bit.
+    /// `out[i * n + j] = d output_i / d x_j`. The first calls of a program and its clones run
+    /// [`Program::jacobian_reference`]; later ones run machine code (made once then) where the
+    /// host has a code generator. Both give the same numbers bit for bit: making the code
+    /// costs as much as some thousands of reference calls, so a caller that asks for a few
+    /// Jacobians (a resting cell of a regime map) never pays for it.
     pub fn jacobian(&self, scratch: &mut Scratch, t: f64, x: &[f64], p: &[f64], out: &mut [f64]) {
+        if self.jacobian_before_code() {
+            self.jacobian_reference(scratch, t, x, p, out);
+            return;
+        }
         if let Some(code) = self.native_jacobian_code()
             && code.eval(t, x, p, out)
         {

@@ -301,7 +301,7 @@ impl<'a> Checker<'a> {
     fn compile_model(&mut self) {
         let scenario = self.scenario;
         let spec = scenario.model_spec();
-        match Model::compile(&spec) {
+        match Model::compile_plain(&spec) {
             Ok(model) => {
                 self.model = Some(model);
                 self.rates_compiled = true;
@@ -313,7 +313,7 @@ impl<'a> Checker<'a> {
                 for state in &mut placeholder.states {
                     state.rate = "0".to_owned();
                 }
-                self.model = Model::compile(&placeholder).ok();
+                self.model = Model::compile_plain(&placeholder).ok();
             }
         }
     }
