@@ -53,33 +53,39 @@ pub(super) fn tangents(
         let out = match *instr {
             Instr::Const(_) | Instr::Param(_) | Instr::Time => Sparse::default(),
             Instr::State(i) => seed(g, i)?,
+            Instr::Neg(a) if !careful => negate(g, &tan(a)?),
             Instr::Neg(a) => {
                 let c = g.b.ins().f64const(-1.0);
                 combine1(g, &tan(a)?, c)
             }
             Instr::Add(a, b) | Instr::Sub(a, b) => {
-                let one = g.b.ins().f64const(1.0);
                 let cb = if matches!(instr, Instr::Add(..)) {
-                    one
+                    Coefficient::One
                 } else {
-                    g.b.ins().f64const(-1.0)
+                    Coefficient::MinusOne
                 };
-                combine2(g, &tan(a)?, one, &tan(b)?, cb, careful)
+                combine2(g, &tan(a)?, Coefficient::One, &tan(b)?, cb, careful)
             }
-            Instr::Mul(a, b) => combine2(g, &tan(a)?, val(b)?, &tan(b)?, val(a)?, careful),
+            Instr::Mul(a, b) => combine2(
+                g,
+                &tan(a)?,
+                val(b)?.into(),
+                &tan(b)?,
+                val(a)?.into(),
+                careful,
+            ),
             Instr::Div(a, b) => {
                 let one = g.b.ins().f64const(1.0);
                 let inv = g.b.ins().fdiv(one, val(b)?);
                 let q = g.b.ins().fmul(this, inv);
                 let cb = g.b.ins().fneg(q);
-                combine2(g, &tan(a)?, inv, &tan(b)?, cb, careful)
+                combine2(g, &tan(a)?, inv.into(), &tan(b)?, cb.into(), careful)
             }
             Instr::Rem(a, b) => {
-                let one = g.b.ins().f64const(1.0);
                 let q = g.b.ins().fdiv(val(a)?, val(b)?);
                 let q = g.b.ins().trunc(q);
                 let cb = g.b.ins().fneg(q);
-                combine2(g, &tan(a)?, one, &tan(b)?, cb, careful)
+                combine2(g, &tan(a)?, Coefficient::One, &tan(b)?, cb.into(), careful)
             }
             Instr::Pow(a, b) => {
                 let (base, exponent) = (val(a)?, val(b)?);
@@ -105,7 +111,7 @@ pub(super) fn tangents(
                     let term = g.b.ins().fmul(this, ln);
                     g.b.ins().select(varies?, term, zero)
                 };
-                combine2(g, &tan(a)?, da, &tb, db, careful)
+                combine2(g, &tan(a)?, da.into(), &tb, db.into(), careful)
             }
             Instr::PowI(a, n) => {
                 let d = if n == 0 {
@@ -132,12 +138,63 @@ pub(super) fn tangents(
                         .iconst(cranelift_codegen::ir::types::I32, number as i64);
                 let da = g.call(Call::D2a, &[number, val(a)?, val(b)?])?;
                 let db = g.call(Call::D2b, &[number, val(a)?, val(b)?])?;
-                combine2(g, &tan(a)?, da, &tan(b)?, db, careful)
+                combine2(g, &tan(a)?, da.into(), &tan(b)?, db.into(), careful)
             }
         };
         tangents.push(out);
     }
     Some(tangents)
+}
+
+/// A coefficient of a tangent sum: the `1` and `-1` of sums and differences known as such, so
+/// that the plain sums add or subtract the entry instead of multiplying it by them first
+/// (the same value for every finite entry: `v + 1 e = v + e`, `v + (-1) e = v - e`).
+#[derive(Clone, Copy)]
+enum Coefficient {
+    One,
+    MinusOne,
+    Of(Value),
+}
+
+impl From<Value> for Coefficient {
+    fn from(value: Value) -> Self {
+        Self::Of(value)
+    }
+}
+
+impl Coefficient {
+    /// The coefficient as a value of the function.
+    fn value(self, g: &mut Gen<'_, '_>) -> Value {
+        match self {
+            Self::One => g.b.ins().f64const(1.0),
+            Self::MinusOne => g.b.ins().f64const(-1.0),
+            Self::Of(value) => value,
+        }
+    }
+
+    /// `acc + c e`, the plain sum's next term.
+    fn add_to(self, g: &mut Gen<'_, '_>, acc: Value, e: Value) -> Value {
+        match self {
+            Self::One => g.b.ins().fadd(acc, e),
+            Self::MinusOne => g.b.ins().fsub(acc, e),
+            Self::Of(c) => {
+                let product = g.b.ins().fmul(c, e);
+                g.b.ins().fadd(acc, product)
+            }
+        }
+    }
+}
+
+/// The plain form of a negation's tangent, `0 - a`: `-a` where `a` is not zero and +0 where
+/// it is, as the careful `-1 * a` with its zero skipped (a value that is not finite sends the
+/// whole call to the careful form anyway).
+fn negate(g: &mut Gen<'_, '_>, ta: &Sparse) -> Sparse {
+    let zero = g.b.ins().f64const(0.0);
+    Sparse(
+        ta.0.iter()
+            .map(|&(j, a)| (j, g.b.ins().fsub(zero, a)))
+            .collect(),
+    )
 }
 
 /// `ca * a` where `a` is not zero, else 0 (as `tangent::combine1`), in both forms: the
@@ -160,9 +217,9 @@ fn combine1(g: &mut Gen<'_, '_>, ta: &Sparse, ca: Value) -> Sparse {
 fn combine2(
     g: &mut Gen<'_, '_>,
     ta: &Sparse,
-    ca: Value,
+    ca: Coefficient,
     tb: &Sparse,
-    cb: Value,
+    cb: Coefficient,
     careful: bool,
 ) -> Sparse {
     let zero = g.b.ins().f64const(0.0);
@@ -196,8 +253,7 @@ fn combine2(
             let mut v = zero;
             for (e, c) in [(a, ca), (b, cb)] {
                 if let Some(e) = e {
-                    let product = g.b.ins().fmul(c, e);
-                    v = g.b.ins().fadd(v, product);
+                    v = c.add_to(g, v, e);
                 }
             }
             out.push((j, v));
@@ -205,9 +261,11 @@ fn combine2(
         }
         let mut v = zero;
         if let Some(a) = a {
+            let ca = ca.value(g);
             v = term(g, v, a, ca, zero);
         }
         if let Some(b) = b {
+            let cb = cb.value(g);
             v = term(g, v, b, cb, zero);
         }
         out.push((j, v));
