@@ -165,34 +165,40 @@ impl Cut {
 
     /// `dg/dt` along the flow at `(t, x)` where the rates are `rates`: `grad g . f`, plus the
     /// surface's own motion for a level surface that uses `t`.
+    #[inline]
     pub fn slope(&mut self, t: f64, x: &[f64], rates: &[f64], parameters: &[f64]) -> f64 {
         match &self.surface {
-            Surface::Plane { normal, .. } => normal.iter().zip(rates).map(|(n, f)| n * f).sum(),
-            Surface::Level { program, .. } => {
-                if let Some(level_plane) = self.level_plane.as_mut()
-                    && let Some((normal, _)) =
-                        level_plane.at(program, &mut self.scratch, parameters)
-                {
-                    return normal.iter().zip(rates).map(|(n, f)| n * f).sum();
-                }
-                let mut small = [0.0; 16];
-                let mut large = Vec::new();
-                let gradient = if x.len() <= small.len() {
-                    &mut small[..x.len()]
-                } else {
-                    large.resize(x.len(), 0.0);
-                    &mut large[..]
-                };
-                program.jacobian(&mut self.scratch, t, x, parameters, gradient);
-                let mut slope: f64 = gradient.iter().zip(rates).map(|(g, f)| g * f).sum();
-                if program.uses_time() {
-                    let mut dt = [0.0];
-                    program.time_derivative(&mut self.scratch, t, x, parameters, &mut dt);
-                    slope += dt[0];
-                }
-                slope
-            }
+            Surface::Plane { normal, .. } => plane_slope(normal, rates),
+            Surface::Level { .. } => self.level_slope(t, x, rates, parameters),
         }
+    }
+
+    /// [`Cut::slope`] of a level surface (kept out of line: a plane's is taken every step).
+    fn level_slope(&mut self, t: f64, x: &[f64], rates: &[f64], parameters: &[f64]) -> f64 {
+        let Surface::Level { program, .. } = &self.surface else {
+            return f64::NAN;
+        };
+        if let Some(level_plane) = self.level_plane.as_mut()
+            && let Some((normal, _)) = level_plane.at(program, &mut self.scratch, parameters)
+        {
+            return plane_slope(normal, rates);
+        }
+        let mut small = [0.0; 16];
+        let mut large = Vec::new();
+        let gradient = if x.len() <= small.len() {
+            &mut small[..x.len()]
+        } else {
+            large.resize(x.len(), 0.0);
+            &mut large[..]
+        };
+        program.jacobian(&mut self.scratch, t, x, parameters, gradient);
+        let mut slope: f64 = gradient.iter().zip(rates).map(|(g, f)| g * f).sum();
+        if program.uses_time() {
+            let mut dt = [0.0];
+            program.time_derivative(&mut self.scratch, t, x, parameters, &mut dt);
+            slope += dt[0];
+        }
+        slope
     }
 
     /// The screen of [`graze`] on one step (given as for [`Cut::locate`], with `g0`, `g1`
@@ -398,6 +404,12 @@ pub(crate) fn locate_on_plane(
     };
     eval_split(start, terms, dim, s, state);
     t0 + s * h
+}
+
+/// `normal . f`: how fast the value of a plane cut changes where the rates are `f`.
+#[inline]
+fn plane_slope(normal: &[f64], rates: &[f64]) -> f64 {
+    normal.iter().zip(rates).map(|(n, f)| n * f).sum()
 }
 
 /// `normal . x - offset`: the value of a plane cut, the same arithmetic wherever it is taken
