@@ -143,10 +143,15 @@ impl Sink for CellSink {
         }
     }
     fn step(&mut self, _t: f64, state: &[f64]) {
-        for (i, &v) in state.iter().enumerate() {
-            self.low[i] = self.low[i].min(v);
-            self.high[i] = self.high[i].max(v);
-            self.largest[i] = self.largest[i].max(v.abs());
+        let bounds = self
+            .low
+            .iter_mut()
+            .zip(&mut self.high)
+            .zip(&mut self.largest);
+        for (((low, high), largest), &v) in bounds.zip(state) {
+            *low = low.min(v);
+            *high = high.max(v);
+            *largest = largest.max(v.abs());
         }
     }
 }
