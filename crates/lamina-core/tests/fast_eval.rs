@@ -50,9 +50,20 @@ proptest! {
             prop_assert!(same(native[i], reference[i]), "native {i}: {} vs {}", native[i], reference[i]);
             prop_assert!(same(fixed[i], reference[i]), "closures {i}: {} vs {}", fixed[i], reference[i]);
         }
+        // the states in registers: the same machine code's other form
+        let call = kernel.machine_call().expect("machine code");
+        prop_assert!(call.takes_states_in_registers::<2>());
+        let mut in_registers = [0.0; 3];
+        call.eval_small::<2>(t, state, &mut in_registers);
+        for i in 0..3 {
+            prop_assert!(
+                same(in_registers[i], reference[i]),
+                "in registers {i}: {} vs {}", in_registers[i], reference[i]
+            );
+        }
         // the Jacobian: machine code against tangents pushed through the list
         let mut jacobian = [0.0; 6];
-        program.jacobian(&mut scratch, t, &state, &parameters, &mut jacobian);
+        prop_assert!(program.jacobian_machine_code(t, &state, &parameters, &mut jacobian));
         let mut jacobian_reference = [0.0; 6];
         program.jacobian_reference(&mut scratch, t, &state, &parameters, &mut jacobian_reference);
         for i in 0..6 {

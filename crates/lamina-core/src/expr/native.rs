@@ -33,12 +33,22 @@ use super::native_tangent::{Sparse, tangents};
 /// The generated function: `(states, parameters, time, outputs)`.
 type Entry = extern "C" fn(*const f64, *const f64, f64, *mut f64);
 
+/// Most states a program may have for the form of its rates that takes them in registers.
+pub const MOST_STATES_IN_REGISTERS: usize = 4;
+
+/// The rates taking the states in registers: `(x0, x1, x2, x3, time, parameters, outputs)`
+/// (states past the program's count are ignored).
+type EntryInRegisters = extern "C" fn(f64, f64, f64, f64, f64, *const f64, *mut f64);
+
 /// A program compiled to machine code: the function's address, the counts it reads and
 /// writes, and a share in the memory holding the code. Cheap to clone (kernels keep a copy
 /// inline, so a call is one load and an indirect call).
 #[derive(Clone)]
 pub(super) struct NativeCode {
     entry: Entry,
+    /// The same function taking the states in registers (rates of at most
+    /// [`MOST_STATES_IN_REGISTERS`] states only).
+    in_registers: Option<(EntryInRegisters, Arc<Owner>)>,
     n_states: usize,
     n_parameters: usize,
     n_outputs: usize,
@@ -67,14 +77,19 @@ impl NativeCode {
         n_states: usize,
         n_parameters: usize,
     ) -> Option<Self> {
-        Self::build(instrs, outputs.len(), n_states, n_parameters, |g| {
+        let body = |g: &mut Gen<'_, '_>| {
             let values = g.values(instrs)?;
             for (k, &o) in outputs.iter().enumerate() {
                 let v = values.get(o as usize).copied()?;
                 g.store(v, k)?;
             }
             Some(())
-        })
+        };
+        let mut code = Self::build(instrs, outputs.len(), n_states, n_parameters, body)?;
+        if n_states <= MOST_STATES_IN_REGISTERS {
+            code.in_registers = Self::build_in_registers(body);
+        }
+        Some(code)
     }
 
     /// Machine code for the Jacobian of the outputs with respect to the states, row-major
@@ -200,6 +215,33 @@ impl NativeCode {
         .flatten()
     }
 
+    /// The function of `body` taking the states in registers, in a module of its own.
+    fn build_in_registers(
+        body: impl FnOnce(&mut Gen<'_, '_>) -> Option<()>,
+    ) -> Option<(EntryInRegisters, Arc<Owner>)> {
+        std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+            let mut module = new_module()?;
+            let Some(id) = generate(&mut module, true, body) else {
+                free(module);
+                return None;
+            };
+            if module.finalize_definitions().is_err() {
+                free(module);
+                return None;
+            }
+            let address = module.get_finalized_function(id);
+            // SAFETY: as for `Entry` in `build_unguarded`, with the states in the first four
+            // floating-point arguments: the function reads no states from memory, reads
+            // `parameters[0..n_parameters]` and writes `outputs[0..n_outputs]` of the same
+            // program, which `MachineCall::eval_small` checks before each call.
+            #[allow(unsafe_code)]
+            let entry = unsafe { std::mem::transmute::<*const u8, EntryInRegisters>(address) };
+            Some((entry, Arc::new(Owner(Mutex::new(Some(module))))))
+        }))
+        .ok()
+        .flatten()
+    }
+
     /// [`NativeCode::build`] without the guard.
     fn build_unguarded(
         instrs: &[Instr],
@@ -209,7 +251,7 @@ impl NativeCode {
         body: impl FnOnce(&mut Gen<'_, '_>) -> Option<()>,
     ) -> Option<Self> {
         let mut module = new_module()?;
-        let entry_id = match generate(&mut module, body) {
+        let entry_id = match generate(&mut module, false, body) {
             Some(id) => id,
             None => {
                 free(module);
@@ -241,6 +283,7 @@ impl NativeCode {
         });
         Some(Self {
             entry,
+            in_registers: None,
             n_states: max_state.max().unwrap_or(0).max(n_states),
             n_parameters: max_param.max().unwrap_or(0).max(n_parameters),
             n_outputs,
@@ -258,6 +301,7 @@ impl NativeCode {
     pub(super) fn call_with<'a>(&'a self, parameters: &'a [f64]) -> Option<MachineCall<'a>> {
         (parameters.len() >= self.n_parameters).then_some(MachineCall {
             entry: self.entry,
+            in_registers: self.in_registers.as_ref().map(|(entry, _)| *entry),
             n_states: self.n_states,
             n_outputs: self.n_outputs,
             parameters,
@@ -283,6 +327,7 @@ impl NativeCode {
 #[derive(Clone, Copy)]
 pub struct MachineCall<'a> {
     entry: Entry,
+    in_registers: Option<EntryInRegisters>,
     n_states: usize,
     n_outputs: usize,
     parameters: &'a [f64],
@@ -298,6 +343,39 @@ impl MachineCall<'_> {
             return;
         }
         (self.entry)(x.as_ptr(), self.parameters.as_ptr(), t, out.as_mut_ptr());
+    }
+
+    /// [`MachineCall::eval`] with the `D` states passed in registers where the code has that
+    /// form (`D` at most [`MOST_STATES_IN_REGISTERS`]): a small model's stage then does not
+    /// wait for its states to go through memory.
+    /// Whether [`MachineCall::eval_small`] takes `D` states in registers.
+    pub fn takes_states_in_registers<const D: usize>(&self) -> bool {
+        self.in_registers.is_some() && D <= MOST_STATES_IN_REGISTERS && self.n_states <= D
+    }
+
+    #[inline(always)]
+    pub fn eval_small<const D: usize>(&self, t: f64, x: [f64; D], out: &mut [f64]) {
+        if let Some(entry) = self.in_registers
+            && D <= MOST_STATES_IN_REGISTERS
+            && self.n_states <= D
+            && out.len() >= self.n_outputs
+        {
+            // value by value: a copy through an array can become a wide load of narrow
+            // stores, which waits for them
+            let at = |i: usize| if i < D { x[i] } else { 0.0 };
+            let p = self.parameters.as_ptr();
+            entry(at(0), at(1), at(2), at(3), t, p, out.as_mut_ptr());
+        } else {
+            self.eval_small_by_memory(t, x, out);
+        }
+    }
+
+    /// [`MachineCall::eval_small`] where the states cannot come in registers (kept out of
+    /// line, so that the usual call does not keep the states in memory for it).
+    #[cold]
+    #[inline(never)]
+    fn eval_small_by_memory<const D: usize>(&self, t: f64, x: [f64; D], out: &mut [f64]) {
+        self.eval(t, &x, out);
     }
 }
 
@@ -361,15 +439,24 @@ fn new_module() -> Option<JITModule> {
 /// does not fit.
 fn generate(
     module: &mut JITModule,
+    in_registers: bool,
     body: impl FnOnce(&mut Gen<'_, '_>) -> Option<()>,
 ) -> Option<cranelift_module::FuncId> {
     let config = module.target_config();
     let pointer = config.pointer_type();
     let mut signature = module.make_signature();
-    signature.params.push(AbiParam::new(pointer));
-    signature.params.push(AbiParam::new(pointer));
-    signature.params.push(AbiParam::new(F64));
-    signature.params.push(AbiParam::new(pointer));
+    if in_registers {
+        for _ in 0..MOST_STATES_IN_REGISTERS + 1 {
+            signature.params.push(AbiParam::new(F64));
+        }
+        signature.params.push(AbiParam::new(pointer));
+        signature.params.push(AbiParam::new(pointer));
+    } else {
+        signature.params.push(AbiParam::new(pointer));
+        signature.params.push(AbiParam::new(pointer));
+        signature.params.push(AbiParam::new(F64));
+        signature.params.push(AbiParam::new(pointer));
+    }
     let id = module
         .declare_function("lamina_rates", Linkage::Local, &signature)
         .ok()?;
@@ -384,8 +471,16 @@ fn generate(
         b.switch_to_block(block);
         b.seal_block(block);
         let params = b.block_params(block).to_vec();
-        let [x, p, t, out] = params[..] else {
-            return None;
+        let (x, p, t, out, states) = if in_registers {
+            let [x0, x1, x2, x3, t, p, out] = params[..] else {
+                return None;
+            };
+            (p, p, t, out, vec![x0, x1, x2, x3])
+        } else {
+            let [x, p, t, out] = params[..] else {
+                return None;
+            };
+            (x, p, t, out, Vec::new())
         };
         let mut g = Gen {
             module: &mut *module,
@@ -395,6 +490,7 @@ fn generate(
             p,
             t,
             out,
+            states,
         };
         body(&mut g)?;
         let mut b = g.b;
@@ -416,6 +512,8 @@ pub(super) struct Gen<'m, 'f> {
     p: Value,
     t: Value,
     out: Value,
+    /// The states when they come in registers (else they are loaded from `x`).
+    states: Vec<Value>,
 }
 
 impl Gen<'_, '_> {
@@ -427,6 +525,9 @@ impl Gen<'_, '_> {
             let arg = |a: u32| values.get(a as usize).copied();
             let v = match *instr {
                 Instr::Const(c) => self.b.ins().f64const(c),
+                Instr::State(i) if !self.states.is_empty() => {
+                    self.states.get(i as usize).copied()?
+                }
                 Instr::State(i) => self.b.ins().load(F64, flags, self.x, offset(i)?),
                 Instr::Param(i) => self.b.ins().load(F64, flags, self.p, offset(i)?),
                 Instr::Time => self.t,

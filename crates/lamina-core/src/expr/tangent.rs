@@ -129,6 +129,14 @@ impl Program {
         self.jacobian_reference(scratch, t, x, p, out);
     }
 
+    /// [`Program::jacobian`] by its machine code (made now if not yet), whatever the count of
+    /// earlier calls; `false` (and nothing written) where the host has none. For comparing
+    /// the two forms.
+    pub fn jacobian_machine_code(&self, t: f64, x: &[f64], p: &[f64], out: &mut [f64]) -> bool {
+        self.native_jacobian_code()
+            .is_some_and(|code| code.eval(t, x, p, out))
+    }
+
     /// [`Program::jacobian`] by tangents pushed through the instruction list itself: the
     /// reference the machine code reproduces.
     pub fn jacobian_reference(

@@ -175,30 +175,32 @@ impl Dop853 {
         let x = if D == 0 { x } else { &x[..D] };
         let [k1, k2, k3, k4, k5, k6, k7, k8, k9, k10, k11, k12, ..] = &mut self.k;
         let ys = &mut self.y_stage;
+        // a small model's stage states go to its machine code in registers, where it can
+        let small = D > 0 && rates.takes_states_in_registers::<D>();
         combine!([FUSED] ys = x + h * (A21, k1));
-        rates.rates(t + C2 * h, ys, k2);
+        stage::<R, D>(rates, small, t + C2 * h, ys, k2);
         combine!([FUSED] ys = x + h * (A31, k1; A32, k2));
-        rates.rates(t + C3 * h, ys, k3);
+        stage::<R, D>(rates, small, t + C3 * h, ys, k3);
         combine!([FUSED] ys = x + h * (A41, k1; A43, k3));
-        rates.rates(t + C4 * h, ys, k4);
+        stage::<R, D>(rates, small, t + C4 * h, ys, k4);
         combine!([FUSED] ys = x + h * (A51, k1; A53, k3; A54, k4));
-        rates.rates(t + C5 * h, ys, k5);
+        stage::<R, D>(rates, small, t + C5 * h, ys, k5);
         combine!([FUSED] ys = x + h * (A61, k1; A64, k4; A65, k5));
-        rates.rates(t + C6 * h, ys, k6);
+        stage::<R, D>(rates, small, t + C6 * h, ys, k6);
         combine!([FUSED] ys = x + h * (A71, k1; A74, k4; A75, k5; A76, k6));
-        rates.rates(t + C7 * h, ys, k7);
+        stage::<R, D>(rates, small, t + C7 * h, ys, k7);
         combine!([FUSED] ys = x + h * (A81, k1; A84, k4; A85, k5; A86, k6; A87, k7));
-        rates.rates(t + C8 * h, ys, k8);
+        stage::<R, D>(rates, small, t + C8 * h, ys, k8);
         combine!([FUSED] ys = x + h * (A91, k1; A94, k4; A95, k5; A96, k6; A97, k7; A98, k8));
-        rates.rates(t + C9 * h, ys, k9);
+        stage::<R, D>(rates, small, t + C9 * h, ys, k9);
         combine!([FUSED] ys = x + h * (A101, k1; A104, k4; A105, k5; A106, k6; A107, k7; A108, k8; A109, k9));
-        rates.rates(t + C10 * h, ys, k10);
+        stage::<R, D>(rates, small, t + C10 * h, ys, k10);
         combine!([FUSED] ys = x + h * (A111, k1; A114, k4; A115, k5; A116, k6; A117, k7; A118, k8; A119, k9;
             A1110, k10));
-        rates.rates(t + C11 * h, ys, k11);
+        stage::<R, D>(rates, small, t + C11 * h, ys, k11);
         combine!([FUSED] ys = x + h * (A121, k1; A124, k4; A125, k5; A126, k6; A127, k7; A128, k8; A129, k9;
             A1210, k10; A1211, k11));
-        rates.rates(t + h, ys, k12);
+        stage::<R, D>(rates, small, t + h, ys, k12);
         *n_rate_evaluations += EVALS_PER_ATTEMPT;
 
         let n = x.len();
@@ -465,4 +467,22 @@ impl Dop853 {
 enum Order {
     BeforeSwap,
     AfterSwap,
+}
+
+/// One stage's rates at `ys`: with `small`, the `D` states by value (see
+/// [`Rates::rates_small`]), else as a slice.
+#[inline(always)]
+fn stage<R: Rates + ?Sized, const D: usize>(
+    rates: &mut R,
+    small: bool,
+    t: f64,
+    ys: &[f64],
+    k: &mut [f64],
+) {
+    if D > 0 && small {
+        let x: [f64; D] = std::array::from_fn(|i| ys[i]);
+        rates.rates_small::<D>(t, x, k);
+    } else {
+        rates.rates(t, ys, k);
+    }
 }

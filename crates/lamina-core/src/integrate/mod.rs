@@ -139,6 +139,20 @@ pub trait Rates {
     fn machine_call(&self) -> Option<crate::expr::MachineCall<'_>> {
         None
     }
+
+    /// Whether [`Rates::rates_small`] takes `D` states in registers (machine code of a model
+    /// with at most four states, see [`crate::expr::MachineCall::eval_small`]): a stepper
+    /// then gives a small model's stage states by value. False (the default) otherwise.
+    fn takes_states_in_registers<const D: usize>(&self) -> bool {
+        false
+    }
+
+    /// [`Rates::rates`] of `D` states given by value (see
+    /// [`Rates::takes_states_in_registers`]).
+    #[inline(always)]
+    fn rates_small<const D: usize>(&mut self, t: f64, x: [f64; D], dx: &mut [f64]) {
+        self.rates(t, &x, dx);
+    }
 }
 
 /// Rates made by one [`crate::expr::MachineCall`], for the stepper's stages.
@@ -162,6 +176,15 @@ impl Rates for DirectRates<'_> {
     #[inline(always)]
     fn rates(&mut self, t: f64, x: &[f64], dx: &mut [f64]) {
         self.call.eval(t, x, dx);
+    }
+
+    fn takes_states_in_registers<const D: usize>(&self) -> bool {
+        self.call.takes_states_in_registers::<D>()
+    }
+
+    #[inline(always)]
+    fn rates_small<const D: usize>(&mut self, t: f64, x: [f64; D], dx: &mut [f64]) {
+        self.call.eval_small(t, x, dx);
     }
 }
 
