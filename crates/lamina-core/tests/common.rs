@@ -17,7 +17,12 @@ use proptest::prelude::*;
 
 /// A model from `(name, start, rate)` states and `(name, value)` parameters.
 pub fn model(states: &[(&str, f64, &str)], parameters: &[(&str, f64)]) -> Model {
-    let spec = ModelSpec {
+    Model::compile(&model_spec(states, parameters)).unwrap_or_else(|e| panic!("{e}"))
+}
+
+/// The spec of [`model`].
+pub fn model_spec(states: &[(&str, f64, &str)], parameters: &[(&str, f64)]) -> ModelSpec {
+    ModelSpec {
         states: states
             .iter()
             .map(|(name, start, rate)| StateSpec {
@@ -33,8 +38,7 @@ pub fn model(states: &[(&str, f64, &str)], parameters: &[(&str, f64)]) -> Model 
                 value: *value,
             })
             .collect(),
-    };
-    Model::compile(&spec).unwrap_or_else(|e| panic!("{e}"))
+    }
 }
 
 /// Run settings with one method, tolerance `tol` for both rtol and atol, and a window.

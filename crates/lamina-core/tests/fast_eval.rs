@@ -210,31 +210,13 @@ fn kernels_of_one_program_evaluate_on_many_threads_at_once() {
 #[test]
 fn a_plain_model_gives_the_rates_of_the_compiled_one_without_machine_code() {
     use lamina_core::integrate::Rates;
-    use lamina_core::model::{ModelSpec, ParameterSpec, StateSpec};
-    let spec = ModelSpec {
-        states: vec![
-            StateSpec {
-                name: "x".into(),
-                start: 0.3,
-                rate: "a - (b + 1)*x + x^2*y".into(),
-            },
-            StateSpec {
-                name: "y".into(),
-                start: 1.2,
-                rate: "b*x - x^2*y + sin(t)".into(),
-            },
+    let spec = common::model_spec(
+        &[
+            ("x", 0.3, "a - (b + 1)*x + x^2*y"),
+            ("y", 1.2, "b*x - x^2*y + sin(t)"),
         ],
-        parameters: vec![
-            ParameterSpec {
-                name: "a".into(),
-                value: 1.0,
-            },
-            ParameterSpec {
-                name: "b".into(),
-                value: 2.5,
-            },
-        ],
-    };
+        &[("a", 1.0), ("b", 2.5)],
+    );
     let mut plain = Model::compile_plain(&spec).expect("compiles");
     let mut compiled = Model::compile(&spec).expect("compiles");
     assert!(!plain.runs_machine_code());

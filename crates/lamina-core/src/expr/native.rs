@@ -220,16 +220,7 @@ impl NativeCode {
         body: impl FnOnce(&mut Gen<'_, '_>) -> Option<()>,
     ) -> Option<(EntryInRegisters, Arc<Owner>)> {
         std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
-            let mut module = new_module()?;
-            let Some(id) = generate(&mut module, true, body) else {
-                free(module);
-                return None;
-            };
-            if module.finalize_definitions().is_err() {
-                free(module);
-                return None;
-            }
-            let address = module.get_finalized_function(id);
+            let (address, module) = generated(true, body)?;
             // SAFETY: as for `Entry` in `build_unguarded`, with the states in the first four
             // floating-point arguments: the function reads no states from memory, reads
             // `parameters[0..n_parameters]` and writes `outputs[0..n_outputs]` of the same
@@ -250,19 +241,7 @@ impl NativeCode {
         n_parameters: usize,
         body: impl FnOnce(&mut Gen<'_, '_>) -> Option<()>,
     ) -> Option<Self> {
-        let mut module = new_module()?;
-        let entry_id = match generate(&mut module, false, body) {
-            Some(id) => id,
-            None => {
-                free(module);
-                return None;
-            }
-        };
-        if module.finalize_definitions().is_err() {
-            free(module);
-            return None;
-        }
-        let address = module.get_finalized_function(entry_id);
+        let (address, module) = generated(false, body)?;
         // SAFETY: `address` is the start of the function just generated with the signature
         // `(pointer, pointer, f64, pointer)` in the host's default calling convention, which is
         // the C convention of `Entry`. The function reads `states[0..n_states]` and
@@ -433,6 +412,25 @@ fn new_module() -> Option<JITModule> {
         builder.symbol(name, address);
     }
     Some(JITModule::new(builder))
+}
+
+/// A new module holding the function of `body`, generated and made callable: the function's
+/// address and the module; `None` if anything fails (the module is freed then).
+fn generated(
+    in_registers: bool,
+    body: impl FnOnce(&mut Gen<'_, '_>) -> Option<()>,
+) -> Option<(*const u8, JITModule)> {
+    let mut module = new_module()?;
+    let Some(id) = generate(&mut module, in_registers, body) else {
+        free(module);
+        return None;
+    };
+    if module.finalize_definitions().is_err() {
+        free(module);
+        return None;
+    }
+    let address = module.get_finalized_function(id);
+    Some((address, module))
 }
 
 /// Declares and defines the entry function, its body written by `body`; `None` if something
