@@ -324,19 +324,18 @@ impl MachineCall<'_> {
         (self.entry)(x.as_ptr(), self.parameters.as_ptr(), t, out.as_mut_ptr());
     }
 
-    /// [`MachineCall::eval`] with the `D` states passed in registers where the code has that
-    /// form (`D` at most [`MOST_STATES_IN_REGISTERS`]): a small model's stage then does not
-    /// wait for its states to go through memory.
     /// Whether [`MachineCall::eval_small`] takes `D` states in registers.
     pub fn takes_states_in_registers<const D: usize>(&self) -> bool {
         self.in_registers.is_some() && D <= MOST_STATES_IN_REGISTERS && self.n_states <= D
     }
 
+    /// [`MachineCall::eval`] with the `D` states passed in registers where the code has that
+    /// form (`D` at most [`MOST_STATES_IN_REGISTERS`]): a small model's stage then does not
+    /// wait for its states to go through memory.
     #[inline(always)]
     pub fn eval_small<const D: usize>(&self, t: f64, x: [f64; D], out: &mut [f64]) {
         if let Some(entry) = self.in_registers
-            && D <= MOST_STATES_IN_REGISTERS
-            && self.n_states <= D
+            && self.takes_states_in_registers::<D>()
             && out.len() >= self.n_outputs
         {
             // value by value: a copy through an array can become a wide load of narrow

@@ -176,7 +176,7 @@ impl Dop853 {
         let [k1, k2, k3, k4, k5, k6, k7, k8, k9, k10, k11, k12, ..] = &mut self.k;
         let ys = &mut self.y_stage;
         // a small model's stage states go to its machine code in registers, where it can
-        let small = D > 0 && rates.takes_states_in_registers::<D>();
+        let small = rates.takes_states_in_registers::<D>();
         combine!([FUSED] ys = x + h * (A21, k1));
         stage::<R, D>(rates, small, t + C2 * h, ys, k2);
         combine!([FUSED] ys = x + h * (A31, k1; A32, k2));
@@ -469,8 +469,8 @@ enum Order {
     AfterSwap,
 }
 
-/// One stage's rates at `ys`: with `small`, the `D` states by value (see
-/// [`Rates::rates_small`]), else as a slice.
+/// One stage's rates at `ys`: with `small` and a number of states `D` fixed at compile time,
+/// the states by value (see [`Rates::rates_small`]), else as a slice.
 #[inline(always)]
 fn stage<R: Rates + ?Sized, const D: usize>(
     rates: &mut R,

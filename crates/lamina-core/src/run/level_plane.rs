@@ -28,7 +28,8 @@ impl LevelPlane {
         scratch: &mut Scratch,
         parameters: &[f64],
     ) -> Option<(&[f64], f64)> {
-        // asked on every step: the common case is one comparison per parameter
+        // asked on every step: the common case is one comparison per parameter (written out:
+        // comparing the slices through `Option::as_deref` cost 0.3 % of a map's instructions)
         let same = self.taken_at.as_ref().is_some_and(|taken| {
             taken.len() == parameters.len() && taken.iter().zip(parameters).all(|(a, b)| a == b)
         });
