@@ -6,7 +6,13 @@
 //! `h_new = h * safety / (err^alpha / err_prev^beta)` with `alpha = 1/q - beta * k`,
 //! limited to `min_factor <= h_new / h <= max_factor`. Rodas4 uses Gustafsson's predictive
 //! controller as in Hairer & Wanner's RODAS (Solving ODEs II, sec. IV.8).
+//!
+//! The PI rule takes its powers from tables ([`FixedPower`]): the next step waits for them,
+//! and the library's `ln` and `exp` cost a small model about a tenth of its time.
 
+use std::sync::OnceLock;
+
+use super::fixed_power::FixedPower;
 use super::{ErrorScale, Method, Rates};
 
 /// Safety factor applied to every proposed step.
@@ -17,19 +23,53 @@ const PREVIOUS_ERROR_FLOOR: f64 = 1e-4;
 /// The PI step-size controller of one integrator.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub(crate) struct PiController {
-    /// Exponent of the current error (`1/q - beta * k`).
-    alpha: f64,
-    /// Exponent of the previous accepted error (0 gives the plain rule).
-    beta: f64,
+    /// The powers of the errors, for this method's exponents.
+    powers: &'static ControllerPowers,
     /// Smallest allowed `h_new / h`.
     min_factor: f64,
     /// Largest allowed `h_new / h`.
     max_factor: f64,
-    /// Natural log of the error of the last accepted step (at least [`PREVIOUS_ERROR_FLOOR`]).
-    ln_previous_error: f64,
+    /// `safety * err_prev^beta`, from the error of the last accepted step (at least
+    /// [`PREVIOUS_ERROR_FLOOR`]): the part of the next growth known before the next step.
+    weight: f64,
     /// Whether the last attempt was rejected (then the next accepted step may not grow `h`).
     after_rejection: bool,
 }
+
+/// The powers a PI controller takes of the errors: `err^-alpha` of an accepted step,
+/// `err^alpha` of a rejected one, `err_prev^beta`.
+#[derive(Debug)]
+pub(crate) struct ControllerPowers {
+    falling: FixedPower,
+    rising: FixedPower,
+    previous: FixedPower,
+}
+
+impl ControllerPowers {
+    fn new(alpha: f64, beta: f64) -> Self {
+        Self {
+            falling: FixedPower::new(-alpha),
+            rising: FixedPower::new(alpha),
+            previous: FixedPower::new(beta),
+        }
+    }
+
+    /// `safety * err_prev^beta` after an accepted error `err`.
+    fn weight(&self, err: f64) -> f64 {
+        SAFETY * self.previous.pow(err.max(PREVIOUS_ERROR_FLOOR))
+    }
+}
+
+impl PartialEq for ControllerPowers {
+    fn eq(&self, other: &Self) -> bool {
+        self.rising.exponent() == other.rising.exponent()
+            && self.previous.exponent() == other.previous.exponent()
+    }
+}
+
+/// The tables of the two PI rules, made on first use.
+static DP5_POWERS: OnceLock<ControllerPowers> = OnceLock::new();
+static DP853_POWERS: OnceLock<ControllerPowers> = OnceLock::new();
 
 impl PiController {
     /// The controller settings used for `method`.
@@ -38,37 +78,37 @@ impl PiController {
     /// defaults). DOP853: order exponent 1/8, factors 0.333..6 (DOP853's defaults) and a
     /// small beta.
     pub(crate) fn for_method(method: Method) -> Self {
-        let (alpha0, beta, beta_weight, min_factor, max_factor) = match method {
-            Method::Dp5 => (0.2, 0.04, 0.75, 0.2, 10.0),
+        let (alpha0, beta, beta_weight, min_factor, max_factor, powers) = match method {
+            Method::Dp5 => (0.2, 0.04, 0.75, 0.2, 10.0, &DP5_POWERS),
             Method::Dp853 | Method::Automatic | Method::Rodas4 => {
-                (1.0 / 8.0, DP853_BETA, 0.2, 0.333, 6.0)
+                (1.0 / 8.0, DP853_BETA, 0.2, 0.333, 6.0, &DP853_POWERS)
             }
         };
+        let powers =
+            powers.get_or_init(|| ControllerPowers::new(alpha0 - beta * beta_weight, beta));
         Self {
-            alpha: alpha0 - beta * beta_weight,
-            beta,
+            powers,
             min_factor,
             max_factor,
-            ln_previous_error: PREVIOUS_ERROR_FLOOR.ln(),
+            weight: powers.weight(PREVIOUS_ERROR_FLOOR),
             after_rejection: false,
         }
     }
 
     /// Forgets the step history (after a reset of the state).
     pub(crate) fn reset(&mut self) {
-        self.ln_previous_error = PREVIOUS_ERROR_FLOOR.ln();
+        self.weight = self.powers.weight(PREVIOUS_ERROR_FLOOR);
         self.after_rejection = false;
     }
 
     /// Next step size after a step of size `h` was accepted with scaled error `err <= 1`.
     #[inline]
     pub(crate) fn accepted(&mut self, h: f64, err: f64) -> f64 {
-        // safety * err_prev^beta / err^alpha with one log and one exponential (err = 0 gives
-        // the largest growth); multiplied, not divided, because the next step waits for it
-        let ln_err = err.ln();
-        let growth = SAFETY * (self.beta * self.ln_previous_error - self.alpha * ln_err).exp();
+        // safety * err_prev^beta / err^alpha: the next step waits for this, so the power is
+        // read from tables (err = 0 gives the largest growth) and multiplied, not divided
+        let growth = self.weight * self.powers.falling.pow(err);
         let mut h_new = h * growth.clamp(self.min_factor, self.max_factor);
-        self.ln_previous_error = ln_err.max(PREVIOUS_ERROR_FLOOR.ln());
+        self.weight = self.powers.weight(err);
         if self.after_rejection {
             h_new = h_new.min(h);
         }
@@ -80,7 +120,7 @@ impl PiController {
     #[inline]
     pub(crate) fn rejected(&mut self, h: f64, err: f64) -> f64 {
         self.after_rejection = true;
-        let fac = (err.powf(self.alpha) / SAFETY).min(1.0 / self.min_factor);
+        let fac = (self.powers.rising.pow(err) / SAFETY).min(1.0 / self.min_factor);
         h / fac
     }
 

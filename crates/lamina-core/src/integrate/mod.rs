@@ -74,6 +74,7 @@ pub mod dense;
 mod dop853;
 mod dop853_tableau;
 mod dp5;
+mod fixed_power;
 mod integrator;
 mod linear;
 mod rescale;
