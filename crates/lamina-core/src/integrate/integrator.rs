@@ -3,7 +3,7 @@
 use super::controller::{StepRule, initial_step};
 use super::stepper::Stepper;
 use super::stiffness::{MethodChange, StiffnessWatch};
-use super::{DenseSegment, ErrorScale, Method, Rates, Stats, StepControl, StepError};
+use super::{DenseSegment, ErrorScale, Method, Rates, Stats, StepControl, StepError, copy_values};
 
 /// Smallest step allowed regardless of `t` (a step below the floating-point resolution of `t`
 /// is refused separately).
@@ -465,8 +465,8 @@ impl Integrator {
         self.segment.h = h;
         self.segment.dim = self.x.len();
         std::mem::swap(&mut self.segment.coeffs, self.stepper.dense_mut());
-        self.x_start.copy_from_slice(&self.x);
-        self.x.copy_from_slice(self.stepper.x_new());
+        copy_values(&mut self.x_start, &self.x);
+        copy_values(&mut self.x, self.stepper.x_new());
         self.t = t_end;
         self.stats.n_accepted += 1;
         self.dense_ready = true;
@@ -482,9 +482,9 @@ impl Integrator {
         segment.h = h;
         segment.dim = n;
         std::mem::swap(&mut self.x, &mut self.x_start);
-        self.x.copy_from_slice(self.stepper.x_new());
+        copy_values(&mut self.x, self.stepper.x_new());
         let (start, rest) = segment.coeffs.split_at_mut(n);
-        start.copy_from_slice(&self.x_start);
+        copy_values(start, &self.x_start);
         for ((c1, &x1), &x0) in rest.iter_mut().zip(&self.x).zip(&self.x_start) {
             *c1 = x1 - x0;
         }

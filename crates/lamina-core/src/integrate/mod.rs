@@ -47,6 +47,20 @@ macro_rules! combine {
     }};
 }
 
+/// Copies `src` into `dst` (of the same length). The states of a small model are copied on
+/// every step; a length of at most four is copied in place, without the library call that
+/// `copy_from_slice` of a length unknown at compile time makes.
+#[inline(always)]
+pub(crate) fn copy_values(dst: &mut [f64], src: &[f64]) {
+    match (dst, src) {
+        ([d0], [s0]) => *d0 = *s0,
+        ([d0, d1], [s0, s1]) => (*d0, *d1) = (*s0, *s1),
+        ([d0, d1, d2], [s0, s1, s2]) => (*d0, *d1, *d2) = (*s0, *s1, *s2),
+        ([d0, d1, d2, d3], [s0, s1, s2, s3]) => (*d0, *d1, *d2, *d3) = (*s0, *s1, *s2, *s3),
+        (dst, src) => dst.copy_from_slice(src),
+    }
+}
+
 /// `base + a b`, with one fused multiply-add when `FUSED` (only inside code compiled for a
 /// processor that has the instruction: elsewhere it would be a slow library call).
 #[inline(always)]

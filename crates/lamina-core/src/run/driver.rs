@@ -11,7 +11,7 @@ use super::time_resolution::{
 };
 use super::{Cut, CutPoint, RunSpec, StoredRun, Strobe, StrobeSample};
 use crate::integrate::{
-    DenseSegment, Integrator, Interrupt, Method, MethodChange, Rates, Stats, StepError,
+    DenseSegment, Integrator, Interrupt, Method, MethodChange, Rates, Stats, StepError, copy_values,
 };
 use crate::lyapunov::{ExponentSettings, LargestExponent};
 use crate::model::Model;
@@ -558,7 +558,7 @@ impl Run {
         }
         if self.cut.is_some() && t1 >= self.spec.t_record() {
             let n = self.end_state.len();
-            self.end_state.copy_from_slice(&self.integrator.x()[..n]);
+            copy_values(&mut self.end_state, &self.integrator.x()[..n]);
             let Ok((g1, _, turns)) = self.screen_cut(t1) else {
                 return false;
             };
@@ -619,7 +619,7 @@ impl Run {
         let total = (self.t_end - t_start).max(f64::MIN_POSITIVE);
         let t1 = self.integrator.t();
         let n = self.end_state.len();
-        self.end_state.copy_from_slice(&self.integrator.x()[..n]);
+        copy_values(&mut self.end_state, &self.integrator.x()[..n]);
         if self.store && t1 > self.spec.t_record() {
             if let Err(err) = self.dense() {
                 return Some(stop_reason(&self.spec, err));
