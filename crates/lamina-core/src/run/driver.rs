@@ -235,6 +235,10 @@ pub struct Run {
     started: bool,
     t_end: f64,
     g_prev: f64,
+    /// Whether the cut was not followed over the last steps (settle steps that could not
+    /// reach the recorded window): `g_prev` and `slope_prev` are taken again before a step
+    /// that may reach it.
+    cut_untracked: bool,
     /// `dg/dt` of the cut at the start of the next step; `None` until measured (after a
     /// switch of the model's rates it is measured again with the new rates).
     slope_prev: Option<f64>,
@@ -283,6 +287,7 @@ impl Run {
             store,
             started: false,
             g_prev: 0.0,
+            cut_untracked: false,
             slope_prev: None,
             last_crossing: None,
             next_strobe,
@@ -399,6 +404,7 @@ impl Run {
         self.cut = cut;
         self.last_crossing = None;
         self.slope_prev = None;
+        self.cut_untracked = false;
         let (t, x) = if self.started {
             (self.integrator.t(), self.state().to_vec())
         } else {
@@ -573,10 +579,25 @@ impl Run {
     /// Measures the cut's `dg/dt` at the current state unless known (at the start of the
     /// run, after a switch or a new cut): from the rates the next step starts with, so that
     /// it costs no evaluation.
+    ///
+    /// A step of the settle time that ends before the recorded window keeps no crossing, so
+    /// the cut is not followed over it ([`Run::cut_untracked`]): a step is at most its proposed
+    /// size, or the rest up to its time limit, which is then before the window too.
     fn measure_start_slope(&mut self) -> Result<(), StepError> {
         let Some(cut) = &mut self.cut else {
             return Ok(());
         };
+        let (t, h) = (self.integrator.t(), self.integrator.h_next());
+        if h > 0.0 && t + 2.0 * h < self.spec.t_record() {
+            self.cut_untracked = true;
+            return Ok(());
+        }
+        if std::mem::take(&mut self.cut_untracked) {
+            let n = self.end_state.len();
+            let x = &self.integrator.x()[..n];
+            self.g_prev = cut.value(t, x, self.model.parameters());
+            self.slope_prev = None;
+        }
         if self.slope_prev.is_some() {
             return Ok(());
         }
@@ -670,7 +691,18 @@ impl Run {
     /// Records the cut crossing and strobe samples of the step just taken, building the
     /// step's dense output when one of them needs it.
     fn record(&mut self, sink: &mut dyn Sink, t1: f64) -> Option<StopReason> {
-        if self.cut.is_some() {
+        if self.cut_untracked && t1 >= self.spec.t_record() {
+            // not expected (see `measure_start_slope`), but a step that reached the window
+            // after all gets the cut's value at its start, without the screen
+            self.cut_untracked = false;
+            self.slope_prev = None;
+            let segment = model_part(self.integrator.segment(), &self.model_segment);
+            let (t0, dim) = (segment.t0, segment.dim);
+            if let Some(cut) = &mut self.cut {
+                self.g_prev = cut.value(t0, &segment.coeffs[..dim], self.model.parameters());
+            }
+        }
+        if self.cut.is_some() && !self.cut_untracked {
             let (g1, d1, turns) = match self.screen_cut(t1) {
                 Ok(screened) => screened,
                 Err(err) => return Some(stop_reason(&self.spec, err)),
