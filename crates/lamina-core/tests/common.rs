@@ -20,6 +20,20 @@ pub fn model(states: &[(&str, f64, &str)], parameters: &[(&str, f64)]) -> Model 
     Model::compile(&model_spec(states, parameters)).unwrap_or_else(|e| panic!("{e}"))
 }
 
+/// The Lorenz system (10, 28, 8/3) with states `x`, `y`, `z` from `start` and parameters
+/// `s`, `r`, `b`.
+pub fn lorenz_from(start: [f64; 3]) -> Model {
+    let [x, y, z] = start;
+    model(
+        &[
+            ("x", x, "s*(y - x)"),
+            ("y", y, "x*(r - z) - y"),
+            ("z", z, "x*y - b*z"),
+        ],
+        &[("s", 10.0), ("r", 28.0), ("b", 8.0 / 3.0)],
+    )
+}
+
 /// The spec of [`model`].
 pub fn model_spec(states: &[(&str, f64, &str)], parameters: &[(&str, f64)]) -> ModelSpec {
     ModelSpec {

@@ -266,14 +266,7 @@ fn rossler_period_one_saddle() {
 #[test]
 #[allow(clippy::excessive_precision)] // the published digits, kept as printed
 fn lorenz_ab_orbit_is_a_period_two_saddle_of_the_cut() {
-    let m = model(
-        &[
-            ("x", 1.0, "s*(y - x)"),
-            ("y", 1.0, "x*(r - z) - y"),
-            ("z", 1.0, "x*y - b*z"),
-        ],
-        &[("s", 10.0), ("r", 28.0), ("b", 8.0 / 3.0)],
-    );
+    let m = lorenz_from([1.0, 1.0, 1.0]);
     let cut = plane(&m, &[("z", 1.0)], 27.0, Direction::Rising);
     let run = window(1e-12, 50.0, 400.0);
     let cloud = cut_cloud(&m, &cut, &run);

@@ -4,7 +4,7 @@
 
 mod common;
 
-use common::{any_expression, model, names};
+use common::{any_expression, lorenz_from, model, names};
 use lamina_core::expr::Program;
 use lamina_core::integrate::Rates;
 use lamina_core::model::Model;
@@ -159,14 +159,7 @@ fn check_model(mut model: Model, states: &[&[f64]], times: &[f64]) {
 fn lorenz_model_derivatives_along_vectors() {
     // [analytic] the Jacobian of Lorenz's rates is exact from forward mode; the kernel's
     // derivatives are that Jacobian times the vectors
-    let lorenz = model(
-        &[
-            ("x", 1.0, "s*(y - x)"),
-            ("y", 1.0, "x*(r - z) - y"),
-            ("z", 1.0, "x*y - b*z"),
-        ],
-        &[("s", 10.0), ("r", 28.0), ("b", 8.0 / 3.0)],
-    );
+    let lorenz = lorenz_from([1.0, 1.0, 1.0]);
     check_model(
         lorenz,
         &[&[1.0, 2.0, 3.0], &[-7.3, 4.1, 25.0], &[0.0, 0.0, 0.0]],

@@ -83,14 +83,7 @@ fn brusselator() -> (Model, Cut) {
 }
 
 fn lorenz() -> (Model, Cut) {
-    let m = model(
-        &[
-            ("x", 1.0, "s*(y - x)"),
-            ("y", 1.0, "x*(r - z) - y"),
-            ("z", 1.0, "x*y - b*z"),
-        ],
-        &[("s", 10.0), ("r", 28.0), ("b", 8.0 / 3.0)],
-    );
+    let m = lorenz_from([1.0, 1.0, 1.0]);
     let cut = plane(&m, &[("z", 1.0)], 27.0, Direction::Falling);
     (m, cut)
 }

@@ -12,14 +12,7 @@ use lamina_core::run::{
 };
 
 fn lorenz() -> lamina_core::model::Model {
-    model(
-        &[
-            ("x", 1.0, "s*(y - x)"),
-            ("y", 1.0, "x*(r - z) - y"),
-            ("z", 1.0, "x*y - b*z"),
-        ],
-        &[("s", 10.0), ("r", 28.0), ("b", 8.0 / 3.0)],
-    )
+    lorenz_from([1.0, 1.0, 1.0])
 }
 
 #[test]
@@ -363,14 +356,7 @@ fn a_settle_only_chooses_which_crossings_are_kept() {
     // crossings after it must be exactly those of a run that follows it all along (the steps
     // do not depend on the window) [analytic]. Many settle times, so that some window starts
     // just before a crossing inside the step that takes the cut up again.
-    let m = model(
-        &[
-            ("x", 1.0, "s*(y - x)"),
-            ("y", 1.0, "x*(r - z) - y"),
-            ("z", 1.0, "x*y - b*z"),
-        ],
-        &[("s", 10.0), ("r", 28.0), ("b", 8.0 / 3.0)],
-    );
+    let m = lorenz();
     let cut = plane(&m, &[("z", 1.0)], 27.0, Direction::Both);
     for method in [Method::Dp853, Method::Rodas4] {
         let run = |settle: f64, span: f64| {

@@ -140,14 +140,7 @@ fn van_der_pol_period_and_amplitude_through_the_cut() {
 fn lorenz_ab_orbit_alternates_through_the_cut() {
     // D. Viswanath, Nonlinearity 16 (2003) 1035 (REFERENCES case 11)
     let (x0, y0, period) = (-13.7636106821342, -19.5787519424518, 1.558652210716175);
-    let m = model(
-        &[
-            ("x", x0, "s*(y - x)"),
-            ("y", y0, "x*(r - z) - y"),
-            ("z", 27.0, "x*y - b*z"),
-        ],
-        &[("s", 10.0), ("r", 28.0), ("b", 8.0 / 3.0)],
-    );
+    let m = lorenz_from([x0, y0, 27.0]);
     let cut = plane(&m, &[("z", 1.0)], 27.0, Direction::Rising);
     let (points, _) = collect(
         m,
