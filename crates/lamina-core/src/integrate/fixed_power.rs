@@ -7,7 +7,7 @@
 //! `x = 2^e (1 + f)`, `x^q = 2^(q e) (1 + f)^q`: the first factor is read from a table over
 //! `e`, the second interpolated linearly in a table over the leading bits of `f`. The
 //! interpolation is within `|q (q - 1)| / 8 / 2^(2 MANTISSA_BITS)` of the true value,
-//! relatively (below 1e-6 for the controllers' `|q| < 1/2`): far finer than the controllers'
+//! relatively (below 4e-7 for the controllers' `|q| <= 0.17`): far finer than the controllers'
 //! own factors (a safety factor of 0.9, limits on the change of step size). The result rises
 //! or falls with `x` as `x^q` does, since both tables do and the interpolation keeps that.
 //! A value outside the tables' range (or not positive, or not finite) takes the library's
