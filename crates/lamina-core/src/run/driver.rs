@@ -582,7 +582,8 @@ impl Run {
     ///
     /// A step of the settle time that ends before the recorded window keeps no crossing, so
     /// the cut is not followed over it ([`Run::cut_untracked`]): a step is at most its proposed
-    /// size, or the rest up to its time limit, which is then before the window too.
+    /// size, or the rest up to its time limit (when that is within 1 % more than the
+    /// proposal), which is then before the window too. Twice the proposal leaves room.
     fn measure_start_slope(&mut self) -> Result<(), StepError> {
         let Some(cut) = &mut self.cut else {
             return Ok(());
